@@ -1,0 +1,140 @@
+package model
+
+import (
+	"fmt"
+	"math"
+	"testing"
+)
+
+// Accuracy of the tabulated fast path against the brute-force reference, for
+// every case MODEL.md §9 lists, at its tolerances.
+
+type accuracyCase struct {
+	name  string
+	col   Column
+	car   Carrier
+	comps []Compound
+	prog  Program
+}
+
+func accuracyCompounds() []Compound {
+	var cs []Compound
+	for n := 5; n <= 14; n += 3 {
+		cs = append(cs, alkaneLike(fmt.Sprintf("C%d", n), float64(n)))
+	}
+	dcp := alkaneLike("with-dCp", 8.5)
+	dcp.DCp = 60
+	cs = append(cs, dcp)
+	dcpNeg := alkaneLike("with-negative-dCp", 11.2)
+	dcpNeg.DCp = -45
+	dcpNeg.RefTemp = celsius(140)
+	cs = append(cs, dcpNeg)
+	polar := Compound{Name: "polar", DH: -52e3, DS: -95, MolarMass: 88.1, DiffusionVolume: 92.8, Target: true}
+	cs = append(cs, polar)
+	// not eluted before most programs end
+	cs = append(cs, alkaneLike("heavy", 30))
+	return cs
+}
+
+func accuracyCases() []accuracyCase {
+	col := testColumn()
+	comps := accuracyCompounds()
+	he := heliumFlow(1.2)
+	h2p := Carrier{Gas: Hydrogen, Mode: ConstantPressure, InletGauge: 60e3}
+	n2vac := Carrier{Gas: Nitrogen, Mode: ConstantFlow, Flow: 0.8 * mlPerMin, Vacuum: true}
+	hevacP := Carrier{Gas: Helium, Mode: ConstantPressure, InletGauge: 80e3, Vacuum: true, InitialBand: 0.3}
+	h2alt := Carrier{Gas: Hydrogen, Mode: ConstantFlow, Flow: 2.0 * mlPerMin, Ambient: 84e3}
+	twoRamp := Program{Initial: celsius(40), InitialHold: 60, Ramps: []Ramp{{perMin(10), celsius(150), 0}, {perMin(25), celsius(300), 120}}}
+	threeRamp := Program{Initial: celsius(35), InitialHold: 120, Ramps: []Ramp{{perMin(5), celsius(80), 90}, {perMin(12), celsius(180), 30}, {perMin(30), celsius(320), 300}}}
+	return []accuracyCase{
+		{"isothermal he flow", col, he, comps, Program{Initial: celsius(120), InitialHold: 1800}},
+		{"hold then ramp he flow", col, he, comps, Program{Initial: celsius(50), InitialHold: 120, Ramps: []Ramp{{perMin(8), celsius(280), 0}}}},
+		{"two ramps h2 pressure", col, h2p, comps, twoRamp},
+		{"three ramps n2 vacuum", col, n2vac, comps, threeRamp},
+		{"three ramps he vacuum pressure", col, hevacP, comps, threeRamp},
+		{"no initial hold h2 altitude", col, h2alt, comps, Program{Initial: celsius(60), Ramps: []Ramp{{perMin(20), celsius(200), 240}}}},
+		{"thick film wide bore", Column{Length: 15, Diameter: 0.53e-3, Film: 3e-6, MaxTemp: celsius(260)}, heliumFlow(5), comps,
+			Program{Initial: celsius(45), InitialHold: 30, Ramps: []Ramp{{perMin(15), celsius(250), 60}}}},
+	}
+}
+
+func checkAgainstReference(t *testing.T, s *System, p Program) {
+	t.Helper()
+	var res Result
+	if err := s.Simulate(p, &res); err != nil {
+		t.Fatal(err)
+	}
+	hold := referenceElute(s.Cond, nil, p)
+	if d := math.Abs(res.HoldupTime-hold.tr) / 60; d > 1e-5 {
+		t.Errorf("holdup time %.7f min vs reference %.7f (diff %.2g min)", res.HoldupTime/60, hold.tr/60, d)
+	}
+	refs := make(map[int]refPeak)
+	for _, pk := range res.Peaks {
+		c := &s.Compounds[pk.Compound]
+		ref := referenceElute(s.Cond, c, p)
+		refs[pk.Compound] = ref
+		if math.IsInf(ref.tr, 0) || ref.tr > 1e7 {
+			continue
+		}
+		if d := math.Abs(pk.RetentionTime-ref.tr) / 60; d > 1e-4 {
+			t.Errorf("%s: tR %.6f min vs reference %.6f (diff %.2g min)", c.Name, pk.RetentionTime/60, ref.tr/60, d)
+		}
+		if d := math.Abs(pk.Sigma-ref.sigma) / ref.sigma; d > 1e-3 {
+			t.Errorf("%s: sigma %.6g s vs reference %.6g (rel %.2g)", c.Name, pk.Sigma, ref.sigma, d)
+		}
+		if d := math.Abs(pk.ElutionTemp - ref.te); d > 0.01 {
+			t.Errorf("%s: elution temperature %.4f K vs reference %.4f", c.Name, pk.ElutionTemp, ref.te)
+		}
+	}
+	for _, pr := range res.Pairs {
+		a, b := refs[pr.First], refs[pr.Second]
+		rs := (b.tr - a.tr) / (2 * (a.sigma + b.sigma))
+		if d := math.Abs(pr.Resolution - rs); d > 0.005 {
+			t.Errorf("pair %s/%s: Rs %.4f vs reference %.4f", s.Compounds[pr.First].Name, s.Compounds[pr.Second].Name, pr.Resolution, rs)
+		}
+	}
+}
+
+func TestAccuracyAgainstReference(t *testing.T) {
+	for _, c := range accuracyCases() {
+		t.Run(c.name, func(t *testing.T) {
+			s := mustSystem(t, c.col, c.car, c.comps)
+			checkAgainstReference(t, s, c.prog)
+		})
+	}
+}
+
+// A compound that elutes during a hold, and one that elutes exactly at the
+// boundary between the initial hold and the first ramp.
+func TestAccuracyHoldAndBoundary(t *testing.T) {
+	comps := accuracyCompounds()
+	s := mustSystem(t, testColumn(), heliumFlow(1.0), comps)
+	// tR of C8 isothermally at 60 °C: with the initial hold set to exactly that,
+	// C8 elutes at the end of the hold.
+	k := s.Cond.RetentionFactor(&comps[1], celsius(60))
+	tr := s.Cond.HoldupTimeAt(celsius(60)) * (1 + k)
+	p := Program{Initial: celsius(60), InitialHold: tr, Ramps: []Ramp{{perMin(10), celsius(200), 600}, {perMin(20), celsius(300), 0}}}
+	var res Result
+	if err := s.Simulate(p, &res); err != nil {
+		t.Fatal(err)
+	}
+	for _, pk := range res.Peaks {
+		if pk.Compound == 1 && math.Abs(pk.RetentionTime-tr) > 1e-9*tr {
+			t.Errorf("boundary eluter: tR %.9f s, want %.9f", pk.RetentionTime, tr)
+		}
+	}
+	checkAgainstReference(t, s, p)
+
+	// End of ramp 1 exactly: find the time C11 reaches ζ = 1 under the ramp,
+	// and make that the ramp's final temperature.
+	p2 := Program{Initial: celsius(40), InitialHold: 60, Ramps: []Ramp{{perMin(10), celsius(300), 0}}}
+	s.Simulate(p2, &res)
+	var te float64
+	for _, pk := range res.Peaks {
+		if pk.Compound == 2 {
+			te = pk.ElutionTemp
+		}
+	}
+	p3 := Program{Initial: celsius(40), InitialHold: 60, Ramps: []Ramp{{perMin(10), te, 300}, {perMin(10), celsius(300), 0}}}
+	checkAgainstReference(t, s, p3)
+}
