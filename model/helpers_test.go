@@ -4,7 +4,7 @@ import "testing"
 
 const mlPerMin = 1e-6 / 60 // m³/s per mL/min
 
-func celsius(c float64) float64 { return c + ZeroCelsius }
+func celsius(c float64) float64   { return c + ZeroCelsius }
 func perMin(rate float64) float64 { return rate / 60 }
 
 func testColumn() Column {

@@ -1,0 +1,321 @@
+package main
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+const simulateHelp = `Usage: rampwise simulate [FILE] [--json | --csv]
+
+Predicts the chromatogram of the method's oven program: for every compound the
+retention time, elution temperature, peak width at half height and the
+resolution to the next peak; then the holdup (dead) time, run time, oven cycle
+time (run + cool-down + equilibration), the minimum resolution over the pairs
+that involve a target compound, and the critical pair. Without FILE the
+built-in demo method is used.
+
+Flags:
+`
+
+type peakJSON struct {
+	Name            string   `json:"name"`
+	RetentionTime   *float64 `json:"retention_time_min"`
+	Sigma           *float64 `json:"sigma_min"`
+	ElutionTemp     float64  `json:"elution_temp_c"`
+	RetentionFactor float64  `json:"retention_factor_at_elution"`
+	Eluted          bool     `json:"eluted"`
+	HalfWidth       *float64 `json:"half_height_width_min"`
+	Target          bool     `json:"target"`
+}
+
+type pairJSON struct {
+	First      string  `json:"first"`
+	Second     string  `json:"second"`
+	Resolution float64 `json:"resolution"`
+	Counts     bool    `json:"counts"`
+}
+
+type simulateJSON struct {
+	HoldupTime    float64    `json:"holdup_time_min"`
+	RunTime       float64    `json:"run_time_min"`
+	CycleTime     float64    `json:"cycle_time_min"`
+	Peaks         []peakJSON `json:"peaks"`
+	Pairs         []pairJSON `json:"pairs"`
+	MinResolution *float64   `json:"min_resolution"`
+	CriticalPair  []string   `json:"critical_pair"`
+	Warnings      []string   `json:"warnings"`
+}
+
+func finiteOrNil(x float64) *float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) || x > 1e300 {
+		return nil
+	}
+	return &x
+}
+
+// simulation is a method's system and the result of its program.
+type simulation struct {
+	method *methodfile.Method
+	sys    *model.System
+	res    model.Result
+}
+
+func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
+	sys, err := m.System()
+	if err != nil {
+		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
+	}
+	s := &simulation{method: m, sys: sys}
+	if err := sys.Simulate(m.ModelProgram(), &s.res); err != nil {
+		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
+	}
+	return s, nil
+}
+
+// warnings are the cautions a chromatographer needs with this result.
+func (s *simulation) warnings(prog model.Program) []string {
+	var w []string
+	for _, pk := range s.res.Peaks {
+		if !pk.Eluted {
+			w = append(w, fmt.Sprintf("%s does not elute before the program ends (predicted at %s min): extend the final hold or raise the final temperature, or it carries over into the next run",
+				s.sys.Compounds[pk.Compound].Name, fmtMin(pk.RetentionTime)))
+		}
+	}
+	w = append(w, pressureWarnings(s.method, s.sys, prog)...)
+	if s.sys.Cond.Carrier.Gas.Flammable() {
+		w = append(w, model.HydrogenCaution)
+	}
+	return w
+}
+
+// pressureWarnings flags an inlet pressure above the instrument's limit; in
+// constant-flow mode it rises with temperature, so the first temperature
+// where it is exceeded is named.
+func pressureWarnings(m *methodfile.Method, sys *model.System, prog model.Program) []string {
+	limit := m.Limits.MaxInletKPa * 1000
+	cond := sys.Cond
+	if cond.Carrier.Mode == model.ConstantPressure {
+		if cond.Carrier.InletGauge > limit {
+			return []string{fmt.Sprintf("inlet pressure %.0f kPa is above the instrument limit %.0f kPa", cond.Carrier.InletGauge/1000, limit/1000)}
+		}
+		return nil
+	}
+	lo, hi := prog.Initial, prog.MaxTemp()
+	if cond.InletGauge(hi) <= limit {
+		return nil
+	}
+	if cond.InletGauge(lo) > limit {
+		return []string{fmt.Sprintf("constant flow needs %.0f kPa inlet pressure at %.0f °C, above the instrument limit %.0f kPa", cond.InletGauge(lo)/1000, lo-model.ZeroCelsius, limit/1000)}
+	}
+	for i := 0; i < 60; i++ {
+		mid := (lo + hi) / 2
+		if cond.InletGauge(mid) > limit {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return []string{fmt.Sprintf("constant flow needs more than the instrument limit %.0f kPa inlet pressure from %.1f °C on (%.0f kPa at %.0f °C)",
+		limit/1000, hi-model.ZeroCelsius, cond.InletGauge(prog.MaxTemp())/1000, prog.MaxTemp()-model.ZeroCelsius)}
+}
+
+func fmtMin(s float64) string {
+	if math.IsInf(s, 0) || s > 1e12 {
+		return "never"
+	}
+	return strconv.FormatFloat(s/60, 'f', 3, 64)
+}
+
+func (s *simulation) json(prog model.Program) simulateJSON {
+	r := &s.res
+	out := simulateJSON{
+		HoldupTime: r.HoldupTime / 60,
+		RunTime:    r.RunTime / 60,
+		CycleTime:  r.CycleTime / 60,
+		Peaks:      []peakJSON{},
+		Pairs:      []pairJSON{},
+		Warnings:   s.warnings(prog),
+	}
+	if out.Warnings == nil {
+		out.Warnings = []string{}
+	}
+	for _, pk := range r.Peaks {
+		c := &s.sys.Compounds[pk.Compound]
+		out.Peaks = append(out.Peaks, peakJSON{
+			Name:            c.Name,
+			RetentionTime:   finiteOrNil(pk.RetentionTime / 60),
+			Sigma:           finiteOrNil(pk.Sigma / 60),
+			ElutionTemp:     pk.ElutionTemp - model.ZeroCelsius,
+			RetentionFactor: pk.RetentionFactor,
+			Eluted:          pk.Eluted,
+			HalfWidth:       finiteOrNil(pk.HalfWidth() / 60),
+			Target:          c.Target,
+		})
+	}
+	for _, pr := range r.Pairs {
+		out.Pairs = append(out.Pairs, pairJSON{
+			First: s.sys.Compounds[pr.First].Name, Second: s.sys.Compounds[pr.Second].Name,
+			Resolution: pr.Resolution, Counts: pr.Counts,
+		})
+	}
+	if r.Critical >= 0 {
+		v := r.MinResolution
+		out.MinResolution = &v
+		cp := r.Pairs[r.Critical]
+		out.CriticalPair = []string{s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name}
+	}
+	return out
+}
+
+// resolutionAfter is the resolution of each peak to the next one, by peak
+// position (NaN for the last eluted peak and for peaks after the run).
+func resolutionAfter(r *model.Result) []float64 {
+	out := make([]float64, len(r.Peaks))
+	for i := range out {
+		out[i] = math.NaN()
+	}
+	for i, pr := range r.Pairs {
+		out[i] = pr.Resolution
+		_ = pr
+	}
+	return out
+}
+
+func (s *simulation) writeTable(w io.Writer, name string) {
+	r := &s.res
+	m := s.method
+	title := m.Title
+	if title == "" {
+		title = name
+	}
+	fmt.Fprintf(w, "%s\n", title)
+	fmt.Fprintf(w, "%s\n%s\n\n", describeColumn(m), describeProgram(m.Oven))
+	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\tRs next\ttarget\t")
+	rs := resolutionAfter(r)
+	for i, pk := range r.Peaks {
+		c := &s.sys.Compounds[pk.Compound]
+		rsText := ""
+		if !math.IsNaN(rs[i]) {
+			rsText = fmt.Sprintf("%.2f", rs[i])
+			if r.Critical == i {
+				rsText += " ◄"
+			}
+		}
+		tgt := ""
+		if c.Target {
+			tgt = "yes"
+		}
+		tr := fmtMin(pk.RetentionTime)
+		if !pk.Eluted {
+			tr += "*"
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%.1f\t%.2f\t%.2f\t%s\t%s\t\n", c.Name, tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), pk.RetentionFactor, rsText, tgt)
+	}
+	tw.Flush()
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, s.summary())
+	for _, warn := range s.warnings(m.ModelProgram()) {
+		fmt.Fprintf(w, "warning: %s\n", warn)
+	}
+}
+
+func (s *simulation) summary() string {
+	r := &s.res
+	crit := "no counted pair"
+	if r.Critical >= 0 {
+		cp := r.Pairs[r.Critical]
+		crit = fmt.Sprintf("min Rs %.2f (critical pair %s / %s; target %.2f)", r.MinResolution,
+			s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name, s.method.Goal.MinResolution)
+	}
+	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
+}
+
+func describeColumn(m *methodfile.Method) string {
+	c, g := m.Column, m.Carrier
+	phase := c.Phase
+	if phase == "" {
+		phase = "phase not named"
+	}
+	flow := fmt.Sprintf("%s mL/min constant flow", fmtNum(g.FlowMLMin))
+	if g.Mode == "constant-pressure" {
+		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
+	}
+	return fmt.Sprintf("%s m × %s mm × %s µm %s (max %s °C) · %s %s · %s outlet",
+		fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM), phase, fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
+}
+
+func describeProgram(o methodfile.Oven) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s °C (%s min)", fmtNum(round(o.InitialC, 2)), fmtNum(round(o.InitialHoldMin, 3)))
+	for _, r := range o.Ramps {
+		fmt.Fprintf(&b, " → %s °C/min → %s °C (%s min)", fmtNum(round(r.RateCMin, 2)), fmtNum(round(r.FinalC, 2)), fmtNum(round(r.HoldMin, 3)))
+	}
+	return b.String()
+}
+
+func round(x float64, digits int) float64 {
+	p := math.Pow(10, float64(digits))
+	return math.Round(x*p) / p
+}
+
+func fmtNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+
+func (s *simulation) writeCSV(w io.Writer) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"name", "retention_time_min", "elution_temp_c", "sigma_min", "half_height_width_min", "retention_factor_at_elution", "resolution_to_next", "target", "eluted"})
+	rs := resolutionAfter(&s.res)
+	for i, pk := range s.res.Peaks {
+		c := &s.sys.Compounds[pk.Compound]
+		rsText := ""
+		if !math.IsNaN(rs[i]) {
+			rsText = strconv.FormatFloat(rs[i], 'g', 10, 64)
+		}
+		cw.Write([]string{c.Name, strconv.FormatFloat(pk.RetentionTime/60, 'g', 10, 64),
+			strconv.FormatFloat(pk.ElutionTemp-model.ZeroCelsius, 'g', 10, 64),
+			strconv.FormatFloat(pk.Sigma/60, 'g', 10, 64), strconv.FormatFloat(pk.HalfWidth()/60, 'g', 10, 64),
+			strconv.FormatFloat(pk.RetentionFactor, 'g', 10, 64), rsText, strconv.FormatBool(c.Target), strconv.FormatBool(pk.Eluted)})
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+func runSimulate(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("simulate", simulateHelp, stderr)
+	asJSON := fs.Bool("json", false, "print the result as JSON (the format scripts rely on)")
+	asCSV := fs.Bool("csv", false, "print the peak table as CSV")
+	file, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if *asJSON && *asCSV {
+		return badf("simulate: --json and --csv exclude each other")
+	}
+	m, name, err := loadMethod(file)
+	if err != nil {
+		return err
+	}
+	s, err := simulateMethod(m, name)
+	if err != nil {
+		return err
+	}
+	switch {
+	case *asJSON:
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		return enc.Encode(s.json(m.ModelProgram()))
+	case *asCSV:
+		return s.writeCSV(stdout)
+	}
+	s.writeTable(stdout, name)
+	return nil
+}

@@ -1,0 +1,156 @@
+package methodfile
+
+import (
+	"bytes"
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"github.com/google/renameio/v2"
+	toml "github.com/pelletier/go-toml/v2"
+)
+
+func ptr[T any](x T) *T { return &x }
+
+// Marshal renders the method as TOML. Defaults are written out, so a saved
+// method says everything it means; compounds derived from a retention index
+// keep only the index (their parameters are derived again on load).
+func Marshal(m *Method) ([]byte, error) {
+	r := rawMethod{
+		Column: &rawColumn{
+			LengthM:     ptr(m.Column.LengthM),
+			DiameterMM:  ptr(m.Column.DiameterMM),
+			FilmUM:      ptr(m.Column.FilmUM),
+			MaxTempC:    ptr(m.Column.MaxTempC),
+			Diffusivity: ptr(m.Column.Diffusivity),
+			PlateHeight: ptr(m.Column.PlateHeight),
+		},
+		Carrier: &rawCarrier{
+			Gas:         ptr(m.Carrier.Gas),
+			Mode:        ptr(m.Carrier.Mode),
+			Outlet:      ptr(m.Carrier.Outlet),
+			AmbientKPa:  ptr(m.Carrier.AmbientKPa),
+			InitialBand: ptr(m.Carrier.InitialBand),
+		},
+		Oven: &rawOven{InitialC: ptr(m.Oven.InitialC), InitialHoldMin: ptr(m.Oven.InitialHoldMin)},
+		Limits: &rawLimits{
+			OvenMinC:         ptr(m.Limits.OvenMinC),
+			MaxRateCMin:      ptr(m.Limits.MaxRateCMin),
+			MaxHoldMin:       ptr(m.Limits.MaxHoldMin),
+			AmbientC:         ptr(m.Limits.AmbientC),
+			CooldownTauMin:   ptr(m.Limits.CooldownTauMin),
+			EquilibrationMin: ptr(m.Limits.EquilibrationMin),
+			MaxInletKPa:      ptr(m.Limits.MaxInletKPa),
+		},
+		Goal: &rawGoal{
+			MinResolution: ptr(m.Goal.MinResolution),
+			Objective:     ptr(m.Goal.Objective),
+			Ramps:         ptr(int64(m.Goal.Ramps)),
+			TailMin:       ptr(m.Goal.TailMin),
+			Lock:          append([]string{}, m.Goal.Lock...),
+		},
+	}
+	if m.Title != "" {
+		r.Title = ptr(m.Title)
+	}
+	if m.Notes != "" {
+		r.Notes = ptr(m.Notes)
+	}
+	if m.Column.Phase != "" {
+		r.Column.Phase = ptr(m.Column.Phase)
+	}
+	if m.Column.HasCapacity {
+		r.Column.CapacityNG = ptr(m.Column.CapacityNG)
+	}
+	if m.Carrier.FlowMLMin > 0 {
+		r.Carrier.FlowMLMin = ptr(m.Carrier.FlowMLMin)
+	}
+	if m.Carrier.InletKPa > 0 {
+		r.Carrier.InletKPa = ptr(m.Carrier.InletKPa)
+	}
+	for _, rp := range m.Oven.Ramps {
+		r.Oven.Ramp = append(r.Oven.Ramp, rawRamp{RateCMin: ptr(rp.RateCMin), FinalC: ptr(rp.FinalC), HoldMin: ptr(rp.HoldMin)})
+	}
+	if m.Injection.Present {
+		in := &rawInjection{VolumeUL: ptr(m.Injection.VolumeUL), SplitRatio: ptr(m.Injection.SplitRatio)}
+		if m.Injection.HasInletTemp {
+			in.InletTempC = ptr(m.Injection.InletTempC)
+		}
+		if m.Injection.HasDetector {
+			in.DetectorTempC = ptr(m.Injection.DetectorTempC)
+		}
+		r.Injection = in
+	}
+	for _, c := range m.Compounds {
+		rc := rawCompound{Name: ptr(c.Name), Target: ptr(c.Target)}
+		if c.Formula != "" {
+			rc.Formula = ptr(c.Formula)
+		}
+		if c.AromaticRings != 0 {
+			rc.AromaticRings = ptr(int64(c.AromaticRings))
+		}
+		if !c.FromIndex {
+			rc.DHkJ = ptr(c.DHkJ)
+			rc.DS = ptr(c.DS)
+			if c.DCp != 0 {
+				rc.DCp = ptr(c.DCp)
+			}
+			if c.RefTempC != 100 {
+				rc.RefTempC = ptr(c.RefTempC)
+			}
+		}
+		if c.Amount != 1 {
+			rc.Amount = ptr(c.Amount)
+		}
+		if c.HasConc {
+			rc.Concentration = ptr(c.Concentration)
+		}
+		if c.AlkaneCarbons != 0 {
+			rc.AlkaneCarbons = ptr(int64(c.AlkaneCarbons))
+		}
+		if c.RetentionIndex != 0 {
+			rc.RetentionIndex = ptr(c.RetentionIndex)
+		}
+		if c.HasIndexTemp {
+			rc.IndexTempC = ptr(c.IndexTempC)
+		}
+		r.Compound = append(r.Compound, rc)
+	}
+	var buf bytes.Buffer
+	buf.WriteString("# rampwise method file\n")
+	enc := toml.NewEncoder(&buf)
+	enc.SetIndentTables(false)
+	if err := enc.Encode(r); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// WriteFile saves the method atomically: a temporary file in the same
+// folder, flushed to disk, then renamed over path. A failure leaves any
+// existing file untouched.
+func WriteFile(path string, m *Method) error {
+	data, err := Marshal(m)
+	if err != nil {
+		return fmt.Errorf("%s: %v", path, err)
+	}
+	// Check what we write reads back before it replaces anything.
+	if _, err := Parse(path, data); err != nil {
+		return fmt.Errorf("refusing to save an invalid method: %v", err)
+	}
+	return WriteAtomic(path, data)
+}
+
+// WriteAtomic writes data to path through a flushed temporary file in the
+// same folder and a rename.
+func WriteAtomic(path string, data []byte) error {
+	perm := os.FileMode(0o644)
+	if st, err := os.Stat(path); err == nil {
+		perm = st.Mode().Perm()
+	}
+	dir := filepath.Dir(path)
+	if err := renameio.WriteFile(path, data, perm, renameio.WithTempDir(dir)); err != nil {
+		return fmt.Errorf("%s: cannot save: %v", path, err)
+	}
+	return nil
+}

@@ -1,0 +1,270 @@
+// Package methodfile reads and writes rampwise method files (TOML, see the
+// project's FORMAT.md). Decoding is strict: an unknown key, a wrong type, a
+// missing required key or a value out of range is an error naming the file,
+// line and key, and nothing is half-loaded. Saving is atomic.
+//
+// A Method keeps the file's own units (°C, min, mm, µm, kPa gauge, mL/min) so
+// that reading, writing and reading again gives the same values exactly; the
+// model's SI types are built from it on demand.
+package methodfile
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/rampwise/rampwise/model"
+)
+
+// Column is the [column] table.
+type Column struct {
+	LengthM     float64
+	DiameterMM  float64
+	FilmUM      float64
+	Phase       string
+	MaxTempC    float64
+	Diffusivity float64 // stationary_diffusivity_m2_s, default 1.0e-9
+	PlateHeight float64 // plate_height_factor, default 1.0
+	CapacityNG  float64 // capacity_ng; 0 = estimate
+	HasCapacity bool
+}
+
+// Carrier is the [carrier] table.
+type Carrier struct {
+	Gas         string // helium | hydrogen | nitrogen
+	Mode        string // constant-flow | constant-pressure
+	FlowMLMin   float64
+	InletKPa    float64 // gauge
+	Outlet      string  // atmospheric | vacuum
+	AmbientKPa  float64
+	InitialBand float64 // s
+}
+
+// Ramp is one [[oven.ramp]].
+type Ramp struct {
+	RateCMin float64
+	FinalC   float64
+	HoldMin  float64
+}
+
+// Oven is the [oven] table.
+type Oven struct {
+	InitialC       float64
+	InitialHoldMin float64
+	Ramps          []Ramp
+}
+
+// Limits is the [limits] table, defaults applied.
+type Limits struct {
+	OvenMinC         float64 // default: ambient + 10 °C
+	MaxRateCMin      float64 // default 100
+	MaxHoldMin       float64 // default 10
+	AmbientC         float64 // default 25
+	CooldownTauMin   float64 // default 2.0
+	EquilibrationMin float64 // default 0.5
+	MaxInletKPa      float64 // default 690 (gauge)
+}
+
+// Goal is the [goal] table, defaults applied.
+type Goal struct {
+	MinResolution float64  // default 1.5
+	Objective     string   // run-time | cycle-time
+	Ramps         int      // default: the oven's ramp count, 1..5
+	TailMin       float64  // default 0.5
+	Lock          []string // initial_c, initial_hold_min, rate_N, final_N, hold_N
+}
+
+// Injection is the optional [injection] table.
+type Injection struct {
+	Present       bool
+	VolumeUL      float64 // default 1.0
+	SplitRatio    float64 // default 0 = splitless
+	InletTempC    float64
+	DetectorTempC float64
+	HasInletTemp  bool
+	HasDetector   bool
+}
+
+// Compound is one [[compound]].
+type Compound struct {
+	Name          string
+	Formula       string
+	AromaticRings int
+	DHkJ          float64
+	DS            float64
+	DCp           float64
+	RefTempC      float64 // default 100
+	Amount        float64 // default 1
+	Target        bool    // default true
+	Concentration float64 // mg/mL
+	HasConc       bool
+	// Retention-index keys.
+	AlkaneCarbons  int // 0 = not a ladder alkane
+	RetentionIndex float64
+	IndexTempC     float64
+	HasIndexTemp   bool
+	// FromIndex is true when dH and dS were not in the file and were derived
+	// from the retention index and the ladder (the virtual-alkane rule).
+	FromIndex bool
+}
+
+// Method is a whole method file.
+type Method struct {
+	Title     string
+	Notes     string
+	Column    Column
+	Carrier   Carrier
+	Oven      Oven
+	Limits    Limits
+	Goal      Goal
+	Injection Injection
+	Compounds []Compound
+}
+
+// Clone returns a deep copy.
+func (m *Method) Clone() *Method {
+	c := *m
+	c.Oven.Ramps = append([]Ramp(nil), m.Oven.Ramps...)
+	c.Goal.Lock = append([]string(nil), m.Goal.Lock...)
+	c.Compounds = append([]Compound(nil), m.Compounds...)
+	return &c
+}
+
+const kPa = 1000.0
+
+// ModelColumn is the column in SI units.
+func (m *Method) ModelColumn() model.Column {
+	return model.Column{
+		Length:                m.Column.LengthM,
+		Diameter:              m.Column.DiameterMM * 1e-3,
+		Film:                  m.Column.FilmUM * 1e-6,
+		MaxTemp:               m.Column.MaxTempC + model.ZeroCelsius,
+		StationaryDiffusivity: m.Column.Diffusivity,
+		PlateHeightFactor:     m.Column.PlateHeight,
+	}
+}
+
+// ModelCarrier is the carrier in SI units.
+func (m *Method) ModelCarrier() (model.Carrier, error) {
+	g, err := model.ParseGas(m.Carrier.Gas)
+	if err != nil {
+		return model.Carrier{}, err
+	}
+	c := model.Carrier{
+		Gas:         g,
+		Flow:        m.Carrier.FlowMLMin * 1e-6 / 60,
+		InletGauge:  m.Carrier.InletKPa * kPa,
+		Vacuum:      m.Carrier.Outlet == "vacuum",
+		Ambient:     m.Carrier.AmbientKPa * kPa,
+		InitialBand: m.Carrier.InitialBand,
+	}
+	if m.Carrier.Mode == "constant-pressure" {
+		c.Mode = model.ConstantPressure
+	}
+	return c, nil
+}
+
+// ModelProgram is the oven program in SI units.
+func (m *Method) ModelProgram() model.Program {
+	return ProgramToModel(m.Oven)
+}
+
+// ProgramToModel converts an oven program to SI units.
+func ProgramToModel(o Oven) model.Program {
+	p := model.Program{Initial: o.InitialC + model.ZeroCelsius, InitialHold: o.InitialHoldMin * 60}
+	for _, r := range o.Ramps {
+		p.Ramps = append(p.Ramps, model.Ramp{Rate: r.RateCMin / 60, Final: r.FinalC + model.ZeroCelsius, Hold: r.HoldMin * 60})
+	}
+	return p
+}
+
+// ProgramFromModel converts a model program to file units.
+func ProgramFromModel(p model.Program) Oven {
+	o := Oven{InitialC: p.Initial - model.ZeroCelsius, InitialHoldMin: p.InitialHold / 60}
+	for _, r := range p.Ramps {
+		o.Ramps = append(o.Ramps, Ramp{RateCMin: r.Rate * 60, FinalC: r.Final - model.ZeroCelsius, HoldMin: r.Hold / 60})
+	}
+	return o
+}
+
+// ModelOven is the cool-down behaviour in SI units.
+func (m *Method) ModelOven() model.Oven {
+	return model.Oven{
+		Ambient:       m.Limits.AmbientC + model.ZeroCelsius,
+		CooldownTau:   m.Limits.CooldownTauMin * 60,
+		Equilibration: m.Limits.EquilibrationMin * 60,
+	}
+}
+
+// ModelCompounds converts the compounds to SI units. Every compound must
+// have its dH and dS (given, or derived from its retention index on load).
+func (m *Method) ModelCompounds() ([]model.Compound, error) {
+	out := make([]model.Compound, len(m.Compounds))
+	for i, c := range m.Compounds {
+		mc := model.Compound{
+			Name:    c.Name,
+			DH:      c.DHkJ * 1000,
+			DS:      c.DS,
+			DCp:     c.DCp,
+			RefTemp: c.RefTempC + model.ZeroCelsius,
+			Amount:  c.Amount,
+			Target:  c.Target,
+		}
+		if c.Formula != "" {
+			f, err := model.ParseFormula(c.Formula, c.AromaticRings)
+			if err != nil {
+				return nil, fmt.Errorf("compound %q: %v", c.Name, err)
+			}
+			mc.MolarMass, mc.DiffusionVolume = f.MolarMass, f.Volume
+		}
+		out[i] = mc
+	}
+	return out, nil
+}
+
+// System builds the model's System (tables included) for the method.
+func (m *Method) System() (*model.System, error) {
+	car, err := m.ModelCarrier()
+	if err != nil {
+		return nil, err
+	}
+	cond, err := model.NewConditions(m.ModelColumn(), car)
+	if err != nil {
+		return nil, err
+	}
+	comps, err := m.ModelCompounds()
+	if err != nil {
+		return nil, err
+	}
+	return model.NewSystem(cond, comps, m.ModelOven())
+}
+
+// LockNames lists the program values the optimizer may hold fixed, for n ramps.
+func LockNames(n int) []string {
+	names := []string{"initial_c", "initial_hold_min"}
+	for i := 1; i <= n; i++ {
+		s := strconv.Itoa(i)
+		names = append(names, "rate_"+s, "final_"+s, "hold_"+s)
+	}
+	return names
+}
+
+// ValidLockName reports whether s is a lock name for up to n ramps.
+func ValidLockName(s string, n int) bool {
+	for _, x := range LockNames(n) {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// Locked reports whether the goal locks the named program value.
+func (g Goal) Locked(name string) bool {
+	for _, x := range g.Lock {
+		if strings.EqualFold(x, name) {
+			return true
+		}
+	}
+	return false
+}
