@@ -45,6 +45,8 @@ type Result struct {
 	LastPeak float64
 	// TargetsNotEluted counts the targets that elute after the run.
 	TargetsNotEluted int
+
+	steps []step // scratch: the program prepared for all compounds
 }
 
 // Simulate evaluates the program p (MODEL.md §4–6): the elution of every
@@ -68,13 +70,14 @@ func (s *System) Simulate(p Program, res *Result) error {
 	res.CycleTime = res.RunTime + cool + s.Oven.Equilibration
 
 	nc := len(s.Compounds)
-	hold, _ := s.elute(nc, p)
+	s.prepare(p, res)
+	hold := s.elute(nc, res.steps)
 	res.HoldupTime = hold.RetentionTime
 
 	res.Peaks = res.Peaks[:0]
 	res.TargetsNotEluted = 0
 	for i := 0; i < nc; i++ {
-		pk, _ := s.elute(i, p)
+		pk := s.elute(i, res.steps)
 		pk.Eluted = pk.RetentionTime <= res.RunTime
 		if !pk.Eluted && s.Compounds[i].Target {
 			res.TargetsNotEluted++
@@ -126,62 +129,78 @@ func sortPeaks(p []Peak) {
 	}
 }
 
-// elute integrates ζ and the variance for table i (compound i, or the
-// unretained solute for i = len(Compounds)) through the program, then through
-// an endless hold at the final temperature. It returns the peak and the
-// index of the step in which it elutes (0 the initial hold, 2r−1 ramp r,
-// 2r its hold, −1 after the program).
-func (s *System) elute(i int, p Program) (Peak, int) {
-	tab := s.tables[i]
-	var zeta, vz, t float64 // ζ, ∫ H dζ (m), time
-	// holdStep handles a hold at temperature temp of length h (Inf: endless).
-	holdStep := func(temp, h float64) (Peak, bool) {
-		st := s.Cond.state(temp)
-		g, q, k := s.exact(i, temp, st, math.Pow(temp, 1.75))
-		if !(g > 0) { // retention beyond float range: never elutes
-			return Peak{Compound: i, RetentionTime: math.Inf(1), Sigma: math.Inf(1), ElutionTemp: temp, RetentionFactor: k}, true
+// step is one program segment prepared once per Simulate for all
+// compounds: a hold (rate 0) at temp for dur, or a ramp from ta to temp.
+type step struct {
+	ta, temp, rate, dur float64
+	ba, bb              basis    // Hermite bases at ta and temp (ramps)
+	st                  gasState // gas state at temp (holds)
+	t175                float64  // temp^1.75 (holds)
+}
+
+// prepare fills res.steps for program p: every hold of nonzero length, every
+// ramp, and the endless hold at the final temperature last.
+func (s *System) prepare(p Program, res *Result) {
+	res.steps = res.steps[:0]
+	hold := func(temp, h float64) {
+		if h > 0 {
+			res.steps = append(res.steps, step{temp: temp, dur: h, st: s.Cond.state(temp), t175: math.Pow(temp, 1.75)})
 		}
-		if zeta+g*h >= 1 {
-			dt := (1 - zeta) / g
-			vz += q * dt
-			return s.peak(i, t+dt, temp, k, st.tm, vz), true
-		}
-		zeta += g * h
-		vz += q * h
-		t += h
-		return Peak{}, false
 	}
-	if pk, ok := holdStep(p.Initial, p.InitialHold); ok {
-		return pk, 0
-	}
+	hold(p.Initial, p.InitialHold)
 	prev := p.Initial
 	ba := s.basisAt(prev)
-	phiA, psiA := ba.phi(tab), ba.psi(tab)
-	for r, rp := range p.Ramps {
-		bb := s.basisAt(rp.Final)
-		phiB, psiB := bb.phi(tab), bb.psi(tab)
-		dz := (phiB - phiA) / rp.Rate
+	for _, r := range p.Ramps {
+		bb := s.basisAt(r.Final)
+		res.steps = append(res.steps, step{ta: prev, temp: r.Final, rate: r.Rate, dur: (r.Final - prev) / r.Rate, ba: ba, bb: bb})
+		hold(r.Final, r.Hold)
+		prev, ba = r.Final, bb
+	}
+	hold(prev, math.Inf(1))
+}
+
+// elute integrates ζ and the variance for table i (compound i, or the
+// unretained solute for i = len(Compounds)) through the prepared steps,
+// the last of which is an endless hold at the final temperature.
+func (s *System) elute(i int, steps []step) Peak {
+	tab := s.tables[i]
+	var zeta, vz, t float64 // ζ, ∫ H dζ (m), time
+	for n := range steps {
+		sp := &steps[n]
+		if sp.rate == 0 {
+			g, q, k := s.exact(i, sp.temp, sp.st, sp.t175)
+			if !(g > 0) { // retention beyond float range: never elutes
+				return Peak{Compound: i, RetentionTime: math.Inf(1), Sigma: math.Inf(1), ElutionTemp: sp.temp, RetentionFactor: k}
+			}
+			if zeta+g*sp.dur >= 1 {
+				dt := (1 - zeta) / g
+				vz += q * dt
+				return s.peak(i, t+dt, sp.temp, k, sp.st.tm, vz)
+			}
+			zeta += g * sp.dur
+			vz += q * sp.dur
+			t += sp.dur
+			continue
+		}
+		phiA, phiB := sp.ba.phi(tab), sp.bb.phi(tab)
+		psiA := sp.ba.psi(tab)
+		dz := (phiB - phiA) / sp.rate
 		if zeta+dz >= 1 {
-			target := phiA + rp.Rate*(1-zeta)
-			te, be := s.invert(tab, target, prev, rp.Final)
-			vz += (be.psi(tab) - psiA) / rp.Rate
-			st := s.Cond.state(te)
+			target := phiA + sp.rate*(1-zeta)
+			te, be := s.invert(tab, target, sp.ta, sp.temp, sp.ba.j, sp.bb.j)
+			vz += (be.psi(tab) - psiA) / sp.rate
 			var k float64
 			if i < len(s.Compounds) {
 				k = math.Exp(s.Compounds[i].LnK(te)) / s.Cond.beta
 			}
-			return s.peak(i, t+(te-prev)/rp.Rate, te, k, st.tm, vz), 2*r + 1
+			return s.peak(i, t+(te-sp.ta)/sp.rate, te, k, s.holdupAt(be, te), vz)
 		}
 		zeta += dz
-		vz += (psiB - psiA) / rp.Rate
-		t += (rp.Final - prev) / rp.Rate
-		if pk, ok := holdStep(rp.Final, rp.Hold); ok {
-			return pk, 2*r + 2
-		}
-		prev, phiA, psiA = rp.Final, phiB, psiB
+		vz += (sp.bb.psi(tab) - psiA) / sp.rate
+		t += sp.dur
 	}
-	pk, _ := holdStep(prev, math.Inf(1))
-	return pk, -1
+	// unreachable: the last step is endless
+	return Peak{Compound: i, RetentionTime: math.Inf(1), Sigma: math.Inf(1)}
 }
 
 // peak assembles a peak: σ_t² = [tM(Te)(1 + k(Te))]² σ_ζ² + σ0², with

@@ -219,11 +219,10 @@ func (b basis) psi(tb []node) float64 {
 	return b.h00*a.psi + b.h10*a.q + b.h01*c.psi + b.h11*c.q
 }
 
-// invert finds T in [ta, tb] with Φ(T) = target on table tb, where Φ(ta) ≤
-// target ≤ Φ(tbT); it returns T and the Hermite basis there.
-func (s *System) invert(tab []node, target, ta, tbT float64) (float64, basis) {
-	ja := s.basisAt(ta).j
-	jb := s.basisAt(tbT).j
+// invert finds T in [ta, tbT] with Φ(T) = target on table tab, where Φ(ta) ≤
+// target ≤ Φ(tbT) and ja, jb are the cells of ta and tbT; it returns T and
+// the Hermite basis there.
+func (s *System) invert(tab []node, target, ta, tbT float64, ja, jb int) (float64, basis) {
 	// largest node j in [ja, jb] with phi_j <= target
 	lo, hi := ja, jb
 	for lo < hi {
@@ -236,28 +235,22 @@ func (s *System) invert(tab []node, target, ta, tbT float64) (float64, basis) {
 	}
 	j := lo
 	a, c := &tab[j], &tab[j+1]
-	// Newton on the cubic in u ∈ [0,1], safeguarded by bisection.
-	ul, uh := 0.0, 1.0
+	// Newton on the cubic in u ∈ [0,1] from the linear guess; Φ is smooth and
+	// increasing, so a few steps reach 1e-13 of the cell.
 	u := 0.5
 	if d := c.phi - a.phi; d > 0 {
-		u = math.Min(1, math.Max(0, (target-a.phi)/d))
+		u = clamp01((target - a.phi) / d)
 	}
-	for it := 0; it < 40; it++ {
-		b := hermite(j, u)
-		f := b.phi(tab) - target
-		if f > 0 {
-			uh = u
-		} else {
-			ul = u
-		}
-		// dΦ/du = TableStep × interpolated g
+	for it := 0; it < 12; it++ {
 		v := 1 - u
+		f := (1+2*u)*v*v*a.phi + u*v*v*TableStep*a.g + u*u*(3-2*u)*c.phi + u*u*(u-1)*TableStep*c.g - target
+		// dΦ/du = 6uv (Φ1 − Φ0) + h [v(1 − 3u) g0 + u(3u − 2) g1]
 		d := 6*u*v*(c.phi-a.phi) + TableStep*(v*(1-3*u)*a.g+u*(3*u-2)*c.g)
-		next := u - f/d
-		if !(d > 0) || next <= ul || next >= uh {
-			next = (ul + uh) / 2
+		if !(d > 0) {
+			break
 		}
-		if math.Abs(next-u) < 1e-14 {
+		next := clamp01(u - f/d)
+		if diff := next - u; diff < 1e-13 && diff > -1e-13 {
 			u = next
 			break
 		}
@@ -265,8 +258,36 @@ func (s *System) invert(tab []node, target, ta, tbT float64) (float64, basis) {
 	}
 	t := s.temp(j) + u*TableStep
 	if t < ta || t > tbT {
-		t = math.Min(tbT, math.Max(ta, t))
+		if t < ta {
+			t = ta
+		} else {
+			t = tbT
+		}
 		return t, s.basisAt(t)
 	}
 	return t, hermite(j, u)
+}
+
+// clamp01 limits x to [0, 1] (plain comparisons: math.Min and math.Max
+// handle NaN and signed zeros and are slow on this path).
+func clamp01(x float64) float64 {
+	if x < 0 {
+		return 0
+	}
+	if x > 1 {
+		return 1
+	}
+	return x
+}
+
+// holdupAt is tM at temperature t from the unretained table: Φ0' = 1/tM,
+// by the derivative of its Hermite interpolant (tM is a smooth power law of
+// T, so this is exact to about 1e-10 relative).
+func (s *System) holdupAt(b basis, t float64) float64 {
+	tab := s.tables[len(s.Compounds)]
+	a, c := &tab[b.j], &tab[b.j+1]
+	u := (t-s.lo)/TableStep - float64(b.j)
+	v := 1 - u
+	d := 6*u*v*(c.phi-a.phi) + TableStep*(v*(1-3*u)*a.g+u*(3*u-2)*c.g)
+	return TableStep / d
 }
