@@ -90,6 +90,46 @@ func (s *System) Simulate(p Program, res *Result) error {
 	return nil
 }
 
+// SimulateTrimmed evaluates p as the optimizer uses it: the oven is taken to
+// stay at the final temperature after the program, and the run ends tail
+// seconds after the last peak, so every peak elutes within the run. The
+// result equals Simulate of p.TrimTo(res.RunTime). It allocates nothing once
+// res has room.
+func (s *System) SimulateTrimmed(p Program, tail float64, res *Result) error {
+	if err := p.Validate(s.Cond.Column.MaxTemp); err != nil {
+		return err
+	}
+	if p.Initial < s.lo {
+		return fmt.Errorf("model: initial temperature %.1f °C is below the model's range (%.1f °C)", p.Initial-ZeroCelsius, s.lo-ZeroCelsius)
+	}
+	nc := len(s.Compounds)
+	s.prepare(p, res)
+	res.HoldupTime = s.elute(nc, res.steps).RetentionTime
+	res.Peaks = res.Peaks[:0]
+	for i := 0; i < nc; i++ {
+		pk := s.elute(i, res.steps)
+		pk.Eluted = !math.IsInf(pk.RetentionTime, 0)
+		res.Peaks = append(res.Peaks, pk)
+	}
+	sortPeaks(res.Peaks)
+	res.LastPeak = res.Peaks[len(res.Peaks)-1].RetentionTime
+	res.RunTime = res.LastPeak + tail
+	res.TargetsNotEluted = 0
+	for _, pk := range res.Peaks {
+		if !pk.Eluted && s.Compounds[pk.Compound].Target {
+			res.TargetsNotEluted++
+		}
+	}
+	cool, err := s.Oven.Cooldown(p.TempAt(res.RunTime), p.Initial)
+	if err != nil {
+		return err
+	}
+	res.Cooldown = cool
+	res.CycleTime = res.RunTime + cool + s.Oven.Equilibration
+	s.pairs(res)
+	return nil
+}
+
 // pairs fills the adjacent pairs of eluted peaks, the minimum resolution over
 // counted pairs and the critical pair: Rs = (t2 − t1) / (2 (σ1 + σ2)).
 func (s *System) pairs(res *Result) {

@@ -1,0 +1,45 @@
+package optimizer
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/rampwise/rampwise/model"
+)
+
+// explain says in the trade's words why the target is not met, from the
+// worst limiting pair's selectivity over the allowed temperature range and
+// the plates it would need.
+func explain(p *Problem, res *model.Result, limiting []int) string {
+	sys := p.System
+	if res.TargetsNotEluted > 0 {
+		return "a target compound does not elute within the limits (final temperature or hold limit too low for it)"
+	}
+	if len(limiting) == 0 {
+		return "the best program found breaks a limit (hold length or inlet pressure); relax the limits"
+	}
+	pr := res.Pairs[limiting[0]]
+	a, b := &sys.Compounds[pr.First], &sys.Compounds[pr.Second]
+	// selectivity α = K_b/K_a over the allowed oven range
+	bestAlpha, bestT := 1.0, p.Limits.OvenMin
+	for t := p.Limits.OvenMin; t <= p.Limits.MaxTemp; t += 1 {
+		al := math.Exp(math.Abs(b.LnK(t) - a.LnK(t)))
+		if al > bestAlpha {
+			bestAlpha, bestT = al, t
+		}
+	}
+	name := fmt.Sprintf("%s / %s", a.Name, b.Name)
+	if bestAlpha-1 < 1e-6 {
+		return fmt.Sprintf("%s have the same retention on this phase at every temperature (α = 1.000): no oven program separates them; another stationary phase is needed", name)
+	}
+	// plates needed at large k (Purnell): N = 16 Rs² (α/(α−1))²
+	need := 16 * p.MinResolution * p.MinResolution * math.Pow(bestAlpha/(bestAlpha-1), 2)
+	r := sys.Cond.Column.ChannelDiameter() / 2
+	have := sys.Cond.Column.Length / (1.915 * r)
+	if need > have {
+		return fmt.Sprintf("%s: the selectivity on this phase is at most α = %.4f (at %.0f °C); Rs %.2f would need about %.0f plates even isothermally, and the column gives at most about %.0f: a longer column, a narrower bore or another phase would be needed",
+			name, bestAlpha, bestT-model.ZeroCelsius, p.MinResolution, need, have)
+	}
+	return fmt.Sprintf("%s reach only Rs %.2f within the limits; their selectivity is best (α = %.4f) near %.0f °C: a lower start temperature, slower ramps or longer holds than the limits allow, or a longer column, would be needed",
+		name, pr.Resolution, bestAlpha, bestT-model.ZeroCelsius)
+}

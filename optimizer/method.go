@@ -1,0 +1,31 @@
+package optimizer
+
+import (
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// FromMethod builds the problem a method file describes: its goal, its
+// limits and its program as the start.
+func FromMethod(m *methodfile.Method, sys *model.System) Problem {
+	obj := RunTime
+	if m.Goal.Objective == "cycle-time" {
+		obj = CycleTime
+	}
+	return Problem{
+		System: sys,
+		Start:  m.ModelProgram(),
+		Ramps:  m.Goal.Ramps,
+		Lock:   append([]string(nil), m.Goal.Lock...),
+		Limits: Limits{
+			OvenMin:  m.Limits.OvenMinC + model.ZeroCelsius,
+			MaxTemp:  m.Column.MaxTempC + model.ZeroCelsius,
+			MaxRate:  m.Limits.MaxRateCMin / 60,
+			MaxHold:  m.Limits.MaxHoldMin * 60,
+			MaxInlet: m.Limits.MaxInletKPa * 1000,
+		},
+		MinResolution: m.Goal.MinResolution,
+		Objective:     obj,
+		Tail:          m.Goal.TailMin * 60,
+	}
+}
