@@ -118,6 +118,23 @@ func (p Program) TrimTo(end float64) Program {
 	return q
 }
 
+// Simplify merges consecutive ramps of the same rate with no hold between
+// them into one; the temperature profile is unchanged.
+func (p Program) Simplify() Program {
+	q := Program{Initial: p.Initial, InitialHold: p.InitialHold}
+	for _, r := range p.Ramps {
+		if n := len(q.Ramps); n > 0 {
+			last := &q.Ramps[n-1]
+			if last.Hold == 0 && math.Abs(last.Rate-r.Rate) <= 1e-12*r.Rate {
+				last.Final, last.Hold = r.Final, r.Hold
+				continue
+			}
+		}
+		q.Ramps = append(q.Ramps, r)
+	}
+	return q
+}
+
 // Validate checks the program against the column maximum tmax (K): rates
 // positive, finals strictly increasing, holds not negative, everything finite.
 // The error names the step (initial, ramp N).

@@ -130,6 +130,10 @@ const (
 	infeasibleBase = 1e7 // added to the objective of a program that fails the target
 	maxRunTime     = 1e5 // s; a slower program counts as failing
 	tempGap        = 1.0 // K between consecutive finals the mapping keeps
+	// resolutionMargin is kept above the target so that rounding the
+	// program to what an oven's keypad takes (0.01 °C, 0.001 min) cannot
+	// drop a pair below it.
+	resolutionMargin = 0.002
 )
 
 // Optimize runs the search. It returns an error only for an impossible
@@ -383,8 +387,8 @@ func (sh *shared) score(prog model.Program, res *model.Result) (f, rs float64) {
 		rs = math.Inf(1) // no counted pair: nothing to resolve
 	}
 	miss := 0.0
-	if rs < p.MinResolution {
-		miss += p.MinResolution - rs
+	if target := p.MinResolution + resolutionMargin; rs < target {
+		miss += target - rs
 	}
 	if res.TargetsNotEluted > 0 || t > maxRunTime {
 		miss += 10
@@ -508,7 +512,7 @@ func (sh *shared) finish(ctx context.Context, sp *space, x []float64) (*Result, 
 	if err := p.System.SimulateTrimmed(prog, p.Tail, &tmp); err != nil {
 		return nil, fmt.Errorf("optimizer: best program does not simulate: %v", err)
 	}
-	r.Program = prog.TrimTo(tmp.RunTime)
+	r.Program = prog.TrimTo(tmp.RunTime).Simplify()
 	if err := p.System.Simulate(r.Program, &r.Sim); err != nil {
 		return nil, fmt.Errorf("optimizer: trimmed program does not simulate: %v", err)
 	}

@@ -25,10 +25,10 @@ func smallProblem(t testing.TB, comps []model.Compound, ramps int) Problem {
 		t.Fatal(err)
 	}
 	return Problem{
-		System: sys,
-		Start:  model.Program{Initial: 313.15, InitialHold: 60, Ramps: []model.Ramp{{Rate: 10 * perMin, Final: 523.15}}},
-		Ramps:  ramps,
-		Limits: Limits{OvenMin: 308.15, MaxTemp: col.MaxTemp, MaxRate: 40 * perMin, MaxHold: 600},
+		System:        sys,
+		Start:         model.Program{Initial: 313.15, InitialHold: 60, Ramps: []model.Ramp{{Rate: 10 * perMin, Final: 523.15}}},
+		Ramps:         ramps,
+		Limits:        Limits{OvenMin: 308.15, MaxTemp: col.MaxTemp, MaxRate: 40 * perMin, MaxHold: 600},
 		MinResolution: 1.5,
 		Tail:          30,
 	}

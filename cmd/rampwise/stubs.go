@@ -2,10 +2,6 @@ package main
 
 import "io"
 
-func runOptimize(args []string, stdout, stderr io.Writer) error {
-	return badf("optimize: not built yet")
-}
-
 // runTUI falls back to printing the simulation until the UI exists.
 func runTUI(args []string, stdout, stderr io.Writer) error {
 	return runSimulate(args, stdout, stderr)

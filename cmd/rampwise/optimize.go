@@ -1,0 +1,277 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"strings"
+	"syscall"
+	"text/tabwriter"
+	"time"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
+)
+
+const optimizeHelp = `Usage: rampwise optimize [FILE] [flags]
+
+Searches oven programs (initial temperature and hold, then up to N ramps with
+their rates, final temperatures and holds) for the shortest run time, or oven
+cycle time, in which every pair involving a target compound reaches the target
+resolution, within the column's maximum temperature and the oven's limits in
+[limits]. Values named in goal.lock stay as the method has them. The program
+found is trimmed to end at the run time (last peak plus goal.tail_min).
+
+Shows the program before and after; --out writes the whole method with the new
+program (atomically). Exit 0 when the target is met, 3 when no program within
+the limits meets it (the best program found and the limiting pair are still
+reported). Without FILE the built-in demo method is used.
+
+Flags override the file's [goal]:
+`
+
+type rampJSON struct {
+	Rate  float64 `json:"rate_c_min"`
+	Final float64 `json:"final_c"`
+	Hold  float64 `json:"hold_min"`
+}
+
+type programJSON struct {
+	Initial     float64    `json:"initial_c"`
+	InitialHold float64    `json:"initial_hold_min"`
+	Ramps       []rampJSON `json:"ramps"`
+}
+
+type optimizeJSON struct {
+	Feasible      bool        `json:"feasible"`
+	Objective     string      `json:"objective"`
+	Program       programJSON `json:"program"`
+	RunTime       float64     `json:"run_time_min"`
+	CycleTime     float64     `json:"cycle_time_min"`
+	MinResolution *float64    `json:"min_resolution"`
+	CriticalPair  []string    `json:"critical_pair"`
+	Evaluations   int         `json:"evaluations"`
+	Elapsed       float64     `json:"elapsed_s"`
+	TargetRs      float64     `json:"target_resolution"`
+	Limiting      [][]string  `json:"limiting_pairs"`
+	Explanation   string      `json:"explanation,omitempty"`
+	Canceled      bool        `json:"canceled"`
+}
+
+func programToJSON(o methodfile.Oven) programJSON {
+	p := programJSON{Initial: o.InitialC, InitialHold: o.InitialHoldMin, Ramps: []rampJSON{}}
+	for _, r := range o.Ramps {
+		p.Ramps = append(p.Ramps, rampJSON{r.RateCMin, r.FinalC, r.HoldMin})
+	}
+	return p
+}
+
+// RoundProgram rounds a program to what an oven's keypad takes (0.01 °C,
+// 0.01 °C/min, 0.001 min) without crossing a limit: temperatures round down.
+func roundOven(o methodfile.Oven) methodfile.Oven {
+	f := func(x float64, digits int) float64 { return round(x, digits) }
+	r := methodfile.Oven{InitialC: f(o.InitialC, 2), InitialHoldMin: f(o.InitialHoldMin, 3)}
+	for _, rp := range o.Ramps {
+		r.Ramps = append(r.Ramps, methodfile.Ramp{RateCMin: math.Floor(rp.RateCMin*100) / 100, FinalC: math.Floor(rp.FinalC*100) / 100, HoldMin: math.Floor(rp.HoldMin*1000) / 1000})
+	}
+	return r
+}
+
+func runOptimize(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("optimize", optimizeHelp, stderr)
+	asJSON := fs.Bool("json", false, "print the result as JSON")
+	out := fs.String("out", "", "write the method with the optimized program to this `file` (atomically)")
+	seed := fs.Uint64("seed", 1, "seed of the starting points: the same seed gives the same program")
+	ramps := fs.Int("ramps", 0, "ramps the program may use, 1..5 (default: goal.ramps)")
+	objective := fs.String("objective", "", "run-time or cycle-time (default: goal.objective)")
+	minRs := fs.Float64("min-resolution", 0, "target resolution of every counted pair (default: goal.min_resolution)")
+	file, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	m, name, err := loadMethod(file)
+	if err != nil {
+		return err
+	}
+	if *ramps != 0 {
+		if *ramps < 1 || *ramps > 5 {
+			return badf("optimize: --ramps must be 1..5, got %d", *ramps)
+		}
+		m.Goal.Ramps = *ramps
+	}
+	if *objective != "" {
+		if *objective != "run-time" && *objective != "cycle-time" {
+			return badf("optimize: --objective must be run-time or cycle-time, got %q", *objective)
+		}
+		m.Goal.Objective = *objective
+	}
+	if *minRs != 0 {
+		if !(*minRs > 0) || math.IsInf(*minRs, 0) {
+			return badf("optimize: --min-resolution must be positive")
+		}
+		m.Goal.MinResolution = *minRs
+	}
+	for _, l := range m.Goal.Lock {
+		if !methodfile.ValidLockName(l, m.Goal.Ramps) {
+			return badf("optimize: goal.lock names %s, which does not exist with %d ramps", l, m.Goal.Ramps)
+		}
+	}
+	before, err := simulateMethod(m, name)
+	if err != nil {
+		return err
+	}
+	prob := optimizer.FromMethod(m, before.sys)
+
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	settings := optimizer.Settings{Seed: *seed, Progress: progressPrinter(stderr)}
+	res, err := optimizer.Optimize(ctx, prob, settings)
+	endProgress(stderr)
+	if err != nil {
+		return bad(fmt.Errorf("%s: %v", name, strings.TrimPrefix(err.Error(), "optimizer: ")))
+	}
+
+	after := m.Clone()
+	after.Oven = roundOven(methodfile.ProgramFromModel(res.Program))
+	afterSim, err := simulateMethod(after, name)
+	if err != nil {
+		return fmt.Errorf("optimized program does not simulate: %v", err)
+	}
+	meets := func(s *simulation) bool {
+		return s.res.Critical < 0 || s.res.MinResolution >= m.Goal.MinResolution
+	}
+	if res.Feasible() && !meets(afterSim) {
+		// keep full precision rather than lose the target to rounding
+		after.Oven = methodfile.ProgramFromModel(res.Program)
+		if afterSim, err = simulateMethod(after, name); err != nil {
+			return fmt.Errorf("optimized program does not simulate: %v", err)
+		}
+	}
+	met := res.Feasible() && meets(afterSim)
+
+	if *out != "" {
+		if err := methodfile.WriteFile(*out, after); err != nil {
+			return err
+		}
+	}
+	if *asJSON {
+		j := optimizeJSON{
+			Feasible:    met,
+			Objective:   m.Goal.Objective,
+			Program:     programToJSON(after.Oven),
+			RunTime:     afterSim.res.RunTime / 60,
+			CycleTime:   afterSim.res.CycleTime / 60,
+			Evaluations: res.Evaluations,
+			Elapsed:     res.Elapsed.Seconds(),
+			TargetRs:    m.Goal.MinResolution,
+			Limiting:    [][]string{},
+			Explanation: res.Explanation,
+			Canceled:    res.Canceled,
+		}
+		sj := afterSim.json(after.ModelProgram())
+		j.MinResolution, j.CriticalPair = sj.MinResolution, sj.CriticalPair
+		for _, i := range res.Limiting {
+			pr := res.Sim.Pairs[i]
+			j.Limiting = append(j.Limiting, []string{before.sys.Compounds[pr.First].Name, before.sys.Compounds[pr.Second].Name})
+		}
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(j); err != nil {
+			return err
+		}
+	} else {
+		writeComparison(stdout, m, before, after, afterSim, res, met)
+		if *out != "" {
+			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", *out)
+		}
+	}
+	if !met {
+		return exitError{exitNotReached}
+	}
+	return nil
+}
+
+func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, after *methodfile.Method, afterSim *simulation, res *optimizer.Result, met bool) {
+	title := m.Title
+	if title == "" {
+		title = "method"
+	}
+	fmt.Fprintf(w, "%s\n%s\n\n", title, describeColumn(m))
+	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "\tbefore\tafter\t")
+	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
+	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.res.RunTime/60, afterSim.res.RunTime/60)
+	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.res.CycleTime/60, afterSim.res.CycleTime/60)
+	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before), fmtRs(afterSim))
+	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
+	tw.Flush()
+	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %.2f)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, m.Goal.MinResolution)
+	if met {
+		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
+	} else {
+		fmt.Fprintf(w, "target NOT met within the limits: %s\n", res.Explanation)
+	}
+	for _, warn := range afterSim.warnings(after.ModelProgram()) {
+		fmt.Fprintf(w, "warning: %s\n", warn)
+	}
+}
+
+func fmtRs(s *simulation) string {
+	if s.res.Critical < 0 {
+		return "-"
+	}
+	return fmt.Sprintf("%.2f", s.res.MinResolution)
+}
+
+func critName(s *simulation) string {
+	if s.res.Critical < 0 {
+		return "-"
+	}
+	cp := s.res.Pairs[s.res.Critical]
+	return s.sys.Compounds[cp.First].Name + " / " + s.sys.Compounds[cp.Second].Name
+}
+
+// progressPrinter reports progress on stderr: a bar redrawn in place on a
+// terminal, plain lines at most once a second otherwise.
+func progressPrinter(stderr io.Writer) func(optimizer.Progress) {
+	tty := isTerminal(stderr)
+	var last time.Time
+	return func(p optimizer.Progress) {
+		state := "searching for a program that meets the target"
+		if p.Feasible {
+			state = fmt.Sprintf("best %.2f min", p.Objective/60)
+		}
+		if tty {
+			n := int(p.Elapsed / (100 * time.Millisecond) % 20)
+			bar := strings.Repeat("█", n) + strings.Repeat("░", 20-n)
+			fmt.Fprintf(stderr, "\r%s %7d evaluations · %s · Rs %.2f   ", bar, p.Evaluations, state, p.MinResolution)
+			return
+		}
+		if time.Since(last) >= time.Second {
+			last = time.Now()
+			fmt.Fprintf(stderr, "optimize: %d evaluations, %s, Rs %.2f\n", p.Evaluations, state, p.MinResolution)
+		}
+	}
+}
+
+func endProgress(stderr io.Writer) {
+	if isTerminal(stderr) {
+		fmt.Fprint(stderr, "\r\033[K")
+	}
+}
+
+func isTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	st, err := f.Stat()
+	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+var _ = model.ZeroCelsius
