@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -172,9 +173,36 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 	if errors.As(err, &de) {
 		line, _ := de.Position()
 		msg := strings.TrimPrefix(de.Error(), "toml: ")
+		if m := typeMismatch.FindStringSubmatch(msg); m != nil {
+			msg = fmt.Sprintf("wrong type: expected %s, got %s", goTypeWords(m[2]), strings.ToLower(m[1]))
+		} else if len(de.Key()) == 0 {
+			msg = "TOML syntax error: " + msg
+		}
 		return nil, &Error{File: name, Line: line, Key: strings.Join(de.Key(), "."), Msg: msg}
 	}
 	return nil, &Error{File: name, Msg: strings.TrimPrefix(err.Error(), "toml: ")}
+}
+
+var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into .* of type (\S+)`)
+
+// goTypeWords names a decoding target type in the file's terms.
+func goTypeWords(t string) string {
+	switch strings.TrimLeft(t, "*") {
+	case "float64":
+		return "a number"
+	case "int64":
+		return "a whole number"
+	case "string":
+		return "text in quotes"
+	case "bool":
+		return "true or false"
+	case "[]string":
+		return "a list of names in quotes"
+	}
+	if strings.HasPrefix(t, "[]") {
+		return "one or more tables"
+	}
+	return "a table"
 }
 
 type validator struct {

@@ -1,0 +1,184 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func runCmd(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(args, &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func TestSimulateDemoJSON(t *testing.T) {
+	code, out, stderr := runCmd(t, "simulate", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var j map[string]any
+	if err := json.Unmarshal([]byte(out), &j); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"holdup_time_min", "run_time_min", "cycle_time_min", "peaks", "pairs", "min_resolution", "critical_pair"} {
+		if _, ok := j[k]; !ok {
+			t.Errorf("JSON lacks %s", k)
+		}
+	}
+	peaks := j["peaks"].([]any)
+	prev := 0.0
+	for _, p := range peaks {
+		pk := p.(map[string]any)
+		for _, k := range []string{"name", "retention_time_min", "sigma_min", "elution_temp_c", "retention_factor_at_elution", "eluted"} {
+			if _, ok := pk[k]; !ok {
+				t.Errorf("peak lacks %s", k)
+			}
+		}
+		tr := pk["retention_time_min"].(float64)
+		if tr < prev {
+			t.Error("peaks not sorted by retention time")
+		}
+		prev = tr
+	}
+	if cp := j["critical_pair"].([]any); len(cp) != 2 {
+		t.Errorf("critical pair %v", cp)
+	}
+}
+
+func TestSimulateFlagAfterFile(t *testing.T) {
+	code, out, _ := runCmd(t, "simulate", "../../testdata/demo.toml", "--csv")
+	if code != 0 || !strings.HasPrefix(out, "name,retention_time_min") {
+		t.Errorf("exit %d, output %.80q", code, out)
+	}
+}
+
+func TestHelpAndBadFlags(t *testing.T) {
+	if code, out, _ := runCmd(t, "--help"); code != 0 || !strings.Contains(out, "simulate") {
+		t.Errorf("--help: %d", code)
+	}
+	if code, _, errs := runCmd(t, "simulate", "--help"); code != 0 || !strings.Contains(errs, "holdup") {
+		t.Errorf("simulate --help: %d %q", code, errs)
+	}
+	if code, _, _ := runCmd(t, "simulate", "--bogus"); code != 2 {
+		t.Errorf("bad flag: exit %d", code)
+	}
+	if code, _, _ := runCmd(t, "frobnicate"); code != 2 {
+		t.Errorf("unknown command: exit %d", code)
+	}
+	if code, _, _ := runCmd(t, "simulate", "a.toml", "b.toml"); code != 2 {
+		t.Errorf("two files: exit %d", code)
+	}
+	if code, _, errs := runCmd(t, "simulate", "/nonexistent/m.toml"); code != 2 || !strings.Contains(errs, "/nonexistent/m.toml") {
+		t.Errorf("missing file: exit %d %q", code, errs)
+	}
+}
+
+// Every file of the bad-input corpus gets exit 2 from every command, a
+// message naming the file (and the expected fragment), and no stack trace.
+func TestBadInputCorpus(t *testing.T) {
+	f, err := os.Open("../../testdata/bad/expect.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	sc := bufio.NewScanner(f)
+	n := 0
+	for sc.Scan() {
+		line := sc.Text()
+		if strings.HasPrefix(line, "#") || line == "" {
+			continue
+		}
+		name, frag, _ := strings.Cut(line, "\t")
+		path := filepath.Join("../../testdata/bad", name)
+		n++
+		for _, cmd := range [][]string{{"simulate"}, {"simulate", "--json"}, {"optimize", "--json"}} {
+			args := append(append([]string{}, cmd...), path)
+			code, _, errs := runCmd(t, args...)
+			if code != 2 {
+				t.Errorf("%s %s: exit %d, want 2 (%s)", strings.Join(cmd, " "), name, code, errs)
+			}
+			if !strings.Contains(errs, path) {
+				t.Errorf("%s: message does not name the file: %q", name, errs)
+			}
+			if frag != "" && !strings.Contains(errs, frag) {
+				t.Errorf("%s: message %q lacks %q", name, errs, frag)
+			}
+			if strings.Contains(errs, "goroutine ") || strings.Contains(errs, "panic") {
+				t.Errorf("%s: stack trace: %s", name, errs)
+			}
+		}
+	}
+	if n < 40 {
+		t.Errorf("corpus has %d files, want at least 40", n)
+	}
+}
+
+func TestTenMegabyteFile(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "big.toml")
+	if err := os.WriteFile(path, bytes.Repeat([]byte("# padding line\n"), 700000), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errs := runCmd(t, "simulate", path)
+	if code != 2 || !strings.Contains(errs, "larger than") {
+		t.Errorf("exit %d: %q", code, errs)
+	}
+}
+
+// optimize --out writes a method that simulate reads back with the
+// resolution optimize reported.
+func TestOptimizeOutRoundTrip(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "opt.toml")
+	code, stdout, errs := runCmd(t, "optimize", "--json", "--out", out)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var oj optimizeJSON
+	if err := json.Unmarshal([]byte(stdout), &oj); err != nil {
+		t.Fatal(err)
+	}
+	if !oj.Feasible || *oj.MinResolution < oj.TargetRs {
+		t.Errorf("feasible %v Rs %v", oj.Feasible, *oj.MinResolution)
+	}
+	code, stdout, errs = runCmd(t, "simulate", "--json", out)
+	if code != 0 {
+		t.Fatalf("simulate of saved: exit %d %s", code, errs)
+	}
+	var sj simulateJSON
+	json.Unmarshal([]byte(stdout), &sj)
+	if sj.MinResolution == nil || *sj.MinResolution != *oj.MinResolution || sj.RunTime != oj.RunTime {
+		t.Errorf("saved method simulates to Rs %v run %v; optimize said %v %v", sj.MinResolution, sj.RunTime, *oj.MinResolution, oj.RunTime)
+	}
+}
+
+func TestOptimizeUnreachableExit3(t *testing.T) {
+	demo, _ := os.ReadFile("../../testdata/demo.toml")
+	text := string(demo) + "\n[[compound]]\nname = \"limonene twin\"\nformula = \"C10H16\"\ndH_kJ_mol = -59.715\ndS_J_mol_K = -105.10\n"
+	// the twin copies limonene's parameters exactly
+	text = strings.Replace(text, "dH_kJ_mol = -59.715\ndS_J_mol_K = -105.10", limonene(t, string(demo)), 1)
+	path := filepath.Join(t.TempDir(), "twin.toml")
+	os.WriteFile(path, []byte(text), 0o644)
+	code, stdout, errs := runCmd(t, "optimize", "--json", path)
+	if code != 3 {
+		t.Fatalf("exit %d, want 3: %s", code, errs)
+	}
+	if !strings.Contains(stdout, "limonene twin") || !strings.Contains(stdout, "another stationary phase") {
+		t.Errorf("output does not name the pair and the reason:\n%s", stdout)
+	}
+}
+
+func limonene(t *testing.T, demo string) string {
+	i := strings.Index(demo, `name = "limonene"`)
+	if i < 0 {
+		t.Fatal("demo has no limonene")
+	}
+	rest := demo[i:]
+	a := strings.Index(rest, "dH_kJ_mol")
+	b := strings.Index(rest, "\namount")
+	return rest[a:b]
+}
