@@ -71,17 +71,6 @@ func programToJSON(o methodfile.Oven) programJSON {
 	return p
 }
 
-// RoundProgram rounds a program to what an oven's keypad takes (0.01 °C,
-// 0.01 °C/min, 0.001 min) without crossing a limit: temperatures round down.
-func roundOven(o methodfile.Oven) methodfile.Oven {
-	f := func(x float64, digits int) float64 { return round(x, digits) }
-	r := methodfile.Oven{InitialC: f(o.InitialC, 2), InitialHoldMin: f(o.InitialHoldMin, 3)}
-	for _, rp := range o.Ramps {
-		r.Ramps = append(r.Ramps, methodfile.Ramp{RateCMin: math.Floor(rp.RateCMin*100) / 100, FinalC: math.Floor(rp.FinalC*100) / 100, HoldMin: math.Floor(rp.HoldMin*1000) / 1000})
-	}
-	return r
-}
-
 func runOptimize(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("optimize", optimizeHelp, stderr)
 	asJSON := fs.Bool("json", false, "print the result as JSON")
@@ -137,7 +126,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	}
 
 	after := m.Clone()
-	after.Oven = roundOven(methodfile.ProgramFromModel(res.Program))
+	after.Oven = methodfile.KeypadRound(methodfile.ProgramFromModel(res.Program))
 	afterSim, err := simulateMethod(after, name)
 	if err != nil {
 		return fmt.Errorf("optimized program does not simulate: %v", err)

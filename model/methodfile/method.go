@@ -10,6 +10,7 @@ package methodfile
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -268,3 +269,20 @@ func (g Goal) Locked(name string) bool {
 	}
 	return false
 }
+
+// KeypadRound rounds a program to what an oven's keypad takes: 0.01 °C,
+// 0.01 °C/min and 0.001 min. Final temperatures, rates and holds round
+// down, so no rounded value passes a limit the exact one respected.
+func KeypadRound(o Oven) Oven {
+	r := Oven{InitialC: roundTo(o.InitialC, 100), InitialHoldMin: roundTo(o.InitialHoldMin, 1000)}
+	for _, rp := range o.Ramps {
+		r.Ramps = append(r.Ramps, Ramp{
+			RateCMin: math.Floor(rp.RateCMin*100) / 100,
+			FinalC:   math.Floor(rp.FinalC*100) / 100,
+			HoldMin:  math.Floor(rp.HoldMin*1000) / 1000,
+		})
+	}
+	return r
+}
+
+func roundTo(x, scale float64) float64 { return math.Round(x*scale) / scale }

@@ -1,0 +1,285 @@
+package tui
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/charmbracelet/lipgloss"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/tui/canvas"
+)
+
+const (
+	layerPeak = 0
+	layerTemp = 1
+	tempAxisW = 7 // right margin for the temperature axis
+)
+
+// chartInput is what the chromatogram shows.
+type chartInput struct {
+	res   *model.Result
+	prog  model.Program
+	comps []model.Compound
+	// visible time window, s
+	t0, t1 float64
+}
+
+// chart draws the simulated chromatogram: the summed Gaussian peaks as a
+// braille curve, peak numbers in elution order (the critical pair in the
+// critical style), the oven temperature on its own axis at the right, and
+// the time axis in minutes below. It returns w-wide lines, h of them.
+type chart struct {
+	cv    *canvas.Canvas
+	ys    []float64
+	label []int8 // per cell: 0 none, 1 label, 2 critical label
+}
+
+func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
+	pw, ph := w-tempAxisW, h-1
+	if pw < 10 || ph < 2 {
+		return make([]string, h)
+	}
+	if c.cv == nil {
+		c.cv = canvas.New(pw, ph)
+	} else {
+		c.cv.Resize(pw, ph)
+	}
+	if cap(c.label) < pw*ph {
+		c.label = make([]int8, pw*ph)
+	}
+	c.label = c.label[:pw*ph]
+	for i := range c.label {
+		c.label[i] = 0
+	}
+	dw, dh := c.cv.DotSize()
+	t0, t1 := in.t0, in.t1
+	if !(t1 > t0) {
+		t1 = t0 + 1
+	}
+	span := t1 - t0
+	// signal per dot column
+	if cap(c.ys) < dw {
+		c.ys = make([]float64, dw)
+	}
+	c.ys = c.ys[:dw]
+	ymax := 0.0
+	for x := 0; x < dw; x++ {
+		y := signalAt(in, t0+(float64(x)+0.5)/float64(dw)*span)
+		// a peak narrower than a column still shows its apex
+		ta, tb := t0+float64(x)/float64(dw)*span, t0+float64(x+1)/float64(dw)*span
+		for _, pk := range in.res.Peaks {
+			if pk.Eluted && pk.RetentionTime >= ta && pk.RetentionTime < tb {
+				if ya := signalAt(in, pk.RetentionTime); ya > y {
+					y = ya
+				}
+			}
+		}
+		c.ys[x] = y
+		if y > ymax {
+			ymax = y
+		}
+	}
+	// peak apexes can fall between samples: scale by the true apex heights
+	for _, pk := range in.res.Peaks {
+		if pk.Eluted && pk.RetentionTime >= t0 && pk.RetentionTime <= t1 && pk.Sigma > 0 {
+			if a := in.comps[pk.Compound].AreaOrOne() / pk.Sigma; a > ymax {
+				ymax = a
+			}
+		}
+	}
+	row := func(y float64) int {
+		if ymax <= 0 {
+			return dh - 1
+		}
+		return dh - 1 - int(math.Round(y/ymax*float64(dh-2)))
+	}
+	prev := row(c.ys[0])
+	for x := 0; x < dw; x++ {
+		r := row(c.ys[x])
+		c.cv.VLine(x, prev, r, layerPeak)
+		prev = r
+	}
+	// oven temperature
+	tlo, thi := in.prog.Initial, in.prog.MaxTemp()
+	pad := math.Max(5, (thi-tlo)*0.08)
+	tlo, thi = tlo-pad, thi+pad
+	trow := func(temp float64) int {
+		return dh - 1 - int(math.Round((temp-tlo)/(thi-tlo)*float64(dh-1)))
+	}
+	px, py := -1, 0
+	for x := 0; x < dw; x++ {
+		t := t0 + (float64(x)+0.5)/float64(dw)*span
+		y := trow(in.prog.TempAt(t))
+		if px >= 0 {
+			c.cv.Line(px, py, x, y, layerTemp)
+		}
+		px, py = x, y
+	}
+	// labels: elution-order numbers above the apexes
+	crit := map[int]bool{}
+	if in.res.Critical >= 0 {
+		cp := in.res.Pairs[in.res.Critical]
+		crit[cp.First], crit[cp.Second] = true, true
+	}
+	lastEnd := -1
+	for i, pk := range in.res.Peaks {
+		if !pk.Eluted || pk.RetentionTime < t0 || pk.RetentionTime > t1 {
+			continue
+		}
+		col := int((pk.RetentionTime - t0) / span * float64(pw))
+		text := strconv.Itoa(i + 1)
+		col -= (len(text) - 1) / 2
+		if col <= lastEnd || col+len(text) > pw {
+			continue
+		}
+		apex := in.comps[pk.Compound].AreaOrOne() / pk.Sigma
+		r := row(apex)/4 - 1
+		if r < 0 {
+			r = 0
+		}
+		c.cv.Text(col, r, text)
+		kind := int8(1)
+		if crit[pk.Compound] {
+			kind = 2
+		}
+		for k := 0; k < len(text); k++ {
+			c.label[r*pw+col+k] = kind
+		}
+		lastEnd = col + len(text)
+	}
+	lines := make([]string, 0, h)
+	for r := 0; r < ph; r++ {
+		var b strings.Builder
+		c.row(&b, r, pw, st)
+		// temperature axis
+		var lab string
+		switch r {
+		case 0:
+			lab = fmt.Sprintf(" %3.0f°C", thi-model.ZeroCelsius)
+		case ph - 1:
+			lab = fmt.Sprintf(" %3.0f°C", tlo-model.ZeroCelsius)
+		case ph / 2:
+			lab = fmt.Sprintf(" %3.0f°C", (thi+tlo)/2-model.ZeroCelsius)
+		}
+		b.WriteString(st.Temp.Render(padRight(lab, tempAxisW)))
+		lines = append(lines, b.String())
+	}
+	lines = append(lines, st.Axis.Render(padRight(timeAxis(t0, t1, pw), w)))
+	return lines
+}
+
+// signalAt is the summed detector signal at time t: each peak a Gaussian
+// of area proportional to the compound's amount.
+func signalAt(in chartInput, t float64) float64 {
+	y := 0.0
+	for _, pk := range in.res.Peaks {
+		if !pk.Eluted || pk.Sigma <= 0 {
+			continue
+		}
+		z := (t - pk.RetentionTime) / pk.Sigma
+		if z < -6 || z > 6 {
+			continue
+		}
+		y += in.comps[pk.Compound].AreaOrOne() / pk.Sigma * math.Exp(-0.5*z*z)
+	}
+	return y
+}
+
+// row renders one canvas row, one style per run of like cells.
+func (c *chart) row(b *strings.Builder, r, pw int, st *Styles) {
+	var run strings.Builder
+	cur := -1
+	flush := func() {
+		if run.Len() == 0 {
+			return
+		}
+		s := run.String()
+		switch cur {
+		case 1:
+			b.WriteString(st.Peak.Render(s))
+		case 2:
+			b.WriteString(st.Temp.Render(s))
+		case 3:
+			b.WriteString(st.PeakLabel.Render(s))
+		case 4:
+			b.WriteString(st.Critical.Render(s))
+		default:
+			b.WriteString(s)
+		}
+		run.Reset()
+	}
+	for col := 0; col < pw; col++ {
+		cell := c.cv.At(col, r)
+		kind := 0
+		switch {
+		case cell.Text && c.label[r*pw+col] == 2:
+			kind = 4
+		case cell.Text:
+			kind = 3
+		case cell.Layers&(1<<layerPeak) != 0:
+			kind = 1
+		case cell.Layers&(1<<layerTemp) != 0:
+			kind = 2
+		}
+		if kind != cur {
+			flush()
+			cur = kind
+		}
+		run.WriteRune(cell.Rune)
+	}
+	flush()
+}
+
+// timeAxis is a row of minute ticks for [t0, t1] s over w columns.
+func timeAxis(t0, t1 float64, w int) string {
+	span := (t1 - t0) / 60
+	step := niceStep(span / math.Max(1, float64(w)/10))
+	line := []rune(strings.Repeat("─", w))
+	first := math.Ceil(t0/60/step) * step
+	for v := first; v <= t1/60+1e-9; v += step {
+		col := int(math.Round((v*60 - t0) / (t1 - t0) * float64(w-1)))
+		txt := strconv.FormatFloat(v, 'f', decimalsFor(step), 64)
+		if col+len(txt) >= w-4 {
+			break
+		}
+		line[col] = '┴'
+		for k, r := range txt {
+			if col+1+k < w {
+				line[col+1+k] = r
+			}
+		}
+	}
+	tail := []rune(" min")
+	copy(line[w-len(tail):], tail)
+	return string(line)
+}
+
+func niceStep(x float64) float64 {
+	if x <= 0 {
+		return 1
+	}
+	p := math.Pow(10, math.Floor(math.Log10(x)))
+	for _, m := range []float64{1, 2, 5, 10} {
+		if m*p >= x {
+			return m * p
+		}
+	}
+	return 10 * p
+}
+
+func decimalsFor(step float64) int {
+	if step >= 1 {
+		return 0
+	}
+	return int(math.Ceil(-math.Log10(step)))
+}
+
+func padRight(s string, w int) string {
+	if n := lipgloss.Width(s); n < w {
+		return s + strings.Repeat(" ", w-n)
+	}
+	return s
+}

@@ -1,0 +1,205 @@
+package tui
+
+import (
+	"errors"
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// field is one editable value of the method.
+type field struct {
+	key     string // the method file's key, for messages
+	label   string
+	unit    string
+	digits  int
+	step    float64
+	big     float64
+	choices []string                            // a choice field cycles through these
+	num     func(m *methodfile.Method) *float64 // the value, or nil with get/set
+	get     func(m *methodfile.Method) float64
+	set     func(m *methodfile.Method, v float64)
+	str     func(m *methodfile.Method) *string
+	integer bool
+	// program fields: which ramp (0 = initial) and kind
+	ramp int
+	kind string
+}
+
+func (f field) text(m *methodfile.Method) string {
+	if f.str != nil {
+		return *f.str(m)
+	}
+	v := f.value(m)
+	if f.integer {
+		return strconv.Itoa(int(v))
+	}
+	return strconv.FormatFloat(v, 'f', f.digits, 64)
+}
+
+func (f field) value(m *methodfile.Method) float64 {
+	if f.num == nil {
+		return f.get(m)
+	}
+	return *f.num(m)
+}
+
+func (f field) setValue(m *methodfile.Method, v float64) {
+	if f.num == nil {
+		f.set(m, v)
+		return
+	}
+	*f.num(m) = v
+}
+
+// stepped returns a copy of m with the field moved by n steps (big steps
+// when big), or a choice cycled.
+func (f field) stepped(m *methodfile.Method, n float64, big bool) *methodfile.Method {
+	c := m.Clone()
+	if f.str != nil {
+		s := f.str(c)
+		i := 0
+		for j, ch := range f.choices {
+			if ch == *s {
+				i = j
+			}
+		}
+		k := len(f.choices)
+		i = ((i+int(n))%k + k) % k
+		*s = f.choices[i]
+		return c
+	}
+	st := f.step
+	if big {
+		st = f.big
+	}
+	v := f.value(c) + n*st
+	// snap to the step grid so repeated steps stay tidy
+	v = float64(int64(v/st+0.5*sign(v))) * st
+	if f.integer {
+		v = float64(int(v))
+	}
+	f.setValue(c, round(v, f.digits+2))
+	return c
+}
+
+func sign(x float64) float64 {
+	if x < 0 {
+		return -1
+	}
+	return 1
+}
+
+// typed returns a copy of m with the field set from text.
+func (f field) typed(m *methodfile.Method, text string) (*methodfile.Method, error) {
+	c := m.Clone()
+	text = strings.TrimSpace(text)
+	if f.str != nil {
+		for _, ch := range f.choices {
+			if strings.EqualFold(ch, text) {
+				*f.str(c) = ch
+				return c, nil
+			}
+		}
+		return nil, fmt.Errorf("%s: %q is not one of %s", f.key, text, strings.Join(f.choices, ", "))
+	}
+	v, err := strconv.ParseFloat(text, 64)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %q is not a number", f.key, text)
+	}
+	if f.integer && v != float64(int(v)) {
+		return nil, fmt.Errorf("%s: %q is not a whole number", f.key, text)
+	}
+	f.setValue(c, v)
+	return c, nil
+}
+
+// programFields lists the program's values: initial temperature and hold,
+// then rate, final temperature and hold of each ramp.
+func programFields(m *methodfile.Method) []field {
+	fs := []field{
+		{key: "oven.initial_c", label: "start", unit: "°C", digits: 1, step: 1, big: 10, ramp: 0, kind: "initial_c",
+			num: func(m *methodfile.Method) *float64 { return &m.Oven.InitialC }},
+		{key: "oven.initial_hold_min", label: "hold", unit: "min", digits: 2, step: 0.1, big: 1, ramp: 0, kind: "initial_hold_min",
+			num: func(m *methodfile.Method) *float64 { return &m.Oven.InitialHoldMin }},
+	}
+	for i := range m.Oven.Ramps {
+		i := i
+		base := fmt.Sprintf("oven.ramp[%d]", i+1)
+		fs = append(fs,
+			field{key: base + ".rate_c_min", label: "rate", unit: "°C/min", digits: 1, step: 0.5, big: 5, ramp: i + 1, kind: "rate",
+				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].RateCMin }},
+			field{key: base + ".final_c", label: "to", unit: "°C", digits: 1, step: 1, big: 10, ramp: i + 1, kind: "final",
+				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].FinalC }},
+			field{key: base + ".hold_min", label: "hold", unit: "min", digits: 2, step: 0.1, big: 1, ramp: i + 1, kind: "hold",
+				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].HoldMin }},
+		)
+	}
+	return fs
+}
+
+// settingsFields lists the column, carrier, goal and limits values.
+func settingsFields(m *methodfile.Method) []field {
+	n := func(key, label, unit string, digits int, step, big float64, p func(m *methodfile.Method) *float64) field {
+		return field{key: key, label: label, unit: unit, digits: digits, step: step, big: big, num: p}
+	}
+	fs := []field{
+		n("column.length_m", "column length", "m", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Column.LengthM }),
+		n("column.diameter_mm", "column diameter", "mm", 3, 0.01, 0.05, func(m *methodfile.Method) *float64 { return &m.Column.DiameterMM }),
+		n("column.film_um", "film thickness", "µm", 2, 0.05, 0.25, func(m *methodfile.Method) *float64 { return &m.Column.FilmUM }),
+		n("column.max_temp_c", "column max temperature", "°C", 0, 1, 10, func(m *methodfile.Method) *float64 { return &m.Column.MaxTempC }),
+		{key: "carrier.gas", label: "carrier gas", choices: []string{"helium", "hydrogen", "nitrogen"}, str: func(m *methodfile.Method) *string { return &m.Carrier.Gas }},
+		{key: "carrier.mode", label: "pressure mode", choices: []string{"constant-flow", "constant-pressure"}, str: func(m *methodfile.Method) *string { return &m.Carrier.Mode }},
+	}
+	if m.Carrier.Mode == "constant-pressure" {
+		fs = append(fs, n("carrier.inlet_kpa", "inlet pressure (gauge)", "kPa", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Carrier.InletKPa }))
+	} else {
+		fs = append(fs, n("carrier.flow_ml_min", "column flow", "mL/min", 2, 0.05, 0.5, func(m *methodfile.Method) *float64 { return &m.Carrier.FlowMLMin }))
+	}
+	fs = append(fs,
+		field{key: "carrier.outlet", label: "outlet", choices: []string{"atmospheric", "vacuum"}, str: func(m *methodfile.Method) *string { return &m.Carrier.Outlet }},
+		n("goal.min_resolution", "target resolution", "", 2, 0.05, 0.5, func(m *methodfile.Method) *float64 { return &m.Goal.MinResolution }),
+		field{key: "goal.objective", label: "objective", choices: []string{"run-time", "cycle-time"}, str: func(m *methodfile.Method) *string { return &m.Goal.Objective }},
+		field{key: "goal.ramps", label: "ramps the optimizer may use", digits: 0, step: 1, big: 1, integer: true,
+			get: func(m *methodfile.Method) float64 { return float64(m.Goal.Ramps) },
+			set: func(m *methodfile.Method, v float64) { m.Goal.Ramps = int(v) }},
+		n("goal.tail_min", "tail after last peak", "min", 2, 0.1, 1, func(m *methodfile.Method) *float64 { return &m.Goal.TailMin }),
+		n("limits.oven_min_c", "lowest start temperature", "°C", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Limits.OvenMinC }),
+		n("limits.max_rate_c_min", "fastest ramp", "°C/min", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Limits.MaxRateCMin }),
+		n("limits.max_hold_min", "longest hold", "min", 1, 0.5, 5, func(m *methodfile.Method) *float64 { return &m.Limits.MaxHoldMin }),
+		n("limits.max_inlet_kpa", "highest inlet pressure", "kPa", 0, 10, 100, func(m *methodfile.Method) *float64 { return &m.Limits.MaxInletKPa }),
+	)
+	return fs
+}
+
+// validate checks an edited method with the method file's own rules (so the
+// messages are the ones a file would get) and the oven's rate limit.
+func validate(m *methodfile.Method) error {
+	data, err := methodfile.Marshal(m)
+	if err != nil {
+		return err
+	}
+	if _, err := methodfile.Parse("edit", data); err != nil {
+		var fe *methodfile.Error
+		if errors.As(err, &fe) {
+			return fmt.Errorf("%s: %s", fe.Key, fe.Msg)
+		}
+		return err
+	}
+	for i, r := range m.Oven.Ramps {
+		if r.RateCMin > m.Limits.MaxRateCMin {
+			return fmt.Errorf("oven.ramp[%d].rate_c_min: %s °C/min is faster than the oven's limit %s °C/min (limits.max_rate_c_min)", i+1, trimNum(r.RateCMin), trimNum(m.Limits.MaxRateCMin))
+		}
+	}
+	return nil
+}
+
+func trimNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+
+func round(x float64, digits int) float64 {
+	s := strconv.FormatFloat(x, 'f', digits, 64)
+	v, _ := strconv.ParseFloat(s, 64)
+	return v
+}
