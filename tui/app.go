@@ -25,6 +25,9 @@ const (
 	MinHeight = 24
 )
 
+// maxUndo is how many changes undo can take back.
+const maxUndo = 500
+
 // The panes, in focus order.
 const (
 	paneProgram = iota
@@ -236,6 +239,9 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 		return false
 	}
 	a.undo = append(a.undo, prev)
+	if len(a.undo) > maxUndo {
+		a.undo = append(a.undo[:0], a.undo[len(a.undo)-maxUndo:]...)
+	}
 	a.redo = nil
 	a.say(msgInfo, "%s", what)
 	if m.Carrier.Gas == "hydrogen" && prev.Carrier.Gas != "hydrogen" {

@@ -76,8 +76,8 @@ func (f field) stepped(m *methodfile.Method, n float64, big bool) *methodfile.Me
 		st = f.big
 	}
 	v := f.value(c) + n*st
-	// snap to the step grid so repeated steps stay tidy
-	v = float64(int64(v/st+0.5*sign(v))) * st
+	// snap to the small-step grid so repeated steps stay tidy
+	v = float64(int64(v/f.step+0.5*sign(v))) * f.step
 	if f.integer {
 		v = float64(int(v))
 	}

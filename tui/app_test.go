@@ -1,0 +1,254 @@
+package tui
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
+	"github.com/charmbracelet/x/exp/golden"
+
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+func demoMethod(t testing.TB) *methodfile.Method {
+	t.Helper()
+	m, err := methodfile.ReadFile("../testdata/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// newApp opens the demo saved to a temporary file, sized w×h.
+func newApp(t testing.TB, w, h int) (*App, string) {
+	t.Helper()
+	m := demoMethod(t)
+	path := filepath.Join(t.TempDir(), "demo.toml")
+	if err := methodfile.WriteFile(path, m); err != nil {
+		t.Fatal(err)
+	}
+	m, _ = methodfile.ReadFile(path)
+	a, err := New(m, Options{Path: path, Name: "demo.toml", NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.Update(tea.WindowSizeMsg{Width: w, Height: h})
+	return a, path
+}
+
+// press sends keys: names such as "right", "enter", "esc", "tab",
+// "ctrl+s", or plain text typed rune by rune.
+func press(a *App, keys ...string) {
+	special := map[string]tea.KeyType{
+		"right": tea.KeyRight, "left": tea.KeyLeft, "up": tea.KeyUp, "down": tea.KeyDown,
+		"enter": tea.KeyEnter, "esc": tea.KeyEsc, "tab": tea.KeyTab, "ctrl+s": tea.KeyCtrlS,
+		"backspace": tea.KeyBackspace, "ctrl+u": tea.KeyCtrlU,
+	}
+	for _, k := range keys {
+		if kt, ok := special[k]; ok {
+			a.Update(tea.KeyMsg{Type: kt})
+			continue
+		}
+		for _, r := range k {
+			a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{r}})
+		}
+	}
+}
+
+func screen(a *App) string { return ansi.Strip(a.View()) }
+
+func TestEditRampRateMovesPeaks(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	before := a.Result().Peaks[len(a.Result().Peaks)-1].RetentionTime
+	press(a, "right", "right", "-") // select ramp 1 rate, one step down
+	if got := a.Method().Oven.Ramps[0].RateCMin; got != 11.5 {
+		t.Fatalf("rate %v, want 11.5", got)
+	}
+	after := a.Result().Peaks[len(a.Result().Peaks)-1].RetentionTime
+	if !(after > before) {
+		t.Errorf("slower ramp: last peak %v → %v, want later", before, after)
+	}
+	if !strings.Contains(screen(a), "11.5 °C/min") {
+		t.Error("screen does not show the new rate")
+	}
+	if !a.Dirty() {
+		t.Error("not marked modified")
+	}
+}
+
+func TestInvalidValueRefused(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	orig := a.Method().Clone()
+	press(a, "right", "right", "right", "enter", "ctrl+u", "400", "enter")
+	if !reflect.DeepEqual(a.Method(), orig) {
+		t.Error("invalid final temperature changed the method")
+	}
+	if s := screen(a); !strings.Contains(s, "above the column maximum") {
+		t.Errorf("no message:\n%s", s)
+	}
+	press(a, "left", "left", "left", "enter", "ctrl+u", "0", "enter") // initial hold 0 is fine
+	press(a, "right", "right", "enter", "ctrl+u", "0", "enter")        // rate 0 is not
+	if a.Method().Oven.Ramps[0].RateCMin != 12 {
+		t.Error("zero rate accepted")
+	}
+	if s := screen(a); !strings.Contains(s, "rate_c_min") {
+		t.Errorf("no rate message:\n%s", s)
+	}
+	press(a, "right", "enter", "ctrl+u", "10", "enter") // final below the start
+	if a.Method().Oven.Ramps[0].FinalC != 240 {
+		t.Error("non-increasing final accepted")
+	}
+}
+
+func TestUndoRedoExact(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	orig := a.Method().Clone()
+	press(a, "right", "right", "]", "]", "right", "-", "a")
+	edited := a.Method().Clone()
+	if reflect.DeepEqual(edited, orig) {
+		t.Fatal("edits did nothing")
+	}
+	press(a, "u", "u", "u", "u")
+	if !reflect.DeepEqual(a.Method(), orig) {
+		t.Errorf("undo did not restore the program exactly:\n%+v\n%+v", a.Method().Oven, orig.Oven)
+	}
+	press(a, "U", "U", "U", "U")
+	if !reflect.DeepEqual(a.Method(), edited) {
+		t.Error("redo did not restore the edits")
+	}
+}
+
+func TestTooSmallAndPlaceholder(t *testing.T) {
+	m := demoMethod(t)
+	a, err := New(m, Options{NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(a.View(), "starting") {
+		t.Error("no placeholder before the first size")
+	}
+	a.Update(tea.WindowSizeMsg{Width: 60, Height: 20})
+	if !strings.Contains(a.View(), "at least 80×24") {
+		t.Errorf("small terminal: %q", a.View())
+	}
+}
+
+func TestHydrogenCaution(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "tab", "tab", "tab") // settings
+	for i := 0; i < 4; i++ {
+		press(a, "down")
+	}
+	press(a, "+")
+	if a.Method().Carrier.Gas != "hydrogen" {
+		t.Fatalf("gas %q", a.Method().Carrier.Gas)
+	}
+	if s := screen(a); !strings.Contains(s, "flammable") || !strings.Contains(s, "leak") {
+		t.Errorf("no hydrogen caution:\n%s", s)
+	}
+}
+
+func TestToggleTargetAndEditCompound(t *testing.T) {
+	a, _ := newApp(t, 100, 30)
+	press(a, "tab", "tab") // peaks
+	ci := a.Result().Peaks[0].Compound
+	was := a.Method().Compounds[ci].Target
+	press(a, "t")
+	if a.Method().Compounds[ci].Target == was {
+		t.Error("target not toggled")
+	}
+	press(a, "enter", "ctrl+u", "-25.5", "enter")
+	if got := a.Method().Compounds[ci].DHkJ; got != -25.5 {
+		t.Errorf("ΔH %v", got)
+	}
+}
+
+func TestGoldenScreens(t *testing.T) {
+	for _, size := range [][2]int{{80, 24}, {120, 40}} {
+		t.Run(fmt.Sprintf("%dx%d", size[0], size[1]), func(t *testing.T) {
+			a, _ := newApp(t, size[0], size[1])
+			a.name = "demo.toml" // the temporary path differs per run
+			a.refresh()
+			out := screen(a)
+			for i, line := range strings.Split(out, "\n") {
+				if w := ansi.StringWidth(line); w > size[0] {
+					t.Errorf("line %d is %d wide", i, w)
+				}
+			}
+			if n := strings.Count(out, "\n") + 1; n != size[1] {
+				t.Errorf("%d lines, want %d", n, size[1])
+			}
+			golden.RequireEqual(t, []byte(out))
+		})
+	}
+}
+
+func TestSaveWritesLoadableMethod(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	press(a, "right", "right", "-", "ctrl+s")
+	if a.Dirty() {
+		t.Error("still modified after save")
+	}
+	back, err := methodfile.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(back, a.Method()) {
+		t.Error("saved file loads back different")
+	}
+}
+
+func TestQuitAsksWithUnsavedChanges(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "-")
+	_, cmd := a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{'q'}})
+	if cmd != nil {
+		t.Fatal("quit without asking")
+	}
+	if !strings.Contains(screen(a), "unsaved changes") {
+		t.Error("no question")
+	}
+	_, cmd = a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{'y'}})
+	if cmd == nil {
+		t.Error("y did not quit")
+	}
+}
+
+// The recovery file written on SIGHUP/SIGTERM holds the unsaved method, and
+// the next start offers it.
+func TestRecoveryFile(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	press(a, "right", "right", "]")
+	rp, err := a.guard.WriteRecovery()
+	if err != nil || rp != RecoveryPath(path) {
+		t.Fatalf("recovery %q %v", rp, err)
+	}
+	back, err := methodfile.ReadFile(rp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(back, a.Method()) {
+		t.Error("recovery file differs from the unsaved method")
+	}
+	orig, _ := methodfile.ReadFile(path)
+	b, err := New(orig, Options{Path: path, NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	if !strings.Contains(screen(b), "restore") {
+		t.Error("no restore offer")
+	}
+	press(b, "r")
+	if !reflect.DeepEqual(b.Method(), back) {
+		t.Error("restore did not bring the unsaved method back")
+	}
+	if _, err := os.Stat(rp); err == nil {
+		t.Error("recovery file left after restore")
+	}
+}
