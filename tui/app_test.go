@@ -92,7 +92,7 @@ func TestInvalidValueRefused(t *testing.T) {
 		t.Errorf("no message:\n%s", s)
 	}
 	press(a, "left", "left", "left", "enter", "ctrl+u", "0", "enter") // initial hold 0 is fine
-	press(a, "right", "right", "enter", "ctrl+u", "0", "enter")        // rate 0 is not
+	press(a, "right", "right", "enter", "ctrl+u", "0", "enter")       // rate 0 is not
 	if a.Method().Oven.Ramps[0].RateCMin != 12 {
 		t.Error("zero rate accepted")
 	}

@@ -41,7 +41,12 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return bad(fmt.Errorf("%s: %v", name, err))
 	}
-	p := tea.NewProgram(app, tea.WithAltScreen(), tea.WithOutput(stdout))
+	opts := []tea.ProgramOption{tea.WithAltScreen(), tea.WithOutput(stdout)}
+	if !isTerminal(os.Stdin) {
+		// keys come from a pipe (scripts, tests): read them as they are
+		opts = append(opts, tea.WithInput(os.Stdin))
+	}
+	p := tea.NewProgram(app, opts...)
 	sigs := make(chan os.Signal, 1)
 	signal.Notify(sigs, syscall.SIGHUP, syscall.SIGTERM)
 	defer signal.Stop(sigs)
@@ -62,6 +67,10 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 		}
 		p.Kill()
 	}()
+	if !isTerminal(stdout) {
+		// no terminal to ask for its size (a pipe, a test): draw at 80×24
+		go p.Send(tea.WindowSizeMsg{Width: 80, Height: 24})
+	}
 	_, runErr := p.Run()
 	select {
 	case msg := <-lost:
