@@ -138,3 +138,24 @@ func TestAccuracyHoldAndBoundary(t *testing.T) {
 	p3 := Program{Initial: celsius(40), InitialHold: 60, Ramps: []Ramp{{perMin(10), te, 300}, {perMin(10), celsius(300), 0}}}
 	checkAgainstReference(t, s, p3)
 }
+
+// The direct integration used for calibration agrees with the tables.
+func TestDirectRetentionMatchesTables(t *testing.T) {
+	for _, c := range accuracyCases() {
+		s := mustSystem(t, c.col, c.car, c.comps)
+		var res Result
+		s.Simulate(c.prog, &res)
+		for _, pk := range res.Peaks {
+			if pk.RetentionTime > 1e6 {
+				continue
+			}
+			tr, te := s.Cond.RetentionTime(&s.Compounds[pk.Compound], c.prog)
+			if math.Abs(tr-pk.RetentionTime)/60 > 1e-5 || math.Abs(te-pk.ElutionTemp) > 1e-3 {
+				t.Errorf("%s %s: direct %v/%v vs table %v/%v", c.name, s.Compounds[pk.Compound].Name, tr, te, pk.RetentionTime, pk.ElutionTemp)
+			}
+		}
+		if tm, _ := s.Cond.RetentionTime(nil, c.prog); math.Abs(tm-res.HoldupTime) > 1e-4 {
+			t.Errorf("%s: holdup %v vs %v", c.name, tm, res.HoldupTime)
+		}
+	}
+}

@@ -58,6 +58,8 @@ Usage:
   rampwise tui [FILE]               open the terminal UI on a method file
   rampwise simulate [FILE] [flags]  predict retention times, widths, resolution
   rampwise optimize [FILE] [flags]  find the fastest program meeting the target
+  rampwise fit METHOD RUNS [flags]  calibrate ΔH, ΔS (ΔCp) from scouting runs
+  rampwise index METHOD [flags]     retention indices against the ladder alkanes
   rampwise help [COMMAND]           explain a command
 
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
@@ -115,6 +117,10 @@ func dispatch(args []string, stdout, stderr io.Writer) error {
 		return runOptimize(args[1:], stdout, stderr)
 	case "tui":
 		return runTUI(args[1:], stdout, stderr)
+	case "fit":
+		return runFit(args[1:], stdout, stderr)
+	case "index":
+		return runIndex(args[1:], stdout, stderr)
 	case "help", "-h", "--help", "-help":
 		if len(args) > 1 {
 			return dispatch([]string{args[1], "--help"}, stdout, stderr)
@@ -153,6 +159,29 @@ func parseArgs(fs *flag.FlagSet, args []string) (file string, err error) {
 		return pos[0], nil
 	}
 	return "", nil
+}
+
+// parseArgsN parses flags around between min and max positional arguments.
+func parseArgsN(fs *flag.FlagSet, args []string, min, max int, what string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			if errors.Is(err, flag.ErrHelp) {
+				return nil, err
+			}
+			return nil, bad(err)
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			break
+		}
+		pos = append(pos, args[0])
+		args = args[1:]
+	}
+	if len(pos) < min || len(pos) > max {
+		return nil, badf("%s: expected %s, got %d argument(s)", fs.Name(), what, len(pos))
+	}
+	return pos, nil
 }
 
 func newFlags(name, help string, stderr io.Writer) *flag.FlagSet {

@@ -182,3 +182,51 @@ func limonene(t *testing.T, demo string) string {
 	b := strings.Index(rest, "\namount")
 	return rest[a:b]
 }
+
+func TestBadRunsCorpus(t *testing.T) {
+	data, err := os.ReadFile("../../testdata/bad-runs/expect.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n") {
+		if strings.HasPrefix(line, "#") {
+			continue
+		}
+		name, frag, _ := strings.Cut(line, "\t")
+		path := filepath.Join("../../testdata/bad-runs", name)
+		code, _, errs := runCmd(t, "fit", "../../testdata/demo.toml", path)
+		if code != 2 || !strings.Contains(errs, path) || !strings.Contains(errs, frag) {
+			t.Errorf("%s: exit %d, message %q (want %q)", name, code, errs, frag)
+		}
+	}
+}
+
+func TestFitOutAndIndex(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "fitted.toml")
+	code, stdout, errs := runCmd(t, "fit", "--json", "--out", out, "../../testdata/demo.toml", "../../testdata/scouting.toml")
+	if code != 0 {
+		t.Fatalf("fit: exit %d %s", code, errs)
+	}
+	var j map[string]any
+	if err := json.Unmarshal([]byte(stdout), &j); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"compounds", "column", "warnings"} {
+		if _, ok := j[k]; !ok {
+			t.Errorf("fit JSON lacks %s", k)
+		}
+	}
+	if code, _, errs := runCmd(t, "simulate", out); code != 0 {
+		t.Errorf("fitted method does not simulate: %s", errs)
+	}
+	if code, _, _ := runCmd(t, "fit", "--with-dcp", "../../testdata/demo.toml", "../../testdata/scouting.toml"); code != 0 {
+		t.Errorf("--with-dcp with three runs: exit %d", code)
+	}
+	code, stdout, _ = runCmd(t, "index", "--json", "../../testdata/index.toml")
+	if code != 0 || !strings.Contains(stdout, `"index": 1000`) {
+		t.Errorf("index: exit %d\n%s", code, stdout)
+	}
+	if code, _, _ := runCmd(t, "index", "../../testdata/demo.toml"); code != 2 {
+		t.Errorf("index without a ladder: exit %d", code)
+	}
+}

@@ -95,8 +95,8 @@ func locate(data []byte) Locations {
 	var p unstable.Parser
 	p.Reset(data)
 	table := ""
-	counts := map[string]int{}
-	keyPath := func(n *unstable.Node) (string, int) {
+	counts := map[string]int{} // element count of each array of tables, by canonical path
+	keyParts := func(n *unstable.Node) ([]string, int) {
 		var parts []string
 		line := 0
 		it := n.Key()
@@ -107,25 +107,45 @@ func locate(data []byte) Locations {
 				line = p.Shape(k.Raw).Start.Line
 			}
 		}
-		return strings.Join(parts, "."), line
+		return parts, line
+	}
+	// canon numbers every array of tables on the path by its current
+	// element: [run.oven] after the second [[run]] is run[2].oven.
+	canon := func(parts []string, arrayHeader bool) string {
+		cur := ""
+		for i, part := range parts {
+			if cur != "" {
+				cur += "."
+			}
+			cur += part
+			if i == len(parts)-1 && arrayHeader {
+				break
+			}
+			if n := counts[cur]; n > 0 {
+				cur = fmt.Sprintf("%s[%d]", cur, n)
+			}
+		}
+		return cur
 	}
 	for p.NextExpression() {
 		e := p.Expression()
 		switch e.Kind {
 		case unstable.Table:
-			k, line := keyPath(e)
-			table = k
+			parts, line := keyParts(e)
+			table = canon(parts, false)
 			loc[table] = line
 		case unstable.ArrayTable:
-			k, line := keyPath(e)
-			counts[k]++
-			table = fmt.Sprintf("%s[%d]", k, counts[k])
+			parts, line := keyParts(e)
+			base := canon(parts, true)
+			counts[base]++
+			table = fmt.Sprintf("%s[%d]", base, counts[base])
 			loc[table] = line
-			if _, ok := loc[k]; !ok {
-				loc[k] = line
+			if _, ok := loc[base]; !ok {
+				loc[base] = line
 			}
 		case unstable.KeyValue:
-			k, line := keyPath(e)
+			parts, line := keyParts(e)
+			k := strings.Join(parts, ".")
 			if table != "" {
 				k = table + "." + k
 			}

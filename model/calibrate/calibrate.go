@@ -1,0 +1,529 @@
+// Package calibrate turns scouting runs into model parameters: each
+// compound's ΔH and ΔS (and optionally ΔCp) by least squares on retention
+// times through the forward model, the column's effective diameter from
+// measured holdup times, and the plate-height factor from measured widths.
+package calibrate
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// Options tune a fit. The zero value fits ΔH and ΔS only.
+type Options struct {
+	WithDCp bool // also fit ΔCp (needs ≥ 3 runs)
+}
+
+// CompoundFit is one compound's result. Energies in kJ/mol, entropies and
+// heat capacities in J/(mol·K), times in min.
+type CompoundFit struct {
+	Name               string
+	DHkJ, DS, DCp      float64
+	StdErrDH, StdErrDS float64 // NaN when the fit has no degrees of freedom
+	StdErrDCp          float64
+	Runs               int
+	RMS, Max           float64 // residuals, min
+	Residuals          map[string]float64
+	Fitted             bool
+	Added              bool // was in the runs, not in the method
+	ElutionSpreadC     float64
+	Condition          float64 // condition number of the scaled normal matrix
+	withDCp            bool
+}
+
+// Report is a whole calibration.
+type Report struct {
+	Compounds         []CompoundFit
+	DiameterMM        float64 // effective internal diameter used
+	DiameterFitted    bool
+	PlateHeightFactor float64
+	PlateFitted       bool
+	Warnings          []string
+	Method            *methodfile.Method // the method with the fitted values
+}
+
+type runSetup struct {
+	name string
+	cond *model.Conditions
+	prog model.Program
+	run  *methodfile.Run
+	meth *methodfile.Method
+}
+
+func setups(m *methodfile.Method, runs *methodfile.Runs) ([]runSetup, error) {
+	var out []runSetup
+	for i := range runs.Runs {
+		r := &runs.Runs[i]
+		rm := m.RunMethod(r)
+		car, err := rm.ModelCarrier()
+		if err != nil {
+			return nil, fmt.Errorf("run %q: %v", r.Name, err)
+		}
+		cond, err := model.NewConditions(rm.ModelColumn(), car)
+		if err != nil {
+			return nil, fmt.Errorf("run %q: %v", r.Name, err)
+		}
+		out = append(out, runSetup{name: r.Name, cond: cond, prog: rm.ModelProgram(), run: r, meth: rm})
+	}
+	return out, nil
+}
+
+// Fit calibrates the method against the runs.
+func Fit(m *methodfile.Method, runs *methodfile.Runs, opt Options) (*Report, error) {
+	if opt.WithDCp && len(runs.Runs) < 3 {
+		return nil, fmt.Errorf("--with-dcp needs at least 3 scouting runs to fit ΔCp besides ΔH and ΔS; the runs file has %d", len(runs.Runs))
+	}
+	rep := &Report{DiameterMM: m.Column.DiameterMM, PlateHeightFactor: m.Column.PlateHeight}
+	out := m.Clone()
+
+	// 1. effective diameter from holdup times
+	var withHoldup []int
+	for i, r := range runs.Runs {
+		if r.HasHoldup {
+			withHoldup = append(withHoldup, i)
+		}
+	}
+	if len(withHoldup) > 0 {
+		d, err := fitDiameter(out, runs, withHoldup)
+		if err != nil {
+			return nil, err
+		}
+		out.Column.DiameterMM = d
+		rep.DiameterMM, rep.DiameterFitted = d, true
+	}
+	st, err := setups(out, runs)
+	if err != nil {
+		return nil, err
+	}
+
+	// 2. compounds
+	index := map[string]int{}
+	for i, c := range out.Compounds {
+		index[c.Name] = i
+	}
+	var names []string
+	seen := map[string]bool{}
+	for _, r := range runs.Runs {
+		for _, n := range r.Names() {
+			if !seen[n] {
+				seen[n] = true
+				names = append(names, n)
+			}
+		}
+	}
+	sort.Strings(names)
+	for _, name := range names {
+		var obs []obsPoint
+		for i, s := range st {
+			if t, ok := s.run.Retention[name]; ok {
+				obs = append(obs, obsPoint{run: i, t: t * 60})
+			}
+		}
+		ci, inMethod := index[name]
+		if len(obs) < 2 {
+			if inMethod {
+				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: seen in one run only; parameters not fitted", name))
+			} else {
+				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: in the runs but not in the method, and seen in one run only; not added", name))
+			}
+			continue
+		}
+		var base model.Compound
+		if inMethod {
+			mcs, err := out.ModelCompounds()
+			if err != nil {
+				return nil, err
+			}
+			base = mcs[ci]
+		} else {
+			base = model.Compound{Name: name, Target: true}
+		}
+		withDCp := opt.WithDCp && len(obs) >= 3
+		if opt.WithDCp && !withDCp {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: seen in %d runs; ΔCp needs 3, fitted ΔH and ΔS only", name, len(obs)))
+		}
+		cf, err := fitCompound(st, obs, base, withDCp)
+		if err != nil {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: %v; parameters not fitted", name, err))
+			continue
+		}
+		cf.Name = name
+		if cf.onlyDS {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: elutes too close to the holdup time to tell ΔH from ΔS; ΔS fitted with ΔH from the homologous rule (ΔH = −(9 + 4.9 n) kJ/mol)", name))
+		}
+		cf.Residuals = map[string]float64{}
+		for i, o := range obs {
+			cf.Residuals[st[o.run].name] = cf.resid[i] / 60
+		}
+		if !inMethod {
+			cf.Added = true
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: in the runs but not in the method; added as a target with the fitted parameters", name))
+			out.Compounds = append(out.Compounds, methodfile.Compound{Name: name, RefTempC: 100, Amount: 1, Target: true})
+			ci = len(out.Compounds) - 1
+			index[name] = ci
+		}
+		c := &out.Compounds[ci]
+		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
+		rep.Compounds = append(rep.Compounds, cf.CompoundFit)
+		if !cf.onlyDS && (cf.ElutionSpreadC < 3 || cf.Condition > 1e10) {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the runs elute it at nearly the same temperature (spread %.1f °C): too similar to separate ΔH from ΔS reliably (ill-conditioned); add a run with a clearly different ramp rate", name, cf.ElutionSpreadC))
+		}
+	}
+	rep.Warnings = append(rep.Warnings, outliers(rep.Compounds)...)
+
+	// 3. plate-height factor from widths
+	if phi, ok, err := fitPlateHeight(out, runs); err != nil {
+		return nil, err
+	} else if ok {
+		out.Column.PlateHeight = phi
+		rep.PlateHeightFactor, rep.PlateFitted = phi, true
+	}
+	rep.Method = out
+	return rep, nil
+}
+
+type obsPoint struct {
+	run int
+	t   float64 // s
+}
+
+type fitResult struct {
+	CompoundFit
+	resid  []float64 // s
+	onlyDS bool
+}
+
+// paramCompound builds the compound for parameter vector θ = (ΔH J/mol, ΔS, ΔCp).
+func paramCompound(base model.Compound, th []float64) model.Compound {
+	c := base
+	c.DH, c.DS, c.RefTemp = th[0], th[1], model.DefaultRefTemp
+	c.DCp = 0
+	if len(th) > 2 {
+		c.DCp = th[2]
+	}
+	return c
+}
+
+func residuals(st []runSetup, obs []obsPoint, base model.Compound, th []float64, out []float64) (float64, []float64) {
+	c := paramCompound(base, th)
+	ssr := 0.0
+	for i, o := range obs {
+		tr, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
+		out[i] = tr - o.t
+		if math.IsInf(tr, 0) || math.IsNaN(tr) {
+			out[i] = 1e9
+		}
+		ssr += out[i] * out[i]
+	}
+	return ssr, out
+}
+
+// startValues follow the homologous-series rule ΔH = −(9 + 4.9 n) kJ/mol,
+// ΔS = −(44 + 6.0 n) J/(mol·K) of a nonpolar phase (the demo's rule of thumb),
+// with n found so that the first observation is matched; this puts the
+// start in the right valley of the strongly correlated ΔH–ΔS surface.
+func startValues(st []runSetup, obs []obsPoint, base model.Compound) []float64 {
+	at := func(n float64) []float64 { return []float64{-(9 + 4.9*n) * 1000, -(44 + 6.0*n)} }
+	o := obs[0]
+	lo, hi := -1.5, 60.0
+	for it := 0; it < 60; it++ {
+		mid := (lo + hi) / 2
+		c := paramCompound(base, at(mid))
+		tr, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
+		if tr > o.t {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return at((lo + hi) / 2)
+}
+
+// fitCompound is Levenberg–Marquardt on the retention-time residuals with
+// a forward-difference Jacobian; standard errors from σ² (JᵀJ)⁻¹.
+func fitCompound(st []runSetup, obs []obsPoint, base model.Compound, withDCp bool) (fitResult, error) {
+	th := startValues(st, obs, base)
+	free := []int{0, 1}
+	if withDCp {
+		th = append(th, 0)
+		free = append(free, 2)
+	}
+	res, err := fitFree(st, obs, base, th, free)
+	if err == nil {
+		return res, nil
+	}
+	// Too little retention to tell ΔH from ΔS: keep ΔH of the homologous
+	// rule and fit ΔS alone.
+	res, err2 := fitFree(st, obs, base, startValues(st, obs, base), []int{1})
+	if err2 != nil {
+		return res, err
+	}
+	res.onlyDS = true
+	return res, nil
+}
+
+// fitFree fits the parameters listed in free (0 ΔH, 1 ΔS, 2 ΔCp) from th.
+func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, free []int) (fitResult, error) {
+	withDCp := len(th) > 2
+	p := len(free)
+	n := len(obs)
+	allSteps := []float64{5, 0.01, 0.1}
+	steps := make([]float64, p)
+	for j, f := range free {
+		steps[j] = allSteps[f]
+	}
+	r := make([]float64, n)
+	rt := make([]float64, n)
+	ssr, _ := residuals(st, obs, base, th, r)
+	lambda := 1e-3
+	J := mat.NewDense(n, p, nil)
+	var jtj mat.Dense
+	for iter := 0; iter < 200; iter++ {
+		for j := 0; j < p; j++ {
+			tp := append([]float64(nil), th...)
+			tp[free[j]] += steps[j]
+			residuals(st, obs, base, tp, rt)
+			for i := 0; i < n; i++ {
+				J.Set(i, j, (rt[i]-r[i])/steps[j])
+			}
+		}
+		jtj.Mul(J.T(), J)
+		g := mat.NewVecDense(n, append([]float64(nil), r...))
+		var jtr mat.VecDense
+		jtr.MulVec(J.T(), g)
+		improved := false
+		for tries := 0; tries < 20; tries++ {
+			a := mat.NewDense(p, p, nil)
+			a.Copy(&jtj)
+			for j := 0; j < p; j++ {
+				a.Set(j, j, a.At(j, j)*(1+lambda)+1e-12)
+			}
+			var delta mat.VecDense
+			if err := delta.SolveVec(a, &jtr); err != nil {
+				lambda *= 10
+				continue
+			}
+			tn := append([]float64(nil), th...)
+			for j := 0; j < p; j++ {
+				tn[free[j]] -= delta.AtVec(j)
+			}
+			sn, _ := residuals(st, obs, base, tn, rt)
+			if sn < ssr {
+				small := true
+				for j := 0; j < p; j++ {
+					if math.Abs(delta.AtVec(j)) > 1e-7*steps[j] {
+						small = false
+					}
+				}
+				th, ssr = tn, sn
+				copy(r, rt)
+				lambda = math.Max(lambda/10, 1e-12)
+				improved = true
+				if small {
+					iter = 1 << 30
+				}
+				break
+			}
+			lambda *= 10
+		}
+		if !improved || iter >= 1<<30 {
+			break
+		}
+	}
+	// Jacobian at the solution for errors and conditioning
+	for j := 0; j < p; j++ {
+		tp := append([]float64(nil), th...)
+		tp[free[j]] += steps[j]
+		residuals(st, obs, base, tp, rt)
+		for i := 0; i < n; i++ {
+			J.Set(i, j, (rt[i]-r[i])/steps[j])
+		}
+	}
+	jtj.Mul(J.T(), J)
+	res := fitResult{resid: append([]float64(nil), r...)}
+	res.DHkJ, res.DS = th[0]/1000, th[1]
+	if withDCp {
+		res.DCp = th[2]
+	}
+	res.withDCp = withDCp
+	res.Runs = n
+	res.Fitted = true
+	for _, x := range r {
+		res.RMS += x * x / float64(n)
+		res.Max = math.Max(res.Max, math.Abs(x)/60)
+	}
+	res.RMS = math.Sqrt(res.RMS) / 60
+	res.StdErrDH, res.StdErrDS, res.StdErrDCp = math.NaN(), math.NaN(), math.NaN()
+	// scaled condition number
+	scaled := mat.NewDense(n, p, nil)
+	for j := 0; j < p; j++ {
+		norm := 0.0
+		for i := 0; i < n; i++ {
+			norm += J.At(i, j) * J.At(i, j)
+		}
+		norm = math.Sqrt(norm)
+		for i := 0; i < n; i++ {
+			if norm > 0 {
+				scaled.Set(i, j, J.At(i, j)/norm)
+			}
+		}
+	}
+	var sjtj mat.Dense
+	sjtj.Mul(scaled.T(), scaled)
+	res.Condition = mat.Cond(&sjtj, 2)
+	if n > p {
+		var cov mat.Dense
+		if err := cov.Inverse(&jtj); err == nil {
+			s2 := ssr / float64(n-p)
+			for j, f := range free {
+				e := math.Sqrt(math.Abs(cov.At(j, j) * s2))
+				switch f {
+				case 0:
+					res.StdErrDH = e / 1000
+				case 1:
+					res.StdErrDS = e
+				case 2:
+					res.StdErrDCp = e
+				}
+			}
+		}
+	}
+	// spread of elution temperatures across the runs
+	c := paramCompound(base, th)
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, o := range obs {
+		_, te := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
+		lo, hi = math.Min(lo, te), math.Max(hi, te)
+	}
+	res.ElutionSpreadC = hi - lo
+	if !(res.DHkJ < 0) || math.IsNaN(res.DS) {
+		return res, errors.New("the fit did not converge to a retained compound")
+	}
+	return res, nil
+}
+
+// outliers flags compounds whose residual stands far above the others': a
+// likely misassigned peak.
+func outliers(fits []CompoundFit) []string {
+	var rms []float64
+	for _, f := range fits {
+		if f.Runs > 2 {
+			rms = append(rms, f.RMS)
+		}
+	}
+	if len(rms) == 0 {
+		return nil
+	}
+	sort.Float64s(rms)
+	med := rms[len(rms)/2]
+	limit := math.Max(5*med, 0.01)
+	var w []string
+	for _, f := range fits {
+		if f.Runs > 2 && f.RMS > limit {
+			worst, wr := "", 0.0
+			for run, r := range f.Residuals {
+				if math.Abs(r) > math.Abs(wr) || (math.Abs(r) == math.Abs(wr) && run < worst) {
+					worst, wr = run, r
+				}
+			}
+			w = append(w, fmt.Sprintf("%s: residual %.3f min in run %q is far above the others (rms %.4f min vs typical %.4f): likely a misassigned peak; check that run's peak identities", f.Name, wr, worst, f.RMS, med))
+		}
+	}
+	return w
+}
+
+// fitDiameter finds the internal diameter (mm) whose holdup times best match
+// the measured ones (golden-section search between 0.5 and 1.5 times the
+// nominal diameter).
+func fitDiameter(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float64, error) {
+	ssr := func(d float64) float64 {
+		c := m.Clone()
+		c.Column.DiameterMM = d
+		s := 0.0
+		for _, i := range idx {
+			r := &runs.Runs[i]
+			rm := c.RunMethod(r)
+			car, err := rm.ModelCarrier()
+			if err != nil {
+				return math.Inf(1)
+			}
+			cond, err := model.NewConditions(rm.ModelColumn(), car)
+			if err != nil {
+				return math.Inf(1)
+			}
+			tm, _ := cond.RetentionTime(nil, rm.ModelProgram())
+			e := tm/60 - r.HoldupMin
+			s += e * e
+		}
+		return s
+	}
+	d0 := m.Column.DiameterMM
+	a, b := 0.5*d0, 1.5*d0
+	if min := 2 * m.Column.FilmUM * 1e-3 * 1.01; a < min {
+		a = min
+	}
+	gr := (math.Sqrt(5) - 1) / 2
+	for i := 0; i < 100; i++ {
+		c, d := b-gr*(b-a), a+gr*(b-a)
+		if ssr(c) < ssr(d) {
+			b = d
+		} else {
+			a = c
+		}
+	}
+	d := (a + b) / 2
+	if math.IsInf(ssr(d), 0) {
+		return 0, errors.New("holdup calibration failed: no diameter reproduces the measured holdup times")
+	}
+	return d, nil
+}
+
+// fitPlateHeight fits φ from measured half-height widths: σ² = φ a + σ0²,
+// with a the column's variance at φ = 1, by least squares in σ².
+func fitPlateHeight(m *methodfile.Method, runs *methodfile.Runs) (float64, bool, error) {
+	var num, den float64
+	count := 0
+	for i := range runs.Runs {
+		r := &runs.Runs[i]
+		if len(r.Widths) == 0 {
+			continue
+		}
+		rm := m.RunMethod(r)
+		rm.Column.PlateHeight = 1
+		sys, err := rm.System()
+		if err != nil {
+			return 0, false, err
+		}
+		var res model.Result
+		if err := sys.Simulate(rm.ModelProgram(), &res); err != nil {
+			return 0, false, fmt.Errorf("run %q: %v", r.Name, err)
+		}
+		s0 := sys.Cond.Carrier.InitialBand
+		for _, pk := range res.Peaks {
+			w, ok := r.Widths[sys.Compounds[pk.Compound].Name]
+			if !ok {
+				continue
+			}
+			sObs := w * 60 / 2.3548200450309493
+			a := pk.Sigma*pk.Sigma - s0*s0
+			num += a * (sObs*sObs - s0*s0)
+			den += a * a
+			count++
+		}
+	}
+	if count == 0 || den == 0 {
+		return 0, false, nil
+	}
+	phi := num / den
+	if !(phi > 0) {
+		return 0, false, errors.New("the measured widths are narrower than the injection band alone; check initial_band_s")
+	}
+	return phi, true, nil
+}
