@@ -135,3 +135,25 @@ func (c *Conditions) JamesMartin(t float64) float64 {
 	p := c.InletPressure(t) / c.po
 	return 1.5 * (p*p - 1) / (p*p*p - 1)
 }
+
+// OverPressure is the lowest temperature in [lo, hi] (K) at which the inlet
+// gauge pressure exceeds limit (Pa), and whether it does anywhere there. At
+// constant flow the pressure rises with temperature (viscosity), so the
+// answer is found by bisection; at constant pressure it is all or nothing.
+func (c *Conditions) OverPressure(limit, lo, hi float64) (float64, bool) {
+	if c.InletGauge(hi) <= limit && c.InletGauge(lo) <= limit {
+		return 0, false
+	}
+	if c.InletGauge(lo) > limit {
+		return lo, true
+	}
+	for i := 0; i < 60; i++ {
+		mid := (lo + hi) / 2
+		if c.InletGauge(mid) > limit {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return hi, true
+}

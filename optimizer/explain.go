@@ -3,6 +3,7 @@ package optimizer
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/rampwise/rampwise/model"
 )
@@ -42,4 +43,18 @@ func explain(p *Problem, res *model.Result, limiting []int) string {
 	}
 	return fmt.Sprintf("%s reach only Rs %.2f within the limits; their selectivity is best (α = %.4f) near %.0f °C: a lower start temperature, slower ramps or longer holds than the limits allow, or a longer column, would be needed",
 		name, pr.Resolution, bestAlpha, bestT-model.ZeroCelsius)
+}
+
+// explainLate names the compounds that do not elute within the hold limit at
+// the highest temperature the program reaches.
+func explainLate(p *Problem, res, untrimmed *model.Result) string {
+	var names []string
+	for _, pk := range res.Peaks {
+		if !pk.Eluted {
+			names = append(names, p.System.Compounds[pk.Compound].Name)
+		}
+	}
+	last := untrimmed.Peaks[len(untrimmed.Peaks)-1]
+	return fmt.Sprintf("%s would elute only after %.1f min (at %.0f °C): beyond the longest hold (%.1f min) at the column maximum %.0f °C; such a compound needs a less retentive column (thinner film, shorter column, another phase) or a bake-out step",
+		strings.Join(names, ", "), last.RetentionTime/60, last.ElutionTemp-model.ZeroCelsius, p.Limits.MaxHold/60, p.Limits.MaxTemp-model.ZeroCelsius)
 }

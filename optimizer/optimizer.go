@@ -513,15 +513,29 @@ func (sh *shared) finish(ctx context.Context, sp *space, x []float64) (*Result, 
 		return nil, fmt.Errorf("optimizer: best program does not simulate: %v", err)
 	}
 	r.Program = prog.TrimTo(tmp.RunTime).Simplify()
+	// never return a program beyond the limits: a final hold the trim
+	// stretched past the hold limit is cut back (late peaks then show as
+	// not eluted, and the result says so)
+	holdCut := false
+	if n := len(r.Program.Ramps); n > 0 && r.Program.Ramps[n-1].Hold > p.Limits.MaxHold {
+		r.Program.Ramps[n-1].Hold = p.Limits.MaxHold
+		holdCut = true
+	} else if n == 0 && r.Program.InitialHold > p.Limits.MaxHold && !p.locked("initial_hold_min", 0) {
+		r.Program.InitialHold = p.Limits.MaxHold
+		holdCut = true
+	}
 	if err := p.System.Simulate(r.Program, &r.Sim); err != nil {
 		return nil, fmt.Errorf("optimizer: trimmed program does not simulate: %v", err)
 	}
 	f, _ := sh.score(prog, &tmp)
 	r.Status = Met
-	if f >= infeasibleBase {
+	if f >= infeasibleBase || holdCut {
 		r.Status = NotMet
 		r.Limiting = limitingPairs(&r.Sim, p.MinResolution)
 		r.Explanation = explain(p, &r.Sim, r.Limiting)
+		if holdCut {
+			r.Explanation = explainLate(p, &r.Sim, &tmp)
+		}
 	}
 	r.Evaluations = int(sh.evals.Load())
 	r.Elapsed = time.Since(sh.begin)

@@ -217,6 +217,10 @@ func (a *App) summaryLine(w int) string {
 	if late > 0 {
 		tail = fmt.Sprintf(" · %d not eluted", late)
 	}
+	prog := a.method.ModelProgram()
+	if at, over := a.sys.Cond.OverPressure(a.method.Limits.MaxInletKPa*1000, prog.Initial, prog.MaxTemp()); over {
+		tail += fmt.Sprintf(" · inlet over %s kPa from %.0f °C", trimNum(a.method.Limits.MaxInletKPa), at-model.ZeroCelsius)
+	}
 	return ansi.Truncate(a.st.Info.Render(s)+style.Render(rs)+a.st.Warn.Render(tail), w, "…")
 }
 

@@ -230,3 +230,17 @@ func TestFitOutAndIndex(t *testing.T) {
 		t.Errorf("index without a ladder: exit %d", code)
 	}
 }
+
+// An inlet pressure above [limits] max_inlet_kpa in constant flow is flagged
+// with the temperature where it happens.
+func TestPressureLimitFlagged(t *testing.T) {
+	demo, _ := os.ReadFile("../../testdata/demo.toml")
+	text := strings.Replace(string(demo), "max_inlet_kpa = 690.0", "max_inlet_kpa = 120.0", 1)
+	text = strings.Replace(text, "flow_ml_min = 1.2", "flow_ml_min = 2.0", 1)
+	path := filepath.Join(t.TempDir(), "p.toml")
+	os.WriteFile(path, []byte(text), 0o644)
+	code, out, _ := runCmd(t, "simulate", path)
+	if code != 0 || !strings.Contains(out, "more inlet pressure than the instrument limit 120 kPa from") {
+		t.Errorf("exit %d:\n%s", code, out)
+	}
+}

@@ -103,29 +103,15 @@ func (s *simulation) warnings(prog model.Program) []string {
 func pressureWarnings(m *methodfile.Method, sys *model.System, prog model.Program) []string {
 	limit := m.Limits.MaxInletKPa * 1000
 	cond := sys.Cond
+	at, over := cond.OverPressure(limit, prog.Initial, prog.MaxTemp())
+	if !over {
+		return nil
+	}
 	if cond.Carrier.Mode == model.ConstantPressure {
-		if cond.Carrier.InletGauge > limit {
-			return []string{fmt.Sprintf("inlet pressure %.0f kPa is above the instrument limit %.0f kPa", cond.Carrier.InletGauge/1000, limit/1000)}
-		}
-		return nil
+		return []string{fmt.Sprintf("inlet pressure %.0f kPa is above the instrument limit %.0f kPa (limits.max_inlet_kpa)", cond.Carrier.InletGauge/1000, limit/1000)}
 	}
-	lo, hi := prog.Initial, prog.MaxTemp()
-	if cond.InletGauge(hi) <= limit {
-		return nil
-	}
-	if cond.InletGauge(lo) > limit {
-		return []string{fmt.Sprintf("constant flow needs %.0f kPa inlet pressure at %.0f °C, above the instrument limit %.0f kPa", cond.InletGauge(lo)/1000, lo-model.ZeroCelsius, limit/1000)}
-	}
-	for i := 0; i < 60; i++ {
-		mid := (lo + hi) / 2
-		if cond.InletGauge(mid) > limit {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return []string{fmt.Sprintf("constant flow needs more than the instrument limit %.0f kPa inlet pressure from %.1f °C on (%.0f kPa at %.0f °C)",
-		limit/1000, hi-model.ZeroCelsius, cond.InletGauge(prog.MaxTemp())/1000, prog.MaxTemp()-model.ZeroCelsius)}
+	return []string{fmt.Sprintf("constant flow needs more inlet pressure than the instrument limit %.0f kPa from %.1f °C on (%.0f kPa at %.0f °C; limits.max_inlet_kpa)",
+		limit/1000, at-model.ZeroCelsius, cond.InletGauge(prog.MaxTemp())/1000, prog.MaxTemp()-model.ZeroCelsius)}
 }
 
 func fmtMin(s float64) string {
