@@ -60,6 +60,8 @@ Usage:
   rampwise optimize [FILE] [flags]  find the fastest program meeting the target
   rampwise fit METHOD RUNS [flags]  calibrate ΔH, ΔS (ΔCp) from scouting runs
   rampwise index METHOD [flags]     retention indices against the ladder alkanes
+  rampwise export METHOD [flags]    figure (PNG/SVG/PDF), peak CSV, method sheet
+  rampwise sweep METHOD [flags]     window diagram of one or two program values
   rampwise help [COMMAND]           explain a command
 
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
@@ -121,6 +123,10 @@ func dispatch(args []string, stdout, stderr io.Writer) error {
 		return runFit(args[1:], stdout, stderr)
 	case "index":
 		return runIndex(args[1:], stdout, stderr)
+	case "export":
+		return runExport(args[1:], stdout, stderr)
+	case "sweep":
+		return runSweep(args[1:], stdout, stderr)
 	case "help", "-h", "--help", "-help":
 		if len(args) > 1 {
 			return dispatch([]string{args[1], "--help"}, stdout, stderr)

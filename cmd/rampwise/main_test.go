@@ -3,9 +3,11 @@ package main
 import (
 	"bufio"
 	"bytes"
+	"encoding/csv"
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -242,5 +244,36 @@ func TestPressureLimitFlagged(t *testing.T) {
 	code, out, _ := runCmd(t, "simulate", path)
 	if code != 0 || !strings.Contains(out, "more inlet pressure than the instrument limit 120 kPa from") {
 		t.Errorf("exit %d:\n%s", code, out)
+	}
+}
+
+// export --csv numbers equal simulate --json.
+func TestExportCSVEqualsSimulateJSON(t *testing.T) {
+	dir := t.TempDir()
+	csvPath := filepath.Join(dir, "peaks.csv")
+	if code, _, errs := runCmd(t, "export", "-", "--csv", csvPath, "--sheet", filepath.Join(dir, "s.md")); code != 0 {
+		t.Fatalf("export: %s", errs)
+	}
+	_, out, _ := runCmd(t, "simulate", "--json")
+	var sj simulateJSON
+	json.Unmarshal([]byte(out), &sj)
+	f, _ := os.Open(csvPath)
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, pk := range sj.Peaks {
+		tr, _ := strconv.ParseFloat(rows[i+1][1], 64)
+		sig, _ := strconv.ParseFloat(rows[i+1][3], 64)
+		if rows[i+1][0] != pk.Name || tr != *pk.RetentionTime || sig != *pk.Sigma {
+			t.Errorf("row %d: %v vs %s %v %v", i, rows[i+1], pk.Name, *pk.RetentionTime, *pk.Sigma)
+		}
+	}
+	if code, _, _ := runCmd(t, "export", "-"); code != 2 {
+		t.Error("export with nothing to write should be bad input")
+	}
+	if code, _, _ := runCmd(t, "sweep", "-", "--vary", "rate_7", "--from", "1", "--to", "2"); code != 2 {
+		t.Error("sweep of a missing ramp should be bad input")
 	}
 }

@@ -1,0 +1,301 @@
+package main
+
+import (
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"text/tabwriter"
+	"time"
+
+	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/report"
+	"github.com/rampwise/rampwise/model/sweep"
+)
+
+const exportHelp = `Usage: rampwise export METHOD [--png F] [--svg F] [--pdf F] [--csv F] [--sheet F]
+
+Writes the method's simulated chromatogram as a figure (PNG, SVG or PDF:
+labelled peaks, the critical pair marked, the oven program in a panel below
+on the same time axis), the peak table as CSV, and a Markdown method sheet
+(column, carrier, heated zones, oven program, limits, expected retention,
+critical pair, where the parameters come from, and the cautions). Every file
+is written atomically. Without METHOD's name, "-" uses the built-in demo.
+
+Flags:
+`
+
+func runExport(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("export", exportHelp, stderr)
+	pngF := fs.String("png", "", "write the figure as PNG to this `file`")
+	svgF := fs.String("svg", "", "write the figure as SVG to this `file`")
+	pdfF := fs.String("pdf", "", "write the figure as PDF to this `file`")
+	csvF := fs.String("csv", "", "write the peak table as CSV to this `file`")
+	sheetF := fs.String("sheet", "", "write the method sheet (Markdown) to this `file`")
+	width := fs.Int("width", 1200, "figure width (pixels for PNG, points otherwise)")
+	height := fs.Int("height", 800, "figure height")
+	files, err := parseArgsN(fs, args, 1, 1, "METHOD")
+	if err != nil {
+		return err
+	}
+	if *pngF == "" && *svgF == "" && *pdfF == "" && *csvF == "" && *sheetF == "" {
+		return badf("export: nothing to write; give --png, --svg, --pdf, --csv or --sheet")
+	}
+	if *width < 200 || *width > 10000 || *height < 150 || *height > 10000 {
+		return badf("export: --width must be 200..10000 and --height 150..10000")
+	}
+	file := files[0]
+	if file == "-" {
+		file = ""
+	}
+	m, name, err := loadMethod(file)
+	if err != nil {
+		return err
+	}
+	sim, err := simulateMethod(m, name)
+	if err != nil {
+		return err
+	}
+	rs, err := report.Simulate(m)
+	if err != nil {
+		return badf("%s: %v", name, err)
+	}
+	write := func(path string, data []byte) error {
+		if err := methodfile.WriteAtomic(path, data); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "wrote %s\n", path)
+		return nil
+	}
+	for _, f := range []struct{ path, format string }{{*pngF, "png"}, {*svgF, "svg"}, {*pdfF, "pdf"}} {
+		if f.path == "" {
+			continue
+		}
+		data, err := rs.Figure(f.format, *width, *height)
+		if err != nil {
+			return fmt.Errorf("figure: %v", err)
+		}
+		if err := write(f.path, data); err != nil {
+			return err
+		}
+	}
+	if *csvF != "" {
+		data, err := rs.CSV()
+		if err != nil {
+			return err
+		}
+		if err := write(*csvF, data); err != nil {
+			return err
+		}
+	}
+	if *sheetF != "" {
+		if err := write(*sheetF, rs.Sheet(sim.warnings(m.ModelProgram()))); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+const sweepHelp = `Usage: rampwise sweep METHOD --vary NAME --from A --to B [--steps N]
+                      [--vary2 NAME --from2 A --to2 B --steps2 N] [--csv F] [--png F]
+
+Varies one program value (initial_c, initial_hold_min, rate_N, final_N,
+hold_N, or the carrier's flow_ml_min or inlet_kpa) from A to B in N steps and
+reports the minimum resolution, the critical pair and the run time at each: a
+window diagram (Laub & Purnell 1975). With --vary2, a map of the minimum
+resolution over two values (a text heat map here, an image with --png).
+Steps where the program is not valid are listed with the reason. "-" as
+METHOD uses the built-in demo.
+
+Flags:
+`
+
+func runSweep(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("sweep", sweepHelp, stderr)
+	vary := fs.String("vary", "", "the `value` to vary")
+	from := fs.Float64("from", math.NaN(), "first value")
+	to := fs.Float64("to", math.NaN(), "last value")
+	steps := fs.Int("steps", 21, "number of steps, 2..2000")
+	vary2 := fs.String("vary2", "", "a second `value` to vary (a map)")
+	from2 := fs.Float64("from2", math.NaN(), "first value of the second")
+	to2 := fs.Float64("to2", math.NaN(), "last value of the second")
+	steps2 := fs.Int("steps2", 11, "number of steps of the second, 2..500")
+	csvF := fs.String("csv", "", "write the steps as CSV to this `file`")
+	pngF := fs.String("png", "", "write the window diagram or map as PNG to this `file`")
+	files, err := parseArgsN(fs, args, 1, 1, "METHOD")
+	if err != nil {
+		return err
+	}
+	if *vary == "" || math.IsNaN(*from) || math.IsNaN(*to) || math.IsInf(*from, 0) || math.IsInf(*to, 0) {
+		return badf("sweep: give --vary NAME --from A --to B (finite numbers)")
+	}
+	if *steps < 2 || *steps > 2000 {
+		return badf("sweep: --steps must be 2..2000")
+	}
+	file := files[0]
+	if file == "-" {
+		file = ""
+	}
+	m, name, err := loadMethod(file)
+	if err != nil {
+		return err
+	}
+	if err := sweep.Check(m, *vary); err != nil {
+		return badf("sweep: %v", err)
+	}
+	current := currentValue(m, *vary)
+	start := time.Now()
+	progress := func(done, total int) {
+		if time.Since(start) > time.Second && (done%50 == 0 || done == total) {
+			fmt.Fprintf(stderr, "sweep: %d of %d steps\n", done, total)
+		}
+	}
+	if *vary2 != "" {
+		if math.IsNaN(*from2) || math.IsNaN(*to2) || *steps2 < 2 || *steps2 > 500 {
+			return badf("sweep: --vary2 needs --from2, --to2 and --steps2 (2..500)")
+		}
+		if err := sweep.Check(m, *vary2); err != nil {
+			return badf("sweep: %v", err)
+		}
+		grid, err := sweep.Two(m, *vary, sweep.Steps(*from, *to, *steps), *vary2, sweep.Steps(*from2, *to2, *steps2), progress)
+		if err != nil {
+			return badf("sweep: %v", err)
+		}
+		writeHeatMap(stdout, grid, *vary, *vary2, m.Goal.MinResolution)
+		if *csvF != "" {
+			var rows [][]string
+			rows = append(rows, []string{*vary, *vary2, "valid", "min_resolution", "critical_first", "critical_second", "run_time_min", "reason"})
+			for _, row := range grid {
+				for _, p := range row {
+					rows = append(rows, pointRow(p, true))
+				}
+			}
+			if err := writeCSVFile(*csvF, rows, stdout); err != nil {
+				return err
+			}
+		}
+		if *pngF != "" {
+			data, err := report.MapPNG(grid, *vary, *vary2, m.Goal.MinResolution, 1000, 800)
+			if err != nil {
+				return fmt.Errorf("map: %v", err)
+			}
+			if err := methodfile.WriteAtomic(*pngF, data); err != nil {
+				return err
+			}
+			fmt.Fprintf(stdout, "wrote %s\n", *pngF)
+		}
+		return nil
+	}
+	pts, err := sweep.One(m, *vary, sweep.Steps(*from, *to, *steps), progress)
+	if err != nil {
+		return badf("sweep: %v", err)
+	}
+	fmt.Fprintf(stdout, "%s: sweep of %s (now %g)\n\n", name, *vary, current)
+	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
+	fmt.Fprintf(tw, "%s\tmin Rs\tcritical pair\trun (min)\t\n", *vary)
+	for _, p := range pts {
+		if !p.Valid {
+			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, p.Reason)
+			continue
+		}
+		mark := ""
+		if !math.IsNaN(p.MinRs) && p.MinRs >= m.Goal.MinResolution {
+			mark = " ✓"
+		}
+		fmt.Fprintf(tw, "%g\t%.3f%s\t%s / %s\t%.2f\t\n", p.Value, p.MinRs, mark, p.Critical[0], p.Critical[1], p.RunTime)
+	}
+	tw.Flush()
+	if *csvF != "" {
+		rows := [][]string{{*vary, "valid", "min_resolution", "critical_first", "critical_second", "run_time_min", "reason"}}
+		for _, p := range pts {
+			rows = append(rows, pointRow(p, false))
+		}
+		if err := writeCSVFile(*csvF, rows, stdout); err != nil {
+			return err
+		}
+	}
+	if *pngF != "" {
+		data, err := report.WindowPNG(pts, *vary, current, m.Goal.MinResolution, 1000, 600)
+		if err != nil {
+			return fmt.Errorf("window diagram: %v", err)
+		}
+		if err := methodfile.WriteAtomic(*pngF, data); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "wrote %s\n", *pngF)
+	}
+	return nil
+}
+
+func currentValue(m *methodfile.Method, name string) float64 {
+	fs := map[string]float64{"initial_c": m.Oven.InitialC, "initial_hold_min": m.Oven.InitialHoldMin, "flow_ml_min": m.Carrier.FlowMLMin, "inlet_kpa": m.Carrier.InletKPa}
+	for i, r := range m.Oven.Ramps {
+		fs[fmt.Sprintf("rate_%d", i+1)] = r.RateCMin
+		fs[fmt.Sprintf("final_%d", i+1)] = r.FinalC
+		fs[fmt.Sprintf("hold_%d", i+1)] = r.HoldMin
+	}
+	return fs[name]
+}
+
+func pointRow(p sweep.Point, two bool) []string {
+	row := []string{fmtNum(p.Value)}
+	if two {
+		row = append(row, fmtNum(p.Value2))
+	}
+	rs := ""
+	if !math.IsNaN(p.MinRs) {
+		rs = fmtNum(p.MinRs)
+	}
+	run := ""
+	if p.Valid {
+		run = fmtNum(p.RunTime)
+	}
+	return append(row, fmt.Sprint(p.Valid), rs, p.Critical[0], p.Critical[1], run, p.Reason)
+}
+
+func writeCSVFile(path string, rows [][]string, stdout io.Writer) error {
+	var b strings.Builder
+	w := csv.NewWriter(&b)
+	w.WriteAll(rows)
+	if err := methodfile.WriteAtomic(path, []byte(b.String())); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "wrote %s\n", path)
+	return nil
+}
+
+// writeHeatMap prints the map of minimum resolution: rows are the second
+// value, columns the first; shading from below half the target (blank) to
+// above it (█).
+func writeHeatMap(w io.Writer, grid [][]sweep.Point, name, name2 string, target float64) {
+	shades := []rune(" ░▒▓█")
+	fmt.Fprintf(w, "minimum resolution: %s across, %s down; ' ' < %.2f ≤ ░ < %.2f ≤ ▒ < %.2f ≤ ▓ < %.2f ≤ █, × invalid\n\n",
+		name, name2, target*0.5, target*0.75, target*0.9, target)
+	for j := len(grid) - 1; j >= 0; j-- {
+		row := grid[j]
+		fmt.Fprintf(w, "%10.4g │", row[0].Value2)
+		for _, p := range row {
+			r := '×'
+			if p.Valid {
+				x := p.MinRs
+				switch {
+				case math.IsNaN(x) || x >= target:
+					r = shades[4]
+				case x >= 0.9*target:
+					r = shades[3]
+				case x >= 0.75*target:
+					r = shades[2]
+				case x >= 0.5*target:
+					r = shades[1]
+				default:
+					r = shades[0]
+				}
+			}
+			fmt.Fprintf(w, "%c%c", r, r)
+		}
+		fmt.Fprintln(w)
+	}
+	fmt.Fprintf(w, "%10s └%s\n", "", strings.Repeat("──", len(grid[0])))
+	fmt.Fprintf(w, "%10s  %-10.4g%*s%.4g\n", "", grid[0][0].Value, 2*len(grid[0])-12, "", grid[0][len(grid[0])-1].Value)
+}

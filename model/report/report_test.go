@@ -1,0 +1,165 @@
+package report
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/xml"
+	"image/png"
+	"io"
+	"math"
+	"reflect"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/sweep"
+)
+
+func demoSim(t *testing.T) *Sim {
+	m, err := methodfile.ReadFile("../../testdata/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := Simulate(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+func TestPNGSize(t *testing.T) {
+	s := demoSim(t)
+	data, err := s.Figure("png", 900, 600)
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b := img.Bounds(); b.Dx() != 900 || b.Dy() != 600 {
+		t.Errorf("PNG is %v, want 900×600", b)
+	}
+}
+
+func TestSVGParsesWithLabels(t *testing.T) {
+	s := demoSim(t)
+	data, err := s.Figure("svg", 800, 500)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dec := xml.NewDecoder(bytes.NewReader(data))
+	for {
+		_, err := dec.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("SVG does not parse: %v", err)
+		}
+	}
+	for _, name := range []string{"limonene", "myrcene", "nootkatone"} {
+		if !bytes.Contains(data, []byte(name)) {
+			t.Errorf("SVG lacks the label %s", name)
+		}
+	}
+	if _, err := s.Figure("pdf", 800, 500); err != nil {
+		t.Error(err)
+	}
+}
+
+func TestCSVMatchesResult(t *testing.T) {
+	s := demoSim(t)
+	data, err := s.CSV()
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(data)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != len(s.Result.Peaks)+1 {
+		t.Fatalf("%d rows", len(rows))
+	}
+	for i, pk := range s.Result.Peaks {
+		tr, _ := strconv.ParseFloat(rows[i+1][1], 64)
+		if tr != pk.RetentionTime/60 {
+			t.Errorf("row %d: %v vs %v", i, tr, pk.RetentionTime/60)
+		}
+	}
+}
+
+func TestSheetHasStepsAndCautions(t *testing.T) {
+	s := demoSim(t)
+	sheet := string(s.Sheet(nil))
+	for _, want := range []string{"| initial |", "| ramp 1 |", "standard injection", "maximum temperature", "instrument maker"} {
+		if !strings.Contains(sheet, want) {
+			t.Errorf("sheet lacks %q", want)
+		}
+	}
+	if strings.Contains(sheet, "flammable") {
+		t.Error("hydrogen caution without hydrogen")
+	}
+	m := s.Method.Clone()
+	m.Carrier.Gas = "hydrogen"
+	h, err := Simulate(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(h.Sheet(nil)), "flammable") {
+		t.Error("no hydrogen caution with hydrogen")
+	}
+}
+
+// A sweep point at the method's current value equals simulate; a sweep is
+// reproducible exactly.
+func TestSweepPointEqualsSimulate(t *testing.T) {
+	s := demoSim(t)
+	pts, err := sweep.One(s.Method, "rate_1", sweep.Steps(2, 22, 11), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var at *sweep.Point
+	for i := range pts {
+		if pts[i].Value == 12 {
+			at = &pts[i]
+		}
+	}
+	if at == nil {
+		t.Fatal("no step at 12")
+	}
+	if at.MinRs != s.Result.MinResolution || at.RunTime != s.Result.RunTime/60 {
+		t.Errorf("sweep %v/%v vs simulate %v/%v", at.MinRs, at.RunTime, s.Result.MinResolution, s.Result.RunTime/60)
+	}
+	again, _ := sweep.One(s.Method, "rate_1", sweep.Steps(2, 22, 11), nil)
+	if !reflect.DeepEqual(stripNaN(pts), stripNaN(again)) {
+		t.Error("sweep not reproducible")
+	}
+	grid, err := sweep.Two(s.Method, "rate_1", sweep.Steps(5, 20, 4), "initial_c", sweep.Steps(40, 100, 3), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := MapPNG(grid, "rate_1", "initial_c", 1.5, 400, 300); err != nil {
+		t.Error(err)
+	}
+	if _, err := WindowPNG(pts, "rate_1", 12, 1.5, 400, 300); err != nil {
+		t.Error(err)
+	}
+	bad, _ := sweep.One(s.Method, "final_1", []float64{30, 400}, nil)
+	for _, p := range bad {
+		if p.Valid {
+			t.Errorf("final %v accepted", p.Value)
+		}
+	}
+}
+
+func stripNaN(p []sweep.Point) []sweep.Point {
+	out := append([]sweep.Point(nil), p...)
+	for i := range out {
+		if math.IsNaN(out[i].MinRs) {
+			out[i].MinRs = -1
+		}
+	}
+	return out
+}

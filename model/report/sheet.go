@@ -1,0 +1,130 @@
+package report
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/rampwise/rampwise/model"
+)
+
+// Sheet is the method sheet in Markdown: column, carrier and pressure mode
+// (with the inlet pressure at the start temperature), the heated zones, the
+// oven program, the limits, the expected retention table, the minimum
+// resolution and critical pair, where the retention parameters come from,
+// and the cautions.
+func (s *Sim) Sheet(extraWarnings []string) []byte {
+	m := s.Method
+	r := &s.Result
+	var b strings.Builder
+	title := m.Title
+	if title == "" {
+		title = "GC method"
+	}
+	fmt.Fprintf(&b, "# %s\n\n", title)
+	if m.Notes != "" {
+		fmt.Fprintf(&b, "%s\n\n", strings.TrimSpace(m.Notes))
+	}
+	cond := s.System.Cond
+	t0 := m.ModelProgram().Initial
+	fmt.Fprintf(&b, "## Column and carrier\n\n")
+	fmt.Fprintf(&b, "| | |\n|---|---|\n")
+	phase := m.Column.Phase
+	if phase == "" {
+		phase = "(not named)"
+	}
+	fmt.Fprintf(&b, "| stationary phase | %s |\n", phase)
+	fmt.Fprintf(&b, "| column | %s m × %s mm i.d. × %s µm film, maximum %s °C |\n", num(m.Column.LengthM), num(m.Column.DiameterMM), num(m.Column.FilmUM), num(m.Column.MaxTempC))
+	fmt.Fprintf(&b, "| carrier gas | %s |\n", m.Carrier.Gas)
+	if m.Carrier.Mode == "constant-pressure" {
+		fmt.Fprintf(&b, "| pressure mode | constant pressure, %s kPa (gauge) |\n", num(m.Carrier.InletKPa))
+	} else {
+		fmt.Fprintf(&b, "| pressure mode | constant flow, %s mL/min (at 25 °C, 101.325 kPa) |\n", num(m.Carrier.FlowMLMin))
+	}
+	fmt.Fprintf(&b, "| inlet pressure at the start (%s °C) | %.1f kPa (gauge) |\n", num(m.Oven.InitialC), cond.InletGauge(t0)/1000)
+	fmt.Fprintf(&b, "| holdup time at the start | %.3f min |\n", cond.HoldupTimeAt(t0)/60)
+	fmt.Fprintf(&b, "| outlet | %s |\n\n", m.Carrier.Outlet)
+
+	fmt.Fprintf(&b, "## Heated zones\n\n| zone | temperature |\n|---|---|\n")
+	in := m.Injection
+	zone := func(has bool, v float64) string {
+		if has {
+			return num(v) + " °C"
+		}
+		return "(not set)"
+	}
+	fmt.Fprintf(&b, "| inlet | %s |\n", zone(in.HasInletTemp, in.InletTempC))
+	fmt.Fprintf(&b, "| oven | %s → %s °C (program below) |\n", num(m.Oven.InitialC), num(round(m.ModelProgram().MaxTemp()-model.ZeroCelsius, 2)))
+	fmt.Fprintf(&b, "| detector | %s |\n", zone(in.HasDetector, in.DetectorTempC))
+	if in.Present {
+		split := "splitless"
+		if in.SplitRatio > 0 {
+			split = "split " + num(in.SplitRatio) + ":1"
+		}
+		fmt.Fprintf(&b, "\nInjection: %s µL, %s.\n", num(in.VolumeUL), split)
+	}
+
+	fmt.Fprintf(&b, "\n## Oven program\n\n| step | rate (°C/min) | temperature (°C) | hold (min) |\n|---|---|---|---|\n")
+	fmt.Fprintf(&b, "| initial | | %s | %s |\n", num(round(m.Oven.InitialC, 2)), num(round(m.Oven.InitialHoldMin, 3)))
+	for i, rp := range m.Oven.Ramps {
+		fmt.Fprintf(&b, "| ramp %d | %s | %s | %s |\n", i+1, num(round(rp.RateCMin, 2)), num(round(rp.FinalC, 2)), num(round(rp.HoldMin, 3)))
+	}
+	fmt.Fprintf(&b, "\nRun time %.2f min; oven cycle %.2f min (cool-down %.2f min, equilibration %s min).\n",
+		r.RunTime/60, r.CycleTime/60, r.Cooldown/60, num(m.Limits.EquilibrationMin))
+
+	l := m.Limits
+	fmt.Fprintf(&b, "\n## Limits\n\nLowest start %s °C · fastest ramp %s °C/min · longest hold %s min · highest inlet pressure %s kPa · column maximum %s °C.\n",
+		num(l.OvenMinC), num(l.MaxRateCMin), num(l.MaxHoldMin), num(l.MaxInletKPa), num(m.Column.MaxTempC))
+
+	fmt.Fprintf(&b, "\n## Expected retention (model prediction)\n\n| # | compound | tR (min) | Te (°C) | w½ (s) | Rs to next | target |\n|---|---|---|---|---|---|---|\n")
+	for i, pk := range r.Peaks {
+		c := &s.System.Compounds[pk.Compound]
+		rs := ""
+		if i < len(r.Pairs) {
+			rs = fmt.Sprintf("%.2f", r.Pairs[i].Resolution)
+		}
+		tr := fmt.Sprintf("%.3f", pk.RetentionTime/60)
+		if !pk.Eluted {
+			tr = "after the run"
+		}
+		tgt := ""
+		if c.Target {
+			tgt = "yes"
+		}
+		fmt.Fprintf(&b, "| %d | %s | %s | %.1f | %.2f | %s | %s |\n", i+1, c.Name, tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
+	}
+	if r.Critical >= 0 {
+		cp := r.Pairs[r.Critical]
+		fmt.Fprintf(&b, "\nMinimum resolution %.2f (target %.2f), critical pair %s / %s.\n", r.MinResolution, m.Goal.MinResolution,
+			s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name)
+	}
+
+	fmt.Fprintf(&b, "\n## Where the retention parameters come from\n\n")
+	var idx, entered []string
+	for _, c := range m.Compounds {
+		if c.FromIndex {
+			idx = append(idx, fmt.Sprintf("%s (I = %s)", c.Name, num(c.RetentionIndex)))
+		} else {
+			entered = append(entered, c.Name)
+		}
+	}
+	if len(entered) > 0 {
+		fmt.Fprintf(&b, "- ΔH and ΔS in the method file (entered, or fitted from scouting runs with `rampwise fit`): %s.\n", strings.Join(entered, ", "))
+	}
+	if len(idx) > 0 {
+		fmt.Fprintf(&b, "- From retention indices on this phase, modelled as virtual n-alkanes (an assumption): %s.\n", strings.Join(idx, ", "))
+	}
+	fmt.Fprintf(&b, "- Plate-height factor %s (1 = ideal Golay column).\n", num(m.Column.PlateHeight))
+
+	fmt.Fprintf(&b, "\n## Cautions\n\n")
+	fmt.Fprintf(&b, "- These are model predictions. Verify the program with a standard injection before using it for samples.\n")
+	fmt.Fprintf(&b, "- Never program the oven above the column's maximum temperature (%s °C).\n", num(m.Column.MaxTempC))
+	fmt.Fprintf(&b, "- The oven, inlet and detector are hot; let them cool before touching the column or fittings.\n")
+	if m.Carrier.Gas == "hydrogen" {
+		fmt.Fprintf(&b, "- %s\n", model.HydrogenCaution)
+	}
+	fmt.Fprintf(&b, "- Follow your local codes and the instrument maker's guidance for gases, pressurised cylinders and heated zones.\n")
+	for _, w := range extraWarnings {
+		fmt.Fprintf(&b, "- Warning: %s\n", w)
+	}
+	return []byte(b.String())
+}

@@ -1,0 +1,188 @@
+// Package sweep varies one or two program (or carrier) values of a method
+// and records the minimum resolution, critical pair and run time at each
+// step: a window diagram in the sense of Laub & Purnell (1975).
+package sweep
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// Names lists the values a sweep can vary for a method with n ramps.
+func Names(n int) []string {
+	return append(methodfile.LockNames(n), "flow_ml_min", "inlet_kpa")
+}
+
+// Point is one step of a sweep.
+type Point struct {
+	Value, Value2 float64
+	Valid         bool
+	Reason        string  // why the program is not valid
+	MinRs         float64 // NaN when no pair counts
+	Critical      [2]string
+	RunTime       float64 // min
+	CycleTime     float64 // min
+}
+
+// set returns a copy of m with the named value set to v.
+func set(m *methodfile.Method, name string, v float64) (*methodfile.Method, error) {
+	c := m.Clone()
+	switch name {
+	case "initial_c":
+		c.Oven.InitialC = v
+		return c, nil
+	case "initial_hold_min":
+		c.Oven.InitialHoldMin = v
+		return c, nil
+	case "flow_ml_min":
+		if c.Carrier.Mode != "constant-flow" {
+			return nil, errors.New("flow_ml_min can be swept only in constant-flow mode")
+		}
+		c.Carrier.FlowMLMin = v
+		return c, nil
+	case "inlet_kpa":
+		if c.Carrier.Mode != "constant-pressure" {
+			return nil, errors.New("inlet_kpa can be swept only in constant-pressure mode")
+		}
+		c.Carrier.InletKPa = v
+		return c, nil
+	}
+	kind, num, ok := strings.Cut(name, "_")
+	n, err := strconv.Atoi(num)
+	if !ok || err != nil || n < 1 || n > len(c.Oven.Ramps) {
+		return nil, fmt.Errorf("unknown value %q to vary (use %s)", name, strings.Join(Names(len(m.Oven.Ramps)), ", "))
+	}
+	r := &c.Oven.Ramps[n-1]
+	switch kind {
+	case "rate":
+		r.RateCMin = v
+	case "final":
+		r.FinalC = v
+	case "hold":
+		r.HoldMin = v
+	default:
+		return nil, fmt.Errorf("unknown value %q to vary", name)
+	}
+	return c, nil
+}
+
+// Check reports whether name can be varied in m.
+func Check(m *methodfile.Method, name string) error {
+	_, err := set(m, name, 1)
+	return err
+}
+
+// Steps are n values evenly spaced from a to b (n ≥ 2), the ends exact.
+func Steps(a, b float64, n int) []float64 {
+	if n < 2 {
+		return []float64{a}
+	}
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = a + (b-a)*float64(i)/float64(n-1)
+	}
+	out[n-1] = b
+	return out
+}
+
+type evaluator struct {
+	m      *methodfile.Method
+	sys    *model.System
+	sysKey string
+	res    model.Result
+}
+
+func (e *evaluator) point(c *methodfile.Method) Point {
+	p := Point{MinRs: math.NaN()}
+	data, err := methodfile.Marshal(c)
+	if err == nil {
+		_, err = methodfile.Parse("sweep", data)
+	}
+	if err != nil {
+		var fe *methodfile.Error
+		if errors.As(err, &fe) {
+			p.Reason = fe.Key + ": " + fe.Msg
+		} else {
+			p.Reason = err.Error()
+		}
+		return p
+	}
+	key := fmt.Sprint(c.Carrier, c.Column)
+	if e.sys == nil || key != e.sysKey {
+		sys, err := c.System()
+		if err != nil {
+			p.Reason = err.Error()
+			return p
+		}
+		e.sys, e.sysKey = sys, key
+	}
+	if err := e.sys.Simulate(c.ModelProgram(), &e.res); err != nil {
+		p.Reason = err.Error()
+		return p
+	}
+	p.Valid = true
+	p.RunTime, p.CycleTime = e.res.RunTime/60, e.res.CycleTime/60
+	if e.res.Critical >= 0 {
+		p.MinRs = e.res.MinResolution
+		cp := e.res.Pairs[e.res.Critical]
+		p.Critical = [2]string{e.sys.Compounds[cp.First].Name, e.sys.Compounds[cp.Second].Name}
+	}
+	return p
+}
+
+// One varies name over values; progress (may be nil) is told the steps done.
+func One(m *methodfile.Method, name string, values []float64, progress func(done, total int)) ([]Point, error) {
+	if err := Check(m, name); err != nil {
+		return nil, err
+	}
+	e := &evaluator{m: m}
+	var out []Point
+	for i, v := range values {
+		c, _ := set(m, name, v)
+		p := e.point(c)
+		p.Value = v
+		out = append(out, p)
+		if progress != nil {
+			progress(i+1, len(values))
+		}
+	}
+	return out, nil
+}
+
+// Two varies name over values and name2 over values2: a map of the
+// minimum resolution, row by row of values2.
+func Two(m *methodfile.Method, name string, values []float64, name2 string, values2 []float64, progress func(done, total int)) ([][]Point, error) {
+	if err := Check(m, name); err != nil {
+		return nil, err
+	}
+	if err := Check(m, name2); err != nil {
+		return nil, err
+	}
+	if name == name2 {
+		return nil, errors.New("the two values to vary must differ")
+	}
+	e := &evaluator{m: m}
+	total := len(values) * len(values2)
+	grid := make([][]Point, len(values2))
+	done := 0
+	for j, v2 := range values2 {
+		for _, v := range values {
+			c, _ := set(m, name, v)
+			c, _ = set(c, name2, v2)
+			p := e.point(c)
+			p.Value, p.Value2 = v, v2
+			grid[j] = append(grid[j], p)
+			done++
+			if progress != nil {
+				progress(done, total)
+			}
+		}
+	}
+	return grid, nil
+}
