@@ -115,6 +115,7 @@ type App struct {
 
 	optSettings optimizer.Settings
 	opt         *optRun
+	sweepView   *sweepView
 
 	chart chart
 	view  cachedView
@@ -356,7 +357,11 @@ func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {
 		return nil
 	case key.Matches(msg, a.keys.Cancel):
 		a.full = false
+		a.sweepView = nil
 		a.message = ""
+		return nil
+	case key.Matches(msg, a.keys.Export):
+		a.export()
 		return nil
 	}
 	switch a.focus {
@@ -513,6 +518,8 @@ func (a *App) programKey(msg tea.KeyMsg) {
 		a.addRamp()
 	case key.Matches(msg, k.DelRamp):
 		a.removeRamp()
+	case key.Matches(msg, k.Sweep):
+		a.openSweep(fs[a.progSel])
 	}
 }
 

@@ -252,3 +252,30 @@ func TestRecoveryFile(t *testing.T) {
 		t.Error("recovery file left after restore")
 	}
 }
+
+func TestSweepViewAndExport(t *testing.T) {
+	a, path := newApp(t, 100, 32)
+	press(a, "right", "right", "s")
+	if a.sweepView == nil || a.sweepView.name != "rate_1" {
+		t.Fatalf("no sweep view: %q", a.message)
+	}
+	if s := screen(a); !strings.Contains(s, "window diagram") || !strings.Contains(s, "now 12") {
+		t.Errorf("sweep view not shown:\n%s", s)
+	}
+	found := false
+	for _, p := range a.sweepView.pts {
+		if p.Value == 12 && p.MinRs == a.Result().MinResolution {
+			found = true
+		}
+	}
+	if !found {
+		t.Error("the sweep's point at the current value differs from the simulation")
+	}
+	press(a, "esc", "e")
+	base := strings.TrimSuffix(path, ".toml")
+	for _, f := range []string{base + ".png", base + ".md"} {
+		if _, err := os.Stat(f); err != nil {
+			t.Errorf("export: %v (%s)", err, a.message)
+		}
+	}
+}

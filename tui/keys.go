@@ -4,7 +4,7 @@ import "github.com/charmbracelet/bubbles/key"
 
 // GlobalKeys work in every pane.
 type GlobalKeys struct {
-	Quit, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Help, Cancel key.Binding
+	Quit, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Help, Cancel, Export key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
@@ -20,12 +20,13 @@ func DefaultGlobalKeys() GlobalKeys {
 		FocusBack: key.NewBinding(key.WithKeys("shift+tab"), key.WithHelp("shift+tab", "previous pane")),
 		Help:      key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
 		Cancel:    key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
+		Export:    key.NewBinding(key.WithKeys("e"), key.WithHelp("e", "export figure+sheet")),
 	}
 }
 
 // FieldKeys edit a list of values (the program and the settings).
 type FieldKeys struct {
-	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp key.Binding
+	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp, Sweep key.Binding
 }
 
 // DefaultProgramKeys are the program pane's bindings.
@@ -40,6 +41,7 @@ func DefaultProgramKeys() FieldKeys {
 		Type:    key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "type value")),
 		AddRamp: key.NewBinding(key.WithKeys("a"), key.WithHelp("a", "add ramp")),
 		DelRamp: key.NewBinding(key.WithKeys("x", "delete"), key.WithHelp("x", "remove ramp")),
+		Sweep:   key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "sweep this value")),
 	}
 }
 

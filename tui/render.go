@@ -38,10 +38,10 @@ func (a *App) FullHelp() [][]key.Binding {
 	g := a.keys
 	p, s, c, t := a.pkeys, a.skeys, a.ckeys, a.tkeys
 	return [][]key.Binding{
-		{p.Prev, p.Up, p.BigUp, p.Type, p.AddRamp, p.DelRamp},
+		{p.Prev, p.Up, p.BigUp, p.Type, p.AddRamp, p.DelRamp, p.Sweep},
 		{c.ZoomIn, c.Left, c.Reset, t.Up, t.Toggle, t.Type},
 		{s.Prev, s.Up, s.BigUp, s.Type},
-		{g.Optimize, g.Cancel, g.Save, g.SaveAs, g.Undo, g.Redo},
+		{g.Optimize, g.Cancel, g.Save, g.SaveAs, g.Undo, g.Redo, g.Export},
 		{g.Focus, g.FocusBack, g.Help, g.Quit},
 	}
 }
@@ -79,6 +79,8 @@ func (a *App) refresh() {
 	switch {
 	case a.full:
 		v.lower = a.fullHelpLines(w, lowerH)
+	case a.sweepView != nil:
+		v.lower = a.sweepLines(w, lowerH)
 	case a.opt != nil && a.opt.result != nil:
 		v.lower = a.compareLines(w, lowerH)
 	case a.lower == paneSettings:
