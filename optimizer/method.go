@@ -29,3 +29,18 @@ func FromMethod(m *methodfile.Method, sys *model.System) Problem {
 		Tail:          m.Goal.TailMin * 60,
 	}
 }
+
+// KeypadProgram is the result's program as the oven's keypad takes it
+// (methodfile.KeypadRound) and its simulation; when rounding would lose the
+// target that the exact program meets, the exact program is kept.
+func KeypadProgram(m *methodfile.Method, sys *model.System, r *Result) (methodfile.Oven, model.Result, error) {
+	var res model.Result
+	oven := methodfile.KeypadRound(methodfile.ProgramFromModel(r.Program))
+	err := sys.Simulate(methodfile.ProgramToModel(oven), &res)
+	lost := err == nil && r.Feasible() && res.Critical >= 0 && res.MinResolution < m.Goal.MinResolution
+	if err != nil || lost {
+		oven = methodfile.ProgramFromModel(r.Program)
+		err = sys.Simulate(methodfile.ProgramToModel(oven), &res)
+	}
+	return oven, res, err
+}

@@ -15,6 +15,7 @@ import (
 	"github.com/charmbracelet/lipgloss"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -116,6 +117,7 @@ type App struct {
 	optSettings optimizer.Settings
 	opt         *optRun
 	sweepView   *sweepView
+	newCaution  string
 
 	chart chart
 	view  cachedView
@@ -239,12 +241,16 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 		a.say(msgError, "%s (kept the last valid value)", strings.TrimPrefix(err.Error(), "model: "))
 		return false
 	}
+	a.cautions(prev, prevSys)
 	a.undo = append(a.undo, prev)
 	if len(a.undo) > maxUndo {
 		a.undo = append(a.undo[:0], a.undo[len(a.undo)-maxUndo:]...)
 	}
 	a.redo = nil
 	a.say(msgInfo, "%s", what)
+	if c := a.newCaution; c != "" {
+		a.say(msgWarn, "%s · %s", what, c)
+	}
 	if m.Carrier.Gas == "hydrogen" && prev.Carrier.Gas != "hydrogen" {
 		a.say(msgWarn, "%s", model.HydrogenCaution)
 	}
@@ -261,6 +267,35 @@ func (a *App) restore(m *methodfile.Method) {
 		a.progSel = n - 1
 	}
 	a.guard.update(a.path, a.method, a.Dirty())
+}
+
+// cautions notes the first caution (overload, detector zone, inlet
+// pressure, late peak) that the change from prev brought in.
+func (a *App) cautions(prev *methodfile.Method, prevSys *model.System) {
+	a.newCaution = ""
+	now := checks.Warnings(a.method, a.sys, &a.res)
+	if len(now) == 0 {
+		return
+	}
+	var before []string
+	if prevSys != nil {
+		var r model.Result
+		if prevSys.Simulate(prev.ModelProgram(), &r) == nil {
+			before = checks.Warnings(prev, prevSys, &r)
+		}
+	}
+	for _, w := range now {
+		seen := false
+		for _, b := range before {
+			if b == w {
+				seen = true
+			}
+		}
+		if !seen {
+			a.newCaution = w
+			return
+		}
+	}
 }
 
 // Update implements tea.Model: global keys first, then the resize fan-out,
@@ -779,11 +814,13 @@ func (a *App) onDone(msg optDoneMsg) {
 	}
 	o.result = msg.res
 	after := a.method.Clone()
-	after.Oven = methodfile.KeypadRound(methodfile.ProgramFromModel(msg.res.Program))
-	if a.sys.Simulate(after.ModelProgram(), &o.afterR) != nil || (msg.res.Feasible() && o.afterR.MinResolution < a.method.Goal.MinResolution) {
-		after.Oven = methodfile.ProgramFromModel(msg.res.Program)
-		a.sys.Simulate(after.ModelProgram(), &o.afterR)
+	oven, sim, err := optimizer.KeypadProgram(a.method, a.sys, msg.res)
+	if err != nil {
+		a.say(msgError, "optimizer: %v", err)
+		a.opt = nil
+		return
 	}
+	after.Oven, o.afterR = oven, sim
 	o.after = after
 	if msg.res.Feasible() {
 		a.say(msgGood, "target met: enter or y takes the new program, n or esc keeps the old one")

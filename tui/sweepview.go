@@ -165,7 +165,7 @@ func (a *App) export() {
 		a.say(msgError, "export: %v", err)
 		return
 	}
-	if err := methodfile.WriteAtomic(base+".md", s.Sheet(nil)); err != nil {
+	if err := methodfile.WriteAtomic(base+".md", s.Sheet()); err != nil {
 		a.say(msgError, "export: %v", err)
 		return
 	}

@@ -53,8 +53,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	sim, err := simulateMethod(m, name)
-	if err != nil {
+	if _, err := simulateMethod(m, name); err != nil {
 		return err
 	}
 	rs, err := report.Simulate(m)
@@ -90,7 +89,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	if *sheetF != "" {
-		if err := write(*sheetF, rs.Sheet(sim.warnings(m.ModelProgram()))); err != nil {
+		if err := write(*sheetF, rs.Sheet()); err != nil {
 			return err
 		}
 	}

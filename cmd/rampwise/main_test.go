@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -275,5 +276,37 @@ func TestExportCSVEqualsSimulateJSON(t *testing.T) {
 	}
 	if code, _, _ := runCmd(t, "sweep", "-", "--vary", "rate_7", "--from", "1", "--to", "2"); code != 2 {
 		t.Error("sweep of a missing ramp should be bad input")
+	}
+}
+
+// compare's rows equal optimize run on each candidate alone.
+func TestCompareRowsEqualOptimize(t *testing.T) {
+	code, out, errs := runCmd(t, "compare", "--json", "--length", "20,40", "-")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var j struct {
+		Candidates []candidateJSON `json:"candidates"`
+	}
+	if err := json.Unmarshal([]byte(out), &j); err != nil {
+		t.Fatal(err)
+	}
+	if len(j.Candidates) != 2 {
+		t.Fatalf("%d candidates", len(j.Candidates))
+	}
+	for _, c := range j.Candidates {
+		demo, _ := os.ReadFile("../../testdata/demo.toml")
+		text := strings.Replace(string(demo), "length_m = 30.0", "length_m = "+strconv.FormatFloat(c.Length, 'f', 1, 64), 1)
+		path := filepath.Join(t.TempDir(), "c.toml")
+		os.WriteFile(path, []byte(text), 0o644)
+		code, out, _ := runCmd(t, "optimize", "--json", path)
+		var oj optimizeJSON
+		json.Unmarshal([]byte(out), &oj)
+		if code != 0 || math.Abs(oj.RunTime-c.RunTime) > 1e-6 {
+			t.Errorf("%g m: compare %.4f min, optimize alone %.4f (exit %d)", c.Length, c.RunTime, oj.RunTime, code)
+		}
+	}
+	if j.Candidates[0].Time > j.Candidates[1].Time {
+		t.Error("not ranked fastest first")
 	}
 }

@@ -126,20 +126,17 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	}
 
 	after := m.Clone()
-	after.Oven = methodfile.KeypadRound(methodfile.ProgramFromModel(res.Program))
+	oven, _, err := optimizer.KeypadProgram(m, before.sys, res)
+	if err != nil {
+		return fmt.Errorf("optimized program does not simulate: %v", err)
+	}
+	after.Oven = oven
 	afterSim, err := simulateMethod(after, name)
 	if err != nil {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
 	}
 	meets := func(s *simulation) bool {
 		return s.res.Critical < 0 || s.res.MinResolution >= m.Goal.MinResolution
-	}
-	if res.Feasible() && !meets(afterSim) {
-		// keep full precision rather than lose the target to rounding
-		after.Oven = methodfile.ProgramFromModel(res.Program)
-		if afterSim, err = simulateMethod(after, name); err != nil {
-			return fmt.Errorf("optimized program does not simulate: %v", err)
-		}
 	}
 	met := res.Feasible() && meets(afterSim)
 

@@ -11,6 +11,7 @@ import (
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -83,35 +84,11 @@ func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 
 // warnings are the cautions a chromatographer needs with this result.
 func (s *simulation) warnings(prog model.Program) []string {
-	var w []string
-	for _, pk := range s.res.Peaks {
-		if !pk.Eluted {
-			w = append(w, fmt.Sprintf("%s does not elute before the program ends (predicted at %s min): extend the final hold or raise the final temperature, or it carries over into the next run",
-				s.sys.Compounds[pk.Compound].Name, fmtMin(pk.RetentionTime)))
-		}
-	}
-	w = append(w, pressureWarnings(s.method, s.sys, prog)...)
+	w := checks.Warnings(s.method, s.sys, &s.res)
 	if s.sys.Cond.Carrier.Gas.Flammable() {
 		w = append(w, model.HydrogenCaution)
 	}
 	return w
-}
-
-// pressureWarnings flags an inlet pressure above the instrument's limit; in
-// constant-flow mode it rises with temperature, so the first temperature
-// where it is exceeded is named.
-func pressureWarnings(m *methodfile.Method, sys *model.System, prog model.Program) []string {
-	limit := m.Limits.MaxInletKPa * 1000
-	cond := sys.Cond
-	at, over := cond.OverPressure(limit, prog.Initial, prog.MaxTemp())
-	if !over {
-		return nil
-	}
-	if cond.Carrier.Mode == model.ConstantPressure {
-		return []string{fmt.Sprintf("inlet pressure %.0f kPa is above the instrument limit %.0f kPa (limits.max_inlet_kpa)", cond.Carrier.InletGauge/1000, limit/1000)}
-	}
-	return []string{fmt.Sprintf("constant flow needs more inlet pressure than the instrument limit %.0f kPa from %.1f °C on (%.0f kPa at %.0f °C; limits.max_inlet_kpa)",
-		limit/1000, at-model.ZeroCelsius, cond.InletGauge(prog.MaxTemp())/1000, prog.MaxTemp()-model.ZeroCelsius)}
 }
 
 func fmtMin(s float64) string {

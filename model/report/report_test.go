@@ -92,7 +92,7 @@ func TestCSVMatchesResult(t *testing.T) {
 
 func TestSheetHasStepsAndCautions(t *testing.T) {
 	s := demoSim(t)
-	sheet := string(s.Sheet(nil))
+	sheet := string(s.Sheet())
 	for _, want := range []string{"| initial |", "| ramp 1 |", "standard injection", "maximum temperature", "instrument maker"} {
 		if !strings.Contains(sheet, want) {
 			t.Errorf("sheet lacks %q", want)
@@ -107,7 +107,7 @@ func TestSheetHasStepsAndCautions(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(string(h.Sheet(nil)), "flammable") {
+	if !strings.Contains(string(h.Sheet()), "flammable") {
 		t.Error("no hydrogen caution with hydrogen")
 	}
 }

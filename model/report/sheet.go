@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 )
 
 // Sheet is the method sheet in Markdown: column, carrier and pressure mode
@@ -12,7 +13,7 @@ import (
 // oven program, the limits, the expected retention table, the minimum
 // resolution and critical pair, where the retention parameters come from,
 // and the cautions.
-func (s *Sim) Sheet(extraWarnings []string) []byte {
+func (s *Sim) Sheet() []byte {
 	m := s.Method
 	r := &s.Result
 	var b strings.Builder
@@ -123,7 +124,7 @@ func (s *Sim) Sheet(extraWarnings []string) []byte {
 		fmt.Fprintf(&b, "- %s\n", model.HydrogenCaution)
 	}
 	fmt.Fprintf(&b, "- Follow your local codes and the instrument maker's guidance for gases, pressurised cylinders and heated zones.\n")
-	for _, w := range extraWarnings {
+	for _, w := range checks.Warnings(m, s.System, &s.Result) {
 		fmt.Fprintf(&b, "- Warning: %s\n", w)
 	}
 	return []byte(b.String())

@@ -1,0 +1,230 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"strconv"
+	"strings"
+	"syscall"
+	"text/tabwriter"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
+)
+
+const compareHelp = `Usage: rampwise compare METHOD... [--length L,...] [--diameter D,...] [--film F,...]
+                        [--json] [--csv F] [--seed N]
+
+Each METHOD is the same compounds on one candidate stationary phase (their
+parameters measured or fitted on that phase). Because distribution constants
+do not depend on the column's dimensions, each can also be tried at other
+lengths (m), internal diameters (mm) and film thicknesses (µm). Every
+candidate is optimized with its own goal and limits, and the table ranks them:
+those that reach the target first, fastest first, with the inlet pressure the
+program needs at its start and end and the highest oven temperature it uses;
+then those that cannot reach it, with their limiting pair. "-" is the demo.
+
+Flags:
+`
+
+type candidateJSON struct {
+	Method        string      `json:"method"`
+	Phase         string      `json:"phase"`
+	Length        float64     `json:"length_m"`
+	Diameter      float64     `json:"diameter_mm"`
+	Film          float64     `json:"film_um"`
+	Feasible      bool        `json:"feasible"`
+	Objective     string      `json:"objective"`
+	Time          float64     `json:"time_min"`
+	RunTime       float64     `json:"run_time_min"`
+	CycleTime     float64     `json:"cycle_time_min"`
+	MinResolution *float64    `json:"min_resolution"`
+	CriticalPair  []string    `json:"critical_pair"`
+	InletStart    float64     `json:"inlet_kpa_start"`
+	InletEnd      float64     `json:"inlet_kpa_end"`
+	MaxTemp       float64     `json:"max_temp_c"`
+	Program       programJSON `json:"program"`
+	Explanation   string      `json:"explanation,omitempty"`
+	Error         string      `json:"error,omitempty"`
+}
+
+func parseList(name, s string) ([]float64, error) {
+	if s == "" {
+		return nil, nil
+	}
+	var out []float64
+	for _, f := range strings.Split(s, ",") {
+		v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+		if err != nil || !(v > 0) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("--%s: %q is not a positive number", name, f)
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+func runCompare(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("compare", compareHelp, stderr)
+	lengths := fs.String("length", "", "comma-separated column lengths to try (m)")
+	diams := fs.String("diameter", "", "comma-separated internal diameters to try (mm)")
+	films := fs.String("film", "", "comma-separated film thicknesses to try (µm)")
+	asJSON := fs.Bool("json", false, "print the ranking as JSON")
+	csvF := fs.String("csv", "", "write the ranking as CSV to this `file`")
+	seed := fs.Uint64("seed", 1, "seed of the optimizer's starting points")
+	files, err := parseArgsN(fs, args, 1, 50, "METHOD...")
+	if err != nil {
+		return err
+	}
+	ls, err := parseList("length", *lengths)
+	if err != nil {
+		return bad(err)
+	}
+	ds, err := parseList("diameter", *diams)
+	if err != nil {
+		return bad(err)
+	}
+	fl, err := parseList("film", *films)
+	if err != nil {
+		return bad(err)
+	}
+	var cands []optimizer.Candidate
+	for _, f := range files {
+		file := f
+		if f == "-" {
+			file = ""
+		}
+		m, name, err := loadMethod(file)
+		if err != nil {
+			return err
+		}
+		lv, dv, fv := ls, ds, fl
+		if lv == nil {
+			lv = []float64{m.Column.LengthM}
+		}
+		if dv == nil {
+			dv = []float64{m.Column.DiameterMM}
+		}
+		if fv == nil {
+			fv = []float64{m.Column.FilmUM}
+		}
+		for _, l := range lv {
+			for _, d := range dv {
+				for _, df := range fv {
+					c := m.Clone()
+					c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
+					data, _ := methodfile.Marshal(c)
+					if _, err := methodfile.Parse(name, data); err != nil {
+						return badf("%s at %g m × %g mm × %g µm: %v", name, l, d, df, err)
+					}
+					cands = append(cands, optimizer.Candidate{Source: name, Method: c})
+				}
+			}
+		}
+	}
+	if len(cands) > 200 {
+		return badf("compare: %d candidates; 200 at most", len(cands))
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	out := optimizer.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
+		fmt.Fprintf(stderr, "compare: %d of %d candidates optimized\n", done, total)
+	})
+	var rows []candidateJSON
+	for _, o := range out {
+		m := o.Method
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective}
+		if o.Err != nil {
+			j.Error = o.Err.Error()
+			rows = append(rows, j)
+			continue
+		}
+		r := o.Result
+		sys, err := m.System()
+		if err != nil {
+			return err
+		}
+		// report what optimize reports: the keypad-rounded program
+		oven, sim, err := optimizer.KeypadProgram(m, sys, r)
+		if err != nil {
+			return err
+		}
+		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
+		j.RunTime, j.CycleTime = sim.RunTime/60, sim.CycleTime/60
+		j.Time = j.RunTime
+		if m.Goal.Objective == "cycle-time" {
+			j.Time = j.CycleTime
+		}
+		if sim.Critical >= 0 {
+			v := sim.MinResolution
+			j.MinResolution = &v
+			cp := sim.Pairs[sim.Critical]
+			j.CriticalPair = []string{sys.Compounds[cp.First].Name, sys.Compounds[cp.Second].Name}
+		}
+		prog := methodfile.ProgramToModel(oven)
+		j.InletStart, j.InletEnd = sys.Cond.InletGauge(prog.Initial)/1000, sys.Cond.InletGauge(prog.MaxTemp())/1000
+		j.MaxTemp = prog.MaxTemp() - model.ZeroCelsius
+		j.Program = programToJSON(oven)
+		j.Explanation = r.Explanation
+		rows = append(rows, j)
+	}
+	if *csvF != "" {
+		recs := [][]string{{"rank", "method", "phase", "length_m", "diameter_mm", "film_um", "feasible", "objective", "time_min", "min_resolution", "critical_first", "critical_second", "inlet_kpa_start", "inlet_kpa_end", "max_temp_c", "explanation"}}
+		for i, j := range rows {
+			rs, c1, c2 := "", "", ""
+			if j.MinResolution != nil {
+				rs = fmtNum(*j.MinResolution)
+			}
+			if len(j.CriticalPair) == 2 {
+				c1, c2 = j.CriticalPair[0], j.CriticalPair[1]
+			}
+			recs = append(recs, []string{strconv.Itoa(i + 1), j.Method, j.Phase, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), fmt.Sprint(j.Feasible), j.Objective,
+				fmtNum(j.Time), rs, c1, c2, fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), j.Explanation + j.Error})
+		}
+		if err := writeCSVFile(*csvF, recs, stderr); err != nil {
+			return err
+		}
+	}
+	if *asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		return enc.Encode(map[string]any{"candidates": rows})
+	}
+	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "#\tphase\tcolumn\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
+	for i, j := range rows {
+		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
+		phase := j.Phase
+		if phase == "" {
+			phase = j.Method
+		}
+		if j.Error != "" {
+			fmt.Fprintf(tw, "%d\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, j.Error)
+			continue
+		}
+		rs, cp := "-", "-"
+		if j.MinResolution != nil {
+			rs = fmt.Sprintf("%.2f", *j.MinResolution)
+		}
+		if len(j.CriticalPair) == 2 {
+			cp = j.CriticalPair[0] + " / " + j.CriticalPair[1]
+		}
+		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
+		if !j.Feasible {
+			t = "not reached"
+		}
+		fmt.Fprintf(tw, "%d\t%s\t%s\t%s\t%s\t%s\t%.0f → %.0f\t%.0f\t\n", i+1, phase, col, t, rs, cp, j.InletStart, j.InletEnd, j.MaxTemp)
+	}
+	tw.Flush()
+	for i, j := range rows {
+		if !j.Feasible && j.Explanation != "" {
+			fmt.Fprintf(stdout, "%d: %s\n", i+1, j.Explanation)
+		}
+	}
+	return nil
+}

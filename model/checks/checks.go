@@ -1,0 +1,107 @@
+// Package checks holds the cautions a simulated method raises beyond its
+// resolution: peaks after the run, an inlet pressure above the instrument's
+// limit, sample overload of the column, and a detector too cool for the
+// oven. simulate, the UI and the method sheet all use these, so they say
+// the same thing.
+package checks
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// ReferenceCapacity is the sample capacity assumed per compound for a
+// 0.25 mm × 0.25 µm column, in ng (common practice, from memory; the user
+// overrides it with capacity_ng in [column]).
+const ReferenceCapacity = 100.0
+
+// DetectorMargin is how far (°C) the detector should be above the highest
+// oven temperature so that the effluent does not condense (common practice).
+const DetectorMargin = 20.0
+
+// MassOnColumn is the mass of a compound reaching the column in ng: volume
+// (µL) × concentration (mg/mL, i.e. µg/µL) / (split ratio + 1); a split
+// ratio of 0 is splitless (everything reaches the column).
+func MassOnColumn(volumeUL, concMgML, split float64) float64 {
+	return volumeUL * concMgML * 1000 / (split + 1)
+}
+
+// Capacity is the column's estimated sample capacity per compound in ng:
+// proportional to the film volume per length (∝ diameter × film thickness),
+// anchored at ReferenceCapacity for 0.25 mm × 0.25 µm; override > 0 wins.
+func Capacity(diameterMM, filmUM, override float64) float64 {
+	if override > 0 {
+		return override
+	}
+	return ReferenceCapacity * (diameterMM / 0.25) * (filmUM / 0.25)
+}
+
+// Overload is one compound over the column's capacity.
+type Overload struct {
+	Name     string
+	MassNG   float64
+	Capacity float64
+}
+
+// Factor is how many times the capacity the mass is.
+func (o Overload) Factor() float64 { return o.MassNG / o.Capacity }
+
+// Overloads lists the compounds whose mass on column exceeds the capacity.
+// Without an [injection] table or a concentration nothing is known.
+func Overloads(m *methodfile.Method) []Overload {
+	if !m.Injection.Present {
+		return nil
+	}
+	capNG := Capacity(m.Column.DiameterMM, m.Column.FilmUM, m.Column.CapacityNG)
+	var out []Overload
+	for _, c := range m.Compounds {
+		if !c.HasConc {
+			continue
+		}
+		mass := MassOnColumn(m.Injection.VolumeUL, c.Concentration, m.Injection.SplitRatio)
+		if mass > capNG {
+			out = append(out, Overload{Name: c.Name, MassNG: mass, Capacity: capNG})
+		}
+	}
+	return out
+}
+
+// Warnings are the cautions for method m whose program simulated to res.
+func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []string {
+	var w []string
+	prog := m.ModelProgram()
+	for _, pk := range res.Peaks {
+		if !pk.Eluted {
+			at := "never at this final temperature"
+			if !math.IsInf(pk.RetentionTime, 0) && pk.RetentionTime < 1e12 {
+				at = fmt.Sprintf("predicted at %.2f min", pk.RetentionTime/60)
+			}
+			w = append(w, fmt.Sprintf("%s does not elute before the program ends (%s): extend the final hold or raise the final temperature, or it carries over into the next run",
+				sys.Compounds[pk.Compound].Name, at))
+		}
+	}
+	limit := m.Limits.MaxInletKPa * 1000
+	if at, over := sys.Cond.OverPressure(limit, prog.Initial, prog.MaxTemp()); over {
+		if sys.Cond.Carrier.Mode == model.ConstantPressure {
+			w = append(w, fmt.Sprintf("inlet pressure %.0f kPa is above the instrument limit %.0f kPa (limits.max_inlet_kpa)", sys.Cond.Carrier.InletGauge/1000, limit/1000))
+		} else {
+			w = append(w, fmt.Sprintf("constant flow needs more inlet pressure than the instrument limit %.0f kPa from %.1f °C on (%.0f kPa at %.0f °C; limits.max_inlet_kpa)",
+				limit/1000, at-model.ZeroCelsius, sys.Cond.InletGauge(prog.MaxTemp())/1000, prog.MaxTemp()-model.ZeroCelsius))
+		}
+	}
+	for _, o := range Overloads(m) {
+		w = append(w, fmt.Sprintf("%s: about %.0f ng on the column, %.1f× its estimated capacity of %.0f ng per compound: an overloaded peak fronts or tails and its retention shifts, so the predicted resolution is optimistic (raise the split ratio, dilute, or use a thicker film)",
+			o.Name, o.MassNG, o.Factor(), o.Capacity))
+	}
+	if m.Injection.HasDetector {
+		top := prog.MaxTemp() - model.ZeroCelsius
+		if m.Injection.DetectorTempC < top+DetectorMargin {
+			w = append(w, fmt.Sprintf("the detector at %g °C is not at least %g °C above the highest oven temperature %.1f °C: the effluent may condense in it",
+				m.Injection.DetectorTempC, DetectorMargin, top))
+		}
+	}
+	return w
+}
