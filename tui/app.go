@@ -537,15 +537,8 @@ func (a *App) programKey(msg tea.KeyMsg) {
 		a.progSel = (a.progSel + len(fs) - 1) % len(fs)
 	case key.Matches(msg, k.Next):
 		a.progSel = (a.progSel + 1) % len(fs)
-	case key.Matches(msg, k.Up), key.Matches(msg, k.Down), key.Matches(msg, k.BigUp), key.Matches(msg, k.BigDown):
-		f := fs[a.progSel]
-		n := 1.0
-		if key.Matches(msg, k.Down) || key.Matches(msg, k.BigDown) {
-			n = -1
-		}
-		big := key.Matches(msg, k.BigUp) || key.Matches(msg, k.BigDown)
-		m := f.stepped(a.method, n, big)
-		a.apply(m, fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
+	case isStep(msg, k):
+		a.step(fs[a.progSel], msg, k)
 	case key.Matches(msg, k.Type):
 		f := fs[a.progSel]
 		a.startInput(inputValue, fmt.Sprintf("%s (%s): ", f.key, f.unit), f.text(a.method))
@@ -556,6 +549,24 @@ func (a *App) programKey(msg tea.KeyMsg) {
 	case key.Matches(msg, k.Sweep):
 		a.openSweep(fs[a.progSel])
 	}
+}
+
+func isStep(msg tea.KeyMsg, k FieldKeys) bool {
+	return key.Matches(msg, k.Up) || key.Matches(msg, k.Down) || key.Matches(msg, k.BigUp) || key.Matches(msg, k.BigDown)
+}
+
+// step moves field f by one step (or a big one), down for the Down keys.
+func (a *App) step(f field, msg tea.KeyMsg, k FieldKeys) {
+	n := 1.0
+	if key.Matches(msg, k.Down) || key.Matches(msg, k.BigDown) {
+		n = -1
+	}
+	big := key.Matches(msg, k.BigUp) || key.Matches(msg, k.BigDown)
+	m := f.stepped(a.method, n, big)
+	if f.key == "carrier.mode" {
+		fillPressureOrFlow(m, a.sys)
+	}
+	a.apply(m, fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
 }
 
 func (a *App) addRamp() {
@@ -725,18 +736,8 @@ func (a *App) settingsKey(msg tea.KeyMsg) {
 		a.setSel = (a.setSel + len(fs) - 1) % len(fs)
 	case key.Matches(msg, k.Next):
 		a.setSel = (a.setSel + 1) % len(fs)
-	case key.Matches(msg, k.Up), key.Matches(msg, k.Down), key.Matches(msg, k.BigUp), key.Matches(msg, k.BigDown):
-		f := fs[a.setSel]
-		n := 1.0
-		if key.Matches(msg, k.Down) || key.Matches(msg, k.BigDown) {
-			n = -1
-		}
-		big := key.Matches(msg, k.BigUp) || key.Matches(msg, k.BigDown)
-		m := f.stepped(a.method, n, big)
-		if f.key == "carrier.mode" {
-			fillPressureOrFlow(m, a.sys)
-		}
-		a.apply(m, fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
+	case isStep(msg, k):
+		a.step(fs[a.setSel], msg, k)
 	case key.Matches(msg, k.Type):
 		f := fs[a.setSel]
 		a.startInput(inputValue, fmt.Sprintf("%s %s: ", f.key, f.unit), f.text(a.method))

@@ -3,7 +3,6 @@ package tui
 import (
 	"fmt"
 	"math"
-	"strconv"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -11,6 +10,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/report"
 )
 
 // ShortHelp is the focused pane's key help line.
@@ -375,14 +375,7 @@ func (a *App) settingsLines(w, h int) []string {
 	return lines
 }
 
-func describeOven(o methodfile.Oven) string {
-	var b strings.Builder
-	fmt.Fprintf(&b, "%s °C (%s min)", strconv.FormatFloat(o.InitialC, 'f', -1, 64), strconv.FormatFloat(round(o.InitialHoldMin, 3), 'f', -1, 64))
-	for _, r := range o.Ramps {
-		fmt.Fprintf(&b, " → %s °C/min → %s °C (%s min)", trimNum(round(r.RateCMin, 2)), trimNum(round(r.FinalC, 2)), trimNum(round(r.HoldMin, 3)))
-	}
-	return b.String()
-}
+func describeOven(o methodfile.Oven) string { return report.Program(o) }
 
 func (a *App) rsText(r *model.Result) string {
 	if r.Critical < 0 {

@@ -94,11 +94,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		return bad(err)
 	}
 	var cands []optimizer.Candidate
-	for _, f := range files {
-		file := f
-		if f == "-" {
-			file = ""
-		}
+	for _, file := range files {
 		m, name, err := loadMethod(file)
 		if err != nil {
 			return err

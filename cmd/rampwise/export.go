@@ -45,11 +45,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	if *width < 200 || *width > 10000 || *height < 150 || *height > 10000 {
 		return badf("export: --width must be 200..10000 and --height 150..10000")
 	}
-	file := files[0]
-	if file == "-" {
-		file = ""
-	}
-	m, name, err := loadMethod(file)
+	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
@@ -132,11 +128,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	if *steps < 2 || *steps > 2000 {
 		return badf("sweep: --steps must be 2..2000")
 	}
-	file := files[0]
-	if file == "-" {
-		file = ""
-	}
-	m, name, err := loadMethod(file)
+	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}

@@ -203,9 +203,9 @@ func newFlags(name, help string, stderr io.Writer) *flag.FlagSet {
 	return fs
 }
 
-// loadMethod reads FILE, or the built-in demo when file is empty.
+// loadMethod reads FILE, or the built-in demo when file is empty or "-".
 func loadMethod(file string) (*methodfile.Method, string, error) {
-	if file == "" {
+	if file == "" || file == "-" {
 		m, err := methodfile.Parse(DemoName, demoMethod)
 		return m, DemoName, err
 	}

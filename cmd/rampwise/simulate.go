@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -13,6 +12,7 @@ import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/report"
 )
 
 const simulateHelp = `Usage: rampwise simulate [FILE] [--json | --csv]
@@ -217,14 +217,7 @@ func describeColumn(m *methodfile.Method) string {
 		fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM), phase, fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
 }
 
-func describeProgram(o methodfile.Oven) string {
-	var b strings.Builder
-	fmt.Fprintf(&b, "%s °C (%s min)", fmtNum(round(o.InitialC, 2)), fmtNum(round(o.InitialHoldMin, 3)))
-	for _, r := range o.Ramps {
-		fmt.Fprintf(&b, " → %s °C/min → %s °C (%s min)", fmtNum(round(r.RateCMin, 2)), fmtNum(round(r.FinalC, 2)), fmtNum(round(r.HoldMin, 3)))
-	}
-	return b.String()
-}
+func describeProgram(o methodfile.Oven) string { return report.Program(o) }
 
 func round(x float64, digits int) float64 {
 	p := math.Pow(10, float64(digits))
@@ -234,22 +227,13 @@ func round(x float64, digits int) float64 {
 func fmtNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 
 func (s *simulation) writeCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"name", "retention_time_min", "elution_temp_c", "sigma_min", "half_height_width_min", "retention_factor_at_elution", "resolution_to_next", "target", "eluted"})
-	rs := resolutionAfter(&s.res)
-	for i, pk := range s.res.Peaks {
-		c := &s.sys.Compounds[pk.Compound]
-		rsText := ""
-		if !math.IsNaN(rs[i]) {
-			rsText = strconv.FormatFloat(rs[i], 'g', 10, 64)
-		}
-		cw.Write([]string{c.Name, strconv.FormatFloat(pk.RetentionTime/60, 'g', 10, 64),
-			strconv.FormatFloat(pk.ElutionTemp-model.ZeroCelsius, 'g', 10, 64),
-			strconv.FormatFloat(pk.Sigma/60, 'g', 10, 64), strconv.FormatFloat(pk.HalfWidth()/60, 'g', 10, 64),
-			strconv.FormatFloat(pk.RetentionFactor, 'g', 10, 64), rsText, strconv.FormatBool(c.Target), strconv.FormatBool(pk.Eluted)})
+	rs := report.Sim{Method: s.method, System: s.sys, Result: s.res}
+	data, err := rs.CSV()
+	if err != nil {
+		return err
 	}
-	cw.Flush()
-	return cw.Error()
+	_, err = w.Write(data)
+	return err
 }
 
 func runSimulate(args []string, stdout, stderr io.Writer) error {

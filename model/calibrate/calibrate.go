@@ -285,7 +285,8 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 	lambda := 1e-3
 	J := mat.NewDense(n, p, nil)
 	var jtj mat.Dense
-	for iter := 0; iter < 200; iter++ {
+	// jacobian fills J by forward differences at th (residuals r) and JᵀJ.
+	jacobian := func(J *mat.Dense, jtj *mat.Dense) {
 		for j := 0; j < p; j++ {
 			tp := append([]float64(nil), th...)
 			tp[free[j]] += steps[j]
@@ -295,6 +296,9 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 			}
 		}
 		jtj.Mul(J.T(), J)
+	}
+	for iter := 0; iter < 200; iter++ {
+		jacobian(J, &jtj)
 		g := mat.NewVecDense(n, append([]float64(nil), r...))
 		var jtr mat.VecDense
 		jtr.MulVec(J.T(), g)
@@ -338,15 +342,7 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 		}
 	}
 	// Jacobian at the solution for errors and conditioning
-	for j := 0; j < p; j++ {
-		tp := append([]float64(nil), th...)
-		tp[free[j]] += steps[j]
-		residuals(st, obs, base, tp, rt)
-		for i := 0; i < n; i++ {
-			J.Set(i, j, (rt[i]-r[i])/steps[j])
-		}
-	}
-	jtj.Mul(J.T(), J)
+	jacobian(J, &jtj)
 	res := fitResult{resid: append([]float64(nil), r...)}
 	res.DHkJ, res.DS = th[0]/1000, th[1]
 	if withDCp {
