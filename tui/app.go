@@ -15,6 +15,7 @@ import (
 	"github.com/charmbracelet/lipgloss"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
@@ -47,6 +48,8 @@ const (
 	inputValue
 	inputSaveAs
 	inputCompound
+	inputRuns
+	inputCompare
 )
 
 type confirmMode int
@@ -118,6 +121,8 @@ type App struct {
 	opt         *optRun
 	sweepView   *sweepView
 	newCaution  string
+	fit         *calibrate.Report
+	cmp         *compareRun
 
 	chart chart
 	view  cachedView
@@ -310,6 +315,12 @@ func (a *App) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		cmd = a.onProgress(msg)
 	case optDoneMsg:
 		a.onDone(msg)
+	case compareDoneMsg:
+		if a.cmp != nil {
+			a.cmp.running = false
+			a.cmp.out = msg.out
+			a.say(msgGood, "ranked %d columns: enter switches the method to the chosen one", len(msg.out))
+		}
 	case tea.KeyMsg:
 		cmd = a.onKey(msg)
 	}
@@ -343,6 +354,14 @@ func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {
 	}
 	if a.opt != nil && a.opt.result != nil {
 		return a.onCompare(msg)
+	}
+	if a.fit != nil {
+		a.onFitDecision(msg)
+		return nil
+	}
+	if a.cmp != nil {
+		a.onCompareRankKey(msg)
+		return nil
 	}
 	switch {
 	case key.Matches(msg, a.keys.Quit):
@@ -398,6 +417,12 @@ func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {
 	case key.Matches(msg, a.keys.Export):
 		a.export()
 		return nil
+	case key.Matches(msg, a.keys.Fit):
+		a.startInput(inputRuns, "scouting runs file: ", "")
+		return nil
+	case key.Matches(msg, a.keys.Compare):
+		a.startInput(inputCompare, "columns to compare (lengths m, diameters mm, films µm): ", fmt.Sprintf("%g,%g", a.method.Column.LengthM/2, a.method.Column.LengthM))
+		return nil
 	}
 	switch a.focus {
 	case paneProgram:
@@ -444,6 +469,10 @@ func (a *App) onInput(msg tea.KeyMsg) tea.Cmd {
 			a.typeValue(text)
 		case inputCompound:
 			a.typeCompound(text)
+		case inputRuns:
+			a.runFit(strings.TrimSpace(text))
+		case inputCompare:
+			return a.startCompare(text)
 		case inputSaveAs:
 			if strings.TrimSpace(text) == "" {
 				a.say(msgError, "no file name given; not saved")

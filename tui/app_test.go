@@ -279,3 +279,47 @@ func TestSweepViewAndExport(t *testing.T) {
 		}
 	}
 }
+
+func TestFitFromRunsFile(t *testing.T) {
+	a, _ := newApp(t, 100, 32)
+	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	press(a, "F")
+	press(a, runs, "enter")
+	if a.fit == nil {
+		t.Fatalf("no fit: %s", a.message)
+	}
+	if s := screen(a); !strings.Contains(s, "calibration") || !strings.Contains(s, "myrcene") {
+		t.Errorf("fit panel not shown:\n%s", s)
+	}
+	press(a, "y")
+	if a.fit != nil || !strings.Contains(a.message, "fitted") {
+		t.Errorf("not taken: %s", a.message)
+	}
+	press(a, "F", "/nonexistent/runs.toml", "enter")
+	if !strings.Contains(a.message, "/nonexistent/runs.toml") {
+		t.Errorf("bad runs file message: %s", a.message)
+	}
+}
+
+func TestCompareColumnsView(t *testing.T) {
+	a, _ := newApp(t, 100, 32)
+	a.optSettings.Starts = 4
+	press(a, "C")
+	a.input.SetValue("20,30")
+	_, cmd := a.Update(tea.KeyMsg{Type: tea.KeyEnter})
+	if cmd == nil || a.cmp == nil {
+		t.Fatalf("compare not started: %s", a.message)
+	}
+	a.Update(cmd())
+	if a.cmp == nil || len(a.cmp.out) != 2 {
+		t.Fatal("no ranking")
+	}
+	if !strings.Contains(screen(a), "column ranking") {
+		t.Error("ranking not shown")
+	}
+	want := a.cmp.out[0].Method.Column.LengthM
+	press(a, "enter")
+	if a.Method().Column.LengthM != want {
+		t.Errorf("length %v, want the chosen %v", a.Method().Column.LengthM, want)
+	}
+}

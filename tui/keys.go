@@ -4,7 +4,7 @@ import "github.com/charmbracelet/bubbles/key"
 
 // GlobalKeys work in every pane.
 type GlobalKeys struct {
-	Quit, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Help, Cancel, Export key.Binding
+	Quit, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Help, Cancel, Export, Fit, Compare key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
@@ -21,6 +21,8 @@ func DefaultGlobalKeys() GlobalKeys {
 		Help:      key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
 		Cancel:    key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
 		Export:    key.NewBinding(key.WithKeys("e"), key.WithHelp("e", "export figure+sheet")),
+		Fit:       key.NewBinding(key.WithKeys("F"), key.WithHelp("F", "fit from scouting runs")),
+		Compare:   key.NewBinding(key.WithKeys("C"), key.WithHelp("C", "compare columns")),
 	}
 }
 

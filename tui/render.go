@@ -41,7 +41,7 @@ func (a *App) FullHelp() [][]key.Binding {
 		{p.Prev, p.Up, p.BigUp, p.Type, p.AddRamp, p.DelRamp, p.Sweep},
 		{c.ZoomIn, c.Left, c.Reset, t.Up, t.Toggle, t.Type},
 		{s.Prev, s.Up, s.BigUp, s.Type},
-		{g.Optimize, g.Cancel, g.Save, g.SaveAs, g.Undo, g.Redo, g.Export},
+		{g.Optimize, g.Cancel, g.Save, g.SaveAs, g.Undo, g.Redo, g.Export, g.Fit, g.Compare},
 		{g.Focus, g.FocusBack, g.Help, g.Quit},
 	}
 }
@@ -81,6 +81,10 @@ func (a *App) refresh() {
 		v.lower = a.fullHelpLines(w, lowerH)
 	case a.sweepView != nil:
 		v.lower = a.sweepLines(w, lowerH)
+	case a.fit != nil:
+		v.lower = a.fitLines(w, lowerH)
+	case a.cmp != nil:
+		v.lower = a.compareRankLines(w, lowerH)
 	case a.opt != nil && a.opt.result != nil:
 		v.lower = a.compareLines(w, lowerH)
 	case a.lower == paneSettings:
