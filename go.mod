@@ -1,6 +1,6 @@
 module github.com/rampwise/rampwise
 
-go 1.26.8
+go 1.25
 
 require (
 	github.com/charmbracelet/bubbles v1.0.0
