@@ -100,8 +100,15 @@ func TestBadInputCorpus(t *testing.T) {
 		name, frag, _ := strings.Cut(line, "\t")
 		path := filepath.Join("../../testdata/bad", name)
 		n++
-		for _, cmd := range [][]string{{"simulate"}, {"simulate", "--json"}, {"optimize", "--json"}} {
-			args := append(append([]string{}, cmd...), path)
+		for _, cmd := range [][]string{{"simulate"}, {"simulate", "--json"}, {"simulate", "--csv"}, {"optimize", "--json"},
+			{"tui"}, {"index"}, {"export", "--csv", filepath.Join(t.TempDir(), "x.csv")}, {"sweep", "--vary", "initial_c", "--from", "40", "--to", "60"},
+			{"compare"}, {"fit", "@", "../../testdata/scouting.toml"}} {
+			args := append([]string{}, cmd...)
+			if len(args) >= 2 && args[len(args)-2] == "@" {
+				args[len(args)-2] = path
+			} else {
+				args = append(args, path)
+			}
 			code, _, errs := runCmd(t, args...)
 			if code != 2 {
 				t.Errorf("%s %s: exit %d, want 2 (%s)", strings.Join(cmd, " "), name, code, errs)

@@ -3,6 +3,7 @@ package methodfile
 import (
 	"bytes"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 
@@ -142,15 +143,28 @@ func WriteFile(path string, m *Method) error {
 }
 
 // WriteAtomic writes data to path through a flushed temporary file in the
-// same folder and a rename.
+// same folder and a rename. A failure at any step removes the temporary file
+// and leaves any existing file at path untouched.
 func WriteAtomic(path string, data []byte) error {
 	perm := os.FileMode(0o644)
 	if st, err := os.Stat(path); err == nil {
 		perm = st.Mode().Perm()
 	}
 	dir := filepath.Dir(path)
-	if err := renameio.WriteFile(path, data, perm, renameio.WithTempDir(dir)); err != nil {
+	t, err := renameio.NewPendingFile(path, renameio.WithTempDir(dir), renameio.WithPermissions(perm))
+	if err != nil {
 		return fmt.Errorf("%s: cannot save: %v", path, err)
+	}
+	defer t.Cleanup()
+	if _, err := wrapWriter(t).Write(data); err != nil {
+		return fmt.Errorf("%s: cannot save (nothing was changed): %v", path, err)
+	}
+	if err := t.CloseAtomicallyReplace(); err != nil {
+		return fmt.Errorf("%s: cannot save (nothing was changed): %v", path, err)
 	}
 	return nil
 }
+
+// wrapWriter lets tests put a failing writer (a full disk) between the
+// method and its temporary file.
+var wrapWriter = func(w io.Writer) io.Writer { return w }

@@ -2,6 +2,7 @@ package methodfile
 
 import (
 	"errors"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -211,5 +212,48 @@ func TestIndexOnlyCompound(t *testing.T) {
 	_ = ladder
 	if !found {
 		t.Fatal("fixture has no index-only compound")
+	}
+}
+
+type fullDisk struct {
+	w    io.Writer
+	left int
+}
+
+func (f *fullDisk) Write(p []byte) (int, error) {
+	if len(p) > f.left {
+		n, _ := f.w.Write(p[:f.left])
+		f.left = 0
+		return n, errors.New("no space left on device")
+	}
+	f.left -= len(p)
+	return f.w.Write(p)
+}
+
+// A save that fails half-way (a full disk) reports it and leaves the
+// original file exactly as it was, with no temporary file behind.
+func TestSaveFullDiskKeepsOriginal(t *testing.T) {
+	m := readDemo(t)
+	dir := t.TempDir()
+	path := filepath.Join(dir, "m.toml")
+	if err := WriteFile(path, m); err != nil {
+		t.Fatal(err)
+	}
+	orig, _ := os.ReadFile(path)
+	wrapWriter = func(w io.Writer) io.Writer { return &fullDisk{w: w, left: 200} }
+	defer func() { wrapWriter = func(w io.Writer) io.Writer { return w } }()
+	changed := m.Clone()
+	changed.Oven.InitialC = 45
+	err := WriteFile(path, changed)
+	if err == nil || !strings.Contains(err.Error(), "no space left") || !strings.Contains(err.Error(), path) {
+		t.Fatalf("error %v", err)
+	}
+	now, _ := os.ReadFile(path)
+	if string(now) != string(orig) {
+		t.Error("original changed by a failed save")
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("temporary file left: %v", entries)
 	}
 }
