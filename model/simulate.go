@@ -90,9 +90,11 @@ func (s *System) Simulate(p Program, res *Result) error {
 	return nil
 }
 
-// SimulateTrimmed evaluates p as the optimizer uses it: the oven is taken to
-// stay at the final temperature after the program, and the run ends tail
-// seconds after the last peak, so every peak elutes within the run. The
+// SimulateTrimmed evaluates p as the optimizer uses it (MODEL.md §4, §6):
+// the peaks that elute within p make the run, which ends tail seconds after
+// the last of them; a target that elutes after p ends is a failure
+// (TargetsNotEluted), a non-target after it is left out of the run. After
+// the program the oven is taken to stay at the final temperature, so the
 // result equals Simulate of p.TrimTo(res.RunTime). It allocates nothing once
 // res has room.
 func (s *System) SimulateTrimmed(p Program, tail float64, res *Result) error {
@@ -106,20 +108,27 @@ func (s *System) SimulateTrimmed(p Program, tail float64, res *Result) error {
 	s.prepare(p, res)
 	res.HoldupTime = s.elute(nc, res.steps).RetentionTime
 	res.Peaks = res.Peaks[:0]
+	end := p.RunTime()
+	last := math.Inf(-1)
+	res.TargetsNotEluted = 0
 	for i := 0; i < nc; i++ {
 		pk := s.elute(i, res.steps)
-		pk.Eluted = !math.IsInf(pk.RetentionTime, 0)
+		if pk.RetentionTime <= end {
+			last = math.Max(last, pk.RetentionTime)
+		} else if s.Compounds[i].Target {
+			res.TargetsNotEluted++
+		}
 		res.Peaks = append(res.Peaks, pk)
 	}
 	sortPeaks(res.Peaks)
-	res.LastPeak = res.Peaks[len(res.Peaks)-1].RetentionTime
-	res.RunTime = res.LastPeak + tail
-	res.TargetsNotEluted = 0
-	for _, pk := range res.Peaks {
-		if !pk.Eluted && s.Compounds[pk.Compound].Target {
-			res.TargetsNotEluted++
-		}
+	if math.IsInf(last, -1) {
+		last = end // nothing elutes within the program
 	}
+	res.RunTime = last + tail
+	for i := range res.Peaks {
+		res.Peaks[i].Eluted = res.Peaks[i].RetentionTime <= res.RunTime
+	}
+	res.LastPeak = res.Peaks[len(res.Peaks)-1].RetentionTime
 	cool, err := s.Oven.Cooldown(p.TempAt(res.RunTime), p.Initial)
 	if err != nil {
 		return err

@@ -14,7 +14,14 @@ import (
 func explain(p *Problem, res *model.Result, limiting []int) string {
 	sys := p.System
 	if res.TargetsNotEluted > 0 {
-		return "a target compound does not elute within the limits (final temperature or hold limit too low for it)"
+		var names []string
+		for _, pk := range res.Peaks {
+			if !pk.Eluted && sys.Compounds[pk.Compound].Target {
+				names = append(names, sys.Compounds[pk.Compound].Name)
+			}
+		}
+		return fmt.Sprintf("%s do(es) not elute within the limits: at the column maximum %.0f °C and the longest hold %.1f min it stays on the column; a less retentive column (thinner film, shorter column, another phase) is needed",
+			strings.Join(names, ", "), p.Limits.MaxTemp-model.ZeroCelsius, p.Limits.MaxHold/60)
 	}
 	if len(limiting) == 0 {
 		return "the best program found breaks a limit (hold length or inlet pressure); relax the limits"

@@ -206,3 +206,26 @@ func BenchmarkOptimizeDemo(b *testing.B) {
 	b.ReportMetric(float64(evals)/b.Elapsed().Seconds(), "evals/s")
 	b.ReportMetric(float64(evals)/float64(b.N), "evals/op")
 }
+
+// A late non-target is left out of the run (MODEL.md §6: only a target that
+// does not elute fails a program); as a target it must elute and costs time.
+func TestLateNonTargetLeftOut(t *testing.T) {
+	comps := smallCompounds()
+	late := model.Compound{Name: "late matrix", DH: -(9 + 4.9*24) * 1000, DS: -(44 + 6*24), Target: false}
+	p := smallProblem(t, append(comps, late), 1)
+	r, err := Optimize(context.Background(), p, Settings{Starts: 8})
+	if err != nil || !r.Feasible() {
+		t.Fatalf("%v %v", err, r.Explanation)
+	}
+	late.Target = true
+	p2 := smallProblem(t, append(smallCompounds(), late), 1)
+	r2, err := Optimize(context.Background(), p2, Settings{Starts: 8})
+	if err != nil || !r2.Feasible() {
+		t.Fatalf("%v %v", err, r2.Explanation)
+	}
+	if !(r.Sim.RunTime < r2.Sim.RunTime) {
+		t.Errorf("non-target late eluter: %.2f min, as a target %.2f min", r.Sim.RunTime/60, r2.Sim.RunTime/60)
+	}
+	checkResult(t, p, r)
+	checkResult(t, p2, r2)
+}
