@@ -22,6 +22,14 @@ import (
 // a few kilobytes, and a larger file is a mistake.
 const MaxFileSize = 4 << 20
 
+// Limits on the size of a method: far above any real one, low enough that a
+// pasted or corrupted file cannot make the model's tables huge.
+const (
+	MaxCompounds = 2000
+	MaxRamps     = 30
+	MaxRuns      = 1000
+)
+
 // Error is a problem with a file: where it is and what is wrong.
 type Error struct {
 	File string
@@ -391,6 +399,10 @@ func (v *validator) oven(r *rawMethod, m *Method) {
 		v.fail("oven.initial_c", "%s °C is not above the ambient %s °C in [limits] (the oven cannot cool back to it)", fmtNum(m.Oven.InitialC), fmtNum(m.Limits.AmbientC))
 	}
 	m.Oven.InitialHoldMin = v.num("oven.initial_hold_min", o.InitialHoldMin, false, 0, nonNegative(10000), "min")
+	if len(o.Ramp) > MaxRamps {
+		v.fail(fmt.Sprintf("oven.ramp[%d]", MaxRamps+1), "more than %d ramps; no oven takes that many", MaxRamps)
+		return
+	}
 	prev := m.Oven.InitialC
 	for i, rr := range o.Ramp {
 		base := fmt.Sprintf("oven.ramp[%d]", i+1)
@@ -471,6 +483,10 @@ func (v *validator) injection(r *rawMethod, m *Method) {
 func (v *validator) compounds(r *rawMethod, m *Method) {
 	if len(r.Compound) == 0 {
 		v.fail("compound", "no [[compound]] entries (at least one is needed)")
+		return
+	}
+	if len(r.Compound) > MaxCompounds {
+		v.fail(fmt.Sprintf("compound[%d]", MaxCompounds+1), "more than %d compounds; split the method", MaxCompounds)
 		return
 	}
 	names := map[string]int{}

@@ -70,6 +70,10 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 	if len(raw.Run) == 0 {
 		v.fail("run", "no [[run]] entries")
 	}
+	if len(raw.Run) > MaxRuns {
+		v.fail(fmt.Sprintf("run[%d]", MaxRuns+1), "more than %d runs", MaxRuns)
+		return nil, v.err
+	}
 	seen := map[string]int{}
 	for i, rr := range raw.Run {
 		base := fmt.Sprintf("run[%d]", i+1)
