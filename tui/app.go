@@ -561,16 +561,10 @@ func (a *App) saveTo(path string) bool {
 func (a *App) programKey(msg tea.KeyMsg) {
 	fs := programFields(a.method)
 	k := a.pkeys
+	if a.fieldKey(fs, &a.progSel, msg, k) {
+		return
+	}
 	switch {
-	case key.Matches(msg, k.Prev):
-		a.progSel = (a.progSel + len(fs) - 1) % len(fs)
-	case key.Matches(msg, k.Next):
-		a.progSel = (a.progSel + 1) % len(fs)
-	case isStep(msg, k):
-		a.step(fs[a.progSel], msg, k)
-	case key.Matches(msg, k.Type):
-		f := fs[a.progSel]
-		a.startInput(inputValue, fmt.Sprintf("%s (%s): ", f.key, f.unit), f.text(a.method))
 	case key.Matches(msg, k.AddRamp):
 		a.addRamp()
 	case key.Matches(msg, k.DelRamp):
@@ -578,6 +572,25 @@ func (a *App) programKey(msg tea.KeyMsg) {
 	case key.Matches(msg, k.Sweep):
 		a.openSweep(fs[a.progSel])
 	}
+}
+
+// fieldKey handles the keys a list of fields shares (choose, step, type)
+// and reports whether msg was one of them.
+func (a *App) fieldKey(fs []field, sel *int, msg tea.KeyMsg, k FieldKeys) bool {
+	switch {
+	case key.Matches(msg, k.Prev):
+		*sel = (*sel + len(fs) - 1) % len(fs)
+	case key.Matches(msg, k.Next):
+		*sel = (*sel + 1) % len(fs)
+	case isStep(msg, k):
+		a.step(fs[*sel], msg, k)
+	case key.Matches(msg, k.Type):
+		f := fs[*sel]
+		a.startInput(inputValue, fmt.Sprintf("%s (%s): ", f.key, f.unit), f.text(a.method))
+	default:
+		return false
+	}
+	return true
 }
 
 func isStep(msg tea.KeyMsg, k FieldKeys) bool {
@@ -758,19 +771,7 @@ func (a *App) typeCompound(text string) {
 // --- settings pane ---
 
 func (a *App) settingsKey(msg tea.KeyMsg) {
-	fs := settingsFields(a.method)
-	k := a.skeys
-	switch {
-	case key.Matches(msg, k.Prev):
-		a.setSel = (a.setSel + len(fs) - 1) % len(fs)
-	case key.Matches(msg, k.Next):
-		a.setSel = (a.setSel + 1) % len(fs)
-	case isStep(msg, k):
-		a.step(fs[a.setSel], msg, k)
-	case key.Matches(msg, k.Type):
-		f := fs[a.setSel]
-		a.startInput(inputValue, fmt.Sprintf("%s %s: ", f.key, f.unit), f.text(a.method))
-	}
+	a.fieldKey(settingsFields(a.method), &a.setSel, msg, a.skeys)
 	if n := len(settingsFields(a.method)); a.setSel >= n {
 		a.setSel = n - 1
 	}
