@@ -185,6 +185,17 @@ func TestSimulateDeterministicNoAlloc(t *testing.T) {
 	if allocs != 0 {
 		t.Errorf("Simulate allocates %v per run", allocs)
 	}
+	var c Result
+	s.SimulateTrimmed(p, 30, &c)
+	if allocs := testing.AllocsPerRun(100, func() { s.SimulateTrimmed(p, 30, &c) }); allocs != 0 {
+		t.Errorf("SimulateTrimmed allocates %v per run", allocs)
+	}
+	// SimulateTrimmed equals Simulate of the trimmed program
+	q := p.TrimTo(c.RunTime)
+	s.Simulate(q, &b)
+	if b.MinResolution != c.MinResolution || b.RunTime != c.RunTime || len(b.Pairs) != len(c.Pairs) {
+		t.Errorf("trimmed: Rs %v run %v, Simulate of the trim: %v %v", c.MinResolution, c.RunTime, b.MinResolution, b.RunTime)
+	}
 	for i := range a.Peaks {
 		if a.Peaks[i] != b.Peaks[i] {
 			t.Errorf("rerun differs at %d", i)
