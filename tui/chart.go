@@ -124,31 +124,39 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 		cp := in.res.Pairs[in.res.Critical]
 		crit[cp.First], crit[cp.Second] = true, true
 	}
-	lastEnd := -1
-	for i, pk := range in.res.Peaks {
-		if !pk.Eluted || pk.RetentionTime < t0 || pk.RetentionTime > t1 {
-			continue
+	// the critical pair's labels first, so that crowding never hides them
+	for pass := 0; pass < 2; pass++ {
+		for i, pk := range in.res.Peaks {
+			if !pk.Eluted || pk.RetentionTime < t0 || pk.RetentionTime > t1 || crit[pk.Compound] != (pass == 0) {
+				continue
+			}
+			col := int((pk.RetentionTime - t0) / span * float64(pw))
+			text := strconv.Itoa(i + 1)
+			col -= (len(text) - 1) / 2
+			if col < 0 || col+len(text) > pw {
+				continue
+			}
+			apex := in.comps[pk.Compound].AreaOrOne() / pk.Sigma
+			r := row(apex)/4 - 1
+			if r < 0 {
+				r = 0
+			}
+			// move up past labels already placed; give up at the top
+			for r >= 0 && !c.free(r, col-1, col+len(text)+1, pw) {
+				r--
+			}
+			if r < 0 {
+				continue
+			}
+			c.cv.Text(col, r, text)
+			kind := int8(1)
+			if crit[pk.Compound] {
+				kind = 2
+			}
+			for k := 0; k < len(text); k++ {
+				c.label[r*pw+col+k] = kind
+			}
 		}
-		col := int((pk.RetentionTime - t0) / span * float64(pw))
-		text := strconv.Itoa(i + 1)
-		col -= (len(text) - 1) / 2
-		if col <= lastEnd || col+len(text) > pw {
-			continue
-		}
-		apex := in.comps[pk.Compound].AreaOrOne() / pk.Sigma
-		r := row(apex)/4 - 1
-		if r < 0 {
-			r = 0
-		}
-		c.cv.Text(col, r, text)
-		kind := int8(1)
-		if crit[pk.Compound] {
-			kind = 2
-		}
-		for k := 0; k < len(text); k++ {
-			c.label[r*pw+col+k] = kind
-		}
-		lastEnd = col + len(text)
 	}
 	lines := make([]string, 0, h)
 	for r := 0; r < ph; r++ {
@@ -169,6 +177,16 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 	}
 	lines = append(lines, st.Axis.Render(padRight(timeAxis(t0, t1, pw), w)))
 	return lines
+}
+
+// free reports whether cells a..b-1 of row r hold no label yet.
+func (c *chart) free(r, a, b, pw int) bool {
+	for k := a; k < b; k++ {
+		if k >= 0 && k < pw && c.label[r*pw+k] != 0 {
+			return false
+		}
+	}
+	return true
 }
 
 // signalAt is the summed detector signal at time t: each peak a Gaussian
