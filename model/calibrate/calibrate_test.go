@@ -266,3 +266,50 @@ func anyWarning(rep *Report, s string) bool {
 	}
 	return false
 }
+
+// A compound in the runs but not in the method is added, fitted, with a
+// warning; one seen in a single run is reported and not fitted.
+func TestAddedAndSingleRunCompounds(t *testing.T) {
+	truth := truthMethod(t)
+	text := runsText(t, truth, threeScouts(), 0.001, 9, nil)
+	start := startMethod(t)
+	var kept []methodfile.Compound
+	for _, c := range start.Compounds {
+		if c.Name != "decanal" {
+			kept = append(kept, c)
+		}
+	}
+	start.Compounds = kept
+	text = strings.Replace(text, "[run.retention_min]\n", "[run.retention_min]\n\"ghost\" = 5.5\n", 1)
+	runs, err := methodfile.ParseRuns("runs.toml", []byte(text), start)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := Fit(start, runs, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !anyWarning(rep, "decanal: in the runs but not in the method; added") || !anyWarning(rep, "ghost") {
+		t.Errorf("warnings %v", rep.Warnings)
+	}
+	found := false
+	for _, c := range rep.Method.Compounds {
+		if c.Name == "decanal" {
+			found = true
+			for _, w := range truth.Compounds {
+				if w.Name == "decanal" && (math.Abs(c.DHkJ-w.DHkJ) > 1 || math.Abs(c.DS-w.DS) > 2) {
+					t.Errorf("added decanal: ΔH %.2f ΔS %.2f, true %.2f %.2f", c.DHkJ, c.DS, w.DHkJ, w.DS)
+				}
+			}
+		}
+		if c.Name == "ghost" {
+			t.Error("a compound seen once was added")
+		}
+	}
+	if !found {
+		t.Error("decanal not added to the method")
+	}
+	if _, err := rep.Method.System(); err != nil {
+		t.Errorf("fitted method does not build: %v", err)
+	}
+}
