@@ -324,8 +324,25 @@ func (a *App) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	case tea.KeyMsg:
 		cmd = a.onKey(msg)
 	}
+	a.clampSelections()
 	a.refresh()
 	return a, cmd
+}
+
+// clampSelections keeps every selection inside its list after the method
+// changed shape (ramps removed, a pressure mode switched, compounds added).
+func (a *App) clampSelections() {
+	clamp := func(v *int, n int) {
+		if *v >= n {
+			*v = n - 1
+		}
+		if *v < 0 {
+			*v = 0
+		}
+	}
+	clamp(&a.progSel, len(programFields(a.method)))
+	clamp(&a.setSel, len(settingsFields(a.method)))
+	clamp(&a.peakSel, len(a.res.Peaks))
 }
 
 func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {

@@ -2,6 +2,7 @@ package tui
 
 import (
 	"fmt"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -321,5 +322,45 @@ func TestCompareColumnsView(t *testing.T) {
 	press(a, "enter")
 	if a.Method().Column.LengthM != want {
 		t.Errorf("length %v, want the chosen %v", a.Method().Column.LengthM, want)
+	}
+}
+
+// Accepting a program with fewer ramps than the selected value's ramp
+// must not leave the selection outside the program.
+func TestSelectionSurvivesShorterProgram(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "a", "a") // three ramps
+	for i := 0; i < 10; i++ {
+		press(a, "right")
+	}
+	m := a.Method().Clone()
+	m.Oven.Ramps = m.Oven.Ramps[:1]
+	a.apply(m, "test")
+	a.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	press(a, "+", "enter", "esc", "right", "left")
+	if a.progSel >= len(programFields(a.Method())) {
+		t.Errorf("selection %d outside %d values", a.progSel, len(programFields(a.Method())))
+	}
+}
+
+// Random keystrokes never panic and never leave an invalid method.
+func TestRandomKeysNeverPanic(t *testing.T) {
+	a, _ := newApp(t, 90, 28)
+	rng := rand.New(rand.NewPCG(42, 1))
+	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "backspace"}
+	runes := []rune("+-[]ax0123456789.-uUtsh jkl?")
+	for i := 0; i < 2000; i++ {
+		if rng.IntN(3) == 0 {
+			press(a, names[rng.IntN(len(names))])
+		} else {
+			a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{runes[rng.IntN(len(runes))]}})
+		}
+		if i%500 == 0 {
+			a.Update(tea.WindowSizeMsg{Width: 80 + rng.IntN(60), Height: 24 + rng.IntN(30)})
+		}
+		_ = a.View()
+	}
+	if err := validate(a.Method()); err != nil {
+		t.Errorf("method became invalid: %v", err)
 	}
 }
