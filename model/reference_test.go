@@ -76,19 +76,16 @@ func referenceElute(cond *Conditions, c *Compound, p Program) refPeak {
 	g := func(temp float64) float64 { return 1 / (cond.HoldupTimeAt(temp) * (1 + kf(temp))) }
 	segs := refSegments(p)
 	zeta := 0.0
-	var seg refSegment
 	var end float64
 	for _, sg := range segs {
 		sg := sg
 		f := func(t float64) float64 { return g(sg.temp0 + sg.rate*(t-sg.t0)) }
 		if math.IsInf(sg.t1, 1) {
-			seg = sg
 			end = sg.t0 + (1-zeta)/g(sg.temp0)
 			break
 		}
 		dz := refIntegral(f, sg.t0, sg.t1, sg.rate == 0)
 		if zeta+dz >= 1 {
-			seg = sg
 			lo, hi := sg.t0, sg.t1
 			for it := 0; it < 200 && hi-lo > 1e-9; it++ {
 				m := (lo + hi) / 2
@@ -122,7 +119,6 @@ func referenceElute(cond *Conditions, c *Compound, p Program) refPeak {
 			break
 		}
 	}
-	_ = seg
 	te := tempAt(end)
 	k := kf(te)
 	speed := cond.HoldupTimeAt(te) * (1 + k)

@@ -6,7 +6,6 @@ import (
 	"sort"
 	"sync"
 
-	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -110,5 +109,3 @@ func runCandidate(ctx context.Context, c Candidate, s Settings) Outcome {
 	o.InletEnd = sys.Cond.InletGauge(o.MaxTemp)
 	return o
 }
-
-var _ = model.ZeroCelsius

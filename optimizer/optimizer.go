@@ -206,7 +206,7 @@ func (p *Problem) check() error {
 		p.Limits.MinRate = p.Limits.MaxRate / 10
 	}
 	for _, name := range p.Lock {
-		kind, n, ok := parseVariable(name)
+		_, n, ok := parseVariable(name)
 		if !ok {
 			return fmt.Errorf("optimizer: unknown program value %q to lock", name)
 		}
@@ -216,7 +216,6 @@ func (p *Problem) check() error {
 		if n > p.Ramps {
 			return fmt.Errorf("optimizer: %s is locked but the goal allows only %d ramps", name, p.Ramps)
 		}
-		_ = kind
 	}
 	return nil
 }

@@ -12,7 +12,6 @@ import (
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
-	"github.com/charmbracelet/lipgloss"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
@@ -908,5 +907,3 @@ func (a *App) View() string {
 	parts = append(parts, v.summary, v.message, v.help)
 	return strings.Join(parts, "\n")
 }
-
-var _ = lipgloss.Width

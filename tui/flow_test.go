@@ -2,9 +2,7 @@ package tui
 
 import (
 	"bytes"
-	"fmt"
 	"reflect"
-	"strings"
 	"testing"
 	"time"
 
@@ -86,6 +84,3 @@ func TestFlowOptimizeCancel(t *testing.T) {
 	tm.Send(keyRune('q'))
 	tm.WaitFinished(t, teatest.WithFinalTimeout(10*time.Second))
 }
-
-var _ = strings.Contains
-var _ = fmt.Sprint

@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"math"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -439,5 +438,3 @@ func (a *App) fullHelpLines(w, h int) []string {
 	}
 	return lines
 }
-
-var _ = math.Abs

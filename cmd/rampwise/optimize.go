@@ -13,7 +13,6 @@ import (
 	"text/tabwriter"
 	"time"
 
-	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -259,5 +258,3 @@ func isTerminal(w io.Writer) bool {
 	st, err := f.Stat()
 	return err == nil && st.Mode()&os.ModeCharDevice != 0
 }
-
-var _ = model.ZeroCelsius

@@ -148,7 +148,6 @@ func resolutionAfter(r *model.Result) []float64 {
 	}
 	for i, pr := range r.Pairs {
 		out[i] = pr.Resolution
-		_ = pr
 	}
 	return out
 }

@@ -306,6 +306,20 @@ func (v *validator) str(path string, p *string, required bool, def string, choic
 	return def
 }
 
+// uniqueName reads the required name of element n of an array of tables
+// (a compound, a run) and checks it is neither empty nor a repeat.
+func (v *validator) uniqueName(base string, p *string, seen map[string]int, n int, what string) string {
+	name := strings.TrimSpace(v.str(base+".name", p, true, ""))
+	if v.err == nil && name == "" {
+		v.fail(base+".name", "empty name")
+	}
+	if j, dup := seen[name]; dup && v.err == nil {
+		v.fail(base+".name", "duplicate %s name %q (also %s %d)", what, name, what, j)
+	}
+	seen[name] = n
+	return name
+}
+
 func positive(hi float64) bound    { return bound{lo: 0, hi: hi, loOpen: true} }
 func nonNegative(hi float64) bound { return bound{lo: 0, hi: hi} }
 
@@ -490,18 +504,10 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 		return
 	}
 	names := map[string]int{}
-	ladder := 0
 	for i, rc := range r.Compound {
 		base := fmt.Sprintf("compound[%d]", i+1)
 		var c Compound
-		c.Name = strings.TrimSpace(v.str(base+".name", rc.Name, true, ""))
-		if v.err == nil && c.Name == "" {
-			v.fail(base+".name", "empty name")
-		}
-		if j, dup := names[c.Name]; dup && v.err == nil {
-			v.fail(base+".name", "duplicate compound name %q (also compound %d)", c.Name, j)
-		}
-		names[c.Name] = i + 1
+		c.Name = v.uniqueName(base, rc.Name, names, i+1, "compound")
 		if rc.AromaticRings != nil {
 			if *rc.AromaticRings < 0 || *rc.AromaticRings > 20 {
 				v.fail(base+".aromatic_rings", "%d is out of range 0..20", *rc.AromaticRings)
@@ -530,7 +536,6 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 				v.fail(base+".alkane_carbons", "%d is out of range 1..100", *rc.AlkaneCarbons)
 			}
 			c.AlkaneCarbons = int(*rc.AlkaneCarbons)
-			ladder++
 		}
 		if rc.RetentionIndex != nil {
 			c.RetentionIndex = v.num(base+".retention_index", rc.RetentionIndex, false, 0, positive(10000), "")
@@ -559,7 +564,6 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 			}
 		}
 	}
-	_ = ladder
 }
 
 // ladderAlkanes are the compounds that are ladder alkanes with their own

@@ -78,14 +78,7 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 	for i, rr := range raw.Run {
 		base := fmt.Sprintf("run[%d]", i+1)
 		r := Run{Line: loc.Line(base), Retention: map[string]float64{}, Widths: map[string]float64{}}
-		r.Name = strings.TrimSpace(v.str(base+".name", rr.Name, true, ""))
-		if v.err == nil && r.Name == "" {
-			v.fail(base+".name", "empty run name")
-		}
-		if j, dup := seen[r.Name]; dup && v.err == nil {
-			v.fail(base+".name", "duplicate run name %q (also run %d)", r.Name, j)
-		}
-		seen[r.Name] = i + 1
+		r.Name = v.uniqueName(base, rr.Name, seen, i+1, "run")
 		if rr.HoldupMin != nil {
 			r.HoldupMin = v.num(base+".holdup_min", rr.HoldupMin, false, 0, positive(1000), "min")
 			r.HasHoldup = true
