@@ -101,14 +101,7 @@ func TestRoundTripRecoversParameters(t *testing.T) {
 	truth := truthMethod(t)
 	text := runsText(t, truth, threeScouts(), 0.002, 7, nil)
 	start := startMethod(t)
-	runs, err := methodfile.ParseRuns("runs.toml", []byte(text), start)
-	if err != nil {
-		t.Fatal(err)
-	}
-	rep, err := Fit(start, runs, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	rep := fitText(t, start, text, Options{})
 	want := map[string]methodfile.Compound{}
 	for _, c := range truth.Compounds {
 		want[c.Name] = c
@@ -182,14 +175,7 @@ func TestWithDCp(t *testing.T) {
 	text := runsText(t, truth, scouts, 0.0005, 3, nil)
 	start := startMethod(t)
 	start.Compounds = start.Compounds[5:9]
-	runs, err := methodfile.ParseRuns("runs.toml", []byte(text), start)
-	if err != nil {
-		t.Fatal(err)
-	}
-	rep, err := Fit(start, runs, Options{WithDCp: true})
-	if err != nil {
-		t.Fatal(err)
-	}
+	rep := fitText(t, start, text, Options{WithDCp: true})
 	for _, f := range rep.Compounds {
 		if !(f.DCp > 20) {
 			t.Errorf("%s: ΔCp %.1f, want clearly nonzero (true 80)", f.Name, f.DCp)
@@ -208,11 +194,7 @@ func TestIllConditionedWarning(t *testing.T) {
 	scouts := []scout{linear("a", 40, 1, 10, 280), linear("b", 40, 1.05, 10, 280)}
 	text := runsText(t, truth, scouts, 0.0, 1, nil)
 	start := startMethod(t)
-	runs, _ := methodfile.ParseRuns("runs.toml", []byte(text), start)
-	rep, err := Fit(start, runs, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	rep := fitText(t, start, text, Options{})
 	if !anyWarning(rep, "ill-conditioned") {
 		t.Errorf("no ill-conditioning warning: %v", rep.Warnings)
 	}
@@ -226,11 +208,7 @@ func TestSwappedPeaksOutlier(t *testing.T) {
 		}
 	})
 	start := startMethod(t)
-	runs, _ := methodfile.ParseRuns("runs.toml", []byte(text), start)
-	rep, err := Fit(start, runs, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	rep := fitText(t, start, text, Options{})
 	if !anyWarning(rep, "misassigned") {
 		t.Errorf("no outlier warning: %v", rep.Warnings)
 	}
@@ -245,17 +223,24 @@ func TestHoldupRecoversDiameter(t *testing.T) {
 	}
 	text := runsText(t, truth, scouts, 0, 1, nil)
 	start := startMethod(t) // nominal 0.25 mm
+	rep := fitText(t, start, text, Options{})
+	if math.Abs(rep.DiameterMM-0.242) > 0.0005 {
+		t.Errorf("diameter %.5f mm, want 0.242", rep.DiameterMM)
+	}
+}
+
+// fitText parses a runs file's text against start and fits it.
+func fitText(t *testing.T, start *methodfile.Method, text string, opt Options) *Report {
+	t.Helper()
 	runs, err := methodfile.ParseRuns("runs.toml", []byte(text), start)
 	if err != nil {
 		t.Fatal(err)
 	}
-	rep, err := Fit(start, runs, Options{})
+	rep, err := Fit(start, runs, opt)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if math.Abs(rep.DiameterMM-0.242) > 0.0005 {
-		t.Errorf("diameter %.5f mm, want 0.242", rep.DiameterMM)
-	}
+	return rep
 }
 
 func anyWarning(rep *Report, s string) bool {
@@ -281,14 +266,7 @@ func TestAddedAndSingleRunCompounds(t *testing.T) {
 	}
 	start.Compounds = kept
 	text = strings.Replace(text, "[run.retention_min]\n", "[run.retention_min]\n\"ghost\" = 5.5\n", 1)
-	runs, err := methodfile.ParseRuns("runs.toml", []byte(text), start)
-	if err != nil {
-		t.Fatal(err)
-	}
-	rep, err := Fit(start, runs, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	rep := fitText(t, start, text, Options{})
 	if !anyWarning(rep, "decanal: in the runs but not in the method; added") || !anyWarning(rep, "ghost") {
 		t.Errorf("warnings %v", rep.Warnings)
 	}
