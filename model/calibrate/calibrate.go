@@ -171,6 +171,7 @@ func Fit(m *methodfile.Method, runs *methodfile.Runs, opt Options) (*Report, err
 		}
 		c := &out.Compounds[ci]
 		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
+		c.FromFormula = false
 		rep.Compounds = append(rep.Compounds, cf.CompoundFit)
 		if !cf.onlyDS && (cf.ElutionSpreadC < 3 || cf.Condition > 1e10) {
 			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the runs elute it at nearly the same temperature (spread %.1f °C): too similar to separate ΔH from ΔS reliably (ill-conditioned); add a run with a clearly different ramp rate", name, cf.ElutionSpreadC))
