@@ -63,6 +63,7 @@ Usage:
   rampwise export METHOD [flags]    figure (PNG/SVG/PDF), peak CSV, method sheet
   rampwise sweep METHOD [flags]     window diagram of one or two program values
   rampwise compare METHOD... [flags] rank phases and column dimensions
+  rampwise plan METHOD [RUNS]       what to inject next: scout, verify or done
   rampwise help [COMMAND]           explain a command
 
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
@@ -130,6 +131,8 @@ func dispatch(args []string, stdout, stderr io.Writer) error {
 		return runSweep(args[1:], stdout, stderr)
 	case "compare":
 		return runCompare(args[1:], stdout, stderr)
+	case "plan":
+		return runPlan(args[1:], stdout, stderr)
 	case "help", "-h", "--help", "-help":
 		if len(args) > 1 {
 			return dispatch([]string{args[1], "--help"}, stdout, stderr)

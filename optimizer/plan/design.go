@@ -8,6 +8,8 @@ import (
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
+var debugDesign func(methodfile.Oven, float64, float64)
+
 // designChoice is the chosen scouting run.
 type designChoice struct {
 	oven    methodfile.Oven
@@ -70,9 +72,83 @@ func (sl scoutLimits) rateTo(finalC float64) float64 {
 // design picks, among scouting programs within the limits, the one after
 // which the summed variance of the resolutions of the pairs that are or
 // could become critical at the optimized program is least.
-func (st *state) design(opt methodfile.Oven, target, z float64) (*designChoice, error) {
-	// pairs at the optimized program
-	if err := st.sens.eval(methodfile.ProgramToModel(opt)); err != nil {
+func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoice, error) {
+	var pairs []pairSens
+	for pi, o := range progs {
+		ps, err := st.criticalPairs(o, target, pi == 0)
+		if err != nil {
+			return nil, err
+		}
+		pairs = append(pairs, ps...)
+	}
+	if len(pairs) == 0 {
+		return nil, nil
+	}
+	s := st.sens
+	s2 := st.sigmaT * st.sigmaT
+	type scored struct {
+		designChoice
+		dur float64
+	}
+	var all []scored
+	post := make([]cov2, s.n)
+	var starts []float64
+	for _, o := range progs {
+		starts = append(starts, o.InitialC)
+	}
+	cands := st.candidates(starts)
+	sl := st.scoutLimits()
+	for _, o := range progs {
+		cands = append(cands, st.continued(o, sl)...)
+	}
+	for _, cand := range cands {
+		prog := methodfile.ProgramToModel(cand)
+		if err := s.eval(prog); err != nil {
+			continue
+		}
+		for i := 0; i < s.n; i++ {
+			post[i] = st.cov[i]
+			if s.eluted[i] {
+				post[i] = st.cov[i].update(s.dt[i], s2)
+			}
+		}
+		score, critSD := 0.0, 0.0
+		for _, p := range pairs {
+			v := post[p.a].quad(p.ga) + post[p.b].quad(p.gb)
+			score += v
+			if p.critical {
+				critSD = math.Sqrt(math.Max(v, 0))
+			}
+		}
+		all = append(all, scored{designChoice{oven: cand, score: score, sdAfter: critSD, pairs: len(pairs)}, prog.RunTime()})
+		if debugDesign != nil {
+			debugDesign(cand, score, critSD)
+		}
+	}
+	if len(all) == 0 {
+		return nil, nil
+	}
+	least := math.Inf(1)
+	for _, c := range all {
+		least = math.Min(least, c.score)
+	}
+	// the shortest run among those within 2 % of the least variance
+	var bestC *designChoice
+	bestTime := math.Inf(1)
+	for i := range all {
+		if all[i].score <= 1.02*least && all[i].dur < bestTime {
+			bestC, bestTime = &all[i].designChoice, all[i].dur
+		}
+	}
+	return bestC, nil
+}
+
+// criticalPairs are the pairs with a target that are, or within three
+// standard deviations could become, critical at program o (Rs within
+// 3 SD of the target plus half a unit), with their gradients; the least
+// adjacent one is marked critical when mark is set.
+func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]pairSens, error) {
+	if err := st.sens.eval(methodfile.ProgramToModel(o)); err != nil {
 		return nil, err
 	}
 	s := st.sens
@@ -94,8 +170,6 @@ func (st *state) design(opt methodfile.Oven, target, z float64) (*designChoice, 
 			}
 			rs, ga, gb := s.resolution(a, b)
 			sd := rsSD(ga, gb, st.cov[a], st.cov[b])
-			// could it become critical: within three SDs of the target
-			// plus half a unit of resolution
 			if rs-3*sd > target+0.5 {
 				continue
 			}
@@ -105,69 +179,24 @@ func (st *state) design(opt methodfile.Oven, target, z float64) (*designChoice, 
 			}
 		}
 	}
-	if crit >= 0 {
+	if crit >= 0 && mark {
 		pairs[crit].critical = true
 	}
-	if len(pairs) == 0 {
-		return nil, nil
-	}
-	s2 := st.sigmaT * st.sigmaT
-	type scored struct {
-		designChoice
-		dur float64
-	}
-	var all []scored
-	post := make([]cov2, s.n)
-	for _, cand := range st.candidates(opt) {
-		prog := methodfile.ProgramToModel(cand)
-		if err := s.eval(prog); err != nil {
-			continue
-		}
-		for i := 0; i < s.n; i++ {
-			post[i] = st.cov[i]
-			if s.eluted[i] {
-				post[i] = st.cov[i].update(s.dt[i], s2)
-			}
-		}
-		score, critSD := 0.0, 0.0
-		for _, p := range pairs {
-			v := post[p.a].quad(p.ga) + post[p.b].quad(p.gb)
-			score += v
-			if p.critical {
-				critSD = math.Sqrt(math.Max(v, 0))
-			}
-		}
-		all = append(all, scored{designChoice{oven: cand, score: score, sdAfter: critSD, pairs: len(pairs)}, prog.RunTime()})
-	}
-	if len(all) == 0 {
-		return nil, nil
-	}
-	least := math.Inf(1)
-	for _, c := range all {
-		least = math.Min(least, c.score)
-	}
-	// the shortest run among those within 2 % of the least variance
-	var bestC *designChoice
-	bestTime := math.Inf(1)
-	for i := range all {
-		if all[i].score <= 1.02*least && all[i].dur < bestTime {
-			bestC, bestTime = &all[i].designChoice, all[i].dur
-		}
-	}
-	return bestC, nil
+	return pairs, nil
 }
 
-// candidates are the scouting programs considered: linear ramps from a few
-// starts at rates across the oven's range to the highest allowed
-// temperature, and the optimized program itself continued to that
-// temperature; each ends with a hold long enough for every compound to
+// candidates are linear scouting ramps from a few starts (the lowest oven
+// temperature, 20 and 40 °C above it, and the given starts) at rates across
+// the oven's range to the highest allowed temperature; each ends with a hold long enough for every compound to
 // elute, with room for its retention uncertainty.
-func (st *state) candidates(opt methodfile.Oven) []methodfile.Oven {
+func (st *state) candidates(extra []float64) []methodfile.Oven {
 	sl := st.scoutLimits()
 	var out []methodfile.Oven
 	starts := []float64{sl.lowC, sl.lowC + 20, sl.lowC + 40}
-	if opt.InitialC >= sl.lowC && opt.InitialC < sl.highC {
-		starts = append(starts, opt.InitialC)
+	for _, t := range extra {
+		if t >= sl.lowC && t < sl.highC {
+			starts = append(starts, t)
+		}
 	}
 	rates := []float64{2, 3, 4, 5, 7, 10, 15, 20, 25, 30, 40, 50, 60, 80, 100}
 	for _, t0 := range starts {
@@ -183,7 +212,13 @@ func (st *state) candidates(opt methodfile.Oven) []methodfile.Oven {
 			}
 		}
 	}
-	// the optimized program, continued
+	return out
+}
+
+// continued is the optimized program continued to the highest allowed
+// temperature, so that what elutes after it is measured too.
+func (st *state) continued(opt methodfile.Oven, sl scoutLimits) []methodfile.Oven {
+	var out []methodfile.Oven
 	if len(opt.Ramps) > 0 || opt.InitialC < sl.highC {
 		o := opt
 		o.Ramps = append([]methodfile.Ramp(nil), opt.Ramps...)

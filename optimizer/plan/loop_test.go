@@ -48,7 +48,12 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool) outcom
 			t.Fatalf("seed %d: plan: %v", seed, err)
 		}
 		if p.Action == Done {
-			t.Logf("seed %d: done before a verification: %s", seed, p.Reason)
+			// a run already made meets the target (as measured) by a
+			// margin the model vouches for: that run is the verification
+			t.Logf("seed %d: done after %d injections, before a planned verification: %s", seed, k-1, p.Reason)
+			out.verified, out.done = p.VerifiedBy != "", true
+			out.runTime = methodfile.ProgramToModel(p.Oven).RunTime() / 60
+			out.trueRs = rampRsOf(t, truth, p.Oven)
 			return out
 		}
 		ms, err := l.inject(fmt.Sprintf("run-%d", k), p.Oven)
