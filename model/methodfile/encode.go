@@ -3,11 +3,8 @@ package methodfile
 import (
 	"bytes"
 	"fmt"
-	"io"
-	"os"
-	"path/filepath"
 
-	"github.com/google/renameio/v2"
+	"github.com/rampwise/rampwise/model/fsafe"
 	toml "github.com/pelletier/go-toml/v2"
 )
 
@@ -142,29 +139,10 @@ func WriteFile(path string, m *Method) error {
 	return WriteAtomic(path, data)
 }
 
-// WriteAtomic writes data to path through a flushed temporary file in the
-// same folder and a rename. A failure at any step removes the temporary file
-// and leaves any existing file at path untouched.
+// WriteAtomic writes data to path without ever leaving a half-written
+// file: see fsafe.WriteFile (atomic replace of a regular file, write-through
+// of a symlink's target, a device or a hard-linked file; owner, group and
+// mode kept). A failure leaves any existing file at path untouched.
 func WriteAtomic(path string, data []byte) error {
-	perm := os.FileMode(0o644)
-	if st, err := os.Stat(path); err == nil {
-		perm = st.Mode().Perm()
-	}
-	dir := filepath.Dir(path)
-	t, err := renameio.NewPendingFile(path, renameio.WithTempDir(dir), renameio.WithPermissions(perm))
-	if err != nil {
-		return fmt.Errorf("%s: cannot save: %v", path, err)
-	}
-	defer t.Cleanup()
-	if _, err := wrapWriter(t).Write(data); err != nil {
-		return fmt.Errorf("%s: cannot save (nothing was changed): %v", path, err)
-	}
-	if err := t.CloseAtomicallyReplace(); err != nil {
-		return fmt.Errorf("%s: cannot save (nothing was changed): %v", path, err)
-	}
-	return nil
+	return fsafe.WriteFile(path, data)
 }
-
-// wrapWriter lets tests put a failing writer (a full disk) between the
-// method and its temporary file.
-var wrapWriter = func(w io.Writer) io.Writer { return w }
