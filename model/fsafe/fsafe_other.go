@@ -10,7 +10,7 @@ import (
 func renameReplace(from, to string) error                   { return os.Rename(from, to) }
 func syncDir(string)                                        {}
 func linkCount(string, fs.FileInfo) uint64                  { return 1 }
-func canKeepOwner(fs.FileInfo) bool { return true }
+func canKeepOwner(fs.FileInfo) bool                         { return true }
 func keepOwner(*os.File, fs.FileInfo) error                 { return nil }
 func newFileMode() fs.FileMode                              { return 0o644 }
 func isUnsupported(error) bool                              { return true }

@@ -4,8 +4,8 @@ import (
 	"bytes"
 	"fmt"
 
-	"github.com/rampwise/rampwise/model/fsafe"
 	toml "github.com/pelletier/go-toml/v2"
+	"github.com/rampwise/rampwise/model/fsafe"
 )
 
 func ptr[T any](x T) *T { return &x }
@@ -124,19 +124,35 @@ func Marshal(m *Method) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// WriteFile saves the method atomically: a temporary file in the same
-// folder, flushed to disk, then renamed over path. A failure leaves any
-// existing file untouched.
+// WriteFile saves the method at path. When path already holds a valid
+// method, the save changes only what differs, in place in its text
+// (comments, layout and quoting kept; see Update); otherwise the method is
+// written fresh. The write itself is fsafe.WriteFile: atomic, through
+// symlinks, owner and mode kept.
 func WriteFile(path string, m *Method) error {
-	data, err := Marshal(m)
+	_, err := Save(path, nil, m)
+	return err
+}
+
+// Save writes m at path over base: the text m was derived from (an input
+// file for optimize --out, the loaded text for the UI). A nil base means the
+// current content of path, if it is a regular file. It reports whether the
+// base's text was kept (false: written fresh, comments not kept).
+func Save(path string, base []byte, m *Method) (kept bool, err error) {
+	if base == nil {
+		if cur, err := fsafe.ReadRegular(path, MaxFileSize); err == nil {
+			base = cur
+		}
+	}
+	data, kept, err := Update(path, base, m)
 	if err != nil {
-		return fmt.Errorf("%s: %v", path, err)
+		return false, fmt.Errorf("%s: %v", path, err)
 	}
 	// Check what we write reads back before it replaces anything.
 	if _, err := Parse(path, data); err != nil {
-		return fmt.Errorf("refusing to save an invalid method: %v", err)
+		return false, fmt.Errorf("refusing to save an invalid method: %v", err)
 	}
-	return WriteAtomic(path, data)
+	return kept, WriteAtomic(path, data)
 }
 
 // WriteAtomic writes data to path without ever leaving a half-written
