@@ -93,14 +93,15 @@ func modelKind(kind string) model.ColumnKind {
 }
 
 // Describe is a short description of the column for screens and sheets,
-// e.g. "packed, 2 m × 2 mm, 165 µm particles, β 15".
+// e.g. "packed 2 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 15)";
+// a wall-coated column is "30 m × 0.25 mm × 0.25 µm".
 func (c Column) Describe() string {
 	switch c.Kind {
 	case "packed":
-		return fmt.Sprintf("packed, %s m × %s mm, %s µm particles, porosity %s, phase ratio %s",
+		return fmt.Sprintf("packed %s m × %s mm (%s µm particles, porosity %s, phase ratio %s)",
 			fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.ParticleUM), fmtNum(c.Porosity), fmtNum(c.PhaseRatio))
 	case "porous-layer":
-		return fmt.Sprintf("porous-layer, %s m × %s mm × %s µm layer", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
+		return fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
 	}
 	return fmt.Sprintf("%s m × %s mm × %s µm", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
 }
