@@ -42,9 +42,9 @@ type CompoundFit struct {
 
 // Report is a whole calibration.
 type Report struct {
-	Compounds         []CompoundFit
-	DiameterMM        float64 // effective internal diameter used
-	DiameterFitted    bool
+	Compounds      []CompoundFit
+	DiameterMM     float64 // effective internal diameter used
+	DiameterFitted bool
 	// ParticleUM is the packed column's effective particle size used, fitted
 	// from the holdup times in place of the diameter (MODEL.md §10).
 	ParticleUM     float64
@@ -53,7 +53,7 @@ type Report struct {
 	// from the fitted diameter (exact annulus), for a packed column it is
 	// the given one (holdup times do not tell it; it and ΔS are one
 	// parameter, ΔS − R ln β).
-	PhaseRatio float64
+	PhaseRatio        float64
 	PlateHeightFactor float64
 	PlateFitted       bool
 	Warnings          []string
