@@ -434,7 +434,7 @@ func Decode(b []byte) (*File, error) {
 		}
 		if f.NumRecs > 0 {
 			last := l.begin + int64(f.NumRecs-1)*recSize + int64(l.n)*sz
-			if l.begin < 0 || recSize <= 0 || last > int64(len(b)) || last < l.begin {
+			if l.begin < 0 || (recSize <= 0 && l.n > 0) || last > int64(len(b)) || last < l.begin {
 				return nil, &FormatError{Offset: l.begin, Msg: fmt.Sprintf("variable %q: its records run past the end of the file", v.Name)}
 			}
 		}

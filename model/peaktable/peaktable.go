@@ -143,7 +143,7 @@ func Parse(name string, data []byte, cols Columns) (*Table, error) {
 	for i, s := range strings.Split(strings.ReplaceAll(string(data), "\r\n", "\n"), "\n") {
 		s = strings.TrimRight(s, "\r")
 		t := strings.TrimSpace(s)
-		if t == "" || strings.HasPrefix(t, "#") {
+		if t == "" {
 			continue
 		}
 		lines = append(lines, line{n: i + 1, text: s})
@@ -548,7 +548,7 @@ func norm(s string) string {
 // words a header cell may hold, per role (common practice in data-system
 // exports; matched on the lower-cased cell without its unit).
 var roleWords = map[string][]string{
-	"time":   {"retention time", "ret. time", "ret time", "rettime", "r.t.", "rt", "tr", "time", "retention", "apex time", "apex"},
+	"time":   {"retention time", "ret. time", "ret time", "rettime", "r.t.", "rt", "tr", "time", "retention", "apex time", "apex", "retentionszeit"},
 	"name":   {"name", "compound", "component", "peak name", "compound name", "identity", "id name", "analyte"},
 	"area":   {"area", "peak area", "area counts"},
 	"height": {"height", "peak height", "hgt"},
@@ -570,36 +570,69 @@ func stripUnit(h string) string {
 }
 
 func findRole(cells []string, role string) (int, bool) {
-	for _, w := range roleWords[role] {
-		for k, c := range cells {
-			if stripUnit(c) == w {
-				return k, true
-			}
-		}
-	}
-	// a word contained in the cell (e.g. "Retention Time [min]", "Width 50% (s)")
+	best, bestScore := -1, 0
 	for k, c := range cells {
-		h := stripUnit(c)
-		switch role {
-		case "time":
-			if strings.Contains(h, "retention time") || strings.Contains(h, "ret. time") || strings.Contains(h, "ret.time") {
-				return k, true
-			}
-		case "width":
-			if strings.Contains(h, "width") || strings.Contains(h, "fwhm") {
-				return k, true
-			}
-		case "area":
-			if strings.Contains(h, "area") && !strings.Contains(h, "%") {
-				return k, true
-			}
-		case "height":
-			if strings.Contains(h, "height") && !strings.Contains(h, "width") && !strings.Contains(h, "%") {
-				return k, true
-			}
+		if sc := roleScore(stripUnit(c), role); sc > bestScore {
+			best, bestScore = k, sc
 		}
 	}
-	return -1, false
+	return best, best >= 0
+}
+
+// roleScore rates how surely a header cell (lower case, unit removed) names
+// the role: 3 a known word, 2 a telling part, 1 a weak hint, 0 not at all.
+func roleScore(h, role string) int {
+	for _, w := range roleWords[role] {
+		if h == w {
+			return 3
+		}
+	}
+	words := strings.FieldsFunc(h, func(r rune) bool { return r == ' ' || r == '.' || r == '_' || r == '-' || r == '/' })
+	has := func(ws ...string) bool {
+		for _, x := range words {
+			for _, w := range ws {
+				if x == w {
+					return true
+				}
+			}
+		}
+		return false
+	}
+	switch role {
+	case "time":
+		if has("start", "end", "stop", "run", "date", "begin") {
+			return 0
+		}
+		if strings.Contains(h, "retention") || has("rt", "tr", "apex", "ret") {
+			return 2
+		}
+		if has("time", "zeit") {
+			return 1
+		}
+	case "width":
+		if strings.Contains(h, "width") || has("fwhm", "w50", "sigma", "breite") {
+			return 2
+		}
+	case "area":
+		if strings.Contains(h, "%") || has("percent", "pct") {
+			return 0
+		}
+		if has("area", "fläche", "flaeche") {
+			return 2
+		}
+	case "height":
+		if strings.Contains(h, "%") || has("percent", "pct", "width") {
+			return 0
+		}
+		if has("height", "höhe", "hoehe") {
+			return 2
+		}
+	case "name":
+		if has("name", "compound", "component", "analyte", "substance") {
+			return 2
+		}
+	}
+	return 0
 }
 
 // unitOf reads "min" or "s" from a header cell's words, "" when it gives
