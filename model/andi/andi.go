@@ -38,6 +38,9 @@ func (c *Chromatogram) Time(i int) float64 { return (c.DelayS + float64(i)*c.Int
 
 // Read reads an AIA/ANDI chromatography file.
 func Read(path string) (*Chromatogram, error) {
+	if st, err := os.Stat(path); err == nil && !st.Mode().IsRegular() {
+		return nil, fmt.Errorf("%s: not a regular file", path)
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		var pe *os.PathError
@@ -47,6 +50,9 @@ func Read(path string) (*Chromatogram, error) {
 		return nil, fmt.Errorf("%s: cannot read: %v", path, err)
 	}
 	defer f.Close()
+	if st, err := f.Stat(); err != nil || !st.Mode().IsRegular() {
+		return nil, fmt.Errorf("%s: not a regular file", path)
+	}
 	b, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
 	if err != nil {
 		return nil, fmt.Errorf("%s: cannot read: %v", path, err)

@@ -364,6 +364,27 @@ func (v *validator) column(r *rawMethod, m *Method) {
 		m.Column.CapacityNG = v.num("column.capacity_ng", c.CapacityNG, false, 0, positive(1e9), "ng")
 		m.Column.HasCapacity = true
 	}
+	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
+	if c.MaxIsoC != nil {
+		m.Column.MaxIsothermalC = v.num("column.max_isothermal_c", c.MaxIsoC, false, m.Column.MaxTempC, tempRange, "°C")
+		m.Column.HasMaxIsothermal = true
+		if v.err == nil && m.Column.MaxIsothermalC > m.Column.MaxTempC {
+			v.fail("column.max_isothermal_c", "%s °C is above the column maximum %s °C", fmtNum(m.Column.MaxIsothermalC), fmtNum(m.Column.MaxTempC))
+		}
+	}
+	if c.ParticleUM != nil {
+		m.Column.ParticleUM = v.num("column.particle_um", c.ParticleUM, false, 0, positive(1000), "µm")
+		m.Column.HasParticle = true
+	}
+	m.Column.Porosity = v.num("column.porosity", c.Porosity, false, 0.40, bound{lo: 0, hi: 1, loOpen: true, hiOpen: true}, "")
+	m.Column.HasPorosity = c.Porosity != nil
+	if c.PhaseRatio != nil {
+		m.Column.PhaseRatio = v.num("column.phase_ratio", c.PhaseRatio, false, 0, positive(1e5), "")
+		m.Column.HasPhaseRatio = true
+	}
+	m.Column.EddyLambda = v.num("column.eddy_lambda", c.EddyLambda, false, 0.8, nonNegative(10), "")
+	m.Column.ObstructionGamma = v.num("column.obstruction_gamma", c.ObstrGamma, false, 0.7, bound{lo: 0, hi: 2, loOpen: true}, "")
+	m.Column.MobileOmega = v.num("column.mobile_omega", c.MobileOmega, false, 0.1, nonNegative(10), "")
 }
 
 func (v *validator) carrier(r *rawMethod, m *Method) {
@@ -396,7 +417,58 @@ func (v *validator) limits(r *rawMethod, m *Method) {
 	m.Limits.CooldownTauMin = v.num("limits.cooldown_tau_min", l.CooldownTauMin, false, 2.0, positive(600), "min")
 	m.Limits.EquilibrationMin = v.num("limits.equilibration_min", l.EquilibrationMin, false, 0.5, nonNegative(600), "min")
 	m.Limits.MaxInletKPa = v.num("limits.max_inlet_kpa", l.MaxInletKPa, false, 690, positive(100000), "kPa")
+	if l.CoolantC != nil {
+		m.Limits.CoolantC = v.num("limits.coolant_c", l.CoolantC, false, 0, tempRange, "°C")
+		m.Limits.HasCoolant = true
+		if v.err == nil && m.Limits.CoolantC >= m.Limits.AmbientC {
+			v.fail("limits.coolant_c", "%s °C is not below the ambient %s °C (a coolant only helps below ambient)", fmtNum(m.Limits.CoolantC), fmtNum(m.Limits.AmbientC))
+		}
+	}
+	m.Limits.MinInletKPa = v.num("limits.min_inlet_kpa", l.MinInletKPa, false, 0, nonNegative(100000), "kPa")
+	if v.err == nil && m.Limits.MinInletKPa >= m.Limits.MaxInletKPa {
+		v.fail("limits.min_inlet_kpa", "%s kPa is not below max_inlet_kpa %s kPa", fmtNum(m.Limits.MinInletKPa), fmtNum(m.Limits.MaxInletKPa))
+	}
+	m.Limits.MinFlowMLMin = v.num("limits.min_flow_ml_min", l.MinFlowMLMin, false, 0, positive(1000), "mL/min")
+	m.Limits.MaxFlowMLMin = v.num("limits.max_flow_ml_min", l.MaxFlowMLMin, false, 0, positive(1000), "mL/min")
+	if v.err == nil && l.MinFlowMLMin != nil && l.MaxFlowMLMin != nil && m.Limits.MinFlowMLMin >= m.Limits.MaxFlowMLMin {
+		v.fail("limits.min_flow_ml_min", "%s mL/min is not below max_flow_ml_min %s mL/min", fmtNum(m.Limits.MinFlowMLMin), fmtNum(m.Limits.MaxFlowMLMin))
+	}
+	m.Limits.TempStepC = v.num("limits.temp_step_c", l.TempStepC, false, DefaultTempStepC, bound{lo: 0.001, hi: 10}, "°C")
+	m.Limits.RateStepCMin = v.num("limits.rate_step_c_min", l.RateStepCMin, false, DefaultRateStepCMin, bound{lo: 0.001, hi: 10}, "°C/min")
+	m.Limits.HoldStepMin = v.num("limits.hold_step_min", l.HoldStepMin, false, DefaultHoldStepMin, bound{lo: 0.0001, hi: 10}, "min")
+	m.Limits.FlowStepMLMin = v.num("limits.flow_step_ml_min", l.FlowStepMLMin, false, DefaultFlowStepMLMin, bound{lo: 0.0001, hi: 10}, "mL/min")
+	m.Limits.PressureStepKPa = v.num("limits.pressure_step_kpa", l.PressureStepKPa, false, DefaultPressureStepKPa, bound{lo: 0.001, hi: 100}, "kPa")
+	prevAbove := math.Inf(-1)
+	for i, rb := range l.RateBand {
+		base := fmt.Sprintf("limits.rate_band[%d]", i+1)
+		b := RateBand{
+			AboveC:      v.num(base+".above_c", rb.AboveC, true, 0, tempRange, "°C"),
+			MaxRateCMin: v.num(base+".max_rate_c_min", rb.MaxRateCMin, true, 0, positive(2000), "°C/min"),
+		}
+		if v.err == nil && b.AboveC <= prevAbove {
+			v.fail(base+".above_c", "%s °C is not above the previous band's %s °C (list bands from cool to hot)", fmtNum(b.AboveC), fmtNum(prevAbove))
+		}
+		prevAbove = b.AboveC
+		m.Limits.RateBands = append(m.Limits.RateBands, b)
+	}
 }
+
+// Default oven keypad steps ([limits] temp_step_c and the rest).
+const (
+	DefaultTempStepC       = 0.1
+	DefaultRateStepCMin    = 0.1
+	DefaultHoldStepMin     = 0.01
+	DefaultFlowStepMLMin   = 0.01
+	DefaultPressureStepKPa = 0.1
+)
+
+// Defaults of [goal.robust] and [goal] keys of the second wave.
+const (
+	DefaultMinFirstK          = 0.5
+	DefaultPriorDHkJ          = 2.0
+	DefaultPriorDS            = 4.0
+	DefaultRetentionTimeSDMin = 0.002
+)
 
 func (v *validator) oven(r *rawMethod, m *Method) {
 	if r.Oven == nil {
@@ -461,6 +533,31 @@ func (v *validator) goal(r *rawMethod, m *Method) {
 		}
 	}
 	m.Goal.TailMin = v.num("goal.tail_min", g.TailMin, false, 0.5, nonNegative(1000), "min")
+	m.Goal.MinFirstK = v.num("goal.min_first_k", g.MinFirstK, false, DefaultMinFirstK, nonNegative(1000), "")
+	if g.BakeoutC != nil {
+		m.Goal.BakeoutC = v.num("goal.bakeout_c", g.BakeoutC, false, 0, tempRange, "°C")
+		m.Goal.HasBakeout = true
+		if v.err == nil && m.Goal.BakeoutC > m.Column.MaxTempC {
+			v.fail("goal.bakeout_c", "%s °C is above the column maximum %s °C", fmtNum(m.Goal.BakeoutC), fmtNum(m.Column.MaxTempC))
+		}
+	}
+	if g.BakeoutMin != nil && g.BakeoutC == nil {
+		v.fail("goal.bakeout_min", "given without goal.bakeout_c (the bake-out temperature)")
+	}
+	m.Goal.BakeoutMin = v.num("goal.bakeout_min", g.BakeoutMin, false, 0, nonNegative(1000), "min")
+	rb := g.Robust
+	if rb == nil {
+		rb = &rawRobust{}
+	}
+	m.Goal.Robust = Robust{
+		OvenOffsetC:        v.num("goal.robust.oven_offset_c", rb.OvenOffsetC, false, 0, nonNegative(20), "°C"),
+		FlowPct:            v.num("goal.robust.flow_pct", rb.FlowPct, false, 0, bound{lo: 0, hi: 50}, "%"),
+		EfficiencyPct:      v.num("goal.robust.efficiency_pct", rb.EfficiencyPct, false, 0, nonNegative(200), "%"),
+		RetentionSigma:     v.num("goal.robust.retention_sigma", rb.RetentionSigma, false, 0, nonNegative(10), ""),
+		PriorDHkJ:          v.num("goal.robust.prior_dH_kJ_mol", rb.PriorDHkJ, false, DefaultPriorDHkJ, nonNegative(100), "kJ/mol"),
+		PriorDS:            v.num("goal.robust.prior_dS_J_mol_K", rb.PriorDS, false, DefaultPriorDS, nonNegative(500), "J/(mol·K)"),
+		RetentionTimeSDMin: v.num("goal.robust.retention_time_sd_min", rb.RetentionTimeSD, false, DefaultRetentionTimeSDMin, positive(10), "min"),
+	}
 	seen := map[string]bool{}
 	for _, name := range g.Lock {
 		if !ValidLockName(name, m.Goal.Ramps) {
@@ -543,6 +640,12 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 		if rc.IndexTempC != nil {
 			c.IndexTempC = v.num(base+".index_temp_c", rc.IndexTempC, false, 0, tempRange, "°C")
 			c.HasIndexTemp = true
+		}
+		if rc.DHSE != nil || rc.DSSE != nil || rc.DHDSCorr != nil {
+			c.HasSE = true
+			c.DHSE = v.num(base+".dH_se_kJ_mol", rc.DHSE, true, 0, nonNegative(500), "kJ/mol")
+			c.DSSE = v.num(base+".dS_se_J_mol_K", rc.DSSE, true, 0, nonNegative(1000), "J/(mol·K)")
+			c.DHDSCorr = v.num(base+".dH_dS_corr", rc.DHDSCorr, false, 0, bound{lo: -1, hi: 1}, "")
 		}
 		hasThermo := rc.DHkJ != nil || rc.DS != nil
 		if hasThermo || rc.RetentionIndex == nil {

@@ -99,6 +99,9 @@ func (e *Error) Error() string {
 
 // Read reads a peak table file.
 func Read(path string, cols Columns) (*Table, error) {
+	if st, err := os.Stat(path); err == nil && !st.Mode().IsRegular() {
+		return nil, &Error{File: path, Msg: "not a regular file"}
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		var pe *os.PathError
@@ -108,6 +111,9 @@ func Read(path string, cols Columns) (*Table, error) {
 		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
 	}
 	defer f.Close()
+	if st, err := f.Stat(); err != nil || !st.Mode().IsRegular() {
+		return nil, &Error{File: path, Msg: "not a regular file"}
+	}
 	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
 	if err != nil {
 		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
