@@ -10,6 +10,7 @@ import (
 	"github.com/charmbracelet/bubbles/help"
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
@@ -614,7 +615,8 @@ func (a *App) footerLine(w int) string {
 		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
 		b = append(b, a.keys.ShortHelp()...)
 	}
-	return a.help.ShortHelpView(b)
+	// bubbles/help adds the last item when even its ellipsis does not fit
+	return ansi.Truncate(a.help.ShortHelpView(b), w, "…")
 }
 
 // cancelMsg asks the root to stop the background work.

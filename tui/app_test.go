@@ -1,7 +1,6 @@
 package tui
 
 import (
-	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -11,7 +10,6 @@ import (
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/ansi"
-	"github.com/charmbracelet/x/exp/golden"
 
 	"github.com/rampwise/rampwise/model/methodfile"
 )
@@ -195,26 +193,6 @@ func TestToggleTargetAndEditCompound(t *testing.T) {
 	press(a, "enter", "ctrl+u", "-25.5", "enter")
 	if got := a.Method().Compounds[ci].DHkJ; got != -25.5 {
 		t.Errorf("ΔH %v", got)
-	}
-}
-
-func TestGoldenScreens(t *testing.T) {
-	for _, size := range [][2]int{{80, 24}, {120, 40}} {
-		t.Run(fmt.Sprintf("%dx%d", size[0], size[1]), func(t *testing.T) {
-			a, _ := newApp(t, size[0], size[1])
-			a.name = "demo.toml" // the temporary path differs per run
-			a.refresh()
-			out := screen(a)
-			for i, line := range strings.Split(out, "\n") {
-				if w := ansi.StringWidth(line); w > size[0] {
-					t.Errorf("line %d is %d wide", i, w)
-				}
-			}
-			if n := strings.Count(out, "\n") + 1; n != size[1] {
-				t.Errorf("%d lines, want %d", n, size[1])
-			}
-			golden.RequireEqual(t, []byte(out))
-		})
 	}
 }
 

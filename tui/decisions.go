@@ -130,24 +130,34 @@ func (d *resultDialog) render() {
 	}
 	title := ansi.Truncate(st.Focused.Render("▸optimizer result: ")+state+st.Dim.Render(fmt.Sprintf("  %d evaluations in %.2f s · %s", res.Evaluations, res.Elapsed.Seconds(), chart)), d.w, "…")
 	o := d.after.Oven
-	left := []string{st.TableHead.Render(fmt.Sprintf(" %-6s %9s %8s %9s", "step", "°C/min", "to °C", "hold min"))}
-	left = append(left, fmt.Sprintf(" %-6s %9s %8s %9s", "start", "", fmtNum(o.InitialC, 1, 2), fmtNum(o.InitialHoldMin, 2, 3)))
+	left := []string{st.TableHead.Render(fmt.Sprintf(" %-5s %7s %7s %8s", "step", "°C/min", "to °C", "hold min"))}
+	left = append(left, fmt.Sprintf(" %-5s %7s %7s %8s", "start", "", fmtNum(o.InitialC, 1, 2), fmtNum(o.InitialHoldMin, 2, 3)))
 	for i, r := range o.Ramps {
-		left = append(left, fmt.Sprintf(" %-6d %9s %8s %9s", i+1, fmtNum(r.RateCMin, 1, 2), fmtNum(r.FinalC, 1, 2), fmtNum(r.HoldMin, 2, 3)))
+		left = append(left, fmt.Sprintf(" %-5d %7s %7s %8s", i+1, fmtNum(r.RateCMin, 1, 2), fmtNum(r.FinalC, 1, 2), fmtNum(r.HoldMin, 2, 3)))
 	}
-	lw := 36
-	rw := d.w - lw - 1
+	lw := 31
+	rw := d.w - lw - 2
 	now := d.sh.res
 	cell := func(s string, n int) string { return padRight(ansi.Truncate(s, n, "…"), n) }
-	half := (rw - 11) / 2
+	half := min(20, (rw-12)/2)
 	row := func(label, a, b string) string {
 		return st.Label.Render(fmt.Sprintf("%-11s", label)) + st.Value.Render(cell(a, half)+" "+cell(b, half))
 	}
+	target := d.sh.method.Goal.MinResolution
+	rs := func(r *model.Result) string {
+		if r.Critical < 0 {
+			return "no counted pair"
+		}
+		if r.MinResolution < target {
+			return fmt.Sprintf("%.2f ✗", r.MinResolution)
+		}
+		return fmt.Sprintf("%.2f ✓", r.MinResolution)
+	}
 	right := []string{
-		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
+		st.TableHead.Render(fmt.Sprintf("%-11s", "")+cell("now", half)+" "+cell("optimized", half)),
 		row("run time", fmt.Sprintf("%.2f min", now.RunTime/60), fmt.Sprintf("%.2f min", d.afterR.RunTime/60)),
 		row("cycle time", fmt.Sprintf("%.2f min", now.CycleTime/60), fmt.Sprintf("%.2f min", d.afterR.CycleTime/60)),
-		row("min Rs", rsText(d.sh, d.sh.sys, now), rsText(d.sh, d.sh.sys, &d.afterR)),
+		row("min Rs", rs(now), rs(&d.afterR)),
 		row("ramps", fmt.Sprint(len(d.sh.method.Oven.Ramps)), fmt.Sprint(len(o.Ramps))),
 	}
 	var body []string
@@ -159,7 +169,10 @@ func (d *resultDialog) render() {
 		if i < len(right) {
 			r = right[i]
 		}
-		body = append(body, ansi.Truncate(padRight(l, lw)+" "+r, d.w, "…"))
+		body = append(body, ansi.Truncate(padRight(l, lw)+"  "+r, d.w, "…"))
+	}
+	for _, l := range wrap(" critical pair now "+rsText(d.sh, d.sh.sys, now)+" · optimized "+rsText(d.sh, d.sh.sys, &d.afterR), d.w) {
+		body = append(body, st.Info.Render(l))
 	}
 	if !res.Feasible() {
 		for _, l := range wrap(" why: "+res.Explanation, d.w) {
@@ -271,10 +284,10 @@ func (d *fitDialog) render() {
 	st := d.sh.st
 	rep := d.fit.rep
 	m := rep.Method
-	title := dialogTitle(st, "calibration", fmt.Sprintf("  diameter %s mm · plate-height factor %s · min Rs now %s → fitted %s",
-		fmtNum(m.Column.DiameterMM, 3, 4), fmtNum(m.Column.PlateHeight, 2, 3), rsShort(d.sh.res), rsShort(&d.fit.sim)), d.w)
-	rsLine := st.Info.Render(ansi.Truncate(" taking it gives min Rs "+rsText(d.sh, d.fit.sys, &d.fit.sim)+fmt.Sprintf(" (target %.2f) · ⚠ large ± (over %g kJ/mol or %g J/(mol·K))", m.Goal.MinResolution, largeErrDH, largeErrDS), d.w, "…"))
-	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s %-7s %9s %-7s %4s %8s", "compound (elution order)", "ΔH kJ/mol", " ±", "ΔS J/molK", " ±", "runs", "rms min"), d.w, "…"))
+	title := dialogTitle(st, "calibration", fmt.Sprintf("  in elution order · diameter %s mm · plate-height factor %s · ⚠ large ± (over %g kJ/mol or %g J/(mol·K))",
+		fmtNum(m.Column.DiameterMM, 3, 4), fmtNum(m.Column.PlateHeight, 2, 3), largeErrDH, largeErrDS), d.w)
+	rsLine := st.Info.Render(ansi.Truncate(fmt.Sprintf(" min Rs now %s → %s with the fitted values (target %.2f)", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim), m.Goal.MinResolution), d.w, "…"))
+	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH kJ/mol", "±", "ΔS J/molK", "±", "runs", "rms min"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
@@ -372,7 +385,7 @@ func (d *rankingDialog) choose(o optimizer.Outcome) tea.Msg {
 func (d *rankingDialog) render() {
 	st := d.sh.st
 	lines := []string{dialogTitle(st, "column ranking", "  met targets first, fastest first · ↑/↓ choose · enter switches the method to it", d.w)}
-	lines = append(lines, st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-24s %8s %5s %-14s %-15s %6s", "#", "column (L × d × film)", "time min", "Rs", "carrier", "inlet kPa", "max °C"), d.w, "…")))
+	lines = append(lines, st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-24s %8s %5s %-13s %-9s %6s", "#", "column (L × d × film)", "time min", "Rs", "carrier", "inlet kPa", "max °C"), d.w, "…")))
 	rows := d.h - 2
 	first := 0
 	if d.sel >= rows && rows > 0 {
@@ -397,7 +410,7 @@ func (d *rankingDialog) render() {
 			if o.Method.Carrier.Mode == "constant-pressure" {
 				car = fmt.Sprintf("%s kPa const", fmtNum(o.Method.Carrier.InletKPa, 1, 1))
 			}
-			text += fmt.Sprintf("%8s %5.2f %-14s %-15s %6.0f", t, o.Result.Sim.MinResolution, car,
+			text += fmt.Sprintf("%8s %5.2f %-13s %-9s %6.0f", t, o.Result.Sim.MinResolution, car,
 				fmt.Sprintf("%.0f→%.0f", o.InletStart/1000, o.InletEnd/1000), o.MaxTemp-model.ZeroCelsius)
 		}
 		s := st.TableRow
@@ -499,28 +512,27 @@ func (d *sweepDialog) render() {
 				continue
 			}
 			x, y := xOf(p.Value), yOf(v, trace.top)
-			if px >= 0 {
+			switch {
+			case trace.layer == layerRun && px >= 0:
+				// dotted, so that it differs from min Rs without colour
+				for xx := px + 1; xx <= x; xx++ {
+					if xx%2 == 0 {
+						cv.Set(xx, py+(y-py)*(xx-px)/max(1, x-px), trace.layer)
+					}
+				}
+			case px >= 0:
 				cv.Line(px, py, x, y, trace.layer)
-			} else {
+			default:
 				cv.Set(x, y, trace.layer)
 			}
 			px, py = x, y
 		}
 	}
-	// ticks: a label on every other row, values at the row's middle
-	tick := func(r int, top float64) string {
-		if r%2 != 0 && r != ph-1 {
-			return ""
-		}
-		v := top * (1 - (float64(r)*4+1.5)/float64(dh-1))
-		if r == ph-1 {
-			v = 0
-		}
-		return fmtTick(math.Max(0, v))
-	}
+	rsTicks, runTicks := tickRows(ymax, ph), tickRows(tmax, ph)
+	tick := func(r int, ticks map[int]string) string { return ticks[r] }
 	for r := 0; r < ph; r++ {
 		var b strings.Builder
-		b.WriteString(st.Peak.Render(fmt.Sprintf("%*s", lw-1, tick(r, ymax))) + st.Axis.Render("┤"))
+		b.WriteString(st.Peak.Render(fmt.Sprintf("%*s", lw-1, tick(r, rsTicks))) + st.Axis.Render("┤"))
 		for col := 0; col < pw; col++ {
 			c := cv.At(col, r)
 			s := string(c.Rune)
@@ -534,7 +546,7 @@ func (d *sweepDialog) render() {
 			}
 			b.WriteString(s)
 		}
-		b.WriteString(st.Axis.Render("├") + st.Label.Render(tick(r, tmax)))
+		b.WriteString(st.Axis.Render("├") + st.Label.Render(tick(r, runTicks)))
 		lines = append(lines, ansi.Truncate(b.String(), d.w, ""))
 	}
 	lines = append(lines, st.Axis.Render(strings.Repeat(" ", lw)+valueAxis(lo, hi, pw, sv.unit)))
@@ -545,9 +557,26 @@ func (d *sweepDialog) render() {
 			break
 		}
 	}
-	lines = append(lines, ansi.Truncate(st.Peak.Render(" left: min Rs")+st.Label.Render(" · right: run time (min)")+
+	lines = append(lines, ansi.Truncate(st.Peak.Render(" left: min Rs (solid)")+st.Label.Render(" · right: run time, min (dotted)")+
 		st.Dim.Render(fmt.Sprintf(" · %s %s–%s %s, within the method's limits%s", sv.label, trimNum(round(lo, 3)), trimNum(round(hi, 3)), sv.unit, inert(reason))), d.w, "…"))
 	d.lines = fill(lines, d.h)
+}
+
+// tickRows labels the rows of an axis from 0 (bottom row) to top (top
+// row) at round values, about one every other row.
+func tickRows(top float64, rows int) map[int]string {
+	out := map[int]string{}
+	if rows < 2 || !(top > 0) {
+		return out
+	}
+	step := niceStep(top / math.Max(1, float64(rows)/2))
+	for v := 0.0; v <= top+1e-9; v += step {
+		r := rows - 1 - int(math.Round(v/top*float64(rows-1)))
+		if _, taken := out[r]; !taken {
+			out[r] = trimNum(round(v, decimalsFor(step)))
+		}
+	}
+	return out
 }
 
 // niceCeil rounds x up to 1, 2 or 5 times a power of ten.

@@ -219,7 +219,7 @@ type helpDialog struct {
 	page   int
 	w, h   int
 	blocks []string // one per group: title and keys
-	body   []string // all lines, before paging
+	pages  [][]string
 	lines  []string
 }
 
@@ -293,7 +293,7 @@ func (d *helpDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 		case key.Matches(km, d.keys.Reject):
 			d.sh.send(closeMsg{})
 		case key.Matches(km, d.keys.PageDown):
-			if (d.page+1)*d.pageRows() < len(d.body) {
+			if d.page+1 < len(d.pages) {
 				d.page++
 			}
 		case key.Matches(km, d.keys.PageUp):
@@ -308,15 +308,21 @@ func (d *helpDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 
 func (d *helpDialog) pageRows() int { return max(1, d.h-1) }
 
-// layout packs the blocks left to right in rows of columns.
+// layout packs the blocks left to right in rows of columns, and the rows
+// into pages, a row never split unless it is taller than a page.
 func (d *helpDialog) layout() {
 	const gap = 3
-	var rows []string
+	var rows [][]string
 	var row []string
 	used := 0
 	flush := func() {
 		if len(row) > 0 {
-			rows = append(rows, lipgloss.JoinHorizontal(lipgloss.Top, row...))
+			joined := lipgloss.JoinHorizontal(lipgloss.Top, row...)
+			var lines []string
+			for _, l := range strings.Split(joined, "\n") {
+				lines = append(lines, ansi.Truncate(strings.TrimRight(l, " "), d.w, "…"))
+			}
+			rows = append(rows, lines)
 			row, used = nil, 0
 		}
 	}
@@ -329,30 +335,40 @@ func (d *helpDialog) layout() {
 		used += bw
 	}
 	flush()
-	d.body = nil
-	for i, r := range rows {
-		if i > 0 {
-			d.body = append(d.body, "")
+	n := d.pageRows()
+	d.pages = nil
+	var page []string
+	for _, r := range rows {
+		if len(page) > 0 && len(page)+1+len(r) > n {
+			d.pages = append(d.pages, page)
+			page = nil
 		}
-		for _, l := range strings.Split(r, "\n") {
-			d.body = append(d.body, ansi.Truncate(strings.TrimRight(l, " "), d.w, "…"))
+		if len(page) > 0 {
+			page = append(page, "")
+		}
+		page = append(page, r...)
+		for len(page) > n {
+			d.pages = append(d.pages, page[:n])
+			page = append([]string(nil), page[n:]...)
 		}
 	}
-	if d.page*d.pageRows() >= len(d.body) {
+	if len(page) > 0 {
+		d.pages = append(d.pages, page)
+	}
+	if d.page >= len(d.pages) {
 		d.page = 0
 	}
 }
 
 func (d *helpDialog) render() {
 	st := d.sh.st
-	n := d.pageRows()
-	pages := (len(d.body) + n - 1) / n
 	extra := "  esc or ? closes"
-	if pages > 1 {
-		extra = fmt.Sprintf("  page %d of %d · pgdn/pgup turn · esc or ? closes", d.page+1, pages)
+	if len(d.pages) > 1 {
+		extra = fmt.Sprintf("  page %d of %d · pgdn/pgup turn · esc or ? closes", d.page+1, len(d.pages))
 	}
 	lines := []string{dialogTitle(st, "keys", extra, d.w)}
-	from := d.page * n
-	lines = append(lines, d.body[from:min(from+n, len(d.body))]...)
+	if d.page < len(d.pages) {
+		lines = append(lines, d.pages[d.page]...)
+	}
 	d.lines = fill(lines, d.h)
 }

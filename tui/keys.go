@@ -38,14 +38,14 @@ func (k GlobalKeys) ShortHelp() []key.Binding {
 // FullHelp groups the global keys for the key list.
 func (k GlobalKeys) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
+		{k.Help, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
 		{k.Optimize, k.Fit, k.Compare, k.Export},
 		{k.Save, k.SaveAs, k.Undo, k.Redo},
-		{k.Focus, k.FocusBack, k.Help, k.Quit, k.Interrupt},
 	}
 }
 
 // globalTitles name the groups of GlobalKeys.FullHelp.
-var globalTitles = []string{"work", "file and history", "moving about"}
+var globalTitles = []string{"everywhere", "work", "file and history"}
 
 // FieldKeys edit a list of values (the program and the settings).
 type FieldKeys struct {
@@ -93,7 +93,8 @@ func (k FieldKeys) ShortHelp() []key.Binding {
 
 // FullHelp is every key of a field list.
 func (k FieldKeys) FullHelp() [][]key.Binding {
-	b := []key.Binding{k.Prev, k.Next, k.Up, k.Down, k.BigUp, k.BigDown, k.Type}
+	// the second key of each pair (→, -, [) is named with the first
+	b := []key.Binding{k.Prev, k.Up, k.BigUp, k.Type}
 	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep} {
 		if len(x.Keys()) > 0 {
 			b = append(b, x)
@@ -120,7 +121,7 @@ func DefaultChartKeys() ChartKeys {
 
 func (k ChartKeys) ShortHelp() []key.Binding { return []key.Binding{k.ZoomIn, k.Left, k.Reset} }
 func (k ChartKeys) FullHelp() [][]key.Binding {
-	return [][]key.Binding{{k.ZoomIn, k.ZoomOut, k.Left, k.Right, k.Reset}}
+	return [][]key.Binding{{k.ZoomIn, k.Left, k.Reset}}
 }
 
 // PeakKeys move in the peak table and edit compounds.
@@ -142,7 +143,7 @@ func DefaultPeakKeys() PeakKeys {
 
 func (k PeakKeys) ShortHelp() []key.Binding { return []key.Binding{k.Up, k.Column, k.Toggle, k.Type} }
 func (k PeakKeys) FullHelp() [][]key.Binding {
-	return [][]key.Binding{{k.Up, k.Down, k.Column, k.ColumnBack, k.Toggle, k.Type}}
+	return [][]key.Binding{{k.Up, k.Column, k.Toggle, k.Type}}
 }
 
 // ListKeys scroll a dialog's list and answer it.
@@ -162,7 +163,7 @@ func (k ListKeys) ShortHelp() []key.Binding {
 
 func (k ListKeys) FullHelp() [][]key.Binding {
 	var b []key.Binding
-	for _, x := range []key.Binding{k.Accept, k.Reject, k.Toggle, k.Up, k.Down, k.PageUp, k.PageDown} {
+	for _, x := range []key.Binding{k.Accept, k.Reject, k.Toggle, k.Up, k.PageDown} {
 		if len(x.Keys()) > 0 {
 			b = append(b, x)
 		}

@@ -155,7 +155,7 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 			return nil
 		}
 		a.open(newSweepDialog(&a.sh, v.spec, v.pts))
-		a.say(msgInfo, "window diagram of %s: minimum resolution and run time across %s–%s %s · esc closes", v.spec.label, trimNum(v.spec.lo), trimNum(v.spec.hi), v.spec.unit)
+		a.say(msgInfo, "window diagram of %s: minimum resolution and run time across %s–%s %s · esc closes", v.spec.label, trimNum(round(v.spec.lo, 3)), trimNum(round(v.spec.hi, 3)), v.spec.unit)
 	}
 	return nil
 }
@@ -483,7 +483,7 @@ func (a *App) startSweep(spec sweepSpec) tea.Cmd {
 		return nil
 	}
 	if !(spec.hi > spec.lo) {
-		a.say(msgError, "sweep: %s has no room to vary within the limits (%s–%s %s)", spec.label, trimNum(spec.lo), trimNum(spec.hi), spec.unit)
+		a.say(msgError, "sweep: %s has no room to vary within the limits (%s–%s %s)", spec.label, trimNum(round(spec.lo, 3)), trimNum(round(spec.hi, 3)), spec.unit)
 		return nil
 	}
 	values := sortedUnique(append(sweep.Steps(spec.lo, spec.hi, sweepPoints), spec.current))
