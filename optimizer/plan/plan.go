@@ -217,9 +217,9 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 
 	// done: a measured run meets the target, and no robust program is
 	// clearly faster
-	if runs != nil {
-		for i := len(runs.Runs) - 1; i >= 0; i-- {
-			r := &runs.Runs[i]
+	if st.runs != nil {
+		for i := len(st.runs.Runs) - 1; i >= 0; i-- {
+			r := &st.runs.Runs[i]
 			j := st.judge(r)
 			if !j.met {
 				continue
@@ -308,6 +308,7 @@ type state struct {
 	cov       []cov2
 	sigmaT    float64 // s
 	fit       *calibrate.Report
+	runs      *methodfile.Runs // as fitted (assigned names filled in)
 	estimated []string
 	corners   []*model.System
 	cornerTag []string
@@ -340,20 +341,25 @@ func newState(m *methodfile.Method, runs *methodfile.Runs) (*state, error) {
 	st.fit = rep
 	st.m = rep.Method.Clone()
 	st.m.Compounds = st.m.Compounds[:len(m.Compounds)] // compounds only in the runs are not planned for
+	if rep.Runs != nil {
+		runs = rep.Runs // with the assigned names of unnamed peaks
+	}
+	st.runs = runs
 	fitted := map[string]bool{}
-	var ssr, dof float64
 	for _, c := range rep.Compounds {
 		fitted[c.Name] = c.Fitted
-		if c.Fitted && c.Runs > 2 {
-			ssr += c.RMS * c.RMS * float64(c.Runs) * 3600
-			dof += float64(c.Runs - 2)
+	}
+	excluded := map[[2]string]bool{}
+	for _, o := range rep.Outliers {
+		if o.Excluded {
+			excluded[[2]string{o.Run, o.Compound}] = true
 		}
 	}
-	// pooled residual SD (s); with few degrees of freedom never below
-	// the assumed retention-time SD
-	if dof > 0 {
-		pooled := math.Sqrt(ssr / dof)
-		if dof >= 10 || pooled > st.sigmaT {
+	// the fit's pooled residual SD; with few degrees of freedom never
+	// below the assumed retention-time SD
+	if !rep.SDAssumed && rep.DOF > 0 && rep.ResidualSDMin > 0 {
+		pooled := rep.ResidualSDMin * 60
+		if rep.DOF >= 10 || pooled > st.sigmaT {
 			st.sigmaT = pooled
 		}
 	}
@@ -369,7 +375,7 @@ func newState(m *methodfile.Method, runs *methodfile.Runs) (*state, error) {
 	}
 	for ri := range runs.Runs {
 		for name, t := range runs.Runs[ri].Retention {
-			if i, ok := index[name]; ok {
+			if i, ok := index[name]; ok && !excluded[[2]string{runs.Runs[ri].Name, name}] {
 				seen[i] = append(seen[i], obs{ri, t * 60})
 			}
 		}
