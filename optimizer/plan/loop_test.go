@@ -165,7 +165,8 @@ func rampRsOf(t testing.TB, m *methodfile.Method, o methodfile.Oven) float64 {
 // TestLoopFewestInjections plays the planning loop on random samples whose
 // parameters the planner never sees and compares it with the three-ramps
 // habit on the same samples. The sample count is small by default; set
-// RAMPWISE_PLAN_STUDY=N for the full study (N samples).
+// RAMPWISE_PLAN_STUDY=N for the full study (N samples) and
+// RAMPWISE_PLAN_SEED for samples other than the default seeds.
 func TestLoopFewestInjections(t *testing.T) {
 	if testing.Short() {
 		t.Skip("plays the whole loop")
@@ -178,12 +179,20 @@ func TestLoopFewestInjections(t *testing.T) {
 		}
 		n = v
 	}
+	base := uint64(1000)
+	if s := os.Getenv("RAMPWISE_PLAN_SEED"); s != "" {
+		v, err := strconv.ParseUint(s, 10, 64)
+		if err != nil {
+			t.Fatalf("RAMPWISE_PLAN_SEED=%q: want a number", s)
+		}
+		base = v
+	}
 	const maxInjections = 6
 	var planInj, habitInj []float64
 	planFail, habitFail, planUnverified, habitUnverified, notDone := 0, 0, 0, 0, 0
 	var ratio []float64
 	for i := 0; i < n; i++ {
-		seed := uint64(1000 + i)
+		seed := base + uint64(i)
 		p := playPlan(t, seed, maxInjections, true)
 		h := playHabit(t, seed, maxInjections)
 		t.Logf("sample %d: plan %d injections (verified %v, failed checks %d, run %.2f min, true Rs %.3f, done %v); habit %d (verified %v, failed checks %d, run %.2f min)",

@@ -63,11 +63,14 @@ type Settings struct {
 	MaxMargin float64
 	// Slower: a robust program is also advised for verification when it
 	// is at most (1 + Slower) times as long as the program optimized at
-	// the bare target (then a scouting run would save little). Default 0.1.
+	// the bare target (then a scouting run would save little). Default 0.25.
 	Slower float64
 	// MarginGain: a robust program is advised for verification when
 	// knowing the parameters exactly would lower the resolution its margin
-	// needs by at most this fraction of the target. Default 0.1.
+	// needs by at most this fraction of the target. Default 0.2: the margin
+	// still covers the parameters' uncertainty in full, so a larger value
+	// trades a slower verified program for fewer injections, never a
+	// likelier failed verification.
 	MarginGain float64
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
@@ -88,10 +91,10 @@ func (s Settings) withDefaults() Settings {
 		s.MaxMargin = 1
 	}
 	if s.MarginGain <= 0 {
-		s.MarginGain = 0.1
+		s.MarginGain = 0.2
 	}
 	if s.Slower <= 0 {
-		s.Slower = 0.1
+		s.Slower = 0.25
 	}
 	if s.Tolerance <= 0 {
 		s.Tolerance = 0.5
