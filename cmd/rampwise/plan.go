@@ -115,16 +115,16 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	if *asJSON {
 		j := planJSON{
 			Action: string(p.Action), Program: programToJSON(p.Oven), Carrier: carrierToJSON(p.Carrier),
-			Reason: p.Reason, ExpectedMinResolution: finiteOrNil(p.ExpectedMinResolution), ExpectedSD: finiteOrNil(p.ExpectedSD),
+			Reason: p.Reason, ExpectedMinResolution: finiteOrNil(round(p.ExpectedMinResolution, 3)), ExpectedSD: finiteOrNil(round(p.ExpectedSD, 3)),
 			TargetResolution: m.Goal.MinResolution, CriticalPair: []string{}, Optimized: programToJSON(p.Optimized),
 			VerifiedBy: p.VerifiedBy, EstimatedFromFormula: append([]string{}, p.Estimated...),
-			RetentionTimeSDMin: p.RetentionSDMin, RunName: runName,
+			RetentionTimeSDMin: round(p.RetentionSDMin, 5), RunName: runName,
 		}
 		if p.Action == plan.Inject {
-			j.ExpectedSDAfter = finiteOrNil(p.SDAfter)
+			j.ExpectedSDAfter = finiteOrNil(round(p.SDAfter, 3))
 		}
 		if p.Action == plan.Done {
-			j.MeasuredMinResolution = finiteOrNil(p.MeasuredMinResolution)
+			j.MeasuredMinResolution = finiteOrNil(round(p.MeasuredMinResolution, 3))
 		}
 		if p.CriticalPair[0] != "" {
 			j.CriticalPair = p.CriticalPair[:]

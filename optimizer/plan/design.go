@@ -10,6 +10,10 @@ import (
 
 var debugDesign func(methodfile.Oven, float64, float64)
 
+// maxScoutMin is the longest scouting run considered, min: an injection
+// is meant to cost 30–60 minutes of instrument time, not hours.
+const maxScoutMin = 90
+
 // designChoice is the chosen scouting run.
 type designChoice struct {
 	oven    methodfile.Oven
@@ -103,6 +107,9 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 	}
 	for _, cand := range cands {
 		prog := methodfile.ProgramToModel(cand)
+		if prog.RunTime() > maxScoutMin*60 {
+			continue
+		}
 		if err := s.eval(prog); err != nil {
 			continue
 		}

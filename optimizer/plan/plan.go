@@ -167,21 +167,25 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	if nominal.ok {
 		robust, robustOven = nominal, nomOven
 	} else if feasible {
-		extra, deficit := 0.0, nominal.deficit
-		for iter := 0; iter < 6 && ctx.Err() == nil; iter++ {
-			extra += deficit + 0.01
+		// raise by the shortfall; when the raised target cannot be met
+		// within the limits, halve the raise
+		lo, step := 0.0, nominal.deficit+0.01
+		for iter := 0; iter < 8 && ctx.Err() == nil && step >= 0.01; iter++ {
+			extra := lo + step
 			if extra > s.MaxMargin*target {
-				break
+				step = s.MaxMargin*target - lo
+				if step < 0.01 {
+					break
+				}
+				continue
 			}
 			oven, ok, err := st.optimize(ctx, target+extra, s.Optimizer)
 			if err != nil {
 				return nil, err
 			}
 			if !ok {
-				if debugEval != nil {
-					debugEval(fmt.Sprintf("raise %.3f infeasible", extra))
-				}
-				break
+				step /= 2
+				continue
 			}
 			ev, err := st.evaluate(oven, z, s.WidthScatter)
 			if err != nil {
@@ -196,8 +200,8 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				break
 			}
 			// a raised target may lead where the parameters are less
-			// known: go up by at most half the shortfall at a time
-			deficit = math.Min(ev.deficit, 0.5*(deficit+0.01))
+			// known: never raise by more than the last step
+			lo, step = extra, math.Min(ev.deficit+0.01, step)
 		}
 	}
 	best, bestOven := nominal, nomOven
@@ -250,12 +254,12 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 
 	// what knowing the parameters exactly would take off the margin
 	gain := func(e *evaluation) float64 {
-		return z * (e.sd - math.Sqrt(math.Max(0, e.sd*e.sd-e.sp*e.sp)))
+		return e.z * (e.sd - math.Sqrt(math.Max(0, e.sd*e.sd-e.sp*e.sp)))
 	}
 	if robust != nil && (gain(robust) <= s.MarginGain*target || st.duration(robustOven) <= (1+s.Slower)*st.duration(nomOven)) {
 		p.Action, p.Oven = Verify, robustOven
-		p.Reason = fmt.Sprintf("the optimized program's predicted min Rs %.2f (%s) clears the target %.2f by %.1f standard deviations (± %.2f, of which the parameters ± %.2f)%s: inject it once to verify",
-			robust.minRs, strings.Join(robust.pair[:], " / "), target, z, robust.sd, robust.sp, robust.cornerText)
+		p.Reason = fmt.Sprintf("the optimized program's predicted min Rs %.2f (%s) clears the target %.2f by %.1f standard deviations (± %.2f, of which the parameters ± %.2f; z = %.1f raised for %d pairs near the target)%s: inject it once to verify",
+			robust.minRs, strings.Join(robust.pair[:], " / "), target, robust.z, robust.sd, robust.sp, z, robust.near, robust.cornerText)
 		if robust != nominal {
 			p.Reason += fmt.Sprintf("; it is %.0f %% longer than the program that only just meets the target, the price of the margin",
 				100*(st.duration(robustOven)/st.duration(nomOven)-1))
@@ -283,11 +287,11 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		return p, nil
 	}
 	p.Action, p.Oven, p.SDAfter = Inject, d.oven, d.sdAfter
-	why := fmt.Sprintf("the predicted min Rs %.2f of the optimized program is uncertain by ± %.2f (%s): it must clear the target %.2f by %.1f standard deviations",
-		best.minRs, best.sd, strings.Join(best.pair[:], " / "), target, z)
+	why := fmt.Sprintf("the predicted min Rs %.2f of the optimized program is uncertain by %s (%s): it must clear the target %.2f by %.1f standard deviations",
+		best.minRs, pm(best.sd), strings.Join(best.pair[:], " / "), target, z)
 	if !best.feasible {
-		why = fmt.Sprintf("with the current parameters no program reaches the target %.2f (best min Rs %.2f ± %.2f, %s), but they are uncertain",
-			target, best.minRs, best.sd, strings.Join(best.pair[:], " / "))
+		why = fmt.Sprintf("with the current parameters no program reaches the target %.2f (best min Rs %.2f %s, %s), but they are uncertain",
+			target, best.minRs, pm(best.sd), strings.Join(best.pair[:], " / "))
 	} else if best.sdOK && best.cornerText != "" {
 		why = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f does not hold at every instrument tolerance%s", best.minRs, best.sd, best.cornerText)
 	}
@@ -611,6 +615,8 @@ type evaluation struct {
 	// lowestParam is the lowest Rs − z·SD with the parameters' SD alone
 	// (for a program already measured)
 	lowestParam float64
+	z           float64 // the z used, raised for the number of pairs near the target
+	near        int     // that number
 }
 
 // cannotHelp: the best program misses the target by more than the
@@ -638,6 +644,8 @@ func (st *state) evaluate(o methodfile.Oven, z, widthScatter float64) (*evaluati
 	}
 	sort.Slice(order, func(a, b int) bool { return s.t[order[a]] < s.t[order[b]] })
 	ev := &evaluation{minRs: math.NaN(), lowest: math.Inf(1), lowestParam: math.Inf(1)}
+	type pairSD struct{ rs, sd, sp float64 }
+	var ps []pairSD
 	for k := 0; k+1 < len(order); k++ {
 		a, b := order[k], order[k+1]
 		if !st.sys.Compounds[a].Target && !st.sys.Compounds[b].Target {
@@ -646,16 +654,32 @@ func (st *state) evaluate(o methodfile.Oven, z, widthScatter float64) (*evaluati
 		rs, ga, gb := s.resolution(a, b)
 		sp := rsSD(ga, gb, st.cov[a], st.cov[b])
 		sd := math.Hypot(sp, st.measurementSD(rs, a, b, widthScatter))
-		if debugEval != nil && rs < 1.7 && false {
-			debugEval(fmt.Sprintf("%s/%s rs %.3f sp %.3f sd %.3f ta %.3f tb %.3f sig %.4f %.4f ga %v gb %v ca %v cb %v", st.sys.Compounds[a].Name, st.sys.Compounds[b].Name, rs, sp, sd, s.t[a]/60, s.t[b]/60, s.sigma[a]/60, s.sigma[b]/60, ga, gb, st.cov[a], st.cov[b]))
-		}
-		ev.lowestParam = math.Min(ev.lowestParam, rs-z*sp)
-		if low := rs - z*sd; low < ev.lowest {
-			ev.lowest, ev.sd, ev.sp = low, sd, sp
-		}
+		ps = append(ps, pairSD{rs, sd, sp})
 		if math.IsNaN(ev.minRs) || rs < ev.minRs {
 			ev.minRs = rs
 			ev.pair = [2]string{st.sys.Compounds[a].Name, st.sys.Compounds[b].Name}
+		}
+	}
+	// Several pairs near the target each get a chance to fail: the bound
+	// uses z raised for their number (Šidák: each pair at 1 − (1 − α)^(1/k)
+	// with α = Φ(−z)), counting the pairs within four SDs of the target.
+	k := 0
+	for _, p := range ps {
+		if p.rs-4*p.sd < target {
+			k++
+		}
+	}
+	zk := z
+	if k > 1 {
+		alpha := 0.5 * math.Erfc(z/math.Sqrt2)
+		each := -math.Expm1(math.Log1p(-alpha) / float64(k))
+		zk = math.Sqrt2 * math.Erfinv(1-2*each)
+	}
+	ev.z, ev.near = zk, k
+	for _, p := range ps {
+		ev.lowestParam = math.Min(ev.lowestParam, p.rs-zk*p.sp)
+		if low := p.rs - zk*p.sd; low < ev.lowest {
+			ev.lowest, ev.sd, ev.sp = low, p.sd, p.sp
 		}
 	}
 	if math.IsNaN(ev.minRs) {
@@ -707,4 +731,13 @@ func (st *state) measurementSD(rs float64, a, b int, widthScatter float64) float
 	w := rs * widthScatter * math.Hypot(sa, sb) / (sa + sb)
 	t := math.Sqrt2 * st.sigmaT / (2 * (sa + sb))
 	return math.Hypot(w, t)
+}
+
+// pm is "± x" for a resolution SD, in words when it is so large that the
+// figure means nothing (rough starting parameters).
+func pm(sd float64) string {
+	if sd > 10 {
+		return "± more than 10 (the parameters are only rough)"
+	}
+	return fmt.Sprintf("± %.2f", sd)
 }
