@@ -27,7 +27,7 @@ Says what to inject next so that the next injection is the last:
            most reduces the summed variance of those resolutions);
   verify   the optimized program, when its predicted minimum resolution
            clears the target by z standard deviations (z = [goal.robust]
-           retention_sigma, at least 2; parameters and measurement) and holds
+           retention_sigma, at least 3; parameters and measurement) and holds
            at every corner of the [goal.robust] instrument tolerances;
   done     when RUNS already holds a run that meets the target as measured.
 

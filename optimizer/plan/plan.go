@@ -55,7 +55,8 @@ type Settings struct {
 	WidthScatter float64
 	// MinZ is the least number of standard deviations the predicted
 	// resolution must clear the target by before a verification run is
-	// advised; [goal.robust] retention_sigma raises it. Default 2.
+	// advised; [goal.robust] retention_sigma raises it. Default 3 (a
+	// failed verification costs an injection: about 1 in 700 per pair).
 	MinZ float64
 	// MaxMargin is how far the planner may raise the optimizer's target
 	// above the goal to make room for the margin, as a fraction of the
@@ -67,7 +68,7 @@ type Settings struct {
 	Slower float64
 	// MarginGain: a robust program is advised for verification when
 	// knowing the parameters exactly would lower the resolution its margin
-	// needs by at most this fraction of the target. Default 0.2: the margin
+	// needs by at most this fraction of the target. Default 0.3: the margin
 	// still covers the parameters' uncertainty in full, so a larger value
 	// trades a slower verified program for fewer injections, never a
 	// likelier failed verification.
@@ -85,13 +86,13 @@ func (s Settings) withDefaults() Settings {
 		s.WidthScatter = 0.03
 	}
 	if s.MinZ <= 0 {
-		s.MinZ = 2
+		s.MinZ = 3
 	}
 	if s.MaxMargin <= 0 {
 		s.MaxMargin = 1
 	}
 	if s.MarginGain <= 0 {
-		s.MarginGain = 0.2
+		s.MarginGain = 0.3
 	}
 	if s.Slower <= 0 {
 		s.Slower = 0.25
@@ -197,6 +198,33 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			}
 			if ev.ok {
 				robust, robustOven = ev, oven
+				// the least raise that holds: bisect between the last
+				// raise that did not and this one
+				hi := extra
+				for b := 0; b < 3 && hi-lo > 0.02 && ctx.Err() == nil; b++ {
+					mid := (lo + hi) / 2
+					mo, ok, err := st.optimize(ctx, target+mid, s.Optimizer)
+					if err != nil {
+						return nil, err
+					}
+					if !ok {
+						lo = mid
+						continue
+					}
+					me, err := st.evaluate(mo, z, s.WidthScatter)
+					if err != nil {
+						return nil, err
+					}
+					tried = append(tried, mo)
+					if me.ok {
+						hi = mid
+						if st.duration(mo) < st.duration(robustOven) {
+							robust, robustOven = me, mo
+						}
+					} else {
+						lo = mid
+					}
+				}
 				break
 			}
 			// a raised target may lead where the parameters are less
