@@ -8,8 +8,6 @@ import (
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
-var debugDesign func(methodfile.Oven, float64, float64)
-
 // maxScoutMin is the longest scouting run considered, min: an injection
 // is meant to cost 30–60 minutes of instrument time, not hours.
 const maxScoutMin = 90
@@ -128,9 +126,6 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 			}
 		}
 		all = append(all, scored{designChoice{oven: cand, score: score, sdAfter: critSD, pairs: len(pairs)}, prog.RunTime()})
-		if debugDesign != nil {
-			debugDesign(cand, score, critSD)
-		}
 	}
 	if len(all) == 0 {
 		return nil, nil

@@ -193,9 +193,6 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				return nil, err
 			}
 			tried = append(tried, oven)
-			if debugEval != nil {
-				debugEval(fmt.Sprintf("raise %.3f: %v rs %.3f sd %.3f deficit %.3f %s", extra, oven, ev.minRs, ev.sd, ev.deficit, ev.cornerText))
-			}
 			if ev.ok {
 				robust, robustOven = ev, oven
 				// the least raise that holds: bisect between the last
@@ -331,8 +328,6 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	p.Method = st.withOven(d.oven)
 	return p, nil
 }
-
-var debugEval func(string)
 
 // state is the current knowledge: the method with updated parameters, each
 // compound's covariance and the retention-time SD.
