@@ -101,7 +101,7 @@ func runCandidate(ctx context.Context, c Candidate, s Settings) Outcome {
 	}
 	o.Result = r
 	o.Time = r.Sim.RunTime
-	if c.Method.Goal.Objective == "cycle-time" {
+	if c.Method.Goal.Objective == CycleTime {
 		o.Time = r.Sim.CycleTime
 	}
 	o.MaxTemp = r.Program.MaxTemp()

@@ -8,15 +8,11 @@ import (
 // FromMethod builds the problem a method file describes: its goal, its
 // limits and its program as the start.
 func FromMethod(m *methodfile.Method, sys *model.System) Problem {
-	obj := RunTime
-	if m.Goal.Objective == "cycle-time" {
-		obj = CycleTime
-	}
 	return Problem{
 		System: sys,
 		Start:  m.ModelProgram(),
 		Ramps:  m.Goal.Ramps,
-		Lock:   append([]string(nil), m.Goal.Lock...),
+		Lock:   append([]model.ProgramValue(nil), m.Goal.Lock...),
 		Limits: Limits{
 			OvenMin:  m.Limits.OvenMinC + model.ZeroCelsius,
 			MaxTemp:  m.Column.MaxTempC + model.ZeroCelsius,
@@ -25,7 +21,7 @@ func FromMethod(m *methodfile.Method, sys *model.System) Problem {
 			MaxInlet: m.Limits.MaxInletKPa * 1000,
 		},
 		MinResolution: m.Goal.MinResolution,
-		Objective:     obj,
+		Objective:     m.Goal.Objective,
 		Tail:          m.Goal.TailMin * 60,
 	}
 }

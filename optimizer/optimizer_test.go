@@ -44,7 +44,7 @@ func checkResult(t *testing.T, p Problem, r *Result) {
 	if err := prog.Validate(l.MaxTemp); err != nil {
 		t.Errorf("returned program invalid: %v", err)
 	}
-	if !p.locked("initial_c", 0) && prog.Initial < l.OvenMin-1e-9 {
+	if !p.locked(model.ProgramValue{Kind: model.InitialTemp}) && prog.Initial < l.OvenMin-1e-9 {
 		t.Errorf("initial %v below oven minimum %v", prog.Initial, l.OvenMin)
 	}
 	if prog.InitialHold > l.MaxHold+1e-9 {

@@ -255,7 +255,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 	if c := a.newCaution; c != "" {
 		a.say(msgWarn, "%s · %s", what, c)
 	}
-	if m.Carrier.Gas == "hydrogen" && prev.Carrier.Gas != "hydrogen" {
+	if m.Carrier.Gas.Flammable() && !prev.Carrier.Gas.Flammable() {
 		a.say(msgWarn, "%s", model.HydrogenCaution)
 	}
 	a.guard.update(a.path, a.method, a.Dirty())
@@ -798,10 +798,10 @@ func (a *App) settingsKey(msg tea.KeyMsg) {
 // conditions at the initial temperature.
 func fillPressureOrFlow(m *methodfile.Method, sys *model.System) {
 	t0 := m.Oven.InitialC + model.ZeroCelsius
-	if m.Carrier.Mode == "constant-pressure" && m.Carrier.InletKPa <= 0 {
+	if m.Carrier.Mode == model.ConstantPressure && m.Carrier.InletKPa <= 0 {
 		m.Carrier.InletKPa = math.Round(sys.Cond.InletGauge(t0)/100) / 10
 	}
-	if m.Carrier.Mode == "constant-flow" && m.Carrier.FlowMLMin <= 0 {
+	if m.Carrier.Mode == model.ConstantFlow && m.Carrier.FlowMLMin <= 0 {
 		m.Carrier.FlowMLMin = 1.0
 	}
 }

@@ -13,6 +13,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 	"github.com/charmbracelet/x/exp/golden"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -146,7 +147,7 @@ func TestHydrogenCaution(t *testing.T) {
 		press(a, "down")
 	}
 	press(a, "+")
-	if a.Method().Carrier.Gas != "hydrogen" {
+	if a.Method().Carrier.Gas != model.Hydrogen {
 		t.Fatalf("gas %q", a.Method().Carrier.Gas)
 	}
 	if s := screen(a); !strings.Contains(s, "flammable") || !strings.Contains(s, "leak") {

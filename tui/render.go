@@ -139,7 +139,7 @@ func (a *App) methodLine(w int) string {
 	m := a.method
 	c, g := m.Column, m.Carrier
 	flow := fmt.Sprintf("%s mL/min constant flow", trimNum(g.FlowMLMin))
-	if g.Mode == "constant-pressure" {
+	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa constant pressure", trimNum(g.InletKPa))
 	}
 	if g.Outlet == "vacuum" {
@@ -152,7 +152,7 @@ func (a *App) methodLine(w int) string {
 	s := fmt.Sprintf(" %s m × %s mm × %s µm, max %s °C · %s %s · goal Rs %.2f, %s, %d ramps · %s",
 		trimNum(c.LengthM), trimNum(c.DiameterMM), trimNum(c.FilmUM), trimNum(c.MaxTempC), g.Gas, flow,
 		m.Goal.MinResolution, m.Goal.Objective, m.Goal.Ramps, phase)
-	if g.Gas == "hydrogen" {
+	if g.Gas.Flammable() {
 		return a.st.Warn.Render(" ⚠ H₂ flammable ") + a.st.Dim.Render(ansi.Truncate(s, w-16, "…"))
 	}
 	return a.st.Dim.Render(ansi.Truncate(s, w, "…"))
@@ -354,7 +354,7 @@ func (a *App) settingsLines(w, h int) []string {
 	extra := "  ↑/↓ choose · +/- change · enter types"
 	lines := []string{a.heading(paneSettings, w, extra)}
 	rows := h - 1
-	if a.method.Carrier.Gas == "hydrogen" {
+	if a.method.Carrier.Gas.Flammable() {
 		lines = append(lines, ansi.Truncate(a.st.Warn.Render(" ⚠ "+model.HydrogenCaution), w, "…"))
 		rows--
 	}

@@ -8,6 +8,7 @@ import (
 
 	"github.com/charmbracelet/x/ansi"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/model/sweep"
@@ -25,27 +26,24 @@ type sweepView struct {
 
 // sweepRange is the range the view covers around the current value v.
 func sweepRange(f field, v float64, m *methodfile.Method) (float64, float64) {
-	switch f.kind {
-	case "initial_c":
+	switch f.pv.Kind {
+	case model.InitialTemp:
 		return math.Max(m.Limits.OvenMinC, v-40), math.Min(m.Column.MaxTempC-1, v+40)
-	case "final":
+	case model.RampFinal:
 		return math.Max(m.Oven.InitialC+1, v-60), math.Min(m.Column.MaxTempC, v+60)
-	case "rate":
+	case model.RampRate:
 		return math.Max(0.5, v/4), math.Min(m.Limits.MaxRateCMin, v*3)
 	}
 	return 0, math.Max(2, v*3)
 }
 
 func (a *App) openSweep(f field) {
-	name := f.kind
-	if f.ramp > 0 {
-		name = fmt.Sprintf("%s_%d", f.kind, f.ramp)
-	}
+	name := f.pv.String()
 	v := f.value(a.method)
 	lo, hi := sweepRange(f, v, a.method)
 	values := sweep.Steps(lo, hi, 60)
 	values = append(values, v)
-	pts, err := sweep.One(a.method, name, sortedUnique(values), nil)
+	pts, err := sweep.One(a.method, f.pv, sortedUnique(values), nil)
 	if err != nil {
 		a.say(msgError, "sweep: %v", err)
 		return

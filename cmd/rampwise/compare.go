@@ -134,7 +134,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective.String()}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
@@ -153,7 +153,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
 		j.RunTime, j.CycleTime = sim.RunTime/60, sim.CycleTime/60
 		j.Time = j.RunTime
-		if m.Goal.Objective == "cycle-time" {
+		if m.Goal.Objective == model.CycleTime {
 			j.Time = j.CycleTime
 		}
 		if sim.Critical >= 0 {

@@ -13,6 +13,7 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -93,10 +94,11 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		m.Goal.Ramps = *ramps
 	}
 	if *objective != "" {
-		if *objective != "run-time" && *objective != "cycle-time" {
-			return badf("optimize: --objective must be run-time or cycle-time, got %q", *objective)
+		o, err := model.ParseObjective(*objective)
+		if err != nil {
+			return badf("optimize: --objective: %v", err)
 		}
-		m.Goal.Objective = *objective
+		m.Goal.Objective = o
 	}
 	if *minRs != 0 {
 		if !(*minRs > 0) || math.IsInf(*minRs, 0) {
@@ -105,7 +107,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		m.Goal.MinResolution = *minRs
 	}
 	for _, l := range m.Goal.Lock {
-		if !methodfile.ValidLockName(l, m.Goal.Ramps) {
+		if !l.Valid(m.Goal.Ramps) {
 			return badf("optimize: goal.lock names %s, which does not exist with %d ramps", l, m.Goal.Ramps)
 		}
 	}
@@ -147,7 +149,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if *asJSON {
 		j := optimizeJSON{
 			Feasible:    met,
-			Objective:   m.Goal.Objective,
+			Objective:   m.Goal.Objective.String(),
 			Program:     programToJSON(after.Oven),
 			RunTime:     afterSim.res.RunTime / 60,
 			CycleTime:   afterSim.res.CycleTime / 60,

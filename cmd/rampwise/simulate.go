@@ -209,7 +209,7 @@ func describeColumn(m *methodfile.Method) string {
 		phase = "phase not named"
 	}
 	flow := fmt.Sprintf("%s mL/min constant flow", fmtNum(g.FlowMLMin))
-	if g.Mode == "constant-pressure" {
+	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
 	}
 	return fmt.Sprintf("%s m × %s mm × %s µm %s (max %s °C) · %s %s · %s outlet",

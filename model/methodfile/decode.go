@@ -287,6 +287,23 @@ func (v *validator) num(path string, p *float64, required bool, def float64, b b
 	return x
 }
 
+// choice reads an optional or required name parsed by parse (a gas, a
+// mode, an objective), or def when absent.
+func choice[T any](v *validator, path string, p *string, required bool, def T, parse func(string) (T, error)) T {
+	if p == nil {
+		if required {
+			v.fail(path, "missing (required)")
+		}
+		return def
+	}
+	x, err := parse(*p)
+	if err != nil {
+		v.fail(path, "%v", err)
+		return def
+	}
+	return x
+}
+
 func (v *validator) str(path string, p *string, required bool, def string, choices ...string) string {
 	if p == nil {
 		if required {
@@ -372,10 +389,10 @@ func (v *validator) carrier(r *rawMethod, m *Method) {
 		return
 	}
 	c := r.Carrier
-	m.Carrier.Gas = v.str("carrier.gas", c.Gas, true, "helium", "helium", "hydrogen", "nitrogen")
-	m.Carrier.Mode = v.str("carrier.mode", c.Mode, true, "constant-flow", "constant-flow", "constant-pressure")
-	m.Carrier.FlowMLMin = v.num("carrier.flow_ml_min", c.FlowMLMin, m.Carrier.Mode == "constant-flow", 0, positive(200), "mL/min")
-	m.Carrier.InletKPa = v.num("carrier.inlet_kpa", c.InletKPa, m.Carrier.Mode == "constant-pressure", 0, positive(10000), "kPa")
+	m.Carrier.Gas = choice(v, "carrier.gas", c.Gas, true, model.Helium, model.ParseGas)
+	m.Carrier.Mode = choice(v, "carrier.mode", c.Mode, true, model.ConstantFlow, model.ParsePressureMode)
+	m.Carrier.FlowMLMin = v.num("carrier.flow_ml_min", c.FlowMLMin, m.Carrier.Mode == model.ConstantFlow, 0, positive(200), "mL/min")
+	m.Carrier.InletKPa = v.num("carrier.inlet_kpa", c.InletKPa, m.Carrier.Mode == model.ConstantPressure, 0, positive(10000), "kPa")
 	m.Carrier.Outlet = v.str("carrier.outlet", c.Outlet, false, "atmospheric", "atmospheric", "vacuum")
 	m.Carrier.AmbientKPa = v.num("carrier.ambient_kpa", c.AmbientKPa, false, 101.325, bound{lo: 20, hi: 200}, "kPa")
 	m.Carrier.InitialBand = v.num("carrier.initial_band_s", c.InitialBand, false, 0, nonNegative(600), "s")
@@ -444,7 +461,7 @@ func (v *validator) goal(r *rawMethod, m *Method) {
 		g = &rawGoal{}
 	}
 	m.Goal.MinResolution = v.num("goal.min_resolution", g.MinResolution, false, 1.5, positive(100), "")
-	m.Goal.Objective = v.str("goal.objective", g.Objective, false, "run-time", "run-time", "cycle-time")
+	m.Goal.Objective = choice(v, "goal.objective", g.Objective, false, model.RunTime, model.ParseObjective)
 	def := len(m.Oven.Ramps)
 	if def < 1 {
 		def = 1
@@ -461,18 +478,19 @@ func (v *validator) goal(r *rawMethod, m *Method) {
 		}
 	}
 	m.Goal.TailMin = v.num("goal.tail_min", g.TailMin, false, 0.5, nonNegative(1000), "min")
-	seen := map[string]bool{}
+	seen := map[model.ProgramValue]bool{}
 	for _, name := range g.Lock {
-		if !ValidLockName(name, m.Goal.Ramps) {
-			v.fail("goal.lock", "%q is not a program value for %d ramps (use %s)", name, m.Goal.Ramps, strings.Join(LockNames(m.Goal.Ramps), ", "))
+		pv, err := model.ParseProgramValue(name)
+		if err != nil || !pv.Valid(m.Goal.Ramps) {
+			v.fail("goal.lock", "%q is not a program value for %d ramps (use %s)", name, m.Goal.Ramps, model.ValueNames(model.ProgramValues(m.Goal.Ramps)))
 			break
 		}
-		if seen[name] {
+		if seen[pv] {
 			v.fail("goal.lock", "%q is listed twice", name)
 			break
 		}
-		seen[name] = true
-		m.Goal.Lock = append(m.Goal.Lock, name)
+		seen[pv] = true
+		m.Goal.Lock = append(m.Goal.Lock, pv)
 	}
 }
 

@@ -9,6 +9,8 @@ import (
 
 	"github.com/google/renameio/v2"
 	toml "github.com/pelletier/go-toml/v2"
+
+	"github.com/rampwise/rampwise/model"
 )
 
 func ptr[T any](x T) *T { return &x }
@@ -27,8 +29,8 @@ func Marshal(m *Method) ([]byte, error) {
 			PlateHeight: ptr(m.Column.PlateHeight),
 		},
 		Carrier: &rawCarrier{
-			Gas:         ptr(m.Carrier.Gas),
-			Mode:        ptr(m.Carrier.Mode),
+			Gas:         ptr(m.Carrier.Gas.String()),
+			Mode:        ptr(m.Carrier.Mode.String()),
 			Outlet:      ptr(m.Carrier.Outlet),
 			AmbientKPa:  ptr(m.Carrier.AmbientKPa),
 			InitialBand: ptr(m.Carrier.InitialBand),
@@ -45,10 +47,10 @@ func Marshal(m *Method) ([]byte, error) {
 		},
 		Goal: &rawGoal{
 			MinResolution: ptr(m.Goal.MinResolution),
-			Objective:     ptr(m.Goal.Objective),
+			Objective:     ptr(m.Goal.Objective.String()),
 			Ramps:         ptr(int64(m.Goal.Ramps)),
 			TailMin:       ptr(m.Goal.TailMin),
-			Lock:          append([]string{}, m.Goal.Lock...),
+			Lock:          lockNames(m.Goal.Lock),
 		},
 	}
 	if m.Title != "" {
@@ -168,3 +170,11 @@ func WriteAtomic(path string, data []byte) error {
 // wrapWriter lets tests put a failing writer (a full disk) between the
 // method and its temporary file.
 var wrapWriter = func(w io.Writer) io.Writer { return w }
+
+func lockNames(vs []model.ProgramValue) []string {
+	out := make([]string, len(vs))
+	for i, v := range vs {
+		out[i] = v.String()
+	}
+	return out
+}

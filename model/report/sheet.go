@@ -36,7 +36,7 @@ func (s *Sim) Sheet() []byte {
 	fmt.Fprintf(&b, "| stationary phase | %s |\n", phase)
 	fmt.Fprintf(&b, "| column | %s m × %s mm i.d. × %s µm film, maximum %s °C |\n", num(m.Column.LengthM), num(m.Column.DiameterMM), num(m.Column.FilmUM), num(m.Column.MaxTempC))
 	fmt.Fprintf(&b, "| carrier gas | %s |\n", m.Carrier.Gas)
-	if m.Carrier.Mode == "constant-pressure" {
+	if m.Carrier.Mode == model.ConstantPressure {
 		fmt.Fprintf(&b, "| pressure mode | constant pressure, %s kPa (gauge) |\n", num(m.Carrier.InletKPa))
 	} else {
 		fmt.Fprintf(&b, "| pressure mode | constant flow, %s mL/min (at 25 °C, 101.325 kPa) |\n", num(m.Carrier.FlowMLMin))
@@ -120,7 +120,7 @@ func (s *Sim) Sheet() []byte {
 	fmt.Fprintf(&b, "- These are model predictions. Verify the program with a standard injection before using it for samples.\n")
 	fmt.Fprintf(&b, "- Never program the oven above the column's maximum temperature (%s °C).\n", num(m.Column.MaxTempC))
 	fmt.Fprintf(&b, "- The oven, inlet and detector are hot; let them cool before touching the column or fittings.\n")
-	if m.Carrier.Gas == "hydrogen" {
+	if m.Carrier.Gas.Flammable() {
 		fmt.Fprintf(&b, "- %s\n", model.HydrogenCaution)
 	}
 	fmt.Fprintf(&b, "- Follow your local codes and the instrument maker's guidance for gases, pressurised cylinders and heated zones.\n")
