@@ -12,13 +12,13 @@ type ValueKind int
 // The kinds of value: the five program values of MODEL.md §4 and the two
 // carrier values a sweep may vary.
 const (
-	InitialTemp ValueKind = iota // initial_c, °C
-	InitialHold                  // initial_hold_min, min
-	RampRate                     // rate_N, °C/min
-	RampFinal                    // final_N, °C
-	RampHold                     // hold_N, min
-	CarrierFlow                  // flow_ml_min, mL/min (constant flow)
-	InletPressure                // inlet_kpa, kPa gauge (constant pressure)
+	InitialTemp   ValueKind = iota // initial_c, °C
+	InitialHold                    // initial_hold_min, min
+	RampRate                       // rate_N, °C/min
+	RampFinal                      // final_N, °C
+	RampHold                       // hold_N, min
+	CarrierFlow                    // flow_ml_min, mL/min (constant flow)
+	InletPressure                  // inlet_kpa, kPa gauge (constant pressure)
 )
 
 var valueKinds = [...]struct{ name, unit string }{

@@ -66,10 +66,10 @@ type Limits struct {
 
 // Goal is the [goal] table, defaults applied.
 type Goal struct {
-	MinResolution float64  // default 1.5
+	MinResolution float64 // default 1.5
 	Objective     model.Objective
-	Ramps         int      // default: the oven's ramp count, 1..5
-	TailMin       float64  // default 0.5
+	Ramps         int                  // default: the oven's ramp count, 1..5
+	TailMin       float64              // default 0.5
 	Lock          []model.ProgramValue // program values held fixed
 }
 
