@@ -19,7 +19,18 @@ func demoProblem(t testing.TB) Problem {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return FromMethod(m, sys)
+	// what methodsearch.Problem builds (that package imports this one)
+	return Problem{
+		System: sys, Start: m.ModelProgram(), Ramps: m.Goal.Ramps, Lock: m.Goal.Lock,
+		Limits: Limits{
+			OvenMin:  m.Limits.OvenMinC + model.ZeroCelsius,
+			MaxTemp:  m.Column.MaxTempC + model.ZeroCelsius,
+			MaxRate:  m.Limits.MaxRateCMin / 60,
+			MaxHold:  m.Limits.MaxHoldMin * 60,
+			MaxInlet: m.Limits.MaxInletKPa * 1000,
+		},
+		MinResolution: m.Goal.MinResolution, Objective: m.Goal.Objective, Tail: m.Goal.TailMin * 60,
+	}
 }
 
 func TestDemoMeetsTarget(t *testing.T) {

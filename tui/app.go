@@ -18,6 +18,7 @@ import (
 	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // MinWidth and MinHeight are the smallest terminal the UI draws in.
@@ -809,7 +810,7 @@ func fillPressureOrFlow(m *methodfile.Method, sys *model.System) {
 // --- optimizer ---
 
 func (a *App) startOptimize() tea.Cmd {
-	prob := optimizer.FromMethod(a.method, a.sys)
+	prob := methodsearch.Problem(a.method, a.sys)
 	ctx, cancel := context.WithCancel(context.Background())
 	id := 1
 	if a.opt != nil {
@@ -861,7 +862,7 @@ func (a *App) onDone(msg optDoneMsg) {
 	}
 	o.result = msg.res
 	after := a.method.Clone()
-	oven, sim, err := optimizer.KeypadProgram(a.method, a.sys, msg.res)
+	oven, sim, err := methodsearch.KeypadProgram(a.method, a.sys, msg.res)
 	if err != nil {
 		a.say(msgError, "optimizer: %v", err)
 		a.opt = nil

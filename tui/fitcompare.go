@@ -11,7 +11,7 @@ import (
 
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/methodfile"
-	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // --- calibration from a scouting runs file (F) ---
@@ -77,12 +77,12 @@ func errText(x float64) string {
 
 type compareRun struct {
 	running bool
-	out     []optimizer.Outcome
+	out     []methodsearch.Outcome
 	sel     int
 	cancel  context.CancelFunc
 }
 
-type compareDoneMsg struct{ out []optimizer.Outcome }
+type compareDoneMsg struct{ out []methodsearch.Outcome }
 
 // parseDims reads "L,L D,D F,F" (lengths m, diameters mm, films µm).
 func parseDims(text string, m *methodfile.Method) ([][3]float64, error) {
@@ -121,7 +121,7 @@ func (a *App) startCompare(text string) tea.Cmd {
 		a.say(msgError, "compare: %v", err)
 		return nil
 	}
-	var cands []optimizer.Candidate
+	var cands []methodsearch.Candidate
 	for _, d := range dims {
 		c := a.method.Clone()
 		c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = d[0], d[1], d[2]
@@ -129,14 +129,14 @@ func (a *App) startCompare(text string) tea.Cmd {
 			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], err)
 			return nil
 		}
-		cands = append(cands, optimizer.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
+		cands = append(cands, methodsearch.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	a.cmp = &compareRun{running: true, cancel: cancel}
 	settings := a.optSettings
 	a.say(msgInfo, "optimizing %d candidate columns… esc stops", len(cands))
 	return func() tea.Msg {
-		return compareDoneMsg{out: optimizer.Compare(ctx, cands, settings, nil)}
+		return compareDoneMsg{out: methodsearch.Compare(ctx, cands, settings, nil)}
 	}
 }
 
@@ -166,7 +166,7 @@ func (a *App) onCompareRankKey(msg tea.KeyMsg) {
 			a.say(msgError, "%v", err)
 			return
 		}
-		oven, _, err := optimizer.KeypadProgram(m, sys, o.Result)
+		oven, _, err := methodsearch.KeypadProgram(m, sys, o.Result)
 		if err != nil {
 			a.say(msgError, "%v", err)
 			return

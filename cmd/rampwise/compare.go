@@ -16,6 +16,7 @@ import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 const compareHelp = `Usage: rampwise compare METHOD... [--length L,...] [--diameter D,...] [--film F,...]
@@ -93,7 +94,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return bad(err)
 	}
-	var cands []optimizer.Candidate
+	var cands []methodsearch.Candidate
 	for _, file := range files {
 		m, name, err := loadMethod(file)
 		if err != nil {
@@ -118,7 +119,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 					if _, err := methodfile.Parse(name, data); err != nil {
 						return badf("%s at %g m × %g mm × %g µm: %v", name, l, d, df, err)
 					}
-					cands = append(cands, optimizer.Candidate{Source: name, Method: c})
+					cands = append(cands, methodsearch.Candidate{Source: name, Method: c})
 				}
 			}
 		}
@@ -128,7 +129,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	out := optimizer.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
+	out := methodsearch.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
 		fmt.Fprintf(stderr, "compare: %d of %d candidates optimized\n", done, total)
 	})
 	var rows []candidateJSON
@@ -146,7 +147,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 		// report what optimize reports: the keypad-rounded program
-		oven, sim, err := optimizer.KeypadProgram(m, sys, r)
+		oven, sim, err := methodsearch.KeypadProgram(m, sys, r)
 		if err != nil {
 			return err
 		}

@@ -16,6 +16,7 @@ import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 const optimizeHelp = `Usage: rampwise optimize [FILE] [flags]
@@ -115,7 +116,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	prob := optimizer.FromMethod(m, before.sys)
+	prob := methodsearch.Problem(m, before.sys)
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
@@ -127,7 +128,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	}
 
 	after := m.Clone()
-	oven, _, err := optimizer.KeypadProgram(m, before.sys, res)
+	oven, _, err := methodsearch.KeypadProgram(m, before.sys, res)
 	if err != nil {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
 	}
