@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"math"
 	"os"
-	"reflect"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/help"
@@ -203,7 +202,7 @@ func (a *App) Method() *methodfile.Method { return a.method }
 func (a *App) Result() *model.Result { return &a.res }
 
 // Dirty reports unsaved changes.
-func (a *App) Dirty() bool { return !reflect.DeepEqual(a.method, a.saved) }
+func (a *App) Dirty() bool { return !a.method.Equal(a.saved) }
 
 // Path is the file the method saves to.
 func (a *App) Path() string { return a.path }

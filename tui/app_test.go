@@ -5,7 +5,6 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"reflect"
 	"strings"
 	"testing"
 
@@ -87,7 +86,7 @@ func TestInvalidValueRefused(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
 	orig := a.Method().Clone()
 	press(a, "right", "right", "right", "enter", "ctrl+u", "400", "enter")
-	if !reflect.DeepEqual(a.Method(), orig) {
+	if !a.Method().Equal(orig) {
 		t.Error("invalid final temperature changed the method")
 	}
 	if s := screen(a); !strings.Contains(s, "above the column maximum") {
@@ -112,15 +111,15 @@ func TestUndoRedoExact(t *testing.T) {
 	orig := a.Method().Clone()
 	press(a, "right", "right", "]", "]", "right", "-", "a")
 	edited := a.Method().Clone()
-	if reflect.DeepEqual(edited, orig) {
+	if edited.Equal(orig) {
 		t.Fatal("edits did nothing")
 	}
 	press(a, "u", "u", "u", "u")
-	if !reflect.DeepEqual(a.Method(), orig) {
+	if !a.Method().Equal(orig) {
 		t.Errorf("undo did not restore the program exactly:\n%+v\n%+v", a.Method().Oven, orig.Oven)
 	}
 	press(a, "U", "U", "U", "U")
-	if !reflect.DeepEqual(a.Method(), edited) {
+	if !a.Method().Equal(edited) {
 		t.Error("redo did not restore the edits")
 	}
 }
@@ -200,7 +199,7 @@ func TestSaveWritesLoadableMethod(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(back, a.Method()) {
+	if !back.Equal(a.Method()) {
 		t.Error("saved file loads back different")
 	}
 }
@@ -234,7 +233,7 @@ func TestRecoveryFile(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(back, a.Method()) {
+	if !back.Equal(a.Method()) {
 		t.Error("recovery file differs from the unsaved method")
 	}
 	orig, _ := methodfile.ReadFile(path)
@@ -247,7 +246,7 @@ func TestRecoveryFile(t *testing.T) {
 		t.Error("no restore offer")
 	}
 	press(b, "r")
-	if !reflect.DeepEqual(b.Method(), back) {
+	if !b.Method().Equal(back) {
 		t.Error("restore did not bring the unsaved method back")
 	}
 	if _, err := os.Stat(rp); err == nil {

@@ -1,7 +1,6 @@
 package tui
 
 import (
-	"errors"
 	"fmt"
 	"strconv"
 	"strings"
@@ -197,27 +196,9 @@ func settingsFields(m *methodfile.Method) []field {
 	return fs
 }
 
-// validate checks an edited method with the method file's own rules (so the
-// messages are the ones a file would get) and the oven's rate limit.
-func validate(m *methodfile.Method) error {
-	data, err := methodfile.Marshal(m)
-	if err != nil {
-		return err
-	}
-	if _, err := methodfile.Parse("edit", data); err != nil {
-		var fe *methodfile.Error
-		if errors.As(err, &fe) {
-			return fmt.Errorf("%s: %s", fe.Key, fe.Msg)
-		}
-		return err
-	}
-	for i, r := range m.Oven.Ramps {
-		if r.RateCMin > m.Limits.MaxRateCMin {
-			return fmt.Errorf("oven.ramp[%d].rate_c_min: %s °C/min is faster than the oven's limit %s °C/min (limits.max_rate_c_min)", i+1, trimNum(r.RateCMin), trimNum(m.Limits.MaxRateCMin))
-		}
-	}
-	return nil
-}
+// validate checks an edited method with the method file's own rules, the
+// instrument limits included (so the messages are the ones a file gets).
+func validate(m *methodfile.Method) error { return m.Validate() }
 
 func trimNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 

@@ -115,8 +115,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 				for _, df := range fv {
 					c := m.Clone()
 					c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
-					data, _ := methodfile.Marshal(c)
-					if _, err := methodfile.Parse(name, data); err != nil {
+					if err := c.Validate(); err != nil {
 						return badf("%s at %g m × %g mm × %g µm: %v", name, l, d, df, err)
 					}
 					cands = append(cands, methodsearch.Candidate{Source: name, Method: c})

@@ -11,6 +11,7 @@ package methodfile
 import (
 	"fmt"
 	"math"
+	"reflect"
 
 	"github.com/rampwise/rampwise/model"
 )
@@ -118,7 +119,15 @@ type Method struct {
 	Goal      Goal
 	Injection Injection
 	Compounds []Compound
+
+	// where the method was read from, so that Validate names the file and
+	// line of a key (empty for a method made in code)
+	file string
+	loc  Locations
 }
+
+// Source is the name of the file the method was read from ("" if none).
+func (m *Method) Source() string { return m.file }
 
 // Clone returns a deep copy.
 func (m *Method) Clone() *Method {
@@ -320,4 +329,15 @@ func (m *Method) valuePtr(v model.ProgramValue) *float64 {
 		return &r.FinalC
 	}
 	return &r.HoldMin
+}
+
+// Equal reports whether two methods hold the same values (where each was
+// read from does not count).
+func (m *Method) Equal(o *Method) bool {
+	if m == nil || o == nil {
+		return m == o
+	}
+	a, b := *m, *o
+	a.file, a.loc, b.file, b.loc = "", nil, "", nil
+	return reflect.DeepEqual(&a, &b)
 }

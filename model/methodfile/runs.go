@@ -101,6 +101,9 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 			csub := &validator{file: name, loc: prefixed(loc, base+".")}
 			cm := &Method{}
 			csub.carrier(&rawMethod{Carrier: overlayCarrier(carrierRaw(m.Carrier), rr.Carrier)}, cm)
+			if csub.err == nil {
+				csub.checkCarrier(cm)
+			}
 			if csub.err != nil && v.err == nil {
 				v.err = rebase(csub.err, base+".")
 			}
@@ -152,7 +155,7 @@ func mergeCarrier(base Carrier, o *rawCarrier) Carrier {
 	v := &validator{loc: Locations{}}
 	cm := &Method{}
 	v.carrier(&rawMethod{Carrier: overlayCarrier(carrierRaw(base), o)}, cm)
-	if v.err != nil {
+	if v.checkCarrier(cm); v.err != nil {
 		return base
 	}
 	return cm.Carrier

@@ -60,11 +60,7 @@ type evaluator struct {
 
 func (e *evaluator) point(c *methodfile.Method) Point {
 	p := Point{MinRs: math.NaN()}
-	data, err := methodfile.Marshal(c)
-	if err == nil {
-		_, err = methodfile.Parse("sweep", data)
-	}
-	if err != nil {
+	if err := c.Validate(); err != nil {
 		var fe *methodfile.Error
 		if errors.As(err, &fe) {
 			p.Reason = fe.Key + ": " + fe.Msg
