@@ -87,6 +87,19 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 		w = append(w, fmt.Sprintf("%s: about %.0f ng on the column, %.1f× its estimated capacity of %.0f ng per compound: an overloaded peak fronts or tails and its retention shifts, so the predicted resolution is optimistic (raise the split ratio, dilute, or use a thicker film)",
 			o.Name, o.MassNG, o.Factor(), o.Capacity))
 	}
+	// the first target must be retained enough to stand clear of the
+	// unretained peak and the solvent (goal.min_first_k, a search bound)
+	first := -1
+	for i, pk := range res.Peaks {
+		if pk.Eluted && sys.Compounds[pk.Compound].Target && (first < 0 || pk.RetentionTime < res.Peaks[first].RetentionTime) {
+			first = i
+		}
+	}
+	if first >= 0 && res.Peaks[first].RetentionFactor < m.Goal.MinFirstK {
+		pk := res.Peaks[first]
+		w = append(w, fmt.Sprintf("goal.min_first_k: the first target, %s, elutes with k = %.2f, below %g: it may not stand clear of the unretained peak and the solvent (start cooler or slower)",
+			sys.Compounds[pk.Compound].Name, pk.RetentionFactor, m.Goal.MinFirstK))
+	}
 	// search bounds and rules of thumb the program breaks (never refused)
 	for _, n := range m.Advice() {
 		w = append(w, n.String())

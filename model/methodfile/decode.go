@@ -418,6 +418,24 @@ func (v *validator) column(r *rawMethod, m *Method) {
 		m.Column.CapacityNG = *c.CapacityNG
 		m.Column.HasCapacity = true
 	}
+	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
+	if c.MaxIsoC != nil {
+		m.Column.MaxIsothermalC = *c.MaxIsoC
+		m.Column.HasMaxIsothermal = true
+	}
+	if c.ParticleUM != nil {
+		m.Column.ParticleUM = *c.ParticleUM
+		m.Column.HasParticle = true
+	}
+	m.Column.Porosity = v.opt("column.porosity", c.Porosity, false, 0.40)
+	m.Column.HasPorosity = c.Porosity != nil
+	if c.PhaseRatio != nil {
+		m.Column.PhaseRatio = *c.PhaseRatio
+		m.Column.HasPhaseRatio = true
+	}
+	m.Column.EddyLambda = v.opt("column.eddy_lambda", c.EddyLambda, false, 0.8)
+	m.Column.ObstructionGamma = v.opt("column.obstruction_gamma", c.ObstrGamma, false, 0.7)
+	m.Column.MobileOmega = v.opt("column.mobile_omega", c.MobileOmega, false, 0.1)
 }
 
 func (v *validator) carrier(r *rawMethod, m *Method) {
@@ -447,7 +465,43 @@ func (v *validator) limits(r *rawMethod, m *Method) {
 	m.Limits.CooldownTauMin = v.opt("limits.cooldown_tau_min", l.CooldownTauMin, false, 2.0)
 	m.Limits.EquilibrationMin = v.opt("limits.equilibration_min", l.EquilibrationMin, false, 0.5)
 	m.Limits.MaxInletKPa = v.opt("limits.max_inlet_kpa", l.MaxInletKPa, false, 690)
+	if l.CoolantC != nil {
+		m.Limits.CoolantC = *l.CoolantC
+		m.Limits.HasCoolant = true
+	}
+	m.Limits.MinInletKPa = v.opt("limits.min_inlet_kpa", l.MinInletKPa, false, 0)
+	m.Limits.MinFlowMLMin = v.opt("limits.min_flow_ml_min", l.MinFlowMLMin, false, 0)
+	m.Limits.MaxFlowMLMin = v.opt("limits.max_flow_ml_min", l.MaxFlowMLMin, false, 0)
+	m.Limits.TempStepC = v.opt("limits.temp_step_c", l.TempStepC, false, DefaultTempStepC)
+	m.Limits.RateStepCMin = v.opt("limits.rate_step_c_min", l.RateStepCMin, false, DefaultRateStepCMin)
+	m.Limits.HoldStepMin = v.opt("limits.hold_step_min", l.HoldStepMin, false, DefaultHoldStepMin)
+	m.Limits.FlowStepMLMin = v.opt("limits.flow_step_ml_min", l.FlowStepMLMin, false, DefaultFlowStepMLMin)
+	m.Limits.PressureStepKPa = v.opt("limits.pressure_step_kpa", l.PressureStepKPa, false, DefaultPressureStepKPa)
+	for i, rb := range l.RateBand {
+		base := fmt.Sprintf("limits.rate_band[%d]", i+1)
+		m.Limits.RateBands = append(m.Limits.RateBands, RateBand{
+			AboveC:      v.opt(base+".above_c", rb.AboveC, true, 0),
+			MaxRateCMin: v.opt(base+".max_rate_c_min", rb.MaxRateCMin, true, 0),
+		})
+	}
 }
+
+// Default oven keypad steps ([limits] temp_step_c and the rest).
+const (
+	DefaultTempStepC       = 0.1
+	DefaultRateStepCMin    = 0.1
+	DefaultHoldStepMin     = 0.01
+	DefaultFlowStepMLMin   = 0.01
+	DefaultPressureStepKPa = 0.1
+)
+
+// Defaults of [goal.robust] and [goal] keys of the second wave.
+const (
+	DefaultMinFirstK          = 0.5
+	DefaultPriorDHkJ          = 2.0
+	DefaultPriorDS            = 4.0
+	DefaultRetentionTimeSDMin = 0.002
+)
 
 // fillOven reads the [oven] table (or a run's) into m.Oven.
 func (v *validator) fillOven(o *rawOven, m *Method) {
@@ -494,6 +548,28 @@ func (v *validator) goal(r *rawMethod, m *Method) {
 		m.Goal.Ramps = whole(*g.Ramps)
 	}
 	m.Goal.TailMin = v.opt("goal.tail_min", g.TailMin, false, 0.5)
+	m.Goal.MinFirstK = v.opt("goal.min_first_k", g.MinFirstK, false, DefaultMinFirstK)
+	if g.BakeoutC != nil {
+		m.Goal.BakeoutC = *g.BakeoutC
+		m.Goal.HasBakeout = true
+	}
+	if g.BakeoutMin != nil && g.BakeoutC == nil {
+		v.fail("goal.bakeout_min", "given without goal.bakeout_c (the bake-out temperature)")
+	}
+	m.Goal.BakeoutMin = v.opt("goal.bakeout_min", g.BakeoutMin, false, 0)
+	rb := g.Robust
+	if rb == nil {
+		rb = &rawRobust{}
+	}
+	m.Goal.Robust = Robust{
+		OvenOffsetC:        v.opt("goal.robust.oven_offset_c", rb.OvenOffsetC, false, 0),
+		FlowPct:            v.opt("goal.robust.flow_pct", rb.FlowPct, false, 0),
+		EfficiencyPct:      v.opt("goal.robust.efficiency_pct", rb.EfficiencyPct, false, 0),
+		RetentionSigma:     v.opt("goal.robust.retention_sigma", rb.RetentionSigma, false, 0),
+		PriorDHkJ:          v.opt("goal.robust.prior_dH_kJ_mol", rb.PriorDHkJ, false, DefaultPriorDHkJ),
+		PriorDS:            v.opt("goal.robust.prior_dS_J_mol_K", rb.PriorDS, false, DefaultPriorDS),
+		RetentionTimeSDMin: v.opt("goal.robust.retention_time_sd_min", rb.RetentionTimeSD, false, DefaultRetentionTimeSDMin),
+	}
 	for _, name := range g.Lock {
 		pv, err := model.ParseProgramValue(name)
 		if err != nil || !pv.Kind.InProgram() {
@@ -561,6 +637,12 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 		if rc.IndexTempC != nil {
 			c.IndexTempC = *rc.IndexTempC
 			c.HasIndexTemp = true
+		}
+		if rc.DHSE != nil || rc.DSSE != nil || rc.DHDSCorr != nil {
+			c.HasSE = true
+			c.DHSE = v.opt(base+".dH_se_kJ_mol", rc.DHSE, true, 0)
+			c.DSSE = v.opt(base+".dS_se_J_mol_K", rc.DSSE, true, 0)
+			c.DHDSCorr = v.opt(base+".dH_dS_corr", rc.DHDSCorr, false, 0)
 		}
 		if rc.DHkJ != nil || rc.DS != nil || rc.RetentionIndex == nil {
 			c.DHkJ = v.opt(base+".dH_kJ_mol", rc.DHkJ, true, -40)

@@ -65,6 +65,28 @@ func Marshal(m *Method) ([]byte, error) {
 	if m.Column.HasCapacity {
 		r.Column.CapacityNG = ptr(m.Column.CapacityNG)
 	}
+	if m.Column.Kind != "" && m.Column.Kind != "wall-coated" {
+		r.Column.Kind = ptr(m.Column.Kind)
+	}
+	if m.Column.HasMaxIsothermal {
+		r.Column.MaxIsoC = ptr(m.Column.MaxIsothermalC)
+	}
+	if m.Column.HasParticle {
+		r.Column.ParticleUM = ptr(m.Column.ParticleUM)
+	}
+	if m.Column.HasPorosity || m.Column.Kind == "packed" {
+		r.Column.Porosity = ptr(m.Column.Porosity)
+	}
+	if m.Column.HasPhaseRatio {
+		r.Column.PhaseRatio = ptr(m.Column.PhaseRatio)
+	}
+	if m.Column.Kind == "packed" {
+		r.Column.EddyLambda = ptr(m.Column.EddyLambda)
+		r.Column.ObstrGamma = ptr(m.Column.ObstructionGamma)
+		r.Column.MobileOmega = ptr(m.Column.MobileOmega)
+	}
+	marshalLimits(m, r.Limits)
+	marshalGoal(m, r.Goal)
 	if m.Carrier.FlowMLMin > 0 {
 		r.Carrier.FlowMLMin = ptr(m.Carrier.FlowMLMin)
 	}
@@ -117,6 +139,11 @@ func Marshal(m *Method) ([]byte, error) {
 		if c.HasIndexTemp {
 			rc.IndexTempC = ptr(c.IndexTempC)
 		}
+		if c.HasSE {
+			rc.DHSE = ptr(c.DHSE)
+			rc.DSSE = ptr(c.DSSE)
+			rc.DHDSCorr = ptr(c.DHDSCorr)
+		}
 		r.Compound = append(r.Compound, rc)
 	}
 	var buf bytes.Buffer
@@ -127,6 +154,69 @@ func Marshal(m *Method) ([]byte, error) {
 		return nil, err
 	}
 	return buf.Bytes(), nil
+}
+
+// marshalLimits writes the second-wave [limits] keys that are set or differ
+// from their defaults.
+func marshalLimits(m *Method, r *rawLimits) {
+	l := m.Limits
+	if l.HasCoolant {
+		r.CoolantC = ptr(l.CoolantC)
+	}
+	if l.MinInletKPa != 0 {
+		r.MinInletKPa = ptr(l.MinInletKPa)
+	}
+	if l.MinFlowMLMin > 0 {
+		r.MinFlowMLMin = ptr(l.MinFlowMLMin)
+	}
+	if l.MaxFlowMLMin > 0 {
+		r.MaxFlowMLMin = ptr(l.MaxFlowMLMin)
+	}
+	opt := func(x, def float64) *float64 {
+		if x == def || x == 0 {
+			return nil
+		}
+		return ptr(x)
+	}
+	r.TempStepC = opt(l.TempStepC, DefaultTempStepC)
+	r.RateStepCMin = opt(l.RateStepCMin, DefaultRateStepCMin)
+	r.HoldStepMin = opt(l.HoldStepMin, DefaultHoldStepMin)
+	r.FlowStepMLMin = opt(l.FlowStepMLMin, DefaultFlowStepMLMin)
+	r.PressureStepKPa = opt(l.PressureStepKPa, DefaultPressureStepKPa)
+	for _, b := range l.RateBands {
+		r.RateBand = append(r.RateBand, rawRateBand{AboveC: ptr(b.AboveC), MaxRateCMin: ptr(b.MaxRateCMin)})
+	}
+}
+
+// marshalGoal writes the second-wave [goal] keys and [goal.robust] when set.
+func marshalGoal(m *Method, r *rawGoal) {
+	g := m.Goal
+	if g.MinFirstK != DefaultMinFirstK {
+		r.MinFirstK = ptr(g.MinFirstK)
+	}
+	if g.HasBakeout {
+		r.BakeoutC = ptr(g.BakeoutC)
+		r.BakeoutMin = ptr(g.BakeoutMin)
+	}
+	rb := g.Robust
+	opt := func(x, def float64) *float64 {
+		if x == def {
+			return nil
+		}
+		return ptr(x)
+	}
+	raw := rawRobust{
+		OvenOffsetC:     opt(rb.OvenOffsetC, 0),
+		FlowPct:         opt(rb.FlowPct, 0),
+		EfficiencyPct:   opt(rb.EfficiencyPct, 0),
+		RetentionSigma:  opt(rb.RetentionSigma, 0),
+		PriorDHkJ:       opt(rb.PriorDHkJ, DefaultPriorDHkJ),
+		PriorDS:         opt(rb.PriorDS, DefaultPriorDS),
+		RetentionTimeSD: opt(rb.RetentionTimeSDMin, DefaultRetentionTimeSDMin),
+	}
+	if raw != (rawRobust{}) {
+		r.Robust = &raw
+	}
 }
 
 // WriteFile saves the method atomically: a temporary file in the same

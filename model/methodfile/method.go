@@ -27,6 +27,24 @@ type Column struct {
 	PlateHeight float64 // plate_height_factor, default 1.0
 	CapacityNG  float64 // capacity_ng; 0 = estimate
 	HasCapacity bool
+	// Kind is wall-coated (default), packed or porous-layer (MODEL.md §10-11).
+	Kind string
+	// MaxIsothermalC bounds every hold (max_isothermal_c); MaxTempC bounds
+	// the programmed maximum. HasMaxIsothermal is false when not given.
+	MaxIsothermalC   float64
+	HasMaxIsothermal bool
+	// Packed columns (MODEL.md §10): particle diameter, interparticle
+	// porosity (default 0.40), phase ratio, and the van Deemter constants
+	// (defaults 0.8, 0.7, 0.1).
+	ParticleUM       float64
+	Porosity         float64
+	PhaseRatio       float64
+	EddyLambda       float64
+	ObstructionGamma float64
+	MobileOmega      float64
+	HasParticle      bool
+	HasPorosity      bool
+	HasPhaseRatio    bool
 }
 
 // Carrier is the [carrier] table.
@@ -63,6 +81,39 @@ type Limits struct {
 	CooldownTauMin   float64 // default 2.0
 	EquilibrationMin float64 // default 0.5
 	MaxInletKPa      float64 // default 690 (gauge)
+	CoolantC         float64 // coolant_c: lowest oven temperature with a coolant
+	HasCoolant       bool
+	MinInletKPa      float64 // default 0 (gauge): inlets cannot regulate below ambient
+	MinFlowMLMin     float64 // 0 = not given (the optimizer derives a range)
+	MaxFlowMLMin     float64 // 0 = not given
+	// Oven keypad steps: every value the optimizer saves lies on them.
+	TempStepC       float64 // default 0.1
+	RateStepCMin    float64 // default 0.1
+	HoldStepMin     float64 // default 0.01
+	FlowStepMLMin   float64 // default 0.01
+	PressureStepKPa float64 // default 0.1
+	// RateBands lower the ramp-rate limit above a temperature, in
+	// increasing AboveC.
+	RateBands []RateBand
+}
+
+// RateBand is one [[limits.rate_band]]: above AboveC the oven heats at most
+// at MaxRateCMin.
+type RateBand struct {
+	AboveC      float64
+	MaxRateCMin float64
+}
+
+// Robust is the [goal.robust] table, defaults applied: the tolerances the
+// optimizer's target must survive. Zero means off.
+type Robust struct {
+	OvenOffsetC        float64 // oven hotter/colder by this throughout, °C
+	FlowPct            float64 // flow (or inlet gauge pressure) ± this %
+	EfficiencyPct      float64 // plate-height factor up by this %
+	RetentionSigma     float64 // z: ln k shifted by ± z standard errors
+	PriorDHkJ          float64 // default 2.0: uncertainty of entered dH without dH_se
+	PriorDS            float64 // default 4.0: uncertainty of entered dS without dS_se
+	RetentionTimeSDMin float64 // default 0.002: assumed when a fit has no residual freedom
 }
 
 // Goal is the [goal] table, defaults applied.
@@ -72,6 +123,11 @@ type Goal struct {
 	Ramps         int                  // default: the oven's ramp count, 1..5
 	TailMin       float64              // default 0.5
 	Lock          []model.ProgramValue // program values held fixed
+	MinFirstK     float64              // default 0.5: first target's k at elution at least this
+	BakeoutC      float64              // bake-out temperature for late non-targets
+	BakeoutMin    float64              // bake-out hold, default 0
+	HasBakeout    bool
+	Robust        Robust
 }
 
 // Injection is the optional [injection] table.
@@ -106,6 +162,12 @@ type Compound struct {
 	// FromIndex is true when dH and dS were not in the file and were derived
 	// from the retention index and the ladder (the virtual-alkane rule).
 	FromIndex bool
+	// Standard errors of dH (kJ/mol) and dS (J/(mol·K)) and their
+	// correlation, written by fit; HasSE is false when the file has none.
+	DHSE     float64
+	DSSE     float64
+	DHDSCorr float64
+	HasSE    bool
 }
 
 // Method is a whole method file.
@@ -134,6 +196,7 @@ func (m *Method) Clone() *Method {
 	c := *m
 	c.Oven.Ramps = append([]Ramp(nil), m.Oven.Ramps...)
 	c.Goal.Lock = append([]model.ProgramValue(nil), m.Goal.Lock...)
+	c.Limits.RateBands = append([]RateBand(nil), m.Limits.RateBands...)
 	c.Compounds = append([]Compound(nil), m.Compounds...)
 	return &c
 }

@@ -11,6 +11,14 @@ type rawColumn struct {
 	Diffusivity *float64 `toml:"stationary_diffusivity_m2_s,omitempty"`
 	PlateHeight *float64 `toml:"plate_height_factor,omitempty"`
 	CapacityNG  *float64 `toml:"capacity_ng,omitempty"`
+	Kind        *string  `toml:"kind,omitempty"`
+	MaxIsoC     *float64 `toml:"max_isothermal_c,omitempty"`
+	ParticleUM  *float64 `toml:"particle_um,omitempty"`
+	Porosity    *float64 `toml:"porosity,omitempty"`
+	PhaseRatio  *float64 `toml:"phase_ratio,omitempty"`
+	EddyLambda  *float64 `toml:"eddy_lambda,omitempty"`
+	ObstrGamma  *float64 `toml:"obstruction_gamma,omitempty"`
+	MobileOmega *float64 `toml:"mobile_omega,omitempty"`
 }
 
 type rawCarrier struct {
@@ -36,21 +44,50 @@ type rawOven struct {
 }
 
 type rawLimits struct {
-	OvenMinC         *float64 `toml:"oven_min_c,omitempty"`
-	MaxRateCMin      *float64 `toml:"max_rate_c_min,omitempty"`
-	MaxHoldMin       *float64 `toml:"max_hold_min,omitempty"`
-	AmbientC         *float64 `toml:"ambient_c,omitempty"`
-	CooldownTauMin   *float64 `toml:"cooldown_tau_min,omitempty"`
-	EquilibrationMin *float64 `toml:"equilibration_min,omitempty"`
-	MaxInletKPa      *float64 `toml:"max_inlet_kpa,omitempty"`
+	OvenMinC         *float64      `toml:"oven_min_c,omitempty"`
+	MaxRateCMin      *float64      `toml:"max_rate_c_min,omitempty"`
+	MaxHoldMin       *float64      `toml:"max_hold_min,omitempty"`
+	AmbientC         *float64      `toml:"ambient_c,omitempty"`
+	CooldownTauMin   *float64      `toml:"cooldown_tau_min,omitempty"`
+	EquilibrationMin *float64      `toml:"equilibration_min,omitempty"`
+	MaxInletKPa      *float64      `toml:"max_inlet_kpa,omitempty"`
+	CoolantC         *float64      `toml:"coolant_c,omitempty"`
+	MinInletKPa      *float64      `toml:"min_inlet_kpa,omitempty"`
+	MinFlowMLMin     *float64      `toml:"min_flow_ml_min,omitempty"`
+	MaxFlowMLMin     *float64      `toml:"max_flow_ml_min,omitempty"`
+	TempStepC        *float64      `toml:"temp_step_c,omitempty"`
+	RateStepCMin     *float64      `toml:"rate_step_c_min,omitempty"`
+	HoldStepMin      *float64      `toml:"hold_step_min,omitempty"`
+	FlowStepMLMin    *float64      `toml:"flow_step_ml_min,omitempty"`
+	PressureStepKPa  *float64      `toml:"pressure_step_kpa,omitempty"`
+	RateBand         []rawRateBand `toml:"rate_band,omitempty"`
+}
+
+type rawRateBand struct {
+	AboveC      *float64 `toml:"above_c"`
+	MaxRateCMin *float64 `toml:"max_rate_c_min"`
+}
+
+type rawRobust struct {
+	OvenOffsetC     *float64 `toml:"oven_offset_c,omitempty"`
+	FlowPct         *float64 `toml:"flow_pct,omitempty"`
+	EfficiencyPct   *float64 `toml:"efficiency_pct,omitempty"`
+	RetentionSigma  *float64 `toml:"retention_sigma,omitempty"`
+	PriorDHkJ       *float64 `toml:"prior_dH_kJ_mol,omitempty"`
+	PriorDS         *float64 `toml:"prior_dS_J_mol_K,omitempty"`
+	RetentionTimeSD *float64 `toml:"retention_time_sd_min,omitempty"`
 }
 
 type rawGoal struct {
-	MinResolution *float64 `toml:"min_resolution,omitempty"`
-	Objective     *string  `toml:"objective,omitempty"`
-	Ramps         *int64   `toml:"ramps,omitempty"`
-	TailMin       *float64 `toml:"tail_min,omitempty"`
-	Lock          []string `toml:"lock"`
+	MinResolution *float64   `toml:"min_resolution,omitempty"`
+	Objective     *string    `toml:"objective,omitempty"`
+	Ramps         *int64     `toml:"ramps,omitempty"`
+	TailMin       *float64   `toml:"tail_min,omitempty"`
+	Lock          []string   `toml:"lock"`
+	MinFirstK     *float64   `toml:"min_first_k,omitempty"`
+	BakeoutC      *float64   `toml:"bakeout_c,omitempty"`
+	BakeoutMin    *float64   `toml:"bakeout_min,omitempty"`
+	Robust        *rawRobust `toml:"robust,omitempty"`
 }
 
 type rawInjection struct {
@@ -74,6 +111,9 @@ type rawCompound struct {
 	AlkaneCarbons  *int64   `toml:"alkane_carbons,omitempty"`
 	RetentionIndex *float64 `toml:"retention_index,omitempty"`
 	IndexTempC     *float64 `toml:"index_temp_c,omitempty"`
+	DHSE           *float64 `toml:"dH_se_kJ_mol,omitempty"`
+	DSSE           *float64 `toml:"dS_se_J_mol_K,omitempty"`
+	DHDSCorr       *float64 `toml:"dH_dS_corr,omitempty"`
 }
 
 type rawMethod struct {

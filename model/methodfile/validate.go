@@ -2,6 +2,7 @@ package methodfile
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"github.com/rampwise/rampwise/model"
@@ -14,12 +15,15 @@ import (
 //
 // Two kinds of limit are kept apart (see the README):
 //   - instrument limits refuse a method: the oven's fastest ramp
-//     (limits.max_rate_c_min), the inlet pressure limit (limits.max_inlet_kpa),
-//     the column's temperature limit (column.max_temp_c) and the lowest
-//     temperature the oven reaches (limits.ambient_c);
+//     (limits.max_rate_c_min and limits.rate_band), the inlet pressure
+//     limits (limits.max_inlet_kpa, limits.min_inlet_kpa), the column's
+//     temperature limits (column.max_temp_c, column.max_isothermal_c for
+//     holds) and the lowest temperature the oven reaches (limits.ambient_c,
+//     or limits.coolant_c with a coolant);
 //   - search bounds and advice (limits.oven_min_c, limits.max_hold_min, the
-//     detector margin) bind what the optimizer proposes and are only noted
-//     for the current program (Advice).
+//     keypad steps, the detector margin, goal.min_first_k) bind what the
+//     optimizer proposes and are only noted for the current program
+//     (Advice, and checks.Warnings for min_first_k, which needs a run).
 
 // rng is an accepted range of a value in the file's units; an open end
 // excludes its limit.
@@ -159,6 +163,22 @@ func (v *validator) checkColumn(m *Method) {
 	if c.HasCapacity {
 		v.in("column.capacity_ng", c.CapacityNG, closed(0.001, 1e9, "ng"), "")
 	}
+	if v.err == nil && c.Kind != "wall-coated" && c.Kind != "packed" && c.Kind != "porous-layer" {
+		v.fail("column.kind", "%q is not one of wall-coated, packed, porous-layer", c.Kind)
+	}
+	if c.HasMaxIsothermal && v.in("column.max_isothermal_c", c.MaxIsothermalC, tempRange, "") && c.MaxIsothermalC > c.MaxTempC {
+		v.fail("column.max_isothermal_c", "%s °C is above the column maximum %s °C", fmtNum(c.MaxIsothermalC), fmtNum(c.MaxTempC))
+	}
+	if c.HasParticle {
+		v.in("column.particle_um", c.ParticleUM, closed(1, 1000, "µm"), "")
+	}
+	v.in("column.porosity", c.Porosity, rng{lo: 0, hi: 1, loOpen: true, hiOpen: true}, "")
+	if c.HasPhaseRatio {
+		v.in("column.phase_ratio", c.PhaseRatio, closed(0.1, 1e5, ""), "")
+	}
+	v.in("column.eddy_lambda", c.EddyLambda, closed(0, 10, ""), "")
+	v.in("column.obstruction_gamma", c.ObstructionGamma, rng{lo: 0, hi: 2, loOpen: true}, "")
+	v.in("column.mobile_omega", c.MobileOmega, closed(0, 10, ""), "")
 }
 
 func (v *validator) checkCarrier(m *Method) {
@@ -196,15 +216,49 @@ func validChoice[T comparable](x T, all []T) bool {
 func (v *validator) checkLimits(m *Method) {
 	l := &m.Limits
 	v.in("limits.ambient_c", l.AmbientC, closed(-60, 60, "°C"), "")
+	if l.HasCoolant && v.in("limits.coolant_c", l.CoolantC, tempRange, "") && l.CoolantC >= l.AmbientC {
+		v.fail("limits.coolant_c", "%s °C is not below the ambient %s °C (a coolant only helps below ambient)", fmtNum(l.CoolantC), fmtNum(l.AmbientC))
+	}
 	v.in("limits.oven_min_c", l.OvenMinC, tempRange, "")
-	if v.err == nil && l.OvenMinC <= l.AmbientC {
-		v.fail("limits.oven_min_c", "%s °C is not above the ambient %s °C (the oven cannot cool to it)", fmtNum(l.OvenMinC), fmtNum(l.AmbientC))
+	if v.err == nil {
+		if l.HasCoolant && l.OvenMinC < l.CoolantC {
+			v.fail("limits.oven_min_c", "%s °C is below the coolant's %s °C (limits.coolant_c; the oven cannot cool to it)", fmtNum(l.OvenMinC), fmtNum(l.CoolantC))
+		} else if !l.HasCoolant && l.OvenMinC <= l.AmbientC {
+			v.fail("limits.oven_min_c", "%s °C is not above the ambient %s °C (the oven cannot cool to it)", fmtNum(l.OvenMinC), fmtNum(l.AmbientC))
+		}
 	}
 	v.in("limits.max_rate_c_min", l.MaxRateCMin, closed(0.1, 2000, "°C/min"), "")
 	v.in("limits.max_hold_min", l.MaxHoldMin, closed(0, 10000, "min"), "")
 	v.in("limits.cooldown_tau_min", l.CooldownTauMin, closed(0.01, 600, "min"), "")
 	v.in("limits.equilibration_min", l.EquilibrationMin, closed(0, 600, "min"), "")
 	v.in("limits.max_inlet_kpa", l.MaxInletKPa, closed(1, 100000, "kPa"), "gauge")
+	if v.in("limits.min_inlet_kpa", l.MinInletKPa, closed(0, 100000, "kPa"), "gauge") && l.MinInletKPa >= l.MaxInletKPa {
+		v.fail("limits.min_inlet_kpa", "%s kPa is not below max_inlet_kpa %s kPa", fmtNum(l.MinInletKPa), fmtNum(l.MaxInletKPa))
+	}
+	flow := closed(0.01, 1000, "mL/min")
+	if l.MinFlowMLMin != 0 {
+		v.in("limits.min_flow_ml_min", l.MinFlowMLMin, flow, "")
+	}
+	if l.MaxFlowMLMin != 0 {
+		v.in("limits.max_flow_ml_min", l.MaxFlowMLMin, flow, "")
+	}
+	if v.err == nil && l.MinFlowMLMin != 0 && l.MaxFlowMLMin != 0 && l.MinFlowMLMin >= l.MaxFlowMLMin {
+		v.fail("limits.min_flow_ml_min", "%s mL/min is not below max_flow_ml_min %s mL/min", fmtNum(l.MinFlowMLMin), fmtNum(l.MaxFlowMLMin))
+	}
+	v.in("limits.temp_step_c", l.TempStepC, closed(0.001, 10, "°C"), "")
+	v.in("limits.rate_step_c_min", l.RateStepCMin, closed(0.001, 10, "°C/min"), "")
+	v.in("limits.hold_step_min", l.HoldStepMin, closed(0.0001, 10, "min"), "")
+	v.in("limits.flow_step_ml_min", l.FlowStepMLMin, closed(0.0001, 10, "mL/min"), "")
+	v.in("limits.pressure_step_kpa", l.PressureStepKPa, closed(0.001, 100, "kPa"), "")
+	prev := -1e300
+	for i, b := range l.RateBands {
+		base := fmt.Sprintf("limits.rate_band[%d]", i+1)
+		if v.in(base+".above_c", b.AboveC, tempRange, "") && b.AboveC <= prev {
+			v.fail(base+".above_c", "%s °C is not above the previous band's %s °C (list bands from cool to hot)", fmtNum(b.AboveC), fmtNum(prev))
+		}
+		v.in(base+".max_rate_c_min", b.MaxRateCMin, closed(0.1, 2000, "°C/min"), "")
+		prev = b.AboveC
+	}
 }
 
 // MinRateCMin is the slowest ramp a method may hold, °C/min.
@@ -215,10 +269,34 @@ const MinRateCMin = 0.01
 // oven reaches and its fastest ramp (instrument limits).
 func (v *validator) checkProgram(m *Method) {
 	o := &m.Oven
-	if v.err == nil && o.InitialC <= m.Limits.AmbientC && finite(o.InitialC) {
-		v.fail("oven.initial_c", "%s °C is not above the ambient %s °C in [limits] (the oven cannot cool back to it)", fmtNum(o.InitialC), fmtNum(m.Limits.AmbientC))
+	l := &m.Limits
+	if v.err == nil && finite(o.InitialC) {
+		if l.HasCoolant && o.InitialC < l.CoolantC {
+			v.fail("oven.initial_c", "%s °C is below the coolant's %s °C (limits.coolant_c; the oven cannot cool to it)", fmtNum(o.InitialC), fmtNum(l.CoolantC))
+		} else if !l.HasCoolant && o.InitialC <= l.AmbientC {
+			v.fail("oven.initial_c", "%s °C is not above the ambient %s °C in [limits] (the oven cannot cool back to it)", fmtNum(o.InitialC), fmtNum(l.AmbientC))
+		}
 	}
-	v.shape(m, closed(MinRateCMin, m.Limits.MaxRateCMin, "°C/min"), true)
+	v.shape(m, closed(MinRateCMin, l.MaxRateCMin, "°C/min"), true)
+	for i, r := range o.Ramps {
+		for j, b := range l.RateBands {
+			if v.err == nil && r.FinalC > b.AboveC && r.RateCMin > b.MaxRateCMin {
+				v.fail(fmt.Sprintf("oven.ramp[%d].rate_c_min", i+1), "%s °C/min is faster than the oven's limit %s °C/min above %s °C (limits.rate_band[%d])",
+					fmtNum(r.RateCMin), fmtNum(b.MaxRateCMin), fmtNum(b.AboveC), j+1)
+			}
+		}
+	}
+	if c := &m.Column; c.HasMaxIsothermal {
+		iso := func(key string, t, hold float64) {
+			if v.err == nil && hold > 0 && t > c.MaxIsothermalC {
+				v.fail(key, "a hold of %s min at %s °C is above the column's isothermal limit %s °C (column.max_isothermal_c)", fmtNum(hold), fmtNum(t), fmtNum(c.MaxIsothermalC))
+			}
+		}
+		iso("oven.initial_hold_min", o.InitialC, o.InitialHoldMin)
+		for i, r := range o.Ramps {
+			iso(fmt.Sprintf("oven.ramp[%d].hold_min", i+1), r.FinalC, r.HoldMin)
+		}
+	}
 }
 
 // programShape checks a program on its own (a scouting run's): finite
@@ -270,6 +348,19 @@ func (v *validator) checkGoal(m *Method) {
 	v.in("goal.min_resolution", g.MinResolution, closed(0.01, 100, ""), "")
 	v.intIn("goal.ramps", g.Ramps, 1, 5)
 	v.in("goal.tail_min", g.TailMin, closed(0, 1000, "min"), "")
+	v.in("goal.min_first_k", g.MinFirstK, closed(0, 1000, ""), "")
+	if g.HasBakeout && v.in("goal.bakeout_c", g.BakeoutC, tempRange, "") && g.BakeoutC > m.Column.MaxTempC {
+		v.fail("goal.bakeout_c", "%s °C is above the column maximum %s °C", fmtNum(g.BakeoutC), fmtNum(m.Column.MaxTempC))
+	}
+	v.in("goal.bakeout_min", g.BakeoutMin, closed(0, 1000, "min"), "")
+	rb := &g.Robust
+	v.in("goal.robust.oven_offset_c", rb.OvenOffsetC, closed(0, 20, "°C"), "")
+	v.in("goal.robust.flow_pct", rb.FlowPct, closed(0, 50, "%"), "")
+	v.in("goal.robust.efficiency_pct", rb.EfficiencyPct, closed(0, 200, "%"), "")
+	v.in("goal.robust.retention_sigma", rb.RetentionSigma, closed(0, 10, ""), "")
+	v.in("goal.robust.prior_dH_kJ_mol", rb.PriorDHkJ, closed(0, 100, "kJ/mol"), "")
+	v.in("goal.robust.prior_dS_J_mol_K", rb.PriorDS, closed(0, 500, "J/(mol·K)"), "")
+	v.in("goal.robust.retention_time_sd_min", rb.RetentionTimeSDMin, closed(0.00001, 10, "min"), "")
 	seen := map[model.ProgramValue]bool{}
 	for _, pv := range g.Lock {
 		if v.err != nil {
@@ -355,6 +446,11 @@ func (v *validator) checkCompound(m *Method, i int, seen map[string]int) {
 	if c.HasIndexTemp {
 		v.in(base+".index_temp_c", c.IndexTempC, tempRange, "")
 	}
+	if c.HasSE {
+		v.in(base+".dH_se_kJ_mol", c.DHSE, closed(0, 500, "kJ/mol"), "")
+		v.in(base+".dS_se_J_mol_K", c.DSSE, closed(0, 1000, "J/(mol·K)"), "")
+		v.in(base+".dH_dS_corr", c.DHDSCorr, closed(-1, 1, ""), "")
+	}
 	if !c.FromIndex {
 		v.in(base+".dH_kJ_mol", c.DHkJ, rng{lo: -500, hi: 0, hiOpen: true, unit: "kJ/mol"}, "")
 		v.in(base+".dS_J_mol_K", c.DS, closed(-1000, 200, "J/(mol·K)"), "")
@@ -369,10 +465,12 @@ func (v *validator) checkPressure(m *Method) {
 	if v.err != nil {
 		return
 	}
-	limit := m.Limits.MaxInletKPa
+	limit, low := m.Limits.MaxInletKPa, m.Limits.MinInletKPa
 	if m.Carrier.Mode == model.ConstantPressure {
 		if m.Carrier.InletKPa > limit {
 			v.fail("carrier.inlet_kpa", "%s kPa is above the instrument's inlet limit %s kPa (limits.max_inlet_kpa)", fmtNum(m.Carrier.InletKPa), fmtNum(limit))
+		} else if m.Carrier.InletKPa < low {
+			v.fail("carrier.inlet_kpa", "%s kPa is below the lowest inlet pressure the instrument holds, %s kPa (limits.min_inlet_kpa)", fmtNum(m.Carrier.InletKPa), fmtNum(low))
 		}
 		return
 	}
@@ -386,10 +484,14 @@ func (v *validator) checkPressure(m *Method) {
 		v.fail("carrier.flow_ml_min", "%v", strings.TrimPrefix(err.Error(), "model: "))
 		return
 	}
-	top := m.ModelProgram().MaxTemp()
+	prog := m.ModelProgram()
+	top, start := prog.MaxTemp(), prog.Initial
 	if need := cond.InletGauge(top) / kPa; need > limit {
 		v.fail("carrier.flow_ml_min", "constant flow of %s mL/min needs %.0f kPa at %s °C, above the instrument's inlet limit %s kPa (limits.max_inlet_kpa)",
 			fmtNum(m.Carrier.FlowMLMin), need, fmtNum(top-model.ZeroCelsius), fmtNum(limit))
+	} else if need := cond.InletGauge(start) / kPa; need < low {
+		v.fail("carrier.flow_ml_min", "constant flow of %s mL/min needs only %.1f kPa at %s °C, below the lowest inlet pressure the instrument holds, %s kPa (limits.min_inlet_kpa)",
+			fmtNum(m.Carrier.FlowMLMin), need, fmtNum(start-model.ZeroCelsius), fmtNum(low))
 	}
 }
 
@@ -420,6 +522,20 @@ func (m *Method) Advice() []Note {
 	hold("oven.initial_hold_min", o.InitialHoldMin)
 	for i, r := range o.Ramps {
 		hold(fmt.Sprintf("oven.ramp[%d].hold_min", i+1), r.HoldMin)
+	}
+	step := func(key string, x, st float64, stepKey, unit string) {
+		if st > 0 && math.Abs(x/st-math.Round(x/st)) > 1e-6 {
+			out = append(out, Note{key, fmt.Sprintf("%s %s is not on the oven's %s %s step (limits.%s): the oven takes %s %s", fmtNum(x), unit, fmtNum(st), unit, stepKey, fmtNum(math.Round(x/st)*st), unit)})
+		}
+	}
+	l := &m.Limits
+	step("oven.initial_c", o.InitialC, l.TempStepC, "temp_step_c", "°C")
+	step("oven.initial_hold_min", o.InitialHoldMin, l.HoldStepMin, "hold_step_min", "min")
+	for i, r := range o.Ramps {
+		base := fmt.Sprintf("oven.ramp[%d]", i+1)
+		step(base+".rate_c_min", r.RateCMin, l.RateStepCMin, "rate_step_c_min", "°C/min")
+		step(base+".final_c", r.FinalC, l.TempStepC, "temp_step_c", "°C")
+		step(base+".hold_min", r.HoldMin, l.HoldStepMin, "hold_step_min", "min")
 	}
 	if m.Injection.HasDetector {
 		top := m.ModelProgram().MaxTemp() - model.ZeroCelsius

@@ -174,3 +174,51 @@ func mustRead(t *testing.T, path string) string {
 	}
 	return string(data)
 }
+
+// The second-wave instrument limits refuse a program with the key that
+// breaks them; the matching search bounds never do.
+func TestInstrumentLimitsOfTheSecondWave(t *testing.T) {
+	base := readDemo(t)
+	cases := []struct {
+		name string
+		edit func(m *Method)
+		key  string
+		want string
+	}{
+		{"rate band", func(m *Method) {
+			m.Limits.RateBands = []RateBand{{AboveC: 200, MaxRateCMin: 10}}
+		}, "oven.ramp[1].rate_c_min", "12 °C/min is faster than the oven's limit 10 °C/min above 200 °C (limits.rate_band[1])"},
+		{"isothermal limit", func(m *Method) {
+			m.Column.MaxIsothermalC, m.Column.HasMaxIsothermal = 230, true
+		}, "oven.ramp[1].hold_min", "a hold of 2 min at 240 °C is above the column's isothermal limit 230 °C"},
+		{"below the coolant", func(m *Method) {
+			m.Limits.CoolantC, m.Limits.HasCoolant, m.Limits.OvenMinC = -20, true, -20
+			m.Oven.InitialC = -30
+		}, "oven.initial_c", "below the coolant's -20 °C"},
+		{"inlet below its lowest", func(m *Method) { m.Limits.MinInletKPa = 300 }, "carrier.flow_ml_min", "(limits.min_inlet_kpa)"},
+		{"bake-out above the column", func(m *Method) { m.Goal.BakeoutC, m.Goal.HasBakeout = 330, true }, "goal.bakeout_c", "above the column maximum"},
+	}
+	for _, c := range cases {
+		m := base.Clone()
+		c.edit(m)
+		err := m.Validate()
+		var fe *Error
+		if !errors.As(err, &fe) || fe.Key != c.key || !strings.Contains(fe.Msg, c.want) {
+			t.Errorf("%s: %v (want %s: …%s…)", c.name, err, c.key, c.want)
+		}
+	}
+	m := base.Clone()
+	m.Limits.CoolantC, m.Limits.HasCoolant, m.Limits.OvenMinC = -20, true, -10
+	m.Oven.InitialC = 0 // below ambient, allowed with a coolant
+	if err := m.Validate(); err != nil {
+		t.Errorf("a start between coolant and ambient: %v", err)
+	}
+	m.Oven.InitialC = 0.05
+	found := false
+	for _, n := range m.Advice() {
+		found = found || (n.Key == "oven.initial_c" && strings.Contains(n.Msg, "temp_step_c"))
+	}
+	if !found {
+		t.Errorf("0.05 °C off the 0.1 °C keypad step not noted: %v", m.Advice())
+	}
+}
