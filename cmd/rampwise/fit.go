@@ -60,7 +60,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, _, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
@@ -154,11 +154,11 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
-	s, err := simulateMethod(m, files[0])
+	s, err := simulateMethod(m, name)
 	if err != nil {
 		return err
 	}

@@ -65,8 +65,8 @@ func TestHelpAndBadFlags(t *testing.T) {
 	if code, out, _ := runCmd(t, "--help"); code != 0 || !strings.Contains(out, "simulate") {
 		t.Errorf("--help: %d", code)
 	}
-	if code, _, errs := runCmd(t, "simulate", "--help"); code != 0 || !strings.Contains(errs, "holdup") {
-		t.Errorf("simulate --help: %d %q", code, errs)
+	if code, out, _ := runCmd(t, "simulate", "--help"); code != 0 || !strings.Contains(out, "holdup") {
+		t.Errorf("simulate --help: %d %q", code, out)
 	}
 	if code, _, _ := runCmd(t, "simulate", "--bogus"); code != 2 {
 		t.Errorf("bad flag: exit %d", code)

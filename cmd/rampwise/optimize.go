@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"strings"
@@ -88,11 +87,11 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if *ramps != 0 {
-		if *ramps < 1 || *ramps > 5 {
-			return badf("optimize: --ramps must be 1..5, got %d", *ramps)
-		}
+	if given(fs, "ramps") {
 		m.Goal.Ramps = *ramps
+		if err := override(m, "ramps", "goal.ramps"); err != nil {
+			return err
+		}
 	}
 	if *objective != "" {
 		o, err := model.ParseObjective(*objective)
@@ -101,15 +100,10 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		}
 		m.Goal.Objective = o
 	}
-	if *minRs != 0 {
-		if !(*minRs > 0) || math.IsInf(*minRs, 0) {
-			return badf("optimize: --min-resolution must be positive")
-		}
+	if given(fs, "min-resolution") {
 		m.Goal.MinResolution = *minRs
-	}
-	for _, l := range m.Goal.Lock {
-		if !l.Valid(m.Goal.Ramps) {
-			return badf("optimize: goal.lock names %s, which does not exist with %d ramps", l, m.Goal.Ramps)
+		if err := override(m, "min-resolution", "goal.min_resolution"); err != nil {
+			return err
 		}
 	}
 	before, err := simulateMethod(m, name)
