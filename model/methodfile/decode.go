@@ -4,9 +4,8 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"io"
+	"io/fs"
 	"math"
-	"os"
 	"regexp"
 	"sort"
 	"strconv"
@@ -16,6 +15,7 @@ import (
 	"github.com/pelletier/go-toml/v2/unstable"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/fsafe"
 )
 
 // MaxFileSize is the largest method or runs file read (4 MiB): a method is
@@ -66,17 +66,18 @@ func ReadFile(path string) (*Method, error) {
 }
 
 func readLimited(path string) ([]byte, error) {
-	f, err := os.Open(path)
+	// A FIFO, device or folder is refused at once rather than read (a FIFO
+	// with no writer would block for good).
+	data, err := fsafe.ReadRegular(path, MaxFileSize)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read: " + errors.Unwrap(err).Error()}
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
+		var pe *fs.PathError
+		switch {
+		case errors.As(err, &pe) && pe.Op == "read" && !errors.Is(err, fsafe.ErrNotRegular):
+			return nil, &Error{File: path, Msg: fmt.Sprintf("file is larger than %d MiB; not a method file", MaxFileSize>>20)}
+		case errors.As(err, &pe):
+			return nil, &Error{File: path, Msg: "cannot read: " + pe.Err.Error()}
+		}
 		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
-	}
-	if len(data) > MaxFileSize {
-		return nil, &Error{File: path, Msg: fmt.Sprintf("file is larger than %d MiB; not a method file", MaxFileSize>>20)}
 	}
 	return data, nil
 }
@@ -193,6 +194,12 @@ func Parse(name string, data []byte) (*Method, error) {
 // decodeStrict decodes TOML into target, refusing unknown keys, and turns
 // the decoder's errors into *Error with file, line and key.
 func decodeStrict(name string, data []byte, target any) (Locations, error) {
+	// A UTF-8 byte order mark (older Windows editors write one) is not
+	// part of the text; UTF-16 is a text file in the wrong encoding.
+	data = bytes.TrimPrefix(data, utf8BOM)
+	if isUTF16(data) {
+		return nil, &Error{File: name, Msg: "the file is UTF-16 text; save it as UTF-8 (in Notepad: Save As, Encoding UTF-8)"}
+	}
 	if bytes.IndexByte(data, 0) >= 0 {
 		return nil, &Error{File: name, Msg: "binary data (a NUL byte); not a TOML file"}
 	}
@@ -220,6 +227,29 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 		return nil, &Error{File: name, Line: line, Key: strings.Join(de.Key(), "."), Msg: msg}
 	}
 	return nil, &Error{File: name, Msg: strings.TrimPrefix(err.Error(), "toml: ")}
+}
+
+// isUTF16 spots UTF-16 text: a UTF-16 byte order mark, or (without one)
+// mostly-ASCII text where every other byte is NUL.
+func isUTF16(data []byte) bool {
+	if bytes.HasPrefix(data, []byte{0xFF, 0xFE}) || bytes.HasPrefix(data, []byte{0xFE, 0xFF}) {
+		return true
+	}
+	n := min(len(data), 512) &^ 1
+	if n < 8 {
+		return false
+	}
+	even, odd := 0, 0
+	for i := 0; i < n; i += 2 {
+		if data[i] == 0 {
+			even++
+		}
+		if data[i+1] == 0 {
+			odd++
+		}
+	}
+	half := n / 2
+	return (odd > half*3/4 && even == 0) || (even > half*3/4 && odd == 0)
 }
 
 var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into .* of type (\S+)`)
@@ -407,35 +437,24 @@ func (v *validator) column(r *rawMethod, m *Method) {
 		return
 	}
 	c := r.Column
+	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
+	kr := rulesFor(m.Column.Kind)
 	m.Column.LengthM = v.opt("column.length_m", c.LengthM, true, 30)
 	m.Column.DiameterMM = v.opt("column.diameter_mm", c.DiameterMM, true, 0.25)
-	m.Column.FilmUM = v.opt("column.film_um", c.FilmUM, true, 0.25)
+	m.Column.FilmUM = v.opt("column.film_um", c.FilmUM, kr.filmRequired, kr.filmDefault)
 	m.Column.Phase = v.str("column.phase", c.Phase, false, "")
 	m.Column.MaxTempC = v.opt("column.max_temp_c", c.MaxTempC, true, 300)
-	m.Column.Diffusivity = v.opt("column.stationary_diffusivity_m2_s", c.Diffusivity, false, model.DefaultDs)
+	m.Column.Diffusivity = v.opt("column.stationary_diffusivity_m2_s", c.Diffusivity, false, kr.diffusivity)
 	m.Column.PlateHeight = v.opt("column.plate_height_factor", c.PlateHeight, false, 1)
 	if c.CapacityNG != nil {
 		m.Column.CapacityNG = *c.CapacityNG
 		m.Column.HasCapacity = true
 	}
-	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
 	if c.MaxIsoC != nil {
 		m.Column.MaxIsothermalC = *c.MaxIsoC
 		m.Column.HasMaxIsothermal = true
 	}
-	if c.ParticleUM != nil {
-		m.Column.ParticleUM = *c.ParticleUM
-		m.Column.HasParticle = true
-	}
-	m.Column.Porosity = v.opt("column.porosity", c.Porosity, false, 0.40)
-	m.Column.HasPorosity = c.Porosity != nil
-	if c.PhaseRatio != nil {
-		m.Column.PhaseRatio = *c.PhaseRatio
-		m.Column.HasPhaseRatio = true
-	}
-	m.Column.EddyLambda = v.opt("column.eddy_lambda", c.EddyLambda, false, 0.8)
-	m.Column.ObstructionGamma = v.opt("column.obstruction_gamma", c.ObstrGamma, false, 0.7)
-	m.Column.MobileOmega = v.opt("column.mobile_omega", c.MobileOmega, false, 0.1)
+	v.packedKeys(c, m)
 }
 
 func (v *validator) carrier(r *rawMethod, m *Method) {
@@ -459,16 +478,22 @@ func (v *validator) limits(r *rawMethod, m *Method) {
 		l = &rawLimits{}
 	}
 	m.Limits.AmbientC = v.opt("limits.ambient_c", l.AmbientC, false, 25)
-	m.Limits.OvenMinC = v.opt("limits.oven_min_c", l.OvenMinC, false, m.Limits.AmbientC+10)
+	if l.CoolantC != nil {
+		m.Limits.CoolantC = *l.CoolantC
+		m.Limits.HasCoolant = true
+	}
+	// with a coolant the oven cools toward it and may start below ambient
+	// (MODEL.md §12); oven_min_c then defaults to coolant_c + 10
+	sink := m.Limits.AmbientC
+	if m.Limits.HasCoolant {
+		sink = m.Limits.CoolantC
+	}
+	m.Limits.OvenMinC = v.opt("limits.oven_min_c", l.OvenMinC, false, sink+10)
 	m.Limits.MaxRateCMin = v.opt("limits.max_rate_c_min", l.MaxRateCMin, false, 100)
 	m.Limits.MaxHoldMin = v.opt("limits.max_hold_min", l.MaxHoldMin, false, 10)
 	m.Limits.CooldownTauMin = v.opt("limits.cooldown_tau_min", l.CooldownTauMin, false, 2.0)
 	m.Limits.EquilibrationMin = v.opt("limits.equilibration_min", l.EquilibrationMin, false, 0.5)
 	m.Limits.MaxInletKPa = v.opt("limits.max_inlet_kpa", l.MaxInletKPa, false, 690)
-	if l.CoolantC != nil {
-		m.Limits.CoolantC = *l.CoolantC
-		m.Limits.HasCoolant = true
-	}
 	m.Limits.MinInletKPa = v.opt("limits.min_inlet_kpa", l.MinInletKPa, false, 0)
 	m.Limits.MinFlowMLMin = v.opt("limits.min_flow_ml_min", l.MinFlowMLMin, false, 0)
 	m.Limits.MaxFlowMLMin = v.opt("limits.max_flow_ml_min", l.MaxFlowMLMin, false, 0)
@@ -644,11 +669,14 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 			c.DSSE = v.opt(base+".dS_se_J_mol_K", rc.DSSE, true, 0)
 			c.DHDSCorr = v.opt(base+".dH_dS_corr", rc.DHDSCorr, false, 0)
 		}
-		if rc.DHkJ != nil || rc.DS != nil || rc.RetentionIndex == nil {
+		switch {
+		case rc.DHkJ != nil || rc.DS != nil || (rc.RetentionIndex == nil && rc.Formula == nil):
 			c.DHkJ = v.opt(base+".dH_kJ_mol", rc.DHkJ, true, -40)
 			c.DS = v.opt(base+".dS_J_mol_K", rc.DS, true, -80)
-		} else {
+		case rc.RetentionIndex != nil:
 			c.FromIndex = true
+		default:
+			fromFormula(&c) // only a formula: a rough estimate (formulaestimate.go)
 		}
 		m.Compounds = append(m.Compounds, c)
 	}

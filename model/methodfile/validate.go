@@ -151,34 +151,16 @@ func (m *Method) ValidateKey(key string) error {
 
 func (v *validator) checkColumn(m *Method) {
 	c := &m.Column
-	v.in("column.length_m", c.LengthM, closed(0.1, 300, "m"), "")
-	v.in("column.diameter_mm", c.DiameterMM, closed(0.01, 1.0, "mm"), "")
-	v.in("column.film_um", c.FilmUM, closed(0.01, 50, "µm"), "")
-	if v.err == nil && c.FilmUM*1e-3 >= c.DiameterMM/2 {
-		v.fail("column.film_um", "film %s µm is thicker than the column radius (%s mm diameter)", fmtNum(c.FilmUM), fmtNum(c.DiameterMM))
-	}
+	v.checkKind(m)
 	v.in("column.max_temp_c", c.MaxTempC, closed(-50, 500, "°C"), "")
 	v.in("column.stationary_diffusivity_m2_s", c.Diffusivity, closed(1e-14, 1e-3, "m²/s"), "")
 	v.in("column.plate_height_factor", c.PlateHeight, closed(0.1, 100, ""), "")
 	if c.HasCapacity {
 		v.in("column.capacity_ng", c.CapacityNG, closed(0.001, 1e9, "ng"), "")
 	}
-	if v.err == nil && c.Kind != "wall-coated" && c.Kind != "packed" && c.Kind != "porous-layer" {
-		v.fail("column.kind", "%q is not one of wall-coated, packed, porous-layer", c.Kind)
-	}
 	if c.HasMaxIsothermal && v.in("column.max_isothermal_c", c.MaxIsothermalC, tempRange, "") && c.MaxIsothermalC > c.MaxTempC {
 		v.fail("column.max_isothermal_c", "%s °C is above the column maximum %s °C", fmtNum(c.MaxIsothermalC), fmtNum(c.MaxTempC))
 	}
-	if c.HasParticle {
-		v.in("column.particle_um", c.ParticleUM, closed(1, 1000, "µm"), "")
-	}
-	v.in("column.porosity", c.Porosity, rng{lo: 0, hi: 1, loOpen: true, hiOpen: true}, "")
-	if c.HasPhaseRatio {
-		v.in("column.phase_ratio", c.PhaseRatio, closed(0.1, 1e5, ""), "")
-	}
-	v.in("column.eddy_lambda", c.EddyLambda, closed(0, 10, ""), "")
-	v.in("column.obstruction_gamma", c.ObstructionGamma, rng{lo: 0, hi: 2, loOpen: true}, "")
-	v.in("column.mobile_omega", c.MobileOmega, closed(0, 10, ""), "")
 }
 
 func (v *validator) checkCarrier(m *Method) {
@@ -220,12 +202,12 @@ func (v *validator) checkLimits(m *Method) {
 		v.fail("limits.coolant_c", "%s °C is not below the ambient %s °C (a coolant only helps below ambient)", fmtNum(l.CoolantC), fmtNum(l.AmbientC))
 	}
 	v.in("limits.oven_min_c", l.OvenMinC, tempRange, "")
-	if v.err == nil {
-		if l.HasCoolant && l.OvenMinC < l.CoolantC {
-			v.fail("limits.oven_min_c", "%s °C is below the coolant's %s °C (limits.coolant_c; the oven cannot cool to it)", fmtNum(l.OvenMinC), fmtNum(l.CoolantC))
-		} else if !l.HasCoolant && l.OvenMinC <= l.AmbientC {
-			v.fail("limits.oven_min_c", "%s °C is not above the ambient %s °C (the oven cannot cool to it)", fmtNum(l.OvenMinC), fmtNum(l.AmbientC))
-		}
+	sink, sinkWords := l.AmbientC, "the ambient"
+	if l.HasCoolant {
+		sink, sinkWords = l.CoolantC, "the coolant_c"
+	}
+	if v.err == nil && l.OvenMinC <= sink {
+		v.fail("limits.oven_min_c", "%s °C is not above %s %s °C (the oven cannot cool to it)", fmtNum(l.OvenMinC), sinkWords, fmtNum(sink))
 	}
 	v.in("limits.max_rate_c_min", l.MaxRateCMin, closed(0.1, 2000, "°C/min"), "")
 	v.in("limits.max_hold_min", l.MaxHoldMin, closed(0, 10000, "min"), "")
@@ -271,10 +253,10 @@ func (v *validator) checkProgram(m *Method) {
 	o := &m.Oven
 	l := &m.Limits
 	if v.err == nil && finite(o.InitialC) {
-		if l.HasCoolant && o.InitialC < l.CoolantC {
-			v.fail("oven.initial_c", "%s °C is below the coolant's %s °C (limits.coolant_c; the oven cannot cool to it)", fmtNum(o.InitialC), fmtNum(l.CoolantC))
+		if l.HasCoolant && o.InitialC <= l.CoolantC {
+			v.fail("oven.initial_c", "%s °C is not above the coolant_c %s °C in [limits] (the oven cannot cool to it)", fmtNum(o.InitialC), fmtNum(l.CoolantC))
 		} else if !l.HasCoolant && o.InitialC <= l.AmbientC {
-			v.fail("oven.initial_c", "%s °C is not above the ambient %s °C in [limits] (the oven cannot cool back to it)", fmtNum(o.InitialC), fmtNum(l.AmbientC))
+			v.fail("oven.initial_c", "%s °C is not above the ambient %s °C in [limits] (the oven cannot cool back to it without a coolant: set limits.coolant_c for a sub-ambient start)", fmtNum(o.InitialC), fmtNum(l.AmbientC))
 		}
 	}
 	v.shape(m, closed(MinRateCMin, l.MaxRateCMin, "°C/min"), true)

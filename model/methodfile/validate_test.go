@@ -192,9 +192,9 @@ func TestInstrumentLimitsOfTheSecondWave(t *testing.T) {
 			m.Column.MaxIsothermalC, m.Column.HasMaxIsothermal = 230, true
 		}, "oven.ramp[1].hold_min", "a hold of 2 min at 240 °C is above the column's isothermal limit 230 °C"},
 		{"below the coolant", func(m *Method) {
-			m.Limits.CoolantC, m.Limits.HasCoolant, m.Limits.OvenMinC = -20, true, -20
+			m.Limits.CoolantC, m.Limits.HasCoolant, m.Limits.OvenMinC = -20, true, -10
 			m.Oven.InitialC = -30
-		}, "oven.initial_c", "below the coolant's -20 °C"},
+		}, "oven.initial_c", "not above the coolant_c -20 °C"},
 		{"inlet below its lowest", func(m *Method) { m.Limits.MinInletKPa = 300 }, "carrier.flow_ml_min", "(limits.min_inlet_kpa)"},
 		{"bake-out above the column", func(m *Method) { m.Goal.BakeoutC, m.Goal.HasBakeout = 330, true }, "goal.bakeout_c", "above the column maximum"},
 	}
