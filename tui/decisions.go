@@ -12,6 +12,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/sweep"
 	"github.com/rampwise/rampwise/optimizer"
@@ -52,7 +53,7 @@ func rsText(sh *shared, sys *model.System, r *model.Result) string {
 		return "no counted pair"
 	}
 	cp := r.Pairs[r.Critical]
-	return fmt.Sprintf("%.2f %s / %s", r.MinResolution, inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
+	return format.Rs(r.MinResolution, sh.method.Goal.MinResolution) + " " + format.CriticalPair(inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
 }
 
 // --- the optimizer's result ---
@@ -149,10 +150,7 @@ func (d *resultDialog) render() {
 		if r.Critical < 0 {
 			return "no counted pair"
 		}
-		if r.MinResolution < target {
-			return fmt.Sprintf("%.2f ✗", r.MinResolution)
-		}
-		return fmt.Sprintf("%.2f ✓", r.MinResolution)
+		return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
 	}
 	right := []string{
 		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
@@ -288,7 +286,7 @@ func (d *fitDialog) render() {
 	title := dialogTitle(st, "calibration", fmt.Sprintf("  in elution order · diameter %s mm · plate-height factor %s · ⚠ large ± (over %g kJ/mol or %g J/(mol·K))",
 		fmtNum(m.Column.DiameterMM, 3, 4), fmtNum(m.Column.PlateHeight, 2, 3), largeErrDH, largeErrDS), d.w)
 	rsLine := st.Info.Render(ansi.Truncate(fmt.Sprintf(" min Rs now %s → %s with the fitted values (target %.2f)", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim), m.Goal.MinResolution), d.w, "…"))
-	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH kJ/mol", "±", "ΔS J/molK", "±", "runs", "rms min"), d.w, "…"))
+	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH "+format.UnitDH, "±", "ΔS "+format.UnitDS, "±", "runs", "rms min"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))

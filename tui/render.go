@@ -7,6 +7,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 )
 
 // The root's own lines: title, method, summary and messages. Every string
@@ -66,12 +67,14 @@ func (a *App) summaryLine(w int) string {
 	style := a.st.Good
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		ok := "✓"
-		if r.MinResolution < a.sh.method.Goal.MinResolution {
-			ok, style = "✗", a.st.Bad
+		target := a.sh.method.Goal.MinResolution
+		if !format.Met(r.MinResolution, target) {
+			style = a.st.Bad
 		}
-		rs = fmt.Sprintf("Rs %.2f %s %s / %s (target %.2f)", r.MinResolution, ok,
-			inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name), a.sh.method.Goal.MinResolution)
+		// the pair before the target, so that a narrow screen still names it
+		rs = "Rs " + format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target) + " " +
+			format.CriticalPair(inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name)) +
+			" (target " + format.Target(target) + ")"
 	}
 	late := 0
 	for _, pk := range r.Peaks {

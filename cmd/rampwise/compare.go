@@ -14,6 +14,7 @@ import (
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
@@ -49,6 +50,7 @@ type candidateJSON struct {
 	Film          float64     `json:"film_um"`
 	Feasible      bool        `json:"feasible"`
 	Objective     string      `json:"objective"`
+	target        float64     // the candidate's goal.min_resolution, for the table
 	Time          float64     `json:"time_min"`
 	RunTime       float64     `json:"run_time_min"`
 	CycleTime     float64     `json:"cycle_time_min"`
@@ -151,7 +153,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective.String()}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
@@ -225,10 +227,10 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		}
 		rs, cp := "-", "-"
 		if j.MinResolution != nil {
-			rs = fmt.Sprintf("%.2f", *j.MinResolution)
+			rs = format.RsNumber(*j.MinResolution, j.target) + " " + format.Verdict(*j.MinResolution, j.target)
 		}
 		if len(j.CriticalPair) == 2 {
-			cp = j.CriticalPair[0] + " / " + j.CriticalPair[1]
+			cp = format.CriticalPair(j.CriticalPair[0], j.CriticalPair[1])
 		}
 		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
 		if !j.Feasible {

@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/model/sweep"
@@ -193,11 +194,12 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, p.Reason)
 			continue
 		}
-		mark := ""
-		if !math.IsNaN(p.MinRs) && p.MinRs >= m.Goal.MinResolution {
-			mark = " ✓"
+		rs, pair := "–", "no counted pair"
+		if !math.IsNaN(p.MinRs) {
+			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.Verdict(p.MinRs, m.Goal.MinResolution)
+			pair = format.CriticalPair(p.Critical[0], p.Critical[1])
 		}
-		fmt.Fprintf(tw, "%g\t%.3f%s\t%s / %s\t%.2f\t\n", p.Value, p.MinRs, mark, p.Critical[0], p.Critical[1], p.RunTime)
+		fmt.Fprintf(tw, "%g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
 	}
 	tw.Flush()
 	if *csvF != "" {

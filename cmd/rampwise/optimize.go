@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
@@ -189,10 +190,10 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
 	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.res.RunTime/60, afterSim.res.RunTime/60)
 	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.res.CycleTime/60, afterSim.res.CycleTime/60)
-	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before), fmtRs(afterSim))
+	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before, m.Goal.MinResolution), fmtRs(afterSim, m.Goal.MinResolution))
 	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
 	tw.Flush()
-	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %.2f)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, m.Goal.MinResolution)
+	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %s)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, format.Target(m.Goal.MinResolution))
 	if met {
 		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
 	} else {
@@ -203,11 +204,11 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	}
 }
 
-func fmtRs(s *simulation) string {
+func fmtRs(s *simulation, target float64) string {
 	if s.res.Critical < 0 {
 		return "-"
 	}
-	return fmt.Sprintf("%.2f", s.res.MinResolution)
+	return format.RsNumber(s.res.MinResolution, target) + " " + format.Verdict(s.res.MinResolution, target)
 }
 
 func critName(s *simulation) string {
@@ -215,7 +216,7 @@ func critName(s *simulation) string {
 		return "-"
 	}
 	cp := s.res.Pairs[s.res.Critical]
-	return s.sys.Compounds[cp.First].Name + " / " + s.sys.Compounds[cp.Second].Name
+	return format.CriticalPair(s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name)
 }
 
 // progressPrinter reports progress on stderr: a bar redrawn in place on a

@@ -11,6 +11,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 )
@@ -165,15 +166,15 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 	fmt.Fprintf(w, "%s\n", title)
 	fmt.Fprintf(w, "%s\n%s\n\n", describeColumn(m), describeProgram(m.Oven))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\tRs next\ttarget\t")
+	fmt.Fprintf(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\t%s\t%s\t\n", format.HeadRsNext, format.HeadTarget)
 	rs := resolutionAfter(r)
 	for i, pk := range r.Peaks {
 		c := &s.sys.Compounds[pk.Compound]
 		rsText := ""
 		if !math.IsNaN(rs[i]) {
-			rsText = fmt.Sprintf("%.2f", rs[i])
+			rsText = format.Pair(rs[i], m.Goal.MinResolution)
 			if r.Critical == i {
-				rsText += " ◄"
+				rsText = format.CriticalMark + " " + rsText
 			}
 		}
 		tgt := ""
@@ -199,8 +200,8 @@ func (s *simulation) summary() string {
 	crit := "no counted pair"
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		crit = fmt.Sprintf("min Rs %.2f (critical pair %s / %s; target %.2f)", r.MinResolution,
-			s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name, s.method.Goal.MinResolution)
+		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.method.Goal.MinResolution),
+			format.CriticalPair(s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }

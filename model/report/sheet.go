@@ -6,6 +6,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
+	"github.com/rampwise/rampwise/model/format"
 )
 
 // Sheet is the method sheet in Markdown: column, carrier and pressure mode
@@ -81,12 +82,15 @@ func (s *Sim) Sheet() []byte {
 	fmt.Fprintf(&b, "\n## Limits\n\nLowest start %s °C · fastest ramp %s °C/min · longest hold %s min · highest inlet pressure %s kPa · column maximum %s °C.\n",
 		num(l.OvenMinC), num(l.MaxRateCMin), num(l.MaxHoldMin), num(l.MaxInletKPa), num(m.Column.MaxTempC))
 
-	fmt.Fprintf(&b, "\n## Expected retention (model prediction)\n\n| # | compound | tR (min) | Te (°C) | w½ (s) | Rs to next | target |\n|---|---|---|---|---|---|---|\n")
+	fmt.Fprintf(&b, "\n## Expected retention (model prediction)\n\n| # | compound | tR (min) | Te (°C) | w½ (s) | %s | %s |\n|---|---|---|---|---|---|---|\n", format.HeadRsNext, format.HeadTarget)
 	for i, pk := range r.Peaks {
 		c := &s.System.Compounds[pk.Compound]
 		rs := ""
 		if i < len(r.Pairs) {
-			rs = fmt.Sprintf("%.2f", r.Pairs[i].Resolution)
+			rs = format.Pair(r.Pairs[i].Resolution, m.Goal.MinResolution)
+			if i == r.Critical {
+				rs = format.CriticalMark + " " + rs
+			}
 		}
 		tr := fmt.Sprintf("%.3f", pk.RetentionTime/60)
 		if !pk.Eluted {
@@ -100,8 +104,8 @@ func (s *Sim) Sheet() []byte {
 	}
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		fmt.Fprintf(&b, "\nMinimum resolution %.2f (target %.2f), critical pair %s / %s.\n", r.MinResolution, m.Goal.MinResolution,
-			s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name)
+		fmt.Fprintf(&b, "\nMinimum resolution %s, critical pair %s.\n", format.Rs(r.MinResolution, m.Goal.MinResolution),
+			format.CriticalPair(s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name))
 	}
 
 	fmt.Fprintf(&b, "\n## Where the retention parameters come from\n\n")
