@@ -4,9 +4,8 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"io"
+	"io/fs"
 	"math"
-	"os"
 	"regexp"
 	"sort"
 	"strconv"
@@ -16,6 +15,7 @@ import (
 	"github.com/pelletier/go-toml/v2/unstable"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/fsafe"
 )
 
 // MaxFileSize is the largest method or runs file read (4 MiB): a method is
@@ -61,17 +61,18 @@ func ReadFile(path string) (*Method, error) {
 }
 
 func readLimited(path string) ([]byte, error) {
-	f, err := os.Open(path)
+	// A FIFO, device or folder is refused at once rather than read (a FIFO
+	// with no writer would block for good).
+	data, err := fsafe.ReadRegular(path, MaxFileSize)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read: " + errors.Unwrap(err).Error()}
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
+		var pe *fs.PathError
+		switch {
+		case errors.As(err, &pe) && pe.Op == "read" && !errors.Is(err, fsafe.ErrNotRegular):
+			return nil, &Error{File: path, Msg: fmt.Sprintf("file is larger than %d MiB; not a method file", MaxFileSize>>20)}
+		case errors.As(err, &pe):
+			return nil, &Error{File: path, Msg: "cannot read: " + pe.Err.Error()}
+		}
 		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
-	}
-	if len(data) > MaxFileSize {
-		return nil, &Error{File: path, Msg: fmt.Sprintf("file is larger than %d MiB; not a method file", MaxFileSize>>20)}
 	}
 	return data, nil
 }
@@ -182,6 +183,12 @@ func Parse(name string, data []byte) (*Method, error) {
 // decodeStrict decodes TOML into target, refusing unknown keys, and turns
 // the decoder's errors into *Error with file, line and key.
 func decodeStrict(name string, data []byte, target any) (Locations, error) {
+	// A UTF-8 byte order mark (older Windows editors write one) is not
+	// part of the text; UTF-16 is a text file in the wrong encoding.
+	data = bytes.TrimPrefix(data, utf8BOM)
+	if isUTF16(data) {
+		return nil, &Error{File: name, Msg: "the file is UTF-16 text; save it as UTF-8 (in Notepad: Save As, Encoding UTF-8)"}
+	}
 	if bytes.IndexByte(data, 0) >= 0 {
 		return nil, &Error{File: name, Msg: "binary data (a NUL byte); not a TOML file"}
 	}
@@ -209,6 +216,29 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 		return nil, &Error{File: name, Line: line, Key: strings.Join(de.Key(), "."), Msg: msg}
 	}
 	return nil, &Error{File: name, Msg: strings.TrimPrefix(err.Error(), "toml: ")}
+}
+
+// isUTF16 spots UTF-16 text: a UTF-16 byte order mark, or (without one)
+// mostly-ASCII text where every other byte is NUL.
+func isUTF16(data []byte) bool {
+	if bytes.HasPrefix(data, []byte{0xFF, 0xFE}) || bytes.HasPrefix(data, []byte{0xFE, 0xFF}) {
+		return true
+	}
+	n := min(len(data), 512) &^ 1
+	if n < 8 {
+		return false
+	}
+	even, odd := 0, 0
+	for i := 0; i < n; i += 2 {
+		if data[i] == 0 {
+			even++
+		}
+		if data[i+1] == 0 {
+			odd++
+		}
+	}
+	half := n / 2
+	return (odd > half*3/4 && even == 0) || (even > half*3/4 && odd == 0)
 }
 
 var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into .* of type (\S+)`)
@@ -646,11 +676,14 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 			c.DHDSCorr = v.num(base+".dH_dS_corr", rc.DHDSCorr, false, 0, bound{lo: -1, hi: 1}, "")
 		}
 		hasThermo := rc.DHkJ != nil || rc.DS != nil
-		if hasThermo || rc.RetentionIndex == nil {
+		switch {
+		case hasThermo || (rc.RetentionIndex == nil && rc.Formula == nil):
 			c.DHkJ = v.num(base+".dH_kJ_mol", rc.DHkJ, true, -40, bound{lo: -500, hi: 0, hiOpen: true}, "kJ/mol")
 			c.DS = v.num(base+".dS_J_mol_K", rc.DS, true, -80, bound{lo: -1000, hi: 200}, "J/(mol·K)")
-		} else {
+		case rc.RetentionIndex != nil:
 			c.FromIndex = true
+		default:
+			fromFormula(&c) // only a formula: a rough estimate (formulaestimate.go)
 		}
 		m.Compounds = append(m.Compounds, c)
 	}
