@@ -11,6 +11,7 @@ import (
 	"strings"
 	"syscall"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
@@ -67,8 +68,8 @@ type planJSON struct {
 }
 
 func carrierToJSON(c methodfile.Carrier) carrierJSON {
-	j := carrierJSON{Mode: c.Mode}
-	if c.Mode == "constant-pressure" {
+	j := carrierJSON{Mode: c.Mode.String()}
+	if c.Mode == model.ConstantPressure {
 		j.InletKPa = &c.InletKPa
 	} else {
 		j.FlowMLMin = &c.FlowMLMin
@@ -193,14 +194,14 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 		fmt.Fprintln(w, "\nonce the run is made, add it to the runs file with the measured times:")
 		fmt.Fprint(w, plan.RunBlock(runName, p.Oven, m.Limits, p.Compounds))
 		fmt.Fprintln(w, "\nThe oven and inlet are hot; never program above the column's maximum temperature.")
-		if strings.EqualFold(p.Carrier.Gas, "hydrogen") {
+		if p.Carrier.Gas == model.Hydrogen {
 			fmt.Fprintln(w, "Hydrogen carrier is flammable: leak-check, use a hydrogen sensor and follow the instrument maker's guidance and local codes.")
 		}
 	}
 }
 
 func describeCarrier(c methodfile.Carrier) string {
-	if c.Mode == "constant-pressure" {
+	if c.Mode == model.ConstantPressure {
 		return fmt.Sprintf("%s, constant pressure %.1f kPa", c.Gas, c.InletKPa)
 	}
 	return fmt.Sprintf("%s, constant flow %.2f mL/min", c.Gas, c.FlowMLMin)
