@@ -55,6 +55,7 @@ func BenchmarkPlanDemo(b *testing.B) {
 func TestCandidatesWithinLimits(t *testing.T) {
 	text := sampleText(1, []sampleCompound{{"a", -40, -80}, {"b", -55, -100}, {"c", -70, -120}})
 	text = strings.Replace(text, "detector_temp_c = 320.0", "detector_temp_c = 270.0", 1)
+	text = strings.Replace(text, "final_c = 300.0\nhold_min = 5.0", "final_c = 250.0\nhold_min = 5.0", 1)
 	text = strings.Replace(text, "max_temp_c = 325.0", "max_temp_c = 325.0\nmax_isothermal_c = 260.0", 1)
 	text = strings.Replace(text, "max_hold_min = 10.0", "max_hold_min = 10.0\ntemp_step_c = 0.5\nrate_step_c_min = 0.5\nhold_step_min = 0.1\n[[limits.rate_band]]\nabove_c = 150.0\nmax_rate_c_min = 25.0", 1)
 	m, err := methodfile.Parse("lim.toml", []byte(text))
