@@ -24,6 +24,7 @@ type designChoice struct {
 type pairSens struct {
 	a, b     int
 	ga, gb   [2]float64
+	rs       float64
 	critical bool
 }
 
@@ -120,7 +121,10 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 		score, critSD := 0.0, 0.0
 		for _, p := range pairs {
 			v := post[p.a].quad(p.ga) + post[p.b].quad(p.gb)
-			score += v
+			// the shortfall of the margin this pair would still leave
+			if short := target - p.rs + z*math.Sqrt(math.Max(v, 0)); short > 0 {
+				score += short * short
+			}
 			if p.critical {
 				critSD = math.Sqrt(math.Max(v, 0))
 			}
@@ -172,10 +176,10 @@ func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]
 			}
 			rs, ga, gb := s.resolution(a, b)
 			sd := rsSD(ga, gb, st.cov[a], st.cov[b])
-			if rs-3*sd > target+0.5 {
+			if rs-3*sd > 2*target {
 				continue
 			}
-			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb})
+			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb, rs: rs})
 			if y == x+1 && rs < critRs {
 				critRs, crit = rs, len(pairs)-1
 			}

@@ -188,7 +188,7 @@ func TestLoopFewestInjections(t *testing.T) {
 	if testing.Short() {
 		t.Skip("plays the whole loop")
 	}
-	n := 2
+	n := 1
 	if s := os.Getenv("RAMPWISE_PLAN_STUDY"); s != "" {
 		v, err := strconv.Atoi(s)
 		if err != nil || v < 1 {
