@@ -15,7 +15,7 @@ const maxScoutMin = 90
 // designChoice is the chosen scouting run.
 type designChoice struct {
 	oven    methodfile.Oven
-	score   float64 // summed posterior variance of the weighed pairs
+	score   float64 // summed squared shortfall of the margin
 	sdAfter float64 // SD of the critical pair's Rs after the run
 	pairs   int
 }
@@ -73,8 +73,9 @@ func (sl scoutLimits) rateTo(finalC float64) float64 {
 }
 
 // design picks, among scouting programs within the limits, the one after
-// which the summed variance of the resolutions of the pairs that are or
-// could become critical at the optimized program is least.
+// which the summed squared shortfall of the margin,
+// Σ max(0, target − Rs + z·SD_after)², over the pairs that are or could
+// become critical at the optimized programs is least.
 func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoice, error) {
 	var pairs []pairSens
 	for pi, o := range progs {
@@ -150,8 +151,8 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 }
 
 // criticalPairs are the pairs with a target that are, or within three
-// standard deviations could become, critical at program o (Rs within
-// 3 SD of the target plus half a unit), with their gradients; the least
+// standard deviations could become, critical at program o (Rs − 3 SD
+// below twice the target), with their gradients; the least
 // adjacent one is marked critical when mark is set.
 func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]pairSens, error) {
 	if err := st.sens.eval(methodfile.ProgramToModel(o)); err != nil {

@@ -5,14 +5,19 @@
 //
 //   - inject: a scouting program, within every instrument limit of the
 //     method, chosen to shrink the uncertainty of the resolution of the
-//     pairs that are or could become critical near the optimum. The
-//     criterion is the expected reduction of the variance of those
-//     resolutions (a linear, "L-optimum" design: Atkinson, Donev & Tobias,
-//     Optimum Experimental Designs, with SAS, Oxford 2007, §10.1; with one
-//     pair it is c-optimum). The variances come from first-order propagation
-//     of each compound's (ΔH, ΔS) covariance; a candidate run updates that
-//     covariance by its retention-time sensitivities (a Bayesian update
-//     with the retention-time SD as the measurement error).
+//     pairs that are or could become critical near the optimum: the run
+//     after which the summed squared shortfall of the margin,
+//     Σ max(0, target − Rs + z·SD_after)², is least, SD_after being each
+//     pair's expected posterior SD. This is expected reduction of the Rs
+//     variance weighted towards the pairs that would block a verification,
+//     a Bayesian linear design (Atkinson, Donev & Tobias, Optimum
+//     Experimental Designs, with SAS, Oxford 2007, criteria of optimality:
+//     linear and c-optimality; Chaloner & Verdinelli, Statistical Science
+//     10, 1995, 273); the weighting is ours. The variances come from
+//     first-order propagation of each compound's (ΔH, ΔS) covariance; a
+//     candidate run updates that covariance by its retention-time
+//     sensitivities (a Bayesian update with the retention-time SD as the
+//     measurement error).
 //   - verify: the optimized program, when its predicted minimum resolution
 //     minus z standard deviations (parameters and measurement) meets the
 //     target and, when [goal.robust] gives instrument tolerances, every
