@@ -87,8 +87,9 @@ type Settings struct {
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
 	// is at most (1 + Tolerance) times that of the program now predicted
-	// to hold the margin. Default 0.5: after a passing verification a
-	// program predicted a little faster is mentioned, not demanded.
+	// to hold the margin. Default 1: after a passing verification a
+	// program predicted faster is mentioned, not demanded; a slow scouting
+	// ramp that happens to meet the target is not taken for the method.
 	Tolerance float64
 }
 
@@ -112,7 +113,7 @@ func (s Settings) withDefaults() Settings {
 		s.Draws = 3
 	}
 	if s.Tolerance <= 0 {
-		s.Tolerance = 0.5
+		s.Tolerance = 1
 	}
 	return s
 }
