@@ -17,6 +17,7 @@ import (
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
 )
 
@@ -57,6 +58,8 @@ const (
 	confirmNone confirmMode = iota
 	confirmQuit
 	confirmRestore
+	confirmDiskChanged // the file changed on disk since loaded (filesafety.go)
+	confirmReplace     // save-as onto an existing file (filesafety.go)
 )
 
 type msgKind int
@@ -114,7 +117,8 @@ type App struct {
 	inMode  inputMode
 	confirm confirmMode
 	recover *methodfile.Method
-	full    bool // full help shown
+	files   fileWatch // the file on disk and the recovery file (filesafety.go)
+	full    bool      // full help shown
 
 	optSettings optimizer.Settings
 	opt         *optRun
@@ -183,11 +187,8 @@ func New(m *methodfile.Method, opt Options) (*App, error) {
 	if err := a.resimulate(); err != nil {
 		return nil, err
 	}
-	if rm, rp, ok := recoveryAvailable(opt.Path); ok {
-		a.recover = rm
-		a.confirm = confirmRestore
-		a.say(msgWarn, "unsaved changes from an earlier session are in %s: r restore them · d discard the file · esc keep it and go on", rp)
-	}
+	a.files.record(opt.Path)
+	a.offerRecovery(opt.Path)
 	a.guard.update(a.path, a.method, false)
 	return a, nil
 }
@@ -358,7 +359,15 @@ func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {
 			return nil
 		}
 		if key.Matches(msg, a.keys.Quit) && msg.String() == "ctrl+c" {
+			// Like q: stop the optimizer, and ask first if there are
+			// unsaved changes.
 			a.opt.cancel()
+			a.opt = nil
+			if a.Dirty() {
+				a.confirm = confirmQuit
+				a.say(msgWarn, "optimizer stopped; unsaved changes: s save and quit · y quit without saving · esc stay")
+				return nil
+			}
 			return tea.Quit
 		}
 		if a.focus == paneChart {
@@ -506,6 +515,8 @@ func (a *App) onInput(msg tea.KeyMsg) tea.Cmd {
 func (a *App) onConfirm(msg tea.KeyMsg) tea.Cmd {
 	mode := a.confirm
 	switch mode {
+	case confirmDiskChanged, confirmReplace:
+		return a.onFileConfirm(msg)
 	case confirmQuit:
 		switch msg.String() {
 		case "y":
@@ -532,15 +543,16 @@ func (a *App) onConfirm(msg tea.KeyMsg) tea.Cmd {
 			a.confirm = confirmNone
 			a.undo = append(a.undo, a.method)
 			a.restore(a.recover)
-			a.say(msgGood, "restored the unsaved changes (u undoes); save with ctrl+s")
-			os.Remove(RecoveryPath(a.path))
+			// The recovery file stays until the method is saved.
+			a.guard.update(a.path, a.method, a.Dirty())
+			a.say(msgGood, "restored the unsaved changes (u undoes; the recovery file stays until you save); save with ctrl+s")
 		case "d":
 			a.confirm = confirmNone
-			os.Remove(RecoveryPath(a.path))
+			os.Remove(a.files.recover)
 			a.say(msgInfo, "discarded the recovery file")
 		case "esc":
 			a.confirm = confirmNone
-			a.say(msgInfo, "kept the recovery file %s", RecoveryPath(a.path))
+			a.say(msgInfo, "kept the recovery file %s", textsafe.Inert(a.files.recover))
 		}
 	}
 	return nil
@@ -560,15 +572,19 @@ func (a *App) save(path string) tea.Cmd {
 }
 
 func (a *App) saveTo(path string) bool {
+	if !a.mayWrite(path) {
+		return false
+	}
 	if err := methodfile.WriteFile(path, a.method); err != nil {
-		a.say(msgError, "not saved: %v", err)
+		a.say(msgError, "not saved: %v", textsafe.Inert(err.Error()))
 		return false
 	}
 	a.path = path
 	a.name = path
 	a.saved = a.method
-	a.guard.update(a.path, a.method, false)
-	a.say(msgGood, "saved to %s", path)
+	a.guard.Saved(a.path, a.method)
+	a.files.record(path)
+	a.say(msgGood, "saved to %s", textsafe.Inert(path))
 	return true
 }
 

@@ -249,8 +249,16 @@ func TestRecoveryFile(t *testing.T) {
 	if !reflect.DeepEqual(b.Method(), back) {
 		t.Error("restore did not bring the unsaved method back")
 	}
+	// The recovery stays until the method is saved, then goes.
+	if _, err := os.Stat(rp); err != nil {
+		t.Error("recovery file removed before the method was saved")
+	}
+	press(b, "ctrl+s")
 	if _, err := os.Stat(rp); err == nil {
-		t.Error("recovery file left after restore")
+		t.Error("recovery file left after the save")
+	}
+	if FindRecovery(path) != nil {
+		t.Error("a recovery is offered again after the save")
 	}
 }
 

@@ -5,6 +5,7 @@ import (
 	"fmt"
 
 	toml "github.com/pelletier/go-toml/v2"
+
 	"github.com/rampwise/rampwise/model/fsafe"
 )
 
