@@ -73,7 +73,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		return badf("%s: %v", files[1], err)
 	}
 	if *out != "" {
-		if err := methodfile.WriteFile(*out, rep.Method); err != nil {
+		if err := saveMethodOut(*out, files[0], rep.Method); err != nil {
 			return err
 		}
 	}

@@ -19,6 +19,7 @@ import (
 	"os"
 	"strings"
 
+	"github.com/rampwise/rampwise/model/fsafe"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -103,7 +104,8 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	fmt.Fprintf(stderr, "rampwise: %v\n", err)
 	var bi badInput
 	var me *methodfile.Error
-	if errors.As(err, &bi) || errors.As(err, &me) {
+	var fe *fsafe.Error // an output path that cannot be written
+	if errors.As(err, &bi) || errors.As(err, &me) || errors.As(err, &fe) {
 		return exitBadInput
 	}
 	return exitFailure

@@ -140,7 +140,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	met := res.Feasible() && meets(afterSim)
 
 	if *out != "" {
-		if err := methodfile.WriteFile(*out, after); err != nil {
+		if err := saveMethodOut(*out, file, after); err != nil {
 			return err
 		}
 	}

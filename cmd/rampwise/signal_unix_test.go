@@ -81,6 +81,7 @@ func TestEverySignalWritesRecovery(t *testing.T) {
 		{syscall.SIGHUP, ""}, {syscall.SIGTERM, ""}, {syscall.SIGINT, ""}, {syscall.SIGQUIT, ""},
 		{syscall.SIGTERM, "q"}, // the "unsaved changes" question open
 		{syscall.SIGTERM, "W"}, // the save-as prompt open
+		{syscall.SIGTERM, "o"}, // the optimizer running
 	} {
 		path := filepath.Join(t.TempDir(), "m.toml")
 		os.WriteFile(path, data, 0o644)
