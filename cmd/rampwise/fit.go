@@ -11,6 +11,7 @@ import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 const fitHelp = `Usage: rampwise fit METHOD RUNS [--out FILE] [--json] [--with-dcp]
@@ -94,15 +95,15 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "compound\tΔH kJ/mol\t±\tΔS J/(mol·K)\t±\tΔCp\truns\trms min\tmax min\t")
 	for _, c := range rep.Compounds {
-		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", c.Name, c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
+		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
 	}
 	tw.Flush()
 	fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PlateHeightFactor, fitted(rep.PlateFitted))
 	for _, w := range rep.Warnings {
-		fmt.Fprintf(stdout, "warning: %s\n", w)
+		fmt.Fprintf(stdout, "warning: %s\n", textsafe.Inert(w))
 	}
 	if *out != "" {
-		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", *out)
+		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", textsafe.Inert(*out))
 	}
 	return nil
 }
@@ -226,7 +227,7 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 		if e.Given != nil {
 			given = fmt.Sprintf("%.1f", *e.Given)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", e.Name, idx, given, e.From)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", textsafe.Inert(e.Name), idx, given, textsafe.Inert(e.From))
 	}
 	tw.Flush()
 	fmt.Fprintln(stdout, "\nCompounds given by retention index are modelled as the virtual n-alkane of that carbon number: an assumption, refine them with fit when runs exist.")

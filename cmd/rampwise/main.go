@@ -90,7 +90,9 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 			code = exitFailure
 		}
 	}()
-	err := dispatch(args, stdout, stderr)
+	out, flush := textOutput(args, stdout)
+	err := dispatch(args, out, stderr)
+	flush()
 	if err == nil {
 		return exitOK
 	}
@@ -101,7 +103,7 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	if errors.Is(err, flag.ErrHelp) {
 		return exitOK
 	}
-	fmt.Fprintf(stderr, "rampwise: %v\n", err)
+	fmt.Fprintf(stderr, "rampwise: %s\n", inertLines(err.Error()))
 	var bi badInput
 	var me *methodfile.Error
 	var fe *fsafe.Error // an output path that cannot be written

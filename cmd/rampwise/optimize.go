@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
 )
 
@@ -172,7 +173,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	} else {
 		writeComparison(stdout, m, before, after, afterSim, res, met)
 		if *out != "" {
-			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", *out)
+			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", textsafe.Inert(*out))
 		}
 	}
 	if !met {
@@ -186,7 +187,7 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	if title == "" {
 		title = "method"
 	}
-	fmt.Fprintf(w, "%s\n%s\n\n", title, describeColumn(m))
+	fmt.Fprintf(w, "%s\n%s\n\n", textsafe.Inert(title), describeColumn(m))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "\tbefore\tafter\t")
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
@@ -199,10 +200,10 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	if met {
 		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
 	} else {
-		fmt.Fprintf(w, "target NOT met within the limits: %s\n", res.Explanation)
+		fmt.Fprintf(w, "target NOT met within the limits: %s\n", textsafe.Inert(res.Explanation))
 	}
 	for _, warn := range afterSim.warnings(after.ModelProgram()) {
-		fmt.Fprintf(w, "warning: %s\n", warn)
+		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
 }
 
@@ -218,7 +219,7 @@ func critName(s *simulation) string {
 		return "-"
 	}
 	cp := s.res.Pairs[s.res.Critical]
-	return s.sys.Compounds[cp.First].Name + " / " + s.sys.Compounds[cp.Second].Name
+	return textsafe.Inert(s.sys.Compounds[cp.First].Name) + " / " + textsafe.Inert(s.sys.Compounds[cp.Second].Name)
 }
 
 // progressPrinter reports progress on stderr: a bar redrawn in place on a
