@@ -15,7 +15,7 @@ import (
 // With the file changed on disk after it was loaded, a save does not
 // silently discard that change: it asks, and each answer does what it says.
 func TestSaveAsksWhenFileChangedOnDisk(t *testing.T) {
-	a, path := newApp(t, 80, 24)
+	a, path := newApp(t, 100, 30)
 	press(a, "]") // an edit here
 	// Someone else saves the file with another change.
 	other, _ := methodfile.ReadFile(path)
@@ -25,14 +25,14 @@ func TestSaveAsksWhenFileChangedOnDisk(t *testing.T) {
 	}
 	before, _ := os.ReadFile(path)
 	press(a, "ctrl+s")
-	if a.confirm != confirmDiskChanged || !strings.Contains(a.message, "changed on disk") {
+	if _, ok := a.overlay.(*confirmDialog); !ok || !strings.Contains(a.message, "changed on disk") {
 		t.Fatalf("no question: %q", a.message)
 	}
 	if now, _ := os.ReadFile(path); string(now) != string(before) {
 		t.Fatal("saved without asking")
 	}
 	press(a, "esc")
-	if now, _ := os.ReadFile(path); string(now) != string(before) || !a.Dirty() {
+	if now, _ := os.ReadFile(path); string(now) != string(before) || !a.Dirty() || a.overlay != nil {
 		t.Fatal("esc saved or dropped the edits")
 	}
 	// r reloads (and u brings the edits back).
@@ -54,41 +54,26 @@ func TestSaveAsksWhenFileChangedOnDisk(t *testing.T) {
 		t.Fatalf("overwrite: %v %v", err, got)
 	}
 	press(a, "]", "ctrl+s")
-	if a.confirm != confirmNone || a.Dirty() {
+	if a.overlay != nil || a.Dirty() {
 		t.Errorf("a save after our own save asked again: %q", a.message)
+	}
+	// w offers save as.
+	methodfile.WriteFile(path, other)
+	press(a, "]", "ctrl+s", "w")
+	if _, ok := a.overlay.(*promptDialog); !ok {
+		t.Errorf("w did not open save-as: %T %q", a.overlay, a.message)
 	}
 }
 
 // A touch (time changed, content not) is not a change worth asking about.
 func TestSaveAfterTouchDoesNotAsk(t *testing.T) {
-	a, path := newApp(t, 80, 24)
+	a, path := newApp(t, 100, 30)
 	press(a, "]")
 	later := time.Now().Add(time.Minute)
 	os.Chtimes(path, later, later)
 	press(a, "ctrl+s")
-	if a.confirm != confirmNone || a.Dirty() {
+	if a.overlay != nil || a.Dirty() {
 		t.Errorf("asked after a touch: %q", a.message)
-	}
-}
-
-// Save-as onto an existing file it did not write asks first.
-func TestSaveAsAsksBeforeReplacing(t *testing.T) {
-	a, path := newApp(t, 80, 24)
-	other := filepath.Join(filepath.Dir(path), "notes.txt")
-	os.WriteFile(other, []byte("someone's notes"), 0o644)
-	press(a, "W", "ctrl+u")
-	press(a, other, "enter")
-	if a.confirm != confirmReplace {
-		t.Fatalf("no question: %q", a.message)
-	}
-	press(a, "esc")
-	if b, _ := os.ReadFile(other); string(b) != "someone's notes" {
-		t.Fatal("replaced after esc")
-	}
-	press(a, "W", "ctrl+u")
-	press(a, other, "enter", "y")
-	if _, err := methodfile.ReadFile(other); err != nil {
-		t.Fatalf("y did not save: %v (%s)", err, a.message)
 	}
 }
 
@@ -114,7 +99,7 @@ func TestCorruptRecoveryKeptAside(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	b.Update(tea.WindowSizeMsg{Width: 200, Height: 24})
+	send(b, tea.WindowSizeMsg{Width: 200, Height: 24})
 	if !strings.Contains(b.message, "could not be read") || !strings.Contains(b.message, "kept it aside") {
 		t.Errorf("message %q", b.message)
 	}
