@@ -65,6 +65,7 @@ Usage:
   rampwise sweep METHOD [flags]     window diagram of one or two program values
   rampwise compare METHOD... [flags] rank phases and column dimensions
   rampwise help [COMMAND]           explain a command
+  rampwise version                  version, Go release and platform
 
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
 compounds). Without FILE the built-in demo method is used.
@@ -134,6 +135,8 @@ func dispatch(args []string, stdout, stderr io.Writer) error {
 		return runSweep(args[1:], stdout, stderr)
 	case "compare":
 		return runCompare(args[1:], stdout, stderr)
+	case "version", "--version":
+		return runVersion(args[1:], stdout, stderr)
 	case "help", "-h", "--help", "-help":
 		if len(args) > 1 {
 			return dispatch([]string{args[1], "--help"}, stdout, stderr)
