@@ -96,11 +96,12 @@ func TestEverySignalWritesRecovery(t *testing.T) {
 }
 
 // The measure: SIGTERM to a UI with unsaved changes on 500
-// compounds leaves a recovery file every time, in 20 tries (-short: 3).
+// compounds leaves a recovery file every time, in 20 tries (-short or
+// under the race detector: 3).
 func TestSigtermRecovery500Compounds(t *testing.T) {
 	path := bigMethod(t, 500)
 	tries := 20
-	if testing.Short() {
+	if testing.Short() || raceEnabled {
 		tries = 3
 	}
 	got := 0
