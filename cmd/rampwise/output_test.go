@@ -53,10 +53,3 @@ func TestOutputPathErrorsExit2(t *testing.T) {
 		}
 	}
 }
-
-func TestVersion(t *testing.T) {
-	code, out, _ := runCmd(t, "version")
-	if code != 0 || !strings.HasPrefix(out, "rampwise ") || !strings.Contains(out, "/") {
-		t.Errorf("exit %d: %q", code, out)
-	}
-}
