@@ -159,3 +159,41 @@ func TestRecoveryFallsBackToCache(t *testing.T) {
 		t.Error("cache recovery left after a save")
 	}
 }
+
+// A save from the UI keeps the file's comments and layout: one edit, a
+// one-line diff.
+func TestUISaveKeepsComments(t *testing.T) {
+	orig, err := os.ReadFile("../testdata/commented.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), "commented.toml")
+	os.WriteFile(path, orig, 0o644)
+	m, err := methodfile.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := New(m, Options{Path: path, NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	send(a, tea.WindowSizeMsg{Width: 100, Height: 30})
+	press(a, "]", "ctrl+s") // start temperature +10 °C, save
+	if a.Dirty() {
+		t.Fatalf("not saved: %q", a.message)
+	}
+	now, _ := os.ReadFile(path)
+	ol, nl := strings.Split(string(orig), "\n"), strings.Split(string(now), "\n")
+	if len(ol) != len(nl) {
+		t.Fatalf("%d lines became %d:\n%s", len(ol), len(nl), now)
+	}
+	var diff []string
+	for i := range ol {
+		if ol[i] != nl[i] {
+			diff = append(diff, ol[i]+" → "+nl[i])
+		}
+	}
+	if len(diff) != 1 || diff[0] != "initial_c = 50          # start → initial_c = 60          # start" {
+		t.Errorf("diff %q", diff)
+	}
+}

@@ -14,6 +14,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/fsafe"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/model/sweep"
@@ -54,10 +55,11 @@ type (
 		err error
 	}
 	saveOutcome struct {
-		path string
-		m    *methodfile.Method
-		err  error
-		quit bool
+		path  string
+		m     *methodfile.Method
+		err   error
+		quit  bool
+		fresh bool // an existing method's text could not be kept: written anew
 	}
 	exportOutcome struct {
 		base string
@@ -201,7 +203,12 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 	}
 	m := a.sh.method
 	_, cmd := a.startJob("saving "+inert(path), func(ctx context.Context) any {
-		return saveOutcome{path: path, m: m, err: methodfile.WriteFile(path, m), quit: quit}
+		existed := false
+		if fp, err := fsafe.Take(path); err == nil && fp.Exists {
+			existed = true
+		}
+		kept, err := methodfile.Save(path, nil, m)
+		return saveOutcome{path: path, m: m, err: err, quit: quit, fresh: existed && !kept}
 	})
 	return cmd
 }
@@ -216,6 +223,9 @@ func (a *App) saveDone(v saveOutcome) tea.Cmd {
 	a.savedFile(v.path)
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 	a.say(msgGood, "saved to %s", inert(v.path))
+	if v.fresh {
+		a.say(msgWarn, "saved to %s, written anew: its layout could not be kept (comments lost)", inert(v.path))
+	}
 	if v.quit {
 		return tea.Quit
 	}
