@@ -247,7 +247,17 @@ func TestUpdateRandomEdits(t *testing.T) {
 			t.Fatal(err)
 		}
 		for k := 0; k < 1+rng.Intn(4); k++ {
-			switch rng.Intn(8) {
+			switch rng.Intn(11) {
+			case 8:
+				if len(m.Limits.RateBands) == 0 {
+					m.Limits.RateBands = append(m.Limits.RateBands, RateBand{AboveC: 200, MaxRateCMin: 20})
+				} else {
+					m.Limits.RateBands = nil
+				}
+			case 9:
+				m.Goal.Robust.OvenOffsetC = float64(rng.Intn(3))
+			case 10:
+				m.Limits.MaxRateCMin = float64(40 + rng.Intn(60))
 			case 0:
 				m.Oven.InitialC = 35 + float64(rng.Intn(40))
 			case 1:
