@@ -53,3 +53,32 @@ func TestOutputPathErrorsExit2(t *testing.T) {
 		}
 	}
 }
+
+// optimize --out onto its own input keeps that file's comments.
+func TestOptimizeOutInPlaceKeepsComments(t *testing.T) {
+	orig, _ := os.ReadFile("../../testdata/commented.toml")
+	p := filepath.Join(t.TempDir(), "m.toml")
+	os.WriteFile(p, orig, 0o644)
+	if code, _, stderr := runCmd(t, "optimize", "--out", p, p); code != 0 && code != 3 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	got, _ := os.ReadFile(p)
+	if string(got) == string(orig) {
+		t.Fatal("nothing written")
+	}
+	for _, c := range comments(string(orig)) {
+		if !strings.Contains(string(got), c) && !strings.Contains(c, "ramp") && !strings.Contains(c, "bake") {
+			t.Errorf("lost %q", c)
+		}
+	}
+}
+
+func comments(s string) []string {
+	var out []string
+	for _, l := range strings.Split(s, "\n") {
+		if i := strings.Index(l, "#"); i >= 0 && !strings.Contains(l[:i], `"`) {
+			out = append(out, strings.TrimSpace(l[i:]))
+		}
+	}
+	return out
+}
