@@ -198,7 +198,8 @@ const kPa = 1000.0
 
 // ModelColumn is the column in SI units.
 func (m *Method) ModelColumn() model.Column {
-	return model.Column{
+	c := model.Column{
+		Kind:                  modelKind(m.Column.Kind),
 		Length:                m.Column.LengthM,
 		Diameter:              m.Column.DiameterMM * 1e-3,
 		Film:                  m.Column.FilmUM * 1e-6,
@@ -206,6 +207,15 @@ func (m *Method) ModelColumn() model.Column {
 		StationaryDiffusivity: m.Column.Diffusivity,
 		PlateHeightFactor:     m.Column.PlateHeight,
 	}
+	if c.Kind == model.Packed {
+		c.Particle = m.Column.ParticleUM * 1e-6
+		c.Porosity = m.Column.Porosity
+		c.GivenPhaseRatio = m.Column.PhaseRatio
+		c.EddyFactor = m.Column.EddyLambda
+		c.ObstructionFactor = m.Column.ObstructionGamma
+		c.MobileFactor = m.Column.MobileOmega
+	}
+	return c
 }
 
 // ModelCarrier is the carrier in SI units.
@@ -251,13 +261,18 @@ func ProgramFromModel(p model.Program) Oven {
 	return o
 }
 
-// ModelOven is the cool-down behaviour in SI units.
+// ModelOven is the cool-down behaviour in SI units; with a coolant the oven
+// cools toward it (MODEL.md §12).
 func (m *Method) ModelOven() model.Oven {
-	return model.Oven{
+	o := model.Oven{
 		Ambient:       m.Limits.AmbientC + model.ZeroCelsius,
 		CooldownTau:   m.Limits.CooldownTauMin * 60,
 		Equilibration: m.Limits.EquilibrationMin * 60,
 	}
+	if m.Limits.HasCoolant {
+		o.Coolant = m.Limits.CoolantC + model.ZeroCelsius
+	}
+	return o
 }
 
 // ModelCompounds converts the compounds to SI units. Every compound must
