@@ -145,7 +145,8 @@ func (d *promptDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 // all of it wrapped below, so that a long path is never cut.
 func (d *promptDialog) render() {
 	st := d.sh.st
-	lines := []string{dialogTitle(st, "type a value", "  enter sets · esc leaves it", d.w), ansi.Truncate(d.ti.View(), d.w, "…")}
+	title := strings.TrimSuffix(strings.TrimSpace(d.ti.Prompt), ":")
+	lines := []string{dialogTitle(st, title, "  enter sets · esc leaves it", d.w), ansi.Truncate(d.ti.View(), d.w, "…")}
 	v := inert(d.ti.Value())
 	if lipgloss.Width(v) > d.ti.Width {
 		lines = append(lines, st.Dim.Render(" in full:"))
