@@ -199,7 +199,7 @@ func (a *App) resimulate() error {
 // It is the only place an edit becomes the method.
 func (a *App) apply(m *methodfile.Method, what string) bool {
 	if err := validate(m); err != nil {
-		a.say(msgError, "%v (kept the last valid value)", err)
+		a.say(msgError, "%v (kept the last valid value)", inertErr(err))
 		return false
 	}
 	prev, prevSys, prevKey := a.sh.method, a.sh.sys, a.sysk
@@ -208,7 +208,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 		a.sh.method, a.sh.sys = prev, prevSys
 		a.sysk = prevKey
 		a.resimulate()
-		a.say(msgError, "%s (kept the last valid value)", strings.TrimPrefix(err.Error(), "model: "))
+		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
 	caution := a.newCaution(prev, prevSys)
@@ -233,7 +233,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 func (a *App) restore(m *methodfile.Method) {
 	a.sh.method = m
 	if err := a.resimulate(); err != nil {
-		a.say(msgError, "%v", err)
+		a.say(msgError, "%v", inertErr(err))
 	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 }

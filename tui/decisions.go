@@ -175,7 +175,7 @@ func (d *resultDialog) render() {
 		body = append(body, st.Info.Render(l))
 	}
 	if !res.Feasible() {
-		for _, l := range wrap(" why: "+res.Explanation, d.w) {
+		for _, l := range wrap(" why: "+inert(res.Explanation), d.w) {
 			body = append(body, st.Warn.Render(l))
 		}
 	}
@@ -400,7 +400,7 @@ func (d *rankingDialog) render() {
 		text := fmt.Sprintf("%s%2d %-24s ", mark, i+1, ansi.Truncate(o.Source, 24, "…"))
 		switch {
 		case o.Err != nil:
-			text += "error: " + o.Err.Error()
+			text += "error: " + inertErr(o.Err)
 		default:
 			t := fmt.Sprintf("%.2f", o.Time/60)
 			if !o.Result.Feasible() {

@@ -134,14 +134,14 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		return a.saveDone(v)
 	case exportOutcome:
 		if v.err != nil {
-			a.say(msgError, "export: %v", v.err)
+			a.say(msgError, "export: %v", inertErr(v.err))
 			return nil
 		}
 		a.wrote[v.base+".png"], a.wrote[v.base+".md"] = true, true
 		a.say(msgGood, "exported %s.png (figure) and %s.md (method sheet)", inert(v.base), inert(v.base))
 	case fitOutcome:
 		if v.err != nil {
-			a.say(msgError, "%v", v.err)
+			a.say(msgError, "%v", inertErr(v.err))
 			return nil
 		}
 		a.open(newFitDialog(&a.sh, v))
@@ -151,7 +151,7 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		a.say(msgGood, "ranked %d columns: enter switches the method to the chosen one", len(v.out))
 	case sweepOutcome:
 		if v.err != nil {
-			a.say(msgError, "sweep: %v", v.err)
+			a.say(msgError, "sweep: %v", inertErr(v.err))
 			return nil
 		}
 		a.open(newSweepDialog(&a.sh, v.spec, v.pts))
@@ -204,7 +204,7 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 
 func (a *App) saveDone(v saveOutcome) tea.Cmd {
 	if v.err != nil {
-		a.say(msgError, "not saved: %v", v.err)
+		a.say(msgError, "not saved: %v", inertErr(v.err))
 		return nil
 	}
 	a.path, a.name, a.saved = v.path, v.path, v.m
@@ -332,14 +332,14 @@ func (a *App) onOptProgress(msg progressWith) tea.Cmd {
 
 func (a *App) optDone(v optOutcome) {
 	if v.err != nil {
-		a.say(msgError, "optimizer: %v", v.err)
+		a.say(msgError, "optimizer: %v", inertErr(v.err))
 		a.chart.Update(previewMsg{})
 		return
 	}
 	after := a.sh.method.Clone()
 	oven, sim, err := optimizer.KeypadProgram(a.sh.method, a.sh.sys, v.res)
 	if err != nil {
-		a.say(msgError, "optimizer: %v", err)
+		a.say(msgError, "optimizer: %v", inertErr(err))
 		a.chart.Update(previewMsg{})
 		return
 	}
@@ -350,7 +350,7 @@ func (a *App) optDone(v optOutcome) {
 	if v.res.Feasible() {
 		a.say(msgGood, "target met: enter or y takes the new program, n or esc keeps the old one; v shows the old run")
 	} else {
-		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", v.res.Explanation)
+		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", inert(v.res.Explanation))
 	}
 }
 
@@ -444,7 +444,7 @@ func parseDims(text string, m *methodfile.Method) ([][3]float64, error) {
 func (a *App) startCompare(text string) tea.Cmd {
 	dims, err := parseDims(text, a.sh.method)
 	if err != nil {
-		a.say(msgError, "compare: %v", err)
+		a.say(msgError, "compare: %v", inertErr(err))
 		return nil
 	}
 	var cands []optimizer.Candidate
@@ -452,7 +452,7 @@ func (a *App) startCompare(text string) tea.Cmd {
 		c := a.sh.method.Clone()
 		c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = d[0], d[1], d[2]
 		if err := validate(c); err != nil {
-			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], err)
+			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], inertErr(err))
 			return nil
 		}
 		cands = append(cands, optimizer.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
@@ -479,7 +479,7 @@ const sweepPoints = 60
 func (a *App) startSweep(spec sweepSpec) tea.Cmd {
 	m := a.sh.method
 	if err := sweep.Check(m, spec.name); err != nil {
-		a.say(msgError, "sweep: %v", err)
+		a.say(msgError, "sweep: %v", inertErr(err))
 		return nil
 	}
 	if !(spec.hi > spec.lo) {
