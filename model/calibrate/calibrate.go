@@ -238,6 +238,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		}
 		c := &out.Compounds[ci]
 		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
+		c.FromFormula = false
 		c.HasSE = false
 		if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
 			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true

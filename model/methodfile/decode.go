@@ -676,11 +676,14 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 			c.DHDSCorr = v.num(base+".dH_dS_corr", rc.DHDSCorr, false, 0, bound{lo: -1, hi: 1}, "")
 		}
 		hasThermo := rc.DHkJ != nil || rc.DS != nil
-		if hasThermo || rc.RetentionIndex == nil {
+		switch {
+		case hasThermo || (rc.RetentionIndex == nil && rc.Formula == nil):
 			c.DHkJ = v.num(base+".dH_kJ_mol", rc.DHkJ, true, -40, bound{lo: -500, hi: 0, hiOpen: true}, "kJ/mol")
 			c.DS = v.num(base+".dS_J_mol_K", rc.DS, true, -80, bound{lo: -1000, hi: 200}, "J/(mol·K)")
-		} else {
+		case rc.RetentionIndex != nil:
 			c.FromIndex = true
+		default:
+			fromFormula(&c) // only a formula: a rough estimate (formulaestimate.go)
 		}
 		m.Compounds = append(m.Compounds, c)
 	}

@@ -109,7 +109,7 @@ func Marshal(m *Method) ([]byte, error) {
 		if c.AromaticRings != 0 {
 			rc.AromaticRings = ptr(int64(c.AromaticRings))
 		}
-		if !c.FromIndex {
+		if !c.FromIndex && !c.FromFormula {
 			rc.DHkJ = ptr(c.DHkJ)
 			rc.DS = ptr(c.DS)
 			if c.DCp != 0 {

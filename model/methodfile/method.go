@@ -163,6 +163,10 @@ type Compound struct {
 	// FromIndex is true when dH and dS were not in the file and were derived
 	// from the retention index and the ladder (the virtual-alkane rule).
 	FromIndex bool
+	// FromFormula is true when the file gave neither dH and dS nor a
+	// retention index, only a formula: dH and dS are then a rough estimate
+	// (FormulaEstimate) with a large uncertainty.
+	FromFormula bool
 	// Standard errors of dH (kJ/mol) and dS (J/(mol·K)) and their
 	// correlation, written by fit; HasSE is false when the file has none.
 	DHSE     float64
