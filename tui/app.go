@@ -309,6 +309,9 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 			return a.interrupt()
 		}
 		if a.overlay != nil {
+			if key.Matches(msg, a.keys.Help) && a.dialogHelp() {
+				return nil
+			}
 			return a.toOverlay(msg)
 		}
 		if cmd, ok := a.globalKey(msg); ok {
@@ -324,6 +327,21 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 		return a.toOverlay(msg)
 	}
 	return nil
+}
+
+// dialogHelp opens the key list of the open dialog over it (? in a
+// dialog); closing the list goes back to the dialog. A prompt takes ? as
+// text, and the key list closes itself.
+func (a *App) dialogHelp() bool {
+	switch a.overlay.(type) {
+	case *promptDialog, *helpDialog:
+		return false
+	}
+	d := a.overlay
+	a.pending = append([]component{d}, a.pending...)
+	a.overlay = newDialogHelp(&a.sh, &a.help, d, dialogName(d), a.keys)
+	a.sizeOverlay()
+	return true
 }
 
 func (a *App) toOverlay(msg tea.Msg) tea.Cmd {
@@ -611,6 +629,11 @@ func (a *App) footerLine(w int) string {
 	var b []key.Binding
 	if a.overlay != nil {
 		b = a.overlay.ShortHelp()
+		switch a.overlay.(type) {
+		case *promptDialog, *helpDialog:
+		default:
+			b = append([]key.Binding{bind([]string{"?"}, "?", "keys")}, b...)
+		}
 	} else {
 		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
 		b = append(b, a.keys.ShortHelp()...)

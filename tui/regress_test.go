@@ -28,14 +28,26 @@ func TestResultReplacesHelp(t *testing.T) {
 		t.Fatal("? did not open the key list")
 	}
 	m := a.Method().Clone()
-	a.open(newResultDialog(&a.sh, &optimizer.Result{Status: optimizer.Met}, m, a.res))
+	d := newResultDialog(&a.sh, &optimizer.Result{Status: optimizer.Met}, m, a.res)
+	a.open(d)
+	a.chart.Update(d.preview())
 	a.refresh()
 	if _, ok := a.overlay.(*resultDialog); !ok {
 		t.Fatalf("the result waits behind the key list: %T", a.overlay)
 	}
-	press(a, "?") // not a key of the result: nothing happens
+	press(a, "?") // the result's own keys, over it
+	if _, ok := a.overlay.(*helpDialog); !ok {
+		t.Fatalf("? in the result did not list its keys: %T", a.overlay)
+	}
+	if s := screen(a); !strings.Contains(s, "optimizer result") || !strings.Contains(s, "take it") {
+		t.Errorf("the key list is not the result's:\n%s", s)
+	}
+	press(a, "esc") // closes the list, not the result
 	if _, ok := a.overlay.(*resultDialog); !ok {
-		t.Fatalf("? closed the result: %T", a.overlay)
+		t.Fatalf("esc after ? threw the result away: %T", a.overlay)
+	}
+	if res, _ := a.chart.shown(); res == a.Result() {
+		t.Error("the chart went back to the current run while the result waits")
 	}
 }
 
