@@ -305,6 +305,17 @@ func TestFlowWindowDiagram(t *testing.T) {
 			t.Errorf("swept a flow of %v", p.Value)
 		}
 	}
+	// in constant pressure, the inlet pressure, never above the limit
+	press(a, "esc", "down", "down", "down", "down", "down", "+", "s") // pressure mode
+	d, ok = a.overlay.(*sweepDialog)
+	if !ok || d.spec.name != "inlet_kpa" || d.spec.unit != "kPa" {
+		t.Fatalf("no inlet-pressure diagram in constant pressure: %T %s", a.overlay, a.message)
+	}
+	for _, p := range d.pts {
+		if p.Value > a.Method().Limits.MaxInletKPa || p.Value < a.Method().Limits.MinInletKPa {
+			t.Errorf("swept %v kPa, outside the inlet limits", p.Value)
+		}
+	}
 }
 
 func TestDCpEditable(t *testing.T) {
