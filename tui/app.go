@@ -334,7 +334,7 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 // text, and the key list closes itself.
 func (a *App) dialogHelp() bool {
 	switch a.overlay.(type) {
-	case *promptDialog, *helpDialog:
+	case *promptDialog, *helpDialog, *progressDialog:
 		return false
 	}
 	d := a.overlay
@@ -630,7 +630,7 @@ func (a *App) footerLine(w int) string {
 	if a.overlay != nil {
 		b = a.overlay.ShortHelp()
 		switch a.overlay.(type) {
-		case *promptDialog, *helpDialog:
+		case *promptDialog, *helpDialog, *progressDialog:
 		default:
 			b = append([]key.Binding{bind([]string{"?"}, "?", "keys")}, b...)
 		}

@@ -486,3 +486,25 @@ func TestFileTextInert(t *testing.T) {
 		t.Errorf("a raw control character reached the screen: %q", v)
 	}
 }
+
+// Finished work never leaves its progress display behind, whatever was
+// opened over it.
+func TestProgressGoneWhenWorkEnds(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "right", "right")
+	_, cmd := a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{'s'}})
+	if _, ok := a.overlay.(*progressDialog); !ok {
+		t.Fatalf("%T", a.overlay)
+	}
+	press(a, "?") // the progress display has one key, esc: no list over it
+	a.pending = append(a.pending, a.overlay) // as if something had been opened over it
+	a.overlay = newHelpDialog(&a.sh, &a.help, a.program, "program", a.keys)
+	runCmd(a, cmd)
+	if _, ok := a.overlay.(*sweepDialog); !ok {
+		t.Fatalf("the window diagram is not shown: %T", a.overlay)
+	}
+	press(a, "esc")
+	if a.overlay != nil {
+		t.Errorf("a %T was left after the work ended", a.overlay)
+	}
+}

@@ -112,10 +112,23 @@ func (a *App) cancelJob() {
 		return
 	}
 	a.job = nil
+	a.dropProgress()
+	a.say(msgInfo, "stopped %s", j.what)
+}
+
+// dropProgress removes the progress display of finished work, from the
+// slot or from the dialogs waiting for it.
+func (a *App) dropProgress() {
+	keep := a.pending[:0]
+	for _, d := range a.pending {
+		if _, ok := d.(*progressDialog); !ok {
+			keep = append(keep, d)
+		}
+	}
+	a.pending = keep
 	if _, ok := a.overlay.(*progressDialog); ok {
 		a.closeOverlay()
 	}
-	a.say(msgInfo, "stopped %s", j.what)
 }
 
 // onDone takes a job's outcome.
@@ -124,9 +137,7 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		return nil // cancelled
 	}
 	a.job = nil
-	if _, ok := a.overlay.(*progressDialog); ok {
-		a.closeOverlay()
-	}
+	a.dropProgress()
 	switch v := msg.v.(type) {
 	case optOutcome:
 		a.optDone(v)
