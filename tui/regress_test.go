@@ -496,7 +496,7 @@ func TestProgressGoneWhenWorkEnds(t *testing.T) {
 	if _, ok := a.overlay.(*progressDialog); !ok {
 		t.Fatalf("%T", a.overlay)
 	}
-	press(a, "?") // the progress display has one key, esc: no list over it
+	press(a, "?")                            // the progress display has one key, esc: no list over it
 	a.pending = append(a.pending, a.overlay) // as if something had been opened over it
 	a.overlay = newHelpDialog(&a.sh, &a.help, a.program, "program", a.keys)
 	runCmd(a, cmd)
