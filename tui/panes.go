@@ -491,7 +491,8 @@ func (p *peaksPane) render() {
 	r := sh.res
 	focused := sh.focus == panePeaks
 	lines := []string{heading(st, focused, "peaks", p.w, "  t target · enter edits "+peakColumns[p.col].name+" · ΔH kJ/mol, ΔS and ΔCp J/(mol·K)")}
-	head := fmt.Sprintf(" %2s %-16s %7s %5s %5s %6s %3s %8s  %8s  %7s", "#", "compound", "tR min", "Te °C", "w½ s", "Rs nxt", "tgt", "ΔH", "ΔS", "ΔCp")
+	nw := min(32, max(16, 16+p.w-80)) // the name column takes what a wide terminal gives
+	head := fmt.Sprintf(" %2s %s %7s %5s %5s %6s %3s %8s  %8s  %7s", "#", padRight("compound", nw), "tR min", "Te °C", "w½ s", "Rs nxt", "tgt", "ΔH", "ΔS", "ΔCp")
 	lines = append(lines, st.TableHead.Render(ansi.Truncate(head, p.w, "…")))
 	rows := p.h - 2
 	first := 0
@@ -531,7 +532,7 @@ func (p *peaksPane) render() {
 		if sel {
 			mark = "›"
 		}
-		row := fmt.Sprintf("%s%2d %-16s %7s %5.1f %5.2f %6s %3s", mark, i+1, ansi.Truncate(inert(c.Name), 16, "…"), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
+		row := fmt.Sprintf("%s%2d %s %7s %5.1f %5.2f %6s %3s", mark, i+1, padRight(ansi.Truncate(inert(c.Name), nw, "…"), nw), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
 		rowSt := st.TableRow
 		if sel {
 			rowSt = st.TableSel
@@ -607,7 +608,7 @@ func (p *settingsPane) render() {
 		} else {
 			v = " " + st.Value.Render(strings.TrimSpace(v)) + " "
 		}
-		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("%s %-30s ", mark, f.label))+v+st.Dim.Render("  "+f.key), p.w, "…"))
+		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("%s %-30s ", mark, f.label))+padRight(v, 18)+st.Dim.Render(" "+f.key), p.w, "…"))
 	}
 	p.lines = fill(lines, p.h)
 }
