@@ -94,6 +94,7 @@ type App struct {
 
 	optSettings optimizer.Settings
 	job         *job
+	jobSeq      int // the last job's id
 
 	view cachedView
 }

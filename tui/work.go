@@ -85,16 +85,14 @@ type optProgressMsg struct {
 // progressTextMsg updates the progress dialog.
 type progressTextMsg struct{ text string }
 
-var jobSeq int
-
 // startJob opens the progress dialog and returns the Cmd that runs work.
 func (a *App) startJob(what string, work func(ctx context.Context) any) (*job, tea.Cmd) {
 	if a.job != nil {
 		a.job.cancel()
 	}
-	jobSeq++
+	a.jobSeq++
 	ctx, cancel := context.WithCancel(context.Background())
-	j := &job{id: jobSeq, what: what, cancel: cancel}
+	j := &job{id: a.jobSeq, what: what, cancel: cancel}
 	a.job = j
 	a.open(newProgressDialog(&a.sh, what))
 	id := j.id
