@@ -228,12 +228,25 @@ const (
 	ConstantPressure
 )
 
+// PressureModes lists every pressure mode, in the order a choice cycles.
+var PressureModes = []PressureMode{ConstantFlow, ConstantPressure}
+
 // String is the mode as written in a method file.
 func (m PressureMode) String() string {
 	if m == ConstantPressure {
 		return "constant-pressure"
 	}
 	return "constant-flow"
+}
+
+// ParsePressureMode reads a pressure mode as written in a method file.
+func ParsePressureMode(s string) (PressureMode, error) {
+	for _, m := range PressureModes {
+		if s == m.String() {
+			return m, nil
+		}
+	}
+	return ConstantFlow, fmt.Errorf("%q is not one of constant-flow, constant-pressure", s)
 }
 
 // Carrier is the carrier gas and its control. Pressures are in Pa, flows in

@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"os"
-	"reflect"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/help"
@@ -165,7 +164,7 @@ func (a *App) Method() *methodfile.Method { return a.sh.method }
 func (a *App) Result() *model.Result { return &a.res }
 
 // Dirty reports unsaved changes.
-func (a *App) Dirty() bool { return !reflect.DeepEqual(a.sh.method, a.saved) }
+func (a *App) Dirty() bool { return !a.sh.method.Equal(a.saved) }
 
 // Path is the file the method saves to.
 func (a *App) Path() string { return a.path }
@@ -222,7 +221,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 	if caution != "" {
 		a.say(msgWarn, "%s · %s", what, caution)
 	}
-	if m.Carrier.Gas == "hydrogen" && prev.Carrier.Gas != "hydrogen" {
+	if m.Carrier.Gas.Flammable() && !prev.Carrier.Gas.Flammable() {
 		a.say(msgWarn, "%s · %s", what, model.HydrogenCaution)
 	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())

@@ -66,7 +66,7 @@ func TestFlowOptimizeAccept(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(back, final.Method()) {
+	if !back.Equal(final.Method()) {
 		t.Error("saved method differs")
 	}
 }

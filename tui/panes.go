@@ -11,6 +11,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -390,7 +391,7 @@ func (c *chartPane) render() {
 // --- peaks pane ---
 
 // The compound values the peak table edits.
-var peakColumns = []struct{ name, unit string }{{"ΔH", "kJ/mol"}, {"ΔS", "J/(mol·K)"}, {"ΔCp", "J/(mol·K)"}}
+var peakColumns = []struct{ name, unit string }{{"ΔH", format.UnitDH}, {"ΔS", format.UnitDS}, {"ΔCp", format.UnitDCp}}
 
 type peaksPane struct {
 	sh    *shared
@@ -504,9 +505,9 @@ func (p *peaksPane) render() {
 		c := &sh.method.Compounds[pk.Compound]
 		rs := ""
 		if i < len(r.Pairs) {
-			rs = fmt.Sprintf("%.2f", r.Pairs[i].Resolution)
+			rs = format.Pair(r.Pairs[i].Resolution, sh.method.Goal.MinResolution)
 			if i == r.Critical {
-				rs = "◆" + rs
+				rs = format.CriticalMark + rs
 			}
 		}
 		tgt := ""
@@ -585,10 +586,10 @@ func (p *settingsPane) render() {
 	fs := settingsFields(m)
 	focused := sh.focus == paneSettings
 	lines := []string{heading(st, focused, "settings", p.w, "  ↑/↓ choose · +/- change · enter types · s sweeps the flow or pressure")}
-	if m.Carrier.Gas == "hydrogen" {
+	if m.Carrier.Gas.Flammable() {
 		lines = append(lines, ansi.Truncate(st.Warn.Render(" ⚠ "+model.HydrogenCaution), p.w, "…"))
 	}
-	if m.Carrier.Mode == "constant-flow" && sh.sys != nil {
+	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil {
 		prog := m.ModelProgram()
 		lo, hi := sh.sys.Cond.InletGauge(prog.Initial)/1000, sh.sys.Cond.InletGauge(prog.MaxTemp())/1000
 		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("  %-30s ", "inlet pressure (gauge), derived"))+

@@ -9,6 +9,7 @@ import (
 
 	tea "github.com/charmbracelet/bubbletea"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -181,7 +182,7 @@ func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
 		press(a, "down")
 	}
 	press(a, "+") // constant pressure
-	if a.Method().Carrier.Mode != "constant-pressure" {
+	if a.Method().Carrier.Mode != model.ConstantPressure {
 		t.Fatalf("mode %q", a.Method().Carrier.Mode)
 	}
 	if got := holdup(); math.Abs(got-want)/want > 0.002 {
@@ -192,7 +193,7 @@ func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
 	}
 	press(a, "up", "+") // hydrogen
 	press(a, "-")       // back to helium
-	if a.Method().Carrier.Gas != "helium" {
+	if a.Method().Carrier.Gas != model.Helium {
 		t.Fatalf("gas %q", a.Method().Carrier.Gas)
 	}
 	if got := holdup(); math.Abs(got-want)/want > 0.004 {
@@ -284,7 +285,7 @@ func TestFlowWindowDiagram(t *testing.T) {
 	if !ok {
 		t.Fatalf("s in settings did nothing: %s", a.message)
 	}
-	if d.spec.name != "flow_ml_min" || d.spec.unit != "mL/min" {
+	if d.spec.value.Kind != model.CarrierFlow || d.spec.unit != "mL/min" {
 		t.Errorf("spec %+v", d.spec)
 	}
 	s := screen(a)
@@ -308,7 +309,7 @@ func TestFlowWindowDiagram(t *testing.T) {
 	// in constant pressure, the inlet pressure, never above the limit
 	press(a, "esc", "down", "down", "down", "down", "down", "+", "s") // pressure mode
 	d, ok = a.overlay.(*sweepDialog)
-	if !ok || d.spec.name != "inlet_kpa" || d.spec.unit != "kPa" {
+	if !ok || d.spec.value.Kind != model.InletPressure || d.spec.unit != "kPa" {
 		t.Fatalf("no inlet-pressure diagram in constant pressure: %T %s", a.overlay, a.message)
 	}
 	for _, p := range d.pts {

@@ -18,6 +18,7 @@ import (
 	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/model/sweep"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // Anything slower than a keystroke runs here, as a tea.Cmd that returns a
@@ -69,7 +70,7 @@ type (
 		sys  *model.System
 		err  error
 	}
-	compareOutcome struct{ out []optimizer.Outcome }
+	compareOutcome struct{ out []methodsearch.Outcome }
 	sweepOutcome   struct {
 		spec sweepSpec
 		pts  []sweep.Point
@@ -282,7 +283,7 @@ func export(m *methodfile.Method, base string) error {
 
 func (a *App) startOptimize() tea.Cmd {
 	m, sys := a.sh.method, a.sh.sys
-	prob := optimizer.FromMethod(m, sys)
+	prob := methodsearch.Problem(m, sys)
 	settings := a.optSettings
 	ch := make(chan tea.Msg, 4)
 	j, run := a.startJob("optimizing", func(ctx context.Context) any {
@@ -346,7 +347,7 @@ func (a *App) optDone(v optOutcome) {
 		return
 	}
 	after := a.sh.method.Clone()
-	oven, sim, err := optimizer.KeypadProgram(a.sh.method, a.sh.sys, v.res)
+	oven, sim, err := methodsearch.KeypadProgram(a.sh.method, a.sh.sys, v.res)
 	if err != nil {
 		a.say(msgError, "optimizer: %v", inertErr(err))
 		a.chart.Update(previewMsg{})
@@ -456,7 +457,7 @@ func (a *App) startCompare(text string) tea.Cmd {
 		a.say(msgError, "compare: %v", inertErr(err))
 		return nil
 	}
-	var cands []optimizer.Candidate
+	var cands []methodsearch.Candidate
 	for _, d := range dims {
 		c := a.sh.method.Clone()
 		c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = d[0], d[1], d[2]
@@ -464,22 +465,23 @@ func (a *App) startCompare(text string) tea.Cmd {
 			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], inertErr(err))
 			return nil
 		}
-		cands = append(cands, optimizer.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
+		cands = append(cands, methodsearch.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
 	}
 	settings := a.optSettings
 	_, cmd := a.startJob(fmt.Sprintf("optimizing %d candidate columns", len(cands)), func(ctx context.Context) any {
-		return compareOutcome{out: optimizer.Compare(ctx, cands, settings, nil)}
+		return compareOutcome{out: methodsearch.Compare(ctx, cands, settings, nil)}
 	})
 	return cmd
 }
 
 // --- window diagram (s) ---
 
-// sweepSpec is one value to vary: its sweep name, how to call it on
-// screen, its unit, its current value and the allowed range.
+// sweepSpec is one value to vary: which, how to call it on screen, its
+// unit, its current value and the allowed range.
 type sweepSpec struct {
-	name, label, unit string
-	current, lo, hi   float64
+	value           model.ProgramValue
+	label, unit     string
+	current, lo, hi float64
 }
 
 // sweepPoints is how many steps a window diagram takes.
@@ -487,7 +489,7 @@ const sweepPoints = 60
 
 func (a *App) startSweep(spec sweepSpec) tea.Cmd {
 	m := a.sh.method
-	if err := sweep.Check(m, spec.name); err != nil {
+	if err := sweep.Check(m, spec.value); err != nil {
 		a.say(msgError, "sweep: %v", inertErr(err))
 		return nil
 	}
@@ -503,7 +505,7 @@ func (a *App) startSweep(spec sweepSpec) tea.Cmd {
 			if ctx.Err() != nil {
 				return sweepOutcome{spec: spec, err: ctx.Err()}
 			}
-			p, err := sweep.One(m, spec.name, values[i:min(i+8, len(values))], nil)
+			p, err := sweep.One(m, spec.value, values[i:min(i+8, len(values))], nil)
 			if err != nil {
 				return sweepOutcome{spec: spec, err: err}
 			}
@@ -530,29 +532,26 @@ func sortedUnique(v []float64) []float64 {
 // the method's limits allow.
 func programSweep(f field, m *methodfile.Method) sweepSpec {
 	v := f.value(m)
-	s := sweepSpec{name: f.kind, unit: f.unit, current: v}
-	if f.ramp > 0 {
-		s.name = fmt.Sprintf("%s_%d", f.kind, f.ramp)
-	}
+	s := sweepSpec{value: f.pv, unit: f.unit, current: v}
 	maxHold := m.Limits.MaxHoldMin
-	switch f.kind {
-	case "initial_c":
+	switch f.pv.Kind {
+	case model.InitialTemp:
 		s.label = "start temperature"
 		s.lo, s.hi = math.Max(m.Limits.OvenMinC, v-40), math.Min(m.Column.MaxTempC-1, v+40)
-	case "initial_hold_min":
+	case model.InitialHold:
 		s.label = "start hold"
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
-	case "final":
+	case model.RampFinal:
 		s.label = fmt.Sprintf("ramp %d final temperature", f.ramp)
 		prev := m.Oven.InitialC
 		if f.ramp > 1 {
 			prev = m.Oven.Ramps[f.ramp-2].FinalC
 		}
 		s.lo, s.hi = math.Max(prev+1, v-60), math.Min(m.Column.MaxTempC, v+60)
-	case "rate":
+	case model.RampRate:
 		s.label = fmt.Sprintf("ramp %d rate", f.ramp)
 		s.lo, s.hi = math.Max(0.5, v/4), math.Min(m.Limits.MaxRateCMin, math.Max(v*3, 1))
-	case "hold":
+	case model.RampHold:
 		s.label = fmt.Sprintf("ramp %d hold", f.ramp)
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
 	}
@@ -563,11 +562,11 @@ func programSweep(f field, m *methodfile.Method) sweepSpec {
 // carrierSweep is the window diagram of the column flow (constant flow)
 // or the inlet pressure (constant pressure), within the method's limits.
 func carrierSweep(m *methodfile.Method) sweepSpec {
-	if m.Carrier.Mode == "constant-pressure" {
+	if m.Carrier.Mode == model.ConstantPressure {
 		v := m.Carrier.InletKPa
 		lo := math.Max(m.Limits.MinInletKPa, math.Max(1, v/3))
 		hi := math.Min(m.Limits.MaxInletKPa, v*2.5)
-		return sweepSpec{name: "inlet_kpa", label: "inlet pressure", unit: "kPa", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
+		return sweepSpec{value: model.ProgramValue{Kind: model.InletPressure}, label: "inlet pressure", unit: "kPa", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
 	}
 	v := m.Carrier.FlowMLMin
 	lo, hi := math.Max(0.1, v/3), v*3
@@ -577,5 +576,5 @@ func carrierSweep(m *methodfile.Method) sweepSpec {
 	if m.Limits.MaxFlowMLMin > 0 {
 		hi = math.Min(hi, m.Limits.MaxFlowMLMin)
 	}
-	return sweepSpec{name: "flow_ml_min", label: "column flow", unit: "mL/min", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
+	return sweepSpec{value: model.ProgramValue{Kind: model.CarrierFlow}, label: "column flow", unit: "mL/min", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
 }

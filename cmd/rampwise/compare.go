@@ -14,8 +14,10 @@ import (
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 const compareHelp = `Usage: rampwise compare METHOD... [--length L,...] [--diameter D,...] [--film F,...]
@@ -48,6 +50,7 @@ type candidateJSON struct {
 	Film          float64     `json:"film_um"`
 	Feasible      bool        `json:"feasible"`
 	Objective     string      `json:"objective"`
+	target        float64     // the candidate's goal.min_resolution, for the table
 	Time          float64     `json:"time_min"`
 	RunTime       float64     `json:"run_time_min"`
 	CycleTime     float64     `json:"cycle_time_min"`
@@ -100,7 +103,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return bad(err)
 	}
-	var cands []optimizer.Candidate
+	var cands []methodsearch.Candidate
 	for _, file := range files {
 		m, name, err := loadMethod(file)
 		if err != nil {
@@ -123,8 +126,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 				for _, df := range fv {
 					c := m.Clone()
 					c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
-					data, _ := methodfile.Marshal(c)
-					if _, err := methodfile.Parse(name, data); err != nil {
+					if err := c.Validate(); err != nil {
 						if kindName(m.Column.Kind) != kindOfLists {
 							fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
 							lastSkip = err
@@ -132,7 +134,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 						}
 						return badf("%s at %g m × %g mm × %g µm: %v", name, l, d, df, err)
 					}
-					cands = append(cands, optimizer.Candidate{Source: name, Method: c})
+					cands = append(cands, methodsearch.Candidate{Source: name, Method: c})
 				}
 			}
 		}
@@ -145,13 +147,13 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	out := optimizer.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
+	out := methodsearch.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
 		fmt.Fprintf(stderr, "compare: %d of %d candidates optimized\n", done, total)
 	})
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
@@ -163,14 +165,14 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 		// report what optimize reports: the keypad-rounded program
-		oven, sim, err := optimizer.KeypadProgram(m, sys, r)
+		oven, sim, err := methodsearch.KeypadProgram(m, sys, r)
 		if err != nil {
 			return err
 		}
 		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
 		j.RunTime, j.CycleTime = sim.RunTime/60, sim.CycleTime/60
 		j.Time = j.RunTime
-		if m.Goal.Objective == "cycle-time" {
+		if m.Goal.Objective == model.CycleTime {
 			j.Time = j.CycleTime
 		}
 		if sim.Critical >= 0 {
@@ -225,10 +227,10 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		}
 		rs, cp := "-", "-"
 		if j.MinResolution != nil {
-			rs = fmt.Sprintf("%.2f", *j.MinResolution)
+			rs = format.RsNumber(*j.MinResolution, j.target) + " " + format.Verdict(*j.MinResolution, j.target)
 		}
 		if len(j.CriticalPair) == 2 {
-			cp = j.CriticalPair[0] + " / " + j.CriticalPair[1]
+			cp = format.CriticalPair(j.CriticalPair[0], j.CriticalPair[1])
 		}
 		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
 		if !j.Feasible {

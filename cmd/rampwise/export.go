@@ -9,6 +9,8 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/model/sweep"
@@ -132,10 +134,11 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if err := sweep.Check(m, *vary); err != nil {
-		return badf("sweep: %v", err)
+	pv, err := sweepValue(m, *vary)
+	if err != nil {
+		return err
 	}
-	current := currentValue(m, *vary)
+	current, _ := m.Value(pv)
 	start := time.Now()
 	progress := func(done, total int) {
 		if time.Since(start) > time.Second && (done%50 == 0 || done == total) {
@@ -146,10 +149,11 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		if math.IsNaN(*from2) || math.IsNaN(*to2) || *steps2 < 2 || *steps2 > 500 {
 			return badf("sweep: --vary2 needs --from2, --to2 and --steps2 (2..500)")
 		}
-		if err := sweep.Check(m, *vary2); err != nil {
-			return badf("sweep: %v", err)
+		pv2, err := sweepValue(m, *vary2)
+		if err != nil {
+			return err
 		}
-		grid, err := sweep.Two(m, *vary, sweep.Steps(*from, *to, *steps), *vary2, sweep.Steps(*from2, *to2, *steps2), progress)
+		grid, err := sweep.Two(m, pv, sweep.Steps(*from, *to, *steps), pv2, sweep.Steps(*from2, *to2, *steps2), progress)
 		if err != nil {
 			return badf("sweep: %v", err)
 		}
@@ -178,7 +182,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		}
 		return nil
 	}
-	pts, err := sweep.One(m, *vary, sweep.Steps(*from, *to, *steps), progress)
+	pts, err := sweep.One(m, pv, sweep.Steps(*from, *to, *steps), progress)
 	if err != nil {
 		return badf("sweep: %v", err)
 	}
@@ -190,11 +194,12 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, p.Reason)
 			continue
 		}
-		mark := ""
-		if !math.IsNaN(p.MinRs) && p.MinRs >= m.Goal.MinResolution {
-			mark = " ✓"
+		rs, pair := "–", "no counted pair"
+		if !math.IsNaN(p.MinRs) {
+			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.Verdict(p.MinRs, m.Goal.MinResolution)
+			pair = format.CriticalPair(p.Critical[0], p.Critical[1])
 		}
-		fmt.Fprintf(tw, "%g\t%.3f%s\t%s / %s\t%.2f\t\n", p.Value, p.MinRs, mark, p.Critical[0], p.Critical[1], p.RunTime)
+		fmt.Fprintf(tw, "%g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
 	}
 	tw.Flush()
 	if *csvF != "" {
@@ -219,14 +224,16 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-func currentValue(m *methodfile.Method, name string) float64 {
-	fs := map[string]float64{"initial_c": m.Oven.InitialC, "initial_hold_min": m.Oven.InitialHoldMin, "flow_ml_min": m.Carrier.FlowMLMin, "inlet_kpa": m.Carrier.InletKPa}
-	for i, r := range m.Oven.Ramps {
-		fs[fmt.Sprintf("rate_%d", i+1)] = r.RateCMin
-		fs[fmt.Sprintf("final_%d", i+1)] = r.FinalC
-		fs[fmt.Sprintf("hold_%d", i+1)] = r.HoldMin
+// sweepValue reads the name of a value to vary and checks m has it.
+func sweepValue(m *methodfile.Method, name string) (model.ProgramValue, error) {
+	pv, err := model.ParseProgramValue(name)
+	if err == nil {
+		err = sweep.Check(m, pv)
 	}
-	return fs[name]
+	if err != nil {
+		return pv, badf("sweep: %v (this method has %s)", err, model.ValueNames(m.Values()))
+	}
+	return pv, nil
 }
 
 func pointRow(p sweep.Point, two bool) []string {

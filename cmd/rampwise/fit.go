@@ -10,6 +10,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -65,7 +66,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, _, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
@@ -100,7 +101,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		return enc.Encode(j)
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "compound\tΔH kJ/mol\t±\tΔS J/(mol·K)\t±\tΔCp\truns\trms min\tmax min\t")
+	fmt.Fprintf(tw, "compound\tΔH %s\t±\tΔS %s\t±\tΔCp\truns\trms min\tmax min\t\n", format.UnitDH, format.UnitDS)
 	for _, c := range rep.Compounds {
 		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", c.Name, c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
 	}
@@ -166,11 +167,11 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
-	s, err := simulateMethod(m, files[0])
+	s, err := simulateMethod(m, name)
 	if err != nil {
 		return err
 	}

@@ -11,6 +11,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 )
@@ -22,7 +23,9 @@ retention time, elution temperature, peak width at half height and the
 resolution to the next peak; then the holdup (dead) time, run time, oven cycle
 time (run + cool-down + equilibration), the minimum resolution over the pairs
 that involve a target compound, and the critical pair. Without FILE the
-built-in demo method is used.
+built-in demo method is used. The column may be wall-coated, packed or
+porous-layer ([column] kind); with [limits] coolant_c the oven may start
+below ambient, and the cautions for the cryogenic coolant are printed.
 
 Flags:
 `
@@ -165,15 +168,15 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 	fmt.Fprintf(w, "%s\n", title)
 	fmt.Fprintf(w, "%s\n%s\n\n", describeColumn(m), describeProgram(m.Oven))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\tRs next\ttarget\t")
+	fmt.Fprintf(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\t%s\t%s\t\n", format.HeadRsNext, format.HeadTarget)
 	rs := resolutionAfter(r)
 	for i, pk := range r.Peaks {
 		c := &s.sys.Compounds[pk.Compound]
 		rsText := ""
 		if !math.IsNaN(rs[i]) {
-			rsText = fmt.Sprintf("%.2f", rs[i])
+			rsText = format.Pair(rs[i], m.Goal.MinResolution)
 			if r.Critical == i {
-				rsText += " ◄"
+				rsText = format.CriticalMark + " " + rsText
 			}
 		}
 		tgt := ""
@@ -199,8 +202,8 @@ func (s *simulation) summary() string {
 	crit := "no counted pair"
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		crit = fmt.Sprintf("min Rs %.2f (critical pair %s / %s; target %.2f)", r.MinResolution,
-			s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name, s.method.Goal.MinResolution)
+		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.method.Goal.MinResolution),
+			format.CriticalPair(s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }
@@ -212,7 +215,7 @@ func describeColumn(m *methodfile.Method) string {
 		phase = "phase not named"
 	}
 	flow := fmt.Sprintf("%s mL/min constant flow", fmtNum(g.FlowMLMin))
-	if g.Mode == "constant-pressure" {
+	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
 	}
 	return fmt.Sprintf("%s %s (max %s °C) · %s %s · %s outlet",

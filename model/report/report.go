@@ -74,7 +74,7 @@ func (s *Sim) CSV() ([]byte, error) {
 func Describe(m *methodfile.Method) string {
 	c, g := m.Column, m.Carrier
 	flow := fmt.Sprintf("%s mL/min const. flow", num(g.FlowMLMin))
-	if g.Mode == "constant-pressure" {
+	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa const. pressure", num(g.InletKPa))
 	}
 	return fmt.Sprintf("%s · %s %s · %s", c.Describe(), g.Gas, flow, Program(m.Oven))

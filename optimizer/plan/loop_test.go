@@ -14,6 +14,7 @@ import (
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // the optimizer's effort in the loop tests: smaller than the command's, so
@@ -116,11 +117,11 @@ func playHabit(t testing.TB, seed uint64, maxInjections int) outcome {
 		if err != nil {
 			t.Fatal(err)
 		}
-		res, err := optimizer.Optimize(context.Background(), optimizer.FromMethod(m, sys), testOptimizer)
+		res, err := optimizer.Optimize(context.Background(), methodsearch.Problem(m, sys), testOptimizer)
 		if err != nil {
 			t.Fatal(err)
 		}
-		oven, _, err := optimizer.KeypadProgram(m, sys, res)
+		oven, _, err := methodsearch.KeypadProgram(m, sys, res)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -33,6 +33,7 @@ import (
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // Action is what to do next.
@@ -475,7 +476,7 @@ func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
 func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
 	m := st.m.Clone()
 	m.Goal.MinResolution = rs
-	prob := optimizer.FromMethod(m, st.sys)
+	prob := methodsearch.Problem(m, st.sys)
 	res, err := optimizer.Optimize(ctx, prob, s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
@@ -488,7 +489,7 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 // s, as the current model predicts.
 func (st *state) duration(o methodfile.Oven) float64 {
 	p := methodfile.ProgramToModel(o)
-	if st.m.Goal.Objective != "cycle-time" {
+	if st.m.Goal.Objective != model.CycleTime {
 		return p.RunTime()
 	}
 	cool, err := st.sys.Oven.Cooldown(p.FinalTemp(), p.Initial)
