@@ -592,16 +592,6 @@ func niceCeil(x float64) float64 {
 	return 10 * p
 }
 
-func fmtTick(v float64) string {
-	switch {
-	case v >= 100:
-		return fmt.Sprintf("%.0f", v)
-	case v >= 10:
-		return fmt.Sprintf("%.1f", v)
-	}
-	return fmt.Sprintf("%.2f", v)
-}
-
 // valueAxis is a row of ticks for [lo, hi] over w columns, with the unit.
 func valueAxis(lo, hi float64, w int, unit string) string {
 	line := []rune(strings.Repeat("─", w))
