@@ -509,3 +509,31 @@ func TestProgressGoneWhenWorkEnds(t *testing.T) {
 		t.Errorf("a %T was left after the work ended", a.overlay)
 	}
 }
+
+// A five-ramp optimized program is readable whole at 80×24.
+func TestFiveRampResultFits(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	after := a.Method().Clone()
+	after.Oven.Ramps = nil
+	for i := 0; i < 5; i++ {
+		after.Oven.Ramps = append(after.Oven.Ramps, methodfile.Ramp{RateCMin: 3.25 + float64(i), FinalC: 71.5 + 50*float64(i), HoldMin: 0.125})
+	}
+	sys, _ := after.System()
+	var sim model.Result
+	if err := sys.Simulate(after.ModelProgram(), &sim); err != nil {
+		t.Fatal(err)
+	}
+	d := newResultDialog(&a.sh, &optimizer.Result{Status: optimizer.Met}, after, sim)
+	a.open(d)
+	a.chart.Update(d.preview())
+	a.refresh()
+	s := screen(a)
+	for _, r := range after.Oven.Ramps {
+		if !strings.Contains(s, fmtNum(r.RateCMin, 1, 2)) || !strings.Contains(s, fmtNum(r.FinalC, 1, 2)) {
+			t.Errorf("ramp %+v not on the screen:\n%s", r, s)
+		}
+	}
+	if !strings.Contains(s, "0.125") {
+		t.Errorf("holds not shown at the precision saved:\n%s", s)
+	}
+}
