@@ -69,7 +69,7 @@ func (l *fieldList) key(msg tea.KeyMsg) bool {
 	case key.Matches(msg, k.Type):
 		f := fs[l.sel]
 		sh := l.sh
-		l.sh.send(openMsg{newPrompt(sh, fmt.Sprintf("%s (%s): ", f.key, f.unit), f.text(sh.method), func(text string) tea.Msg {
+		l.sh.send(openMsg{newPrompt(sh, fieldPrompt(f), f.text(sh.method), func(text string) tea.Msg {
 			m, err := f.typed(sh.method, text)
 			if err != nil {
 				return sayMsg{msgError, err.Error() + " (kept the last valid value)"}
@@ -80,6 +80,17 @@ func (l *fieldList) key(msg tea.KeyMsg) bool {
 		return false
 	}
 	return true
+}
+
+// fieldPrompt asks for field f by name, with its unit or its choices.
+func fieldPrompt(f field) string {
+	switch {
+	case f.choices != nil:
+		return fmt.Sprintf("%s (%s): ", f.name(), strings.Join(f.choices, ", "))
+	case f.unit != "":
+		return fmt.Sprintf("%s (%s): ", f.name(), f.unit)
+	}
+	return f.name() + ": "
 }
 
 // fieldEdit is the edit that sets field f as m has it. A gas or pressure

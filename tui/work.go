@@ -532,27 +532,22 @@ func sortedUnique(v []float64) []float64 {
 // the method's limits allow.
 func programSweep(f field, m *methodfile.Method) sweepSpec {
 	v := f.value(m)
-	s := sweepSpec{value: f.pv, unit: f.unit, current: v}
+	s := sweepSpec{value: f.pv, label: f.name(), unit: f.unit, current: v}
 	maxHold := m.Limits.MaxHoldMin
 	switch f.pv.Kind {
 	case model.InitialTemp:
-		s.label = "start temperature"
 		s.lo, s.hi = math.Max(m.Limits.OvenMinC, v-40), math.Min(m.Column.MaxTempC-1, v+40)
 	case model.InitialHold:
-		s.label = "start hold"
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
 	case model.RampFinal:
-		s.label = fmt.Sprintf("ramp %d final temperature", f.ramp)
 		prev := m.Oven.InitialC
 		if f.ramp > 1 {
 			prev = m.Oven.Ramps[f.ramp-2].FinalC
 		}
 		s.lo, s.hi = math.Max(prev+1, v-60), math.Min(m.Column.MaxTempC, v+60)
 	case model.RampRate:
-		s.label = fmt.Sprintf("ramp %d rate", f.ramp)
 		s.lo, s.hi = math.Max(0.5, v/4), math.Min(m.Limits.MaxRateCMin, math.Max(v*3, 1))
 	case model.RampHold:
-		s.label = fmt.Sprintf("ramp %d hold", f.ramp)
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
 	}
 	s.lo, s.hi = math.Min(s.lo, v), math.Max(s.hi, v)
