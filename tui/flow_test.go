@@ -103,3 +103,22 @@ func TestFlowFitInBackground(t *testing.T) {
 	tm.Send(keyRune('y'))
 	tm.WaitFinished(t, teatest.WithFinalTimeout(10*time.Second))
 }
+
+// ctrl+c while the optimizer runs with unsaved changes stops the search
+// and asks, like q
+func TestFlowInterruptDuringOptimize(t *testing.T) {
+	a, _ := newApp(t, 100, 30)
+	a.optSettings.Starts = 400
+	a.optSettings.Evaluations = 50000
+	tm := teatest.NewTestModel(t, a, teatest.WithInitialTermSize(100, 30))
+	tm.Send(keyRune('-'))
+	tm.Send(keyRune('o'))
+	waitScreen(t, tm, "evaluations")
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
+	waitScreen(t, tm, "save them before quitting")
+	tm.Send(keyRune('y'))
+	final := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*App)
+	if final.job != nil {
+		t.Error("the search was not stopped")
+	}
+}
