@@ -658,13 +658,26 @@ func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
 func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
 	m := st.m.Clone()
 	m.Goal.MinResolution = rs
-	prob := methodsearch.Problem(m, st.sys)
-	res, err := optimizer.Optimize(ctx, prob, s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, st.sys), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
 	oven := onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits)
 	return oven, res.Feasible(), nil
+}
+
+// problem is the optimizer's problem for m with every instrument limit the
+// scouting runs keep: the highest temperature (detector − 20 °C,
+// max_isothermal_c, inlet pressure) and, when rate bands are given, the
+// slowest band's rate throughout (the search has one rate limit).
+func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
+	prob := methodsearch.Problem(m, sys)
+	sl := st.scoutLimits()
+	prob.Limits.MaxTemp = math.Min(prob.Limits.MaxTemp, sl.highC+model.ZeroCelsius)
+	if len(sl.bands) > 0 {
+		prob.Limits.MaxRate = math.Min(prob.Limits.MaxRate, sl.rateTo(sl.highC)/60)
+	}
+	return prob
 }
 
 // optimizeMethod runs the optimizer on method m (the current one with
@@ -676,7 +689,7 @@ func (st *state) optimizeMethod(ctx context.Context, m *methodfile.Method, rs fl
 	if err != nil {
 		return methodfile.Oven{}, false, nil // an implausible shift: no program
 	}
-	res, err := optimizer.Optimize(ctx, methodsearch.Problem(m, sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
@@ -779,7 +792,7 @@ func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.S
 	if err != nil {
 		return methodfile.Oven{}, false, nil // an implausible draw: skip it
 	}
-	res, err := optimizer.Optimize(ctx, methodsearch.Problem(m, sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
 	if err != nil {
 		return methodfile.Oven{}, false, nil
 	}
