@@ -129,8 +129,8 @@ type Plan struct {
 	Reason  string
 	// ExpectedMinResolution is the predicted minimum resolution of the
 	// optimized program; ExpectedSD its standard deviation (parameters and
-	// measurement); SDAfter (inject) the SD expected once the planned run
-	// is fitted.
+	// measurement); SDAfter (inject) the parameters' part of that SD
+	// expected once the planned run is fitted.
 	ExpectedMinResolution float64
 	ExpectedSD            float64
 	SDAfter               float64
@@ -378,7 +378,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	} else if best.sdOK && best.cornerText != "" {
 		why = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f does not hold at every instrument tolerance%s", best.minRs, best.sd, best.cornerText)
 	}
-	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink that to ± %.2f (%d pairs that are or could become critical weighed)",
+	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%d pairs that are or could become critical weighed)",
 		why, robustNote, d.sdAfter, d.pairs)
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
