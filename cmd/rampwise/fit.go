@@ -140,8 +140,8 @@ Retention indices of the method's compounds against its ladder n-alkanes
 (compounds with alkane_carbons): programmed indices (van den Dool & Kratz)
 under the method's oven program, or with --isothermal-c isothermal Kováts
 indices at T °C. Compounds outside the ladder get no index. A compound given
-only by retention_index is modelled as the virtual n-alkane of that carbon
-number (ΔH, ΔS linear in carbon number across the ladder).
+only by retention_index has its ln K interpolated between the two ladder
+alkanes that bracket it, so it keeps its index at every temperature.
 
 Flags:
 `
@@ -208,7 +208,7 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	for i, c := range m.Compounds {
 		e := indexEntryJSON{Name: c.Name, From: "entered"}
 		if c.FromIndex {
-			e.From = "from retention index (virtual n-alkane)"
+			e.From = "from retention index (ln K between the bracketing ladder alkanes)"
 		}
 		if c.RetentionIndex > 0 {
 			g := c.RetentionIndex
@@ -242,6 +242,6 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", e.Name, idx, given, e.From)
 	}
 	tw.Flush()
-	fmt.Fprintln(stdout, "\nCompounds given by retention index are modelled as the virtual n-alkane of that carbon number: an assumption, refine them with fit when runs exist.")
+	fmt.Fprintln(stdout, "\nCompounds given by retention index have ln K interpolated between the bracketing ladder alkanes (their index taken as independent of temperature): an assumption, refine them with fit when runs exist.")
 	return nil
 }

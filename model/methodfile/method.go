@@ -160,7 +160,8 @@ type Compound struct {
 	IndexTempC     float64
 	HasIndexTemp   bool
 	// FromIndex is true when dH and dS were not in the file and were derived
-	// from the retention index and the ladder (the virtual-alkane rule).
+	// from the retention index and the ladder (ln K between the two
+	// bracketing ladder alkanes, index.go).
 	FromIndex bool
 	// FromFormula is true when the file gave neither dH and dS nor a
 	// retention index, only a formula: dH and dS are then a rough estimate

@@ -121,7 +121,7 @@ func (s *Sim) Sheet() []byte {
 		fmt.Fprintf(&b, "- ΔH and ΔS in the method file (entered, or fitted from scouting runs with `rampwise fit`): %s.\n", strings.Join(entered, ", "))
 	}
 	if len(idx) > 0 {
-		fmt.Fprintf(&b, "- From retention indices on this phase, modelled as virtual n-alkanes (an assumption): %s.\n", strings.Join(idx, ", "))
+		fmt.Fprintf(&b, "- From retention indices on this phase, ln K interpolated between the bracketing ladder alkanes (the index taken as independent of temperature, an assumption): %s.\n", strings.Join(idx, ", "))
 	}
 	fmt.Fprintf(&b, "- Plate-height factor %s (1 = ideal Golay column).\n", num(m.Column.PlateHeight))
 
