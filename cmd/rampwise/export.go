@@ -191,7 +191,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintf(tw, "%s\tmin Rs\tcritical pair\trun (min)\t\n", *vary)
 	for _, p := range pts {
 		if !p.Valid {
-			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, p.Reason)
+			fmt.Fprintf(tw, "%.6g\t-\tnot a valid program: %s\t\t\n", p.Value, p.Reason)
 			continue
 		}
 		rs, pair := "–", "no counted pair"
@@ -199,7 +199,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.Verdict(p.MinRs, m.Goal.MinResolution)
 			pair = format.CriticalPair(p.Critical[0], p.Critical[1])
 		}
-		fmt.Fprintf(tw, "%g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
+		fmt.Fprintf(tw, "%.6g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
 	}
 	tw.Flush()
 	if *csvF != "" {
