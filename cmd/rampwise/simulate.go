@@ -206,21 +206,9 @@ func (s *simulation) summary() string {
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }
 
-func describeColumn(m *methodfile.Method) string {
-	c, g := m.Column, m.Carrier
-	phase := c.Phase
-	if phase == "" {
-		phase = "phase not named"
-	}
-	flow := fmt.Sprintf("%s mL/min constant flow", fmtNum(g.FlowMLMin))
-	if g.Mode == model.ConstantPressure {
-		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
-	}
-	return fmt.Sprintf("%s %s (max %s °C) · %s %s · %s outlet",
-		c.Describe(), phase, fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
-}
+func describeColumn(m *methodfile.Method) string { return m.Describe() }
 
-func describeProgram(o methodfile.Oven) string { return report.Program(o) }
+func describeProgram(o methodfile.Oven) string { return o.Describe() }
 
 func round(x float64, digits int) float64 {
 	p := math.Pow(10, float64(digits))

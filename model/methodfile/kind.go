@@ -2,6 +2,7 @@ package methodfile
 
 import (
 	"fmt"
+	"math"
 
 	"github.com/rampwise/rampwise/model"
 )
@@ -144,4 +145,42 @@ func (c Column) Describe() string {
 		return fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
 	}
 	return fmt.Sprintf("%s m × %s mm × %s µm", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
+}
+
+// Describe is the carrier in a few words: "helium 1.2 mL/min constant
+// flow" or "hydrogen 80 kPa constant pressure", with ", vacuum outlet" for a
+// vacuum outlet.
+func (g Carrier) Describe() string {
+	s := fmt.Sprintf("%s %s mL/min constant flow", g.Gas, fmtNum(g.FlowMLMin))
+	if g.Mode == model.ConstantPressure {
+		s = fmt.Sprintf("%s %s kPa constant pressure", g.Gas, fmtNum(g.InletKPa))
+	}
+	if g.Outlet == "vacuum" {
+		s += ", vacuum outlet"
+	}
+	return s
+}
+
+// Describe is the oven program in one line, at the precision the oven
+// takes: "50 °C (1 min) → 12 °C/min → 240 °C (2 min)".
+func (o Oven) Describe() string {
+	r2 := func(x float64, d int) string {
+		p := math.Pow(10, float64(d))
+		return fmtNum(math.Round(x*p) / p)
+	}
+	s := fmt.Sprintf("%s °C (%s min)", r2(o.InitialC, 2), r2(o.InitialHoldMin, 3))
+	for _, r := range o.Ramps {
+		s += fmt.Sprintf(" → %s °C/min → %s °C (%s min)", r2(r.RateCMin, 2), r2(r.FinalC, 2), r2(r.HoldMin, 3))
+	}
+	return s
+}
+
+// Describe is the column, its phase and limit, and the carrier in one line:
+// what the command outputs, the figure and the sheet head with.
+func (m *Method) Describe() string {
+	phase := m.Column.Phase
+	if phase == "" {
+		phase = "phase not named"
+	}
+	return fmt.Sprintf("%s %s (max %s °C) · %s", m.Column.Describe(), phase, fmtNum(m.Column.MaxTempC), m.Carrier.Describe())
 }

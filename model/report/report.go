@@ -12,7 +12,6 @@ import (
 	"image/color"
 	"math"
 	"strconv"
-	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -72,24 +71,10 @@ func (s *Sim) CSV() ([]byte, error) {
 }
 
 // Describe is the column, carrier and program in one line.
-func Describe(m *methodfile.Method) string {
-	c, g := m.Column, m.Carrier
-	flow := fmt.Sprintf("%s mL/min const. flow", num(g.FlowMLMin))
-	if g.Mode == model.ConstantPressure {
-		flow = fmt.Sprintf("%s kPa const. pressure", num(g.InletKPa))
-	}
-	return fmt.Sprintf("%s · %s %s · %s", c.Describe(), g.Gas, flow, Program(m.Oven))
-}
+func Describe(m *methodfile.Method) string { return m.Describe() + " · " + m.Oven.Describe() }
 
-// Program is the oven program in one line.
-func Program(o methodfile.Oven) string {
-	var b strings.Builder
-	fmt.Fprintf(&b, "%s °C (%s min)", num(round(o.InitialC, 2)), num(round(o.InitialHoldMin, 3)))
-	for _, r := range o.Ramps {
-		fmt.Fprintf(&b, " → %s °C/min → %s °C (%s min)", num(round(r.RateCMin, 2)), num(round(r.FinalC, 2)), num(round(r.HoldMin, 3)))
-	}
-	return b.String()
-}
+// Program is the oven program in one line (methodfile.Oven.Describe).
+func Program(o methodfile.Oven) string { return o.Describe() }
 
 func round(x float64, d int) float64 {
 	p := math.Pow(10, float64(d))
