@@ -51,13 +51,11 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if _, err := simulateMethod(m, name); err != nil {
+	sim, err := simulateMethod(m, name)
+	if err != nil {
 		return err
 	}
-	rs, err := report.Simulate(m)
-	if err != nil {
-		return badf("%s: %v", name, err)
-	}
+	rs := &sim.Sim
 	write := func(path string, data []byte) error {
 		if err := methodfile.WriteAtomic(path, data); err != nil {
 			return err

@@ -183,10 +183,10 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	retention := make([]float64, len(m.Compounds))
 	for i := range m.Compounds {
 		if kovats {
-			retention[i] = s.sys.Cond.RetentionFactor(&s.sys.Compounds[i], *iso+model.ZeroCelsius)
+			retention[i] = s.System.Cond.RetentionFactor(&s.System.Compounds[i], *iso+model.ZeroCelsius)
 		}
 	}
-	for _, pk := range s.res.Peaks {
+	for _, pk := range s.Result.Peaks {
 		if !kovats {
 			retention[pk.Compound] = pk.RetentionTime
 		}

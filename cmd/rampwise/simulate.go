@@ -64,20 +64,17 @@ func finiteOrNil(x float64) *float64 {
 	return &x
 }
 
-// simulation is a method's system and the result of its program.
-type simulation struct {
-	method *methodfile.Method
-	sys    *model.System
-	res    model.Result
-}
+// simulation is a method's system and the result of its program: the
+// report's Sim, with what the commands print from it.
+type simulation struct{ report.Sim }
 
 func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 	sys, err := m.System()
 	if err != nil {
 		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
 	}
-	s := &simulation{method: m, sys: sys}
-	if err := sys.Simulate(m.ModelProgram(), &s.res); err != nil {
+	s := &simulation{report.Sim{Method: m, System: sys}}
+	if err := sys.Simulate(m.ModelProgram(), &s.Result); err != nil {
 		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
 	}
 	return s, nil
@@ -85,11 +82,11 @@ func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 
 // warnings are the cautions a chromatographer needs with this result.
 func (s *simulation) warnings(prog model.Program) []string {
-	w := checks.Warnings(s.method, s.sys, &s.res)
-	if s.sys.Cond.Carrier.Gas.Flammable() {
+	w := checks.Warnings(s.Method, s.System, &s.Result)
+	if s.System.Cond.Carrier.Gas.Flammable() {
 		w = append(w, model.HydrogenCaution)
 	}
-	if note := checks.CoolantNote(s.method); note != "" {
+	if note := checks.CoolantNote(s.Method); note != "" {
 		w = append(w, note, model.CryogenCaution)
 	}
 	return w
@@ -103,7 +100,7 @@ func fmtMin(s float64) string {
 }
 
 func (s *simulation) json(prog model.Program) simulateJSON {
-	r := &s.res
+	r := &s.Result
 	out := simulateJSON{
 		HoldupTime: r.HoldupTime / 60,
 		RunTime:    r.RunTime / 60,
@@ -116,7 +113,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 		out.Warnings = []string{}
 	}
 	for _, pk := range r.Peaks {
-		c := &s.sys.Compounds[pk.Compound]
+		c := &s.System.Compounds[pk.Compound]
 		out.Peaks = append(out.Peaks, peakJSON{
 			Name:            c.Name,
 			RetentionTime:   finiteOrNil(pk.RetentionTime / 60),
@@ -130,7 +127,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 	}
 	for _, pr := range r.Pairs {
 		out.Pairs = append(out.Pairs, pairJSON{
-			First: s.sys.Compounds[pr.First].Name, Second: s.sys.Compounds[pr.Second].Name,
+			First: s.System.Compounds[pr.First].Name, Second: s.System.Compounds[pr.Second].Name,
 			Resolution: pr.Resolution, Counts: pr.Counts,
 		})
 	}
@@ -138,7 +135,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 		v := r.MinResolution
 		out.MinResolution = &v
 		cp := r.Pairs[r.Critical]
-		out.CriticalPair = []string{s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name}
+		out.CriticalPair = []string{s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name}
 	}
 	return out
 }
@@ -157,8 +154,8 @@ func resolutionAfter(r *model.Result) []float64 {
 }
 
 func (s *simulation) writeTable(w io.Writer, name string) {
-	r := &s.res
-	m := s.method
+	r := &s.Result
+	m := s.Method
 	title := m.Title
 	if title == "" {
 		title = name
@@ -169,7 +166,7 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 	fmt.Fprintf(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\t%s\t%s\t\n", format.HeadRsNext, format.HeadTarget)
 	rs := resolutionAfter(r)
 	for i, pk := range r.Peaks {
-		c := &s.sys.Compounds[pk.Compound]
+		c := &s.System.Compounds[pk.Compound]
 		rsText := ""
 		if !math.IsNaN(rs[i]) {
 			rsText = format.Pair(rs[i], m.Goal.MinResolution)
@@ -196,12 +193,12 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 }
 
 func (s *simulation) summary() string {
-	r := &s.res
+	r := &s.Result
 	crit := "no counted pair"
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.method.Goal.MinResolution),
-			format.CriticalPair(s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name))
+		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.Method.Goal.MinResolution),
+			format.CriticalPair(s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }
@@ -218,7 +215,7 @@ func round(x float64, digits int) float64 {
 func fmtNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 
 func (s *simulation) writeCSV(w io.Writer) error {
-	rs := report.Sim{Method: s.method, System: s.sys, Result: s.res}
+	rs := s.Sim
 	data, err := rs.CSV()
 	if err != nil {
 		return err
