@@ -23,7 +23,9 @@ retention time, elution temperature, peak width at half height and the
 resolution to the next peak; then the holdup (dead) time, run time, oven cycle
 time (run + cool-down + equilibration), the minimum resolution over the pairs
 that involve a target compound, and the critical pair. Without FILE the
-built-in demo method is used.
+built-in demo method is used. The column may be wall-coated, packed or
+porous-layer ([column] kind); with [limits] coolant_c the oven may start
+below ambient, and the cautions for the cryogenic coolant are printed.
 
 Flags:
 `

@@ -126,3 +126,31 @@ func readDemoText(t *testing.T, path string) string {
 	}
 	return string(data)
 }
+
+// A save of a packed or porous-layer method keeps the file: only the
+// changed kind key is rewritten where it stands.
+func TestKindUpdateInPlace(t *testing.T) {
+	orig := readDemoText(t, packedDemoPath)
+	m, err := Parse("p.toml", []byte(orig))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Column.ParticleUM = 150
+	out, inPlace, err := Update("p.toml", []byte(orig), m)
+	if err != nil || !inPlace {
+		t.Fatalf("update: %v, in place %v", err, inPlace)
+	}
+	if want := strings.Replace(orig, "particle_um = 165.0", "particle_um = 150.0", 1); string(out) != want {
+		t.Errorf("update changed more than the particle size:\n%s", out)
+	}
+	lorig := readDemoText(t, layerDemoPath)
+	l, err := Parse("l.toml", []byte(lorig))
+	if err != nil {
+		t.Fatal(err)
+	}
+	l.Limits.CoolantC = -65
+	out, inPlace, err = Update("l.toml", []byte(lorig), l)
+	if want := strings.Replace(lorig, "coolant_c = -70.0", "coolant_c = -65.0", 1); err != nil || !inPlace || string(out) != want {
+		t.Errorf("coolant update: %v, in place %v\n%s", err, inPlace, out)
+	}
+}

@@ -123,7 +123,11 @@ func (s *Sim) Sheet() []byte {
 	if len(idx) > 0 {
 		fmt.Fprintf(&b, "- From retention indices on this phase, ln K interpolated between the bracketing ladder alkanes (the index taken as independent of temperature, an assumption): %s.\n", strings.Join(idx, ", "))
 	}
-	fmt.Fprintf(&b, "- Plate-height factor %s (1 = ideal Golay column).\n", num(m.Column.PlateHeight))
+	ideal := "ideal Golay column"
+	if m.Column.Kind == "packed" {
+		ideal = "the van Deemter plate height with the column's eddy, obstruction and mobile-phase factors"
+	}
+	fmt.Fprintf(&b, "- Plate-height factor %s (1 = %s).\n", num(m.Column.PlateHeight), ideal)
 
 	fmt.Fprintf(&b, "\n## Cautions\n\n")
 	fmt.Fprintf(&b, "- These are model predictions. Verify the program with a standard injection before using it for samples.\n")
