@@ -81,20 +81,8 @@ func round(x float64, d int) float64 {
 	return math.Round(x*p) / p
 }
 
-// signal is the summed Gaussian detector signal (areas ∝ amount) at t s.
-func (s *Sim) signal(t float64) float64 {
-	y := 0.0
-	for _, pk := range s.Result.Peaks {
-		if !pk.Eluted || pk.Sigma <= 0 {
-			continue
-		}
-		z := (t - pk.RetentionTime) / pk.Sigma
-		if z > -8 && z < 8 {
-			y += s.System.Compounds[pk.Compound].AreaOrOne() / pk.Sigma * math.Exp(-0.5*z*z)
-		}
-	}
-	return y
-}
+// signal is the detector signal at t s (model.Result.Signal).
+func (s *Sim) signal(t float64) float64 { return s.Result.Signal(s.System.Compounds, t) }
 
 var (
 	traceColor    = color.RGBA{R: 0, G: 110, B: 100, A: 255}
