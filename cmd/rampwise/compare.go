@@ -127,7 +127,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 					c := m.Clone()
 					c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
 					if err := c.Validate(); err != nil {
-						if kindName(m.Column.Kind) != kindOfLists {
+						if m.Column.Kind != kindOfLists {
 							fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
 							lastSkip = err
 							continue
@@ -250,11 +250,6 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 // kindOfLists is the kind the dimension lists are written for: a list
 // value outside another kind's ranges skips that candidate instead of
 // failing the comparison.
-const kindOfLists = "wall-coated"
+const kindOfLists = model.WallCoated
 
-func kindName(k string) string {
-	if k == "" {
-		return "wall-coated"
-	}
-	return k
-}
+func kindName(k model.ColumnKind) string { return k.String() }

@@ -93,7 +93,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 			})
 		}
 		j.Column.Diameter, j.Column.PlateHeight, j.Column.PhaseRatio = rep.DiameterMM, rep.PlateHeightFactor, rep.PhaseRatio
-		if m.Column.Kind == "packed" {
+		if m.Column.Kind == model.Packed {
 			j.Column.Particle = &rep.ParticleUM
 		}
 		enc := json.NewEncoder(stdout)
@@ -106,7 +106,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", c.Name, c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
 	}
 	tw.Flush()
-	if m.Column.Kind == "packed" {
+	if m.Column.Kind == model.Packed {
 		fmt.Fprintf(stdout, "\nparticle size %.2f µm%s · phase ratio %.4g (given) · plate-height factor %.3f%s\n", rep.ParticleUM, fitted(rep.ParticleFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
 	} else {
 		fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · phase ratio %.4g · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))

@@ -437,7 +437,7 @@ func (v *validator) column(r *rawMethod, m *Method) {
 		return
 	}
 	c := r.Column
-	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
+	m.Column.Kind = choice(v, "column.kind", c.Kind, false, model.WallCoated, model.ParseColumnKind)
 	kr := rulesFor(m.Column.Kind)
 	m.Column.LengthM = v.opt("column.length_m", c.LengthM, true, 30)
 	m.Column.DiameterMM = v.opt("column.diameter_mm", c.DiameterMM, true, 0.25)

@@ -20,9 +20,9 @@ type kindRules struct {
 // film up to 50 µm; a porous-layer tube with a 1-60 µm layer and a layer
 // diffusivity of 1e-7 m²/s (MODEL.md §11); a packed tube of 1-6 mm and
 // 0.3-10 m with an effective liquid film of 1 µm by default (§10).
-func rulesFor(kind string) kindRules {
+func rulesFor(kind model.ColumnKind) kindRules {
 	switch kind {
-	case "packed":
+	case model.Packed:
 		return kindRules{
 			length:      bound{lo: 0.3, hi: 10},
 			diameter:    bound{lo: 1, hi: 6},
@@ -31,7 +31,7 @@ func rulesFor(kind string) kindRules {
 			filmWord:    "liquid film",
 			diffusivity: model.DefaultDs,
 		}
-	case "porous-layer":
+	case model.PorousLayer:
 		return kindRules{
 			length:       bound{lo: 0.1, hi: 300},
 			diameter:     bound{lo: 0.01, hi: 1.0},
@@ -57,7 +57,7 @@ func rulesFor(kind string) kindRules {
 // eddy_lambda (default 0.8), obstruction_gamma (0.7) and mobile_omega (0.1)
 // optional; on an open tube each of them is an error naming the key.
 func (v *validator) packedKeys(c *rawColumn, m *Method) {
-	if m.Column.Kind != "packed" {
+	if m.Column.Kind != model.Packed {
 		for _, k := range []struct {
 			key   string
 			given bool
@@ -88,18 +88,18 @@ func (v *validator) packedKeys(c *rawColumn, m *Method) {
 // not belong to the kind when the file is read).
 func (v *validator) checkKind(m *Method) {
 	c := &m.Column
-	if v.err == nil && c.Kind != "wall-coated" && c.Kind != "packed" && c.Kind != "porous-layer" {
-		v.fail("column.kind", "%q is not one of wall-coated, packed, porous-layer", c.Kind)
+	if v.err == nil && !validChoice(c.Kind, model.ColumnKinds) {
+		v.fail("column.kind", "%q is not one of wall-coated, packed, porous-layer", c.Kind.String())
 		return
 	}
 	kr := rulesFor(c.Kind)
 	v.in("column.length_m", c.LengthM, kr.length.rng("m"), "")
 	v.in("column.diameter_mm", c.DiameterMM, kr.diameter.rng("mm"), "")
 	v.in("column.film_um", c.FilmUM, kr.film.rng("µm"), "")
-	if v.err == nil && c.Kind != "packed" && c.FilmUM*1e-3 >= c.DiameterMM/2 {
+	if v.err == nil && c.Kind != model.Packed && c.FilmUM*1e-3 >= c.DiameterMM/2 {
 		v.fail("column.film_um", "%s %s µm is thicker than the column radius (%s mm diameter)", kr.filmWord, fmtNum(c.FilmUM), fmtNum(c.DiameterMM))
 	}
-	if c.Kind != "packed" {
+	if c.Kind != model.Packed {
 		for _, k := range []struct {
 			key   string
 			given bool
@@ -124,24 +124,16 @@ func (b bound) rng(unit string) rng {
 	return rng{lo: b.lo, hi: b.hi, loOpen: b.loOpen, hiOpen: b.hiOpen, unit: unit}
 }
 
-// modelKind is the model's column kind of the file's kind name.
-func modelKind(kind string) model.ColumnKind {
-	k, err := model.ParseColumnKind(kind)
-	if err != nil {
-		return model.WallCoated // "" is the default; the decoder refuses others
-	}
-	return k
-}
 
 // Describe is a short description of the column for screens and sheets,
 // e.g. "packed 2 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 15)";
 // a wall-coated column is "30 m × 0.25 mm × 0.25 µm".
 func (c Column) Describe() string {
 	switch c.Kind {
-	case "packed":
+	case model.Packed:
 		return fmt.Sprintf("packed %s m × %s mm (%s µm particles, porosity %s, phase ratio %s)",
 			fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.ParticleUM), fmtNum(c.Porosity), fmtNum(c.PhaseRatio))
-	case "porous-layer":
+	case model.PorousLayer:
 		return fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
 	}
 	return fmt.Sprintf("%s m × %s mm × %s µm", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))

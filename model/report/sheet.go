@@ -35,7 +35,7 @@ func (s *Sim) Sheet() []byte {
 		phase = "(not named)"
 	}
 	fmt.Fprintf(&b, "| stationary phase | %s |\n", phase)
-	if m.Column.Kind == "packed" || m.Column.Kind == "porous-layer" {
+	if m.Column.Kind != model.WallCoated {
 		fmt.Fprintf(&b, "| column | %s, maximum %s °C |\n", m.Column.Describe(), num(m.Column.MaxTempC))
 		fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
 	} else {
@@ -124,7 +124,7 @@ func (s *Sim) Sheet() []byte {
 		fmt.Fprintf(&b, "- From retention indices on this phase, ln K interpolated between the bracketing ladder alkanes (the index taken as independent of temperature, an assumption): %s.\n", strings.Join(idx, ", "))
 	}
 	ideal := "ideal Golay column"
-	if m.Column.Kind == "packed" {
+	if m.Column.Kind == model.Packed {
 		ideal = "the van Deemter plate height with the column's eddy, obstruction and mobile-phase factors"
 	}
 	fmt.Fprintf(&b, "- Plate-height factor %s (1 = %s).\n", num(m.Column.PlateHeight), ideal)
