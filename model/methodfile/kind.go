@@ -124,7 +124,6 @@ func (b bound) rng(unit string) rng {
 	return rng{lo: b.lo, hi: b.hi, loOpen: b.loOpen, hiOpen: b.hiOpen, unit: unit}
 }
 
-
 // Describe is a short description of the column for screens and sheets,
 // e.g. "packed 2 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 15)";
 // a wall-coated column is "30 m × 0.25 mm × 0.25 µm".
