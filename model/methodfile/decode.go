@@ -294,17 +294,6 @@ type bound struct {
 	loOpen, hiOpen bool
 }
 
-func (b bound) String() string {
-	l, r := "[", "]"
-	if b.loOpen {
-		l = "("
-	}
-	if b.hiOpen {
-		r = ")"
-	}
-	return fmt.Sprintf("%s%s, %s%s", l, fmtNum(b.lo), fmtNum(b.hi), r)
-}
-
 func fmtNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 // num checks an optional or required number against its range and returns
@@ -317,12 +306,7 @@ func (v *validator) num(path string, p *float64, required bool, def float64, b b
 		return def
 	}
 	x := *p
-	if !finite(x) {
-		v.fail(path, "must be a finite number, got %v", x)
-		return def
-	}
-	if x < b.lo || x > b.hi || (b.loOpen && x == b.lo) || (b.hiOpen && x == b.hi) {
-		v.fail(path, "%s %s is out of range %s %s", fmtNum(x), unit, b, unit)
+	if !v.in(path, x, b.rng(unit), "") {
 		return def
 	}
 	return x
