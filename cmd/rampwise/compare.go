@@ -16,6 +16,7 @@ import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
@@ -198,8 +199,8 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			if len(j.CriticalPair) == 2 {
 				c1, c2 = j.CriticalPair[0], j.CriticalPair[1]
 			}
-			recs = append(recs, []string{strconv.Itoa(i + 1), j.Method, j.Phase, j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), fmt.Sprint(j.Feasible), j.Objective,
-				fmtNum(j.Time), rs, c1, c2, fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), j.Explanation + j.Error})
+			recs = append(recs, []string{strconv.Itoa(i + 1), textsafe.CSVCell(j.Method), textsafe.CSVCell(j.Phase), j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), fmt.Sprint(j.Feasible), j.Objective,
+				fmtNum(j.Time), rs, textsafe.CSVCell(c1), textsafe.CSVCell(c2), fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), textsafe.CSVCell(j.Explanation + j.Error)})
 		}
 		if err := writeCSVFile(*csvF, recs, stderr); err != nil {
 			return err
@@ -214,15 +215,15 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintln(tw, "#\tphase\tcolumn\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
 	for i, j := range rows {
 		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
-		if j.Kind != "wall-coated" {
+		if j.Kind != kindOfLists.String() {
 			col = j.Kind + " " + col
 		}
-		phase := j.Phase
+		phase := textsafe.Inert(j.Phase)
 		if phase == "" {
-			phase = j.Method
+			phase = textsafe.Inert(j.Method)
 		}
 		if j.Error != "" {
-			fmt.Fprintf(tw, "%d\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, j.Error)
+			fmt.Fprintf(tw, "%d\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, textsafe.Inert(j.Error))
 			continue
 		}
 		rs, cp := "-", "-"
@@ -230,7 +231,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			rs = format.RsNumber(*j.MinResolution, j.target) + " " + format.Verdict(*j.MinResolution, j.target)
 		}
 		if len(j.CriticalPair) == 2 {
-			cp = format.CriticalPair(j.CriticalPair[0], j.CriticalPair[1])
+			cp = format.CriticalPair(textsafe.Inert(j.CriticalPair[0]), textsafe.Inert(j.CriticalPair[1]))
 		}
 		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
 		if !j.Feasible {
@@ -241,7 +242,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	tw.Flush()
 	for i, j := range rows {
 		if !j.Feasible && j.Explanation != "" {
-			fmt.Fprintf(stdout, "%d: %s\n", i+1, j.Explanation)
+			fmt.Fprintf(stdout, "%d: %s\n", i+1, textsafe.Inert(j.Explanation))
 		}
 	}
 	return nil

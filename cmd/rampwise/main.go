@@ -18,6 +18,7 @@ import (
 	"io"
 	"os"
 
+	"github.com/rampwise/rampwise/model/fsafe"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -63,7 +64,9 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 			code = exitFailure
 		}
 	}()
-	err := dispatch(args, stdout, stderr)
+	out, flush := textOutput(args, stdout)
+	err := dispatch(args, out, stderr)
+	flush()
 	if err == nil {
 		return exitOK
 	}
@@ -77,10 +80,11 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 		hr.fs.Usage()
 		return exitOK
 	}
-	fmt.Fprintf(stderr, "rampwise: %v\n", err)
+	fmt.Fprintf(stderr, "rampwise: %s\n", inertLines(err.Error()))
 	var bi badInput
 	var me *methodfile.Error
-	if errors.As(err, &bi) || errors.As(err, &me) {
+	var fe *fsafe.Error // an output path that cannot be written
+	if errors.As(err, &bi) || errors.As(err, &me) || errors.As(err, &fe) {
 		return exitBadInput
 	}
 	return exitFailure

@@ -15,6 +15,7 @@ import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
@@ -138,7 +139,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	met := res.Feasible() && meets(afterSim)
 
 	if *out != "" {
-		if err := methodfile.WriteFile(*out, after); err != nil {
+		if err := saveMethodOut(*out, file, after); err != nil {
 			return err
 		}
 	}
@@ -170,7 +171,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	} else {
 		writeComparison(stdout, m, before, after, afterSim, res, met)
 		if *out != "" {
-			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", *out)
+			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", textsafe.Inert(*out))
 		}
 	}
 	if !met {
@@ -184,7 +185,7 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	if title == "" {
 		title = "method"
 	}
-	fmt.Fprintf(w, "%s\n%s\n\n", title, describeColumn(m))
+	fmt.Fprintf(w, "%s\n%s\n\n", textsafe.Inert(title), describeColumn(m))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "\tbefore\tafter\t")
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
@@ -197,10 +198,10 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	if met {
 		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
 	} else {
-		fmt.Fprintf(w, "target NOT met within the limits: %s\n", res.Explanation)
+		fmt.Fprintf(w, "target NOT met within the limits: %s\n", textsafe.Inert(res.Explanation))
 	}
 	for _, warn := range afterSim.warnings(after.ModelProgram()) {
-		fmt.Fprintf(w, "warning: %s\n", warn)
+		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
 }
 
@@ -216,7 +217,7 @@ func critName(s *simulation) string {
 		return "-"
 	}
 	cp := s.Result.Pairs[s.Result.Critical]
-	return format.CriticalPair(s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name)
+	return format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name))
 }
 
 // progressPrinter reports progress on stderr: a bar redrawn in place on a

@@ -14,6 +14,7 @@ import (
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 const simulateHelp = `Usage: rampwise simulate [FILE] [--json | --csv]
@@ -162,7 +163,7 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 	if title == "" {
 		title = name
 	}
-	fmt.Fprintf(w, "%s\n", title)
+	fmt.Fprintf(w, "%s\n", textsafe.Inert(title))
 	fmt.Fprintf(w, "%s\n%s\n\n", describeColumn(m), describeProgram(m.Oven))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\t%s\t%s\t\n", format.HeadRsNext, format.HeadTarget)
@@ -184,13 +185,13 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 		if !pk.Eluted {
 			tr += "*"
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%.1f\t%.2f\t%.2f\t%s\t%s\t\n", c.Name, tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), pk.RetentionFactor, rsText, tgt)
+		fmt.Fprintf(tw, "%s\t%s\t%.1f\t%.2f\t%.2f\t%s\t%s\t\n", textsafe.Inert(c.Name), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), pk.RetentionFactor, rsText, tgt)
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, s.summary())
 	for _, warn := range s.warnings(m.ModelProgram()) {
-		fmt.Fprintf(w, "warning: %s\n", warn)
+		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
 }
 
@@ -200,12 +201,12 @@ func (s *simulation) summary() string {
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
 		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.Method.Goal.MinResolution),
-			format.CriticalPair(s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name))
+			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }
 
-func describeColumn(m *methodfile.Method) string { return m.Describe() }
+func describeColumn(m *methodfile.Method) string { return textsafe.Inert(m.Describe()) }
 
 func describeProgram(o methodfile.Oven) string { return o.Describe() }
 

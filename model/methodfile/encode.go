@@ -240,9 +240,12 @@ func Save(path string, base []byte, m *Method) (kept bool, err error) {
 	if err != nil {
 		return false, fmt.Errorf("%s: %v", path, err)
 	}
-	// Check what we write reads back before it replaces anything.
-	if _, err := Parse(path, data); err != nil {
-		return false, fmt.Errorf("refusing to save an invalid method: %v", err)
+	// Check what we write reads back before it replaces anything (Update
+	// has already checked a text it kept).
+	if !kept {
+		if _, err := Parse(path, data); err != nil {
+			return false, fmt.Errorf("refusing to save an invalid method: %v", err)
+		}
 	}
 	return kept, WriteAtomic(path, data)
 }

@@ -6,6 +6,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/model/format"
 )
 
@@ -22,9 +23,9 @@ func (s *Sim) Sheet() []byte {
 	if title == "" {
 		title = "GC method"
 	}
-	fmt.Fprintf(&b, "# %s\n\n", title)
+	fmt.Fprintf(&b, "# %s\n\n", textsafe.Inert(title))
 	if m.Notes != "" {
-		fmt.Fprintf(&b, "%s\n\n", strings.TrimSpace(m.Notes))
+		fmt.Fprintf(&b, "%s\n\n", inertLines(strings.TrimSpace(m.Notes)))
 	}
 	cond := s.System.Cond
 	t0 := m.ModelProgram().Initial
@@ -34,10 +35,12 @@ func (s *Sim) Sheet() []byte {
 	if phase == "" {
 		phase = "(not named)"
 	}
-	fmt.Fprintf(&b, "| stationary phase | %s |\n", phase)
+	fmt.Fprintf(&b, "| stationary phase | %s |\n", textsafe.Inert(phase))
 	if m.Column.Kind != model.WallCoated {
 		fmt.Fprintf(&b, "| column | %s, maximum %s °C |\n", m.Column.Describe(), num(m.Column.MaxTempC))
-		fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
+		if m.Column.Kind == model.PorousLayer { // a packed column's is in its description
+			fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
+		}
 	} else {
 		fmt.Fprintf(&b, "| column | %s m × %s mm i.d. × %s µm film, maximum %s °C |\n", num(m.Column.LengthM), num(m.Column.DiameterMM), num(m.Column.FilmUM), num(m.Column.MaxTempC))
 	}
@@ -100,21 +103,21 @@ func (s *Sim) Sheet() []byte {
 		if c.Target {
 			tgt = "yes"
 		}
-		fmt.Fprintf(&b, "| %d | %s | %s | %.1f | %.2f | %s | %s |\n", i+1, c.Name, tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
+		fmt.Fprintf(&b, "| %d | %s | %s | %.1f | %.2f | %s | %s |\n", i+1, textsafe.Inert(c.Name), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
 	}
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
 		fmt.Fprintf(&b, "\nMinimum resolution %s, critical pair %s.\n", format.Rs(r.MinResolution, m.Goal.MinResolution),
-			format.CriticalPair(s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name))
+			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 
 	fmt.Fprintf(&b, "\n## Where the retention parameters come from\n\n")
 	var idx, entered []string
 	for _, c := range m.Compounds {
 		if c.FromIndex {
-			idx = append(idx, fmt.Sprintf("%s (I = %s)", c.Name, num(c.RetentionIndex)))
+			idx = append(idx, fmt.Sprintf("%s (I = %s)", textsafe.Inert(c.Name), num(c.RetentionIndex)))
 		} else {
-			entered = append(entered, c.Name)
+			entered = append(entered, textsafe.Inert(c.Name))
 		}
 	}
 	if len(entered) > 0 {
@@ -137,11 +140,21 @@ func (s *Sim) Sheet() []byte {
 		fmt.Fprintf(&b, "- %s\n", model.HydrogenCaution)
 	}
 	if note := checks.CoolantNote(m); note != "" {
-		fmt.Fprintf(&b, "- Coolant: %s.\n- %s\n", note, model.CryogenCaution)
+		fmt.Fprintf(&b, "- %s.\n- %s\n", strings.ToUpper(note[:1])+note[1:], model.CryogenCaution)
 	}
 	fmt.Fprintf(&b, "- Follow your local codes and the instrument maker's guidance for gases, pressurised cylinders and heated zones.\n")
 	for _, w := range checks.Warnings(m, s.System, &s.Result) {
-		fmt.Fprintf(&b, "- Warning: %s\n", w)
+		fmt.Fprintf(&b, "- Warning: %s\n", textsafe.Inert(w))
 	}
 	return []byte(b.String())
+}
+
+// inertLines makes each line of a multi-line text (the notes) inert,
+// keeping the line breaks.
+func inertLines(s string) string {
+	lines := strings.Split(s, "\n")
+	for i, l := range lines {
+		lines[i] = textsafe.Inert(strings.TrimSuffix(l, "\r"))
+	}
+	return strings.Join(lines, "\n")
 }
