@@ -6,8 +6,8 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
-	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/model/format"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 // Sheet is the method sheet in Markdown: column, carrier and pressure mode
