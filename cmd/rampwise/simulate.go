@@ -27,6 +27,11 @@ that involve a target compound, and the critical pair. Without FILE the
 built-in demo method is used. The column may be wall-coated, packed or
 porous-layer ([column] kind); with [limits] coolant_c the oven may start
 below ambient, and the cautions for the cryogenic coolant are printed.
+A program beyond an instrument limit (max_rate_c_min, rate bands, the inlet
+pressure limits, max_temp_c, max_isothermal_c, ambient or coolant_c) is
+refused with file, line and key (exit 2); one that only breaks a search bound
+(oven_min_c, max_hold_min, keypad steps, min_first_k) is simulated as it is,
+with a warning.
 
 Flags:
 `
