@@ -649,6 +649,9 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 		}
 		if rc.AlkaneCarbons != nil {
 			c.AlkaneCarbons = whole(*rc.AlkaneCarbons)
+			if c.AlkaneCarbons == 0 { // 0 would read as "not a ladder alkane"
+				v.intIn(base+".alkane_carbons", 0, 1, 100)
+			}
 		}
 		if rc.RetentionIndex != nil {
 			c.RetentionIndex = *rc.RetentionIndex
