@@ -220,7 +220,7 @@ func round(x float64, digits int) float64 {
 	return math.Round(x*p) / p
 }
 
-func fmtNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+func fmtNum(x float64) string { return format.Num(x) }
 
 func (s *simulation) writeCSV(w io.Writer) error {
 	rs := s.Sim

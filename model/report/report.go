@@ -47,7 +47,7 @@ func Simulate(m *methodfile.Method) (*Sim, error) {
 	return s, nil
 }
 
-func num(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+func num(x float64) string { return format.Num(x) }
 
 // CSV is the peak table: name, retention time, elution temperature, sigma,
 // half-height width, retention factor at elution, resolution to the next
