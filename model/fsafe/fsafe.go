@@ -60,7 +60,7 @@ func cleanErr(err error) error {
 //   - path a symlink: the link is followed (to the end of a chain) and its
 //     target is saved; the link stays a link.
 //   - target a regular file with one link, or missing: atomic replace with
-//     mode, owner and group kept (new files get 0644 less the umask).
+//     mode, owner and group kept (a new file gets 0644).
 //   - target a regular file with more than one hard link: copied to
 //     TARGET.bak first, then rewritten in place, so every link sees the new
 //     content.
@@ -149,11 +149,9 @@ func replace(path, target string, data []byte, old fs.FileInfo) error {
 	if err := tmp.Sync(); err != nil {
 		return fail(err)
 	}
-	mode := fs.FileMode(0o644)
+	mode := newFileMode()
 	if old != nil {
 		mode = old.Mode().Perm()
-	} else {
-		mode = newFileMode()
 	}
 	if err := tmp.Chmod(mode); err != nil && !isUnsupported(err) {
 		return fail(err)

@@ -223,3 +223,17 @@ func TestReadRegularLimit(t *testing.T) {
 		t.Errorf("folder: %v", err)
 	}
 }
+
+// A new file is 0644 (readable by the others who share the method folder).
+func TestNewFileMode(t *testing.T) {
+	if runtime.GOOS == "windows" {
+		t.Skip("no Unix modes")
+	}
+	p := filepath.Join(t.TempDir(), "n.toml")
+	if err := WriteFile(p, []byte("x")); err != nil {
+		t.Fatal(err)
+	}
+	if st, _ := os.Stat(p); st.Mode().Perm() != 0o644 {
+		t.Errorf("mode %v", st.Mode().Perm())
+	}
+}
