@@ -51,10 +51,6 @@ func ParseColumnKind(s string) (ColumnKind, error) {
 	return 0, fmt.Errorf("unknown column kind %q (want wall-coated, packed or porous-layer)", s)
 }
 
-// OpenTube reports whether the gas flows through an open channel (a
-// wall-coated or porous-layer column) rather than a packed bed.
-func (k ColumnKind) OpenTube() bool { return k != Packed }
-
 // Defaults of the packed-column model (MODEL.md §10) and of the porous layer
 // (§11). All from memory or common practice, all settable.
 const (

@@ -182,8 +182,8 @@ func TestSheetKindsAndCoolant(t *testing.T) {
 		want    []string
 		coolant bool
 	}{
-		{"../../testdata/demo-packed.toml", []string{"packed 3 m × 2 mm (165 µm particles", "| phase ratio | 6.0 |"}, false},
-		{"../../testdata/demo-porous-layer.toml", []string{"porous-layer 30 m × 0.32 mm × 10 µm layer", "| phase ratio | 7.3 |", "a coolant is needed", "cold burns", "asphyxiate"}, true},
+		{"../../testdata/demo-packed.toml", []string{"packed 3 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 6)"}, false},
+		{"../../testdata/demo-porous-layer.toml", []string{"porous-layer 30 m × 0.32 mm × 10 µm layer", "| phase ratio | 7.3 |", "A coolant is needed", "cold burns", "asphyxiate"}, true},
 	} {
 		m, err := methodfile.ReadFile(c.file)
 		if err != nil {

@@ -38,7 +38,9 @@ func (s *Sim) Sheet() []byte {
 	fmt.Fprintf(&b, "| stationary phase | %s |\n", textsafe.Inert(phase))
 	if m.Column.Kind == "packed" || m.Column.Kind == "porous-layer" {
 		fmt.Fprintf(&b, "| column | %s, maximum %s °C |\n", m.Column.Describe(), num(m.Column.MaxTempC))
-		fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
+		if m.Column.Kind == "porous-layer" { // a packed column's is in its description
+			fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
+		}
 	} else {
 		fmt.Fprintf(&b, "| column | %s m × %s mm i.d. × %s µm film, maximum %s °C |\n", num(m.Column.LengthM), num(m.Column.DiameterMM), num(m.Column.FilmUM), num(m.Column.MaxTempC))
 	}
@@ -138,7 +140,7 @@ func (s *Sim) Sheet() []byte {
 		fmt.Fprintf(&b, "- %s\n", model.HydrogenCaution)
 	}
 	if note := checks.CoolantNote(m); note != "" {
-		fmt.Fprintf(&b, "- Coolant: %s.\n- %s\n", note, model.CryogenCaution)
+		fmt.Fprintf(&b, "- %s.\n- %s\n", strings.ToUpper(note[:1])+note[1:], model.CryogenCaution)
 	}
 	fmt.Fprintf(&b, "- Follow your local codes and the instrument maker's guidance for gases, pressurised cylinders and heated zones.\n")
 	for _, w := range checks.Warnings(m, s.System, &s.Result) {
