@@ -94,6 +94,7 @@ type App struct {
 
 	optSettings optimizer.Settings
 	job         *job
+	jobSeq      int // the last job's id
 
 	view cachedView
 }
@@ -193,7 +194,7 @@ func (a *App) resimulate() error {
 // It is the only place an edit becomes the method.
 func (a *App) apply(m *methodfile.Method, what string) bool {
 	if err := validate(m); err != nil {
-		a.say(msgError, "%v (kept the last valid value)", err)
+		a.say(msgError, "%v (kept the last valid value)", inertErr(err))
 		return false
 	}
 	prev, prevSys, prevKey := a.sh.method, a.sh.sys, a.sysk
@@ -202,7 +203,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 		a.sh.method, a.sh.sys = prev, prevSys
 		a.sysk = prevKey
 		a.resimulate()
-		a.say(msgError, "%s (kept the last valid value)", strings.TrimPrefix(err.Error(), "model: "))
+		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
 	caution := a.newCaution(prev, prevSys)
@@ -227,7 +228,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 func (a *App) restore(m *methodfile.Method) {
 	a.sh.method = m
 	if err := a.resimulate(); err != nil {
-		a.say(msgError, "%v", err)
+		a.say(msgError, "%v", inertErr(err))
 	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 }
@@ -303,6 +304,9 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 			return a.interrupt()
 		}
 		if a.overlay != nil {
+			if key.Matches(msg, a.keys.Help) && a.dialogHelp() {
+				return nil
+			}
 			return a.toOverlay(msg)
 		}
 		if cmd, ok := a.globalKey(msg); ok {
@@ -318,6 +322,21 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 		return a.toOverlay(msg)
 	}
 	return nil
+}
+
+// dialogHelp opens the key list of the open dialog over it (? in a
+// dialog); closing the list goes back to the dialog. A prompt takes ? as
+// text, and the key list closes itself.
+func (a *App) dialogHelp() bool {
+	switch a.overlay.(type) {
+	case *promptDialog, *helpDialog, *progressDialog:
+		return false
+	}
+	d := a.overlay
+	a.pending = append([]component{d}, a.pending...)
+	a.overlay = newDialogHelp(&a.sh, &a.help, d, dialogName(d), a.keys)
+	a.sizeOverlay()
+	return true
 }
 
 func (a *App) toOverlay(msg tea.Msg) tea.Cmd {
@@ -607,6 +626,11 @@ func (a *App) footerLine(w int) string {
 	var b []key.Binding
 	if a.overlay != nil {
 		b = a.overlay.ShortHelp()
+		switch a.overlay.(type) {
+		case *promptDialog, *helpDialog, *progressDialog:
+		default:
+			b = append([]key.Binding{bind([]string{"?"}, "?", "keys")}, b...)
+		}
 	} else {
 		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
 		b = append(b, a.keys.ShortHelp()...)

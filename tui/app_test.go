@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -12,6 +13,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
 )
 
 func demoMethod(t testing.TB) *methodfile.Method {
@@ -355,24 +357,59 @@ func TestSelectionSurvivesShorterProgram(t *testing.T) {
 	}
 }
 
-// Random keystrokes never panic and never leave an invalid method.
+// Random keystrokes, dialogs included (the key list, prompts, questions,
+// the window diagram, the optimizer's result, the ranking), never panic,
+// always draw exactly the terminal's size, and never leave an invalid
+// method.
 func TestRandomKeysNeverPanic(t *testing.T) {
 	a, _ := newApp(t, 90, 28)
+	a.optSettings = optimizer.Settings{Workers: 1, Starts: 1, Evaluations: 200}
 	rng := rand.New(rand.NewPCG(42, 1))
-	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "backspace"}
-	runes := []rune("+-[]ax0123456789.-uUtsh jkl?")
-	for i := 0; i < 2000; i++ {
+	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "shift+tab", "backspace", "pgdown", "pgup"}
+	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCo")
+	w, h := 90, 28
+	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	dialogs := map[string]bool{}
+	for i := 0; i < 3000; i++ {
 		if rng.IntN(3) == 0 {
 			press(a, names[rng.IntN(len(names))])
 		} else {
-			a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{runes[rng.IntN(len(runes))]}})
+			r := runes[rng.IntN(len(runes))]
+			if r == 'C' && rng.IntN(4) != 0 {
+				continue // ranking columns is slow: now and then
+			}
+			send(a, tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{r}})
+		}
+		switch i % 1000 {
+		case 300: // open the dialogs random keys rarely reach
+			a.overlay, a.pending = nil, nil
+			press(a, "F", runs, "enter")
+		case 700:
+			a.overlay, a.pending = nil, nil
+			press(a, "C", "ctrl+u", "20,30", "enter")
 		}
 		if i%500 == 0 {
-			a.Update(tea.WindowSizeMsg{Width: 80 + rng.IntN(60), Height: 24 + rng.IntN(30)})
+			w, h = 80+rng.IntN(60), 24+rng.IntN(30)
+			a.Update(tea.WindowSizeMsg{Width: w, Height: h})
 		}
-		_ = a.View()
+		if a.overlay != nil {
+			dialogs[fmt.Sprintf("%T", a.overlay)] = true
+		}
+		v := a.View()
+		if n := strings.Count(v, "\n") + 1; n != h {
+			t.Fatalf("key %d: %d lines on a %d-line terminal (%T)", i, n, h, a.overlay)
+		}
+		for _, l := range strings.Split(v, "\n") {
+			if lw := ansi.StringWidth(l); lw > w {
+				t.Fatalf("key %d: a line %d wide on a %d-wide terminal (%T): %q", i, lw, w, a.overlay, l)
+			}
+		}
 	}
 	if err := validate(a.Method()); err != nil {
 		t.Errorf("method became invalid: %v", err)
 	}
+	if len(dialogs) < 5 {
+		t.Errorf("the keys reached only %v", dialogs)
+	}
+	t.Logf("dialogs reached: %v", dialogs)
 }

@@ -174,7 +174,7 @@ func (d *resultDialog) render() {
 		body = append(body, st.Info.Render(l))
 	}
 	if !res.Feasible() {
-		for _, l := range wrap(" why: "+res.Explanation, d.w) {
+		for _, l := range wrap(" why: "+inert(res.Explanation), d.w) {
 			body = append(body, st.Warn.Render(l))
 		}
 	}
@@ -399,7 +399,7 @@ func (d *rankingDialog) render() {
 		text := fmt.Sprintf("%s%2d %-24s ", mark, i+1, ansi.Truncate(o.Source, 24, "…"))
 		switch {
 		case o.Err != nil:
-			text += "error: " + o.Err.Error()
+			text += "error: " + inertErr(o.Err)
 		default:
 			t := fmt.Sprintf("%.2f", o.Time/60)
 			if !o.Result.Feasible() {
@@ -590,16 +590,6 @@ func niceCeil(x float64) float64 {
 		}
 	}
 	return 10 * p
-}
-
-func fmtTick(v float64) string {
-	switch {
-	case v >= 100:
-		return fmt.Sprintf("%.0f", v)
-	case v >= 10:
-		return fmt.Sprintf("%.1f", v)
-	}
-	return fmt.Sprintf("%.2f", v)
 }
 
 // valueAxis is a row of ticks for [lo, hi] over w columns, with the unit.

@@ -30,6 +30,25 @@ type field struct {
 	pv   model.ProgramValue
 }
 
+// name is how the field is called on screen: what it is in the trade's
+// words, not its file key.
+func (f field) name() string {
+	if !strings.HasPrefix(f.key, "oven.") {
+		return f.label
+	}
+	switch f.pv.Kind {
+	case model.InitialTemp:
+		return "start temperature"
+	case model.InitialHold:
+		return "start hold"
+	case model.RampRate:
+		return fmt.Sprintf("ramp %d rate", f.ramp)
+	case model.RampFinal:
+		return fmt.Sprintf("ramp %d final temperature", f.ramp)
+	}
+	return fmt.Sprintf("ramp %d hold", f.ramp)
+}
+
 // choiceField is a field that cycles through every value in all.
 func choiceField[T fmt.Stringer](key, label string, all []T, p func(m *methodfile.Method) *T) field {
 	names := make([]string, len(all))

@@ -40,9 +40,11 @@ func (a *App) methodLine(w int) string {
 		fs[f.key] = f
 	}
 	v := func(key string) string { return fs[key].text(m) }
-	flow := fmt.Sprintf("%s mL/min constant flow", v("carrier.flow_ml_min"))
+	var flow string
 	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa constant pressure", v("carrier.inlet_kpa"))
+	} else {
+		flow = fmt.Sprintf("%s mL/min constant flow", v("carrier.flow_ml_min"))
 	}
 	if g.Outlet == "vacuum" {
 		flow += ", vacuum outlet"

@@ -88,16 +88,14 @@ type optProgressMsg struct {
 // progressTextMsg updates the progress dialog.
 type progressTextMsg struct{ text string }
 
-var jobSeq int
-
 // startJob opens the progress dialog and returns the Cmd that runs work.
 func (a *App) startJob(what string, work func(ctx context.Context) any) (*job, tea.Cmd) {
 	if a.job != nil {
 		a.job.cancel()
 	}
-	jobSeq++
+	a.jobSeq++
 	ctx, cancel := context.WithCancel(context.Background())
-	j := &job{id: jobSeq, what: what, cancel: cancel}
+	j := &job{id: a.jobSeq, what: what, cancel: cancel}
 	a.job = j
 	a.open(newProgressDialog(&a.sh, what))
 	id := j.id
@@ -115,10 +113,23 @@ func (a *App) cancelJob() {
 		return
 	}
 	a.job = nil
+	a.dropProgress()
+	a.say(msgInfo, "stopped %s", j.what)
+}
+
+// dropProgress removes the progress display of finished work, from the
+// slot or from the dialogs waiting for it.
+func (a *App) dropProgress() {
+	keep := a.pending[:0]
+	for _, d := range a.pending {
+		if _, ok := d.(*progressDialog); !ok {
+			keep = append(keep, d)
+		}
+	}
+	a.pending = keep
 	if _, ok := a.overlay.(*progressDialog); ok {
 		a.closeOverlay()
 	}
-	a.say(msgInfo, "stopped %s", j.what)
 }
 
 // onDone takes a job's outcome.
@@ -127,9 +138,7 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		return nil // cancelled
 	}
 	a.job = nil
-	if _, ok := a.overlay.(*progressDialog); ok {
-		a.closeOverlay()
-	}
+	a.dropProgress()
 	switch v := msg.v.(type) {
 	case optOutcome:
 		a.optDone(v)
@@ -137,14 +146,14 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		return a.saveDone(v)
 	case exportOutcome:
 		if v.err != nil {
-			a.say(msgError, "export: %v", v.err)
+			a.say(msgError, "export: %v", inertErr(v.err))
 			return nil
 		}
 		a.wrote[v.base+".png"], a.wrote[v.base+".md"] = true, true
 		a.say(msgGood, "exported %s.png (figure) and %s.md (method sheet)", inert(v.base), inert(v.base))
 	case fitOutcome:
 		if v.err != nil {
-			a.say(msgError, "%v", v.err)
+			a.say(msgError, "%v", inertErr(v.err))
 			return nil
 		}
 		a.open(newFitDialog(&a.sh, v))
@@ -154,7 +163,7 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		a.say(msgGood, "ranked %d columns: enter switches the method to the chosen one", len(v.out))
 	case sweepOutcome:
 		if v.err != nil {
-			a.say(msgError, "sweep: %v", v.err)
+			a.say(msgError, "sweep: %v", inertErr(v.err))
 			return nil
 		}
 		a.open(newSweepDialog(&a.sh, v.spec, v.pts))
@@ -215,7 +224,7 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 
 func (a *App) saveDone(v saveOutcome) tea.Cmd {
 	if v.err != nil {
-		a.say(msgError, "not saved: %v", v.err)
+		a.say(msgError, "not saved: %v", inertErr(v.err))
 		return nil
 	}
 	a.path, a.name, a.saved = v.path, v.path, v.m
@@ -347,14 +356,14 @@ func (a *App) onOptProgress(msg progressWith) tea.Cmd {
 
 func (a *App) optDone(v optOutcome) {
 	if v.err != nil {
-		a.say(msgError, "optimizer: %v", v.err)
+		a.say(msgError, "optimizer: %v", inertErr(v.err))
 		a.chart.Update(previewMsg{})
 		return
 	}
 	after := a.sh.method.Clone()
 	oven, sim, err := methodsearch.KeypadProgram(a.sh.method, a.sh.sys, v.res)
 	if err != nil {
-		a.say(msgError, "optimizer: %v", err)
+		a.say(msgError, "optimizer: %v", inertErr(err))
 		a.chart.Update(previewMsg{})
 		return
 	}
@@ -365,7 +374,7 @@ func (a *App) optDone(v optOutcome) {
 	if v.res.Feasible() {
 		a.say(msgGood, "target met: enter or y takes the new program, n or esc keeps the old one; v shows the old run")
 	} else {
-		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", v.res.Explanation)
+		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", inert(v.res.Explanation))
 	}
 }
 
@@ -459,7 +468,7 @@ func parseDims(text string, m *methodfile.Method) ([][3]float64, error) {
 func (a *App) startCompare(text string) tea.Cmd {
 	dims, err := parseDims(text, a.sh.method)
 	if err != nil {
-		a.say(msgError, "compare: %v", err)
+		a.say(msgError, "compare: %v", inertErr(err))
 		return nil
 	}
 	var cands []methodsearch.Candidate
@@ -467,7 +476,7 @@ func (a *App) startCompare(text string) tea.Cmd {
 		c := a.sh.method.Clone()
 		c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = d[0], d[1], d[2]
 		if err := validate(c); err != nil {
-			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], err)
+			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], inertErr(err))
 			return nil
 		}
 		cands = append(cands, methodsearch.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
@@ -495,7 +504,7 @@ const sweepPoints = 60
 func (a *App) startSweep(spec sweepSpec) tea.Cmd {
 	m := a.sh.method
 	if err := sweep.Check(m, spec.value); err != nil {
-		a.say(msgError, "sweep: %v", err)
+		a.say(msgError, "sweep: %v", inertErr(err))
 		return nil
 	}
 	if !(spec.hi > spec.lo) {
@@ -537,27 +546,22 @@ func sortedUnique(v []float64) []float64 {
 // the method's limits allow.
 func programSweep(f field, m *methodfile.Method) sweepSpec {
 	v := f.value(m)
-	s := sweepSpec{value: f.pv, unit: f.unit, current: v}
+	s := sweepSpec{value: f.pv, label: f.name(), unit: f.unit, current: v}
 	maxHold := m.Limits.MaxHoldMin
 	switch f.pv.Kind {
 	case model.InitialTemp:
-		s.label = "start temperature"
 		s.lo, s.hi = math.Max(m.Limits.OvenMinC, v-40), math.Min(m.Column.MaxTempC-1, v+40)
 	case model.InitialHold:
-		s.label = "start hold"
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
 	case model.RampFinal:
-		s.label = fmt.Sprintf("ramp %d final temperature", f.ramp)
 		prev := m.Oven.InitialC
 		if f.ramp > 1 {
 			prev = m.Oven.Ramps[f.ramp-2].FinalC
 		}
 		s.lo, s.hi = math.Max(prev+1, v-60), math.Min(m.Column.MaxTempC, v+60)
 	case model.RampRate:
-		s.label = fmt.Sprintf("ramp %d rate", f.ramp)
 		s.lo, s.hi = math.Max(0.5, v/4), math.Min(m.Limits.MaxRateCMin, math.Max(v*3, 1))
 	case model.RampHold:
-		s.label = fmt.Sprintf("ramp %d hold", f.ramp)
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
 	}
 	s.lo, s.hi = math.Min(s.lo, v), math.Max(s.hi, v)

@@ -36,6 +36,7 @@ func init() {
 		{"export", "METHOD [flags]", "figure (PNG/SVG/PDF), peak CSV, method sheet", runExport},
 		{"sweep", "METHOD [flags]", "window diagram of one or two program values", runSweep},
 		{"compare", "METHOD... [flags]", "rank phases and column dimensions", runCompare},
+		{"plan", "METHOD [RUNS] [flags]", "what to inject next: a scouting run, the verification, or done", runPlan},
 		{"version", "", "print the version and the commit it was built from", runVersion},
 		{"help", "[COMMAND]", "explain a command", runHelp},
 	}
