@@ -96,6 +96,8 @@ func TestHostileTextIsInert(t *testing.T) {
 		{"sweep", "--vary", "rate_1", "--from", "5", "--to", "30", "--steps", "4", "--csv", sw, p},
 		{"index", p},
 		{"compare", "--csv", cmpCSV, p},
+		{"plan", p},
+		{"plan", "--json", p},
 		{"simulate", filepath.Join(dir, "missing \x1b]0;x\x07.toml")}, // an error naming the file
 	}
 	for _, args := range runs {
