@@ -275,11 +275,8 @@ func (fp Fingerprint) Changed(path string) (bool, error) {
 	if !st.Mode().IsRegular() {
 		return false, nil
 	}
-	// Cheap check first: same size and time means unchanged for ordinary
-	// editors; otherwise compare the hash (a touch is not a change).
-	if st.Size() == fp.Size && st.ModTime().Equal(fp.ModTime) {
-		return false, nil
-	}
+	// Always the hash: a same-size rewrite within the file system's time
+	// resolution keeps size and time (and a touch alone is no change).
 	now, err := Take(path)
 	if err != nil {
 		return true, err
