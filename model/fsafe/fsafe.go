@@ -234,12 +234,18 @@ func Take(path string) (Fingerprint, error) {
 	if !st.Mode().IsRegular() {
 		return fp, nil
 	}
-	data, err := ReadRegular(path, 0)
+	f, _, err := openRegular(path)
 	if err != nil {
 		return Fingerprint{}, err
 	}
-	fp.Hash = sha256.Sum256(data)
-	fp.Size = int64(len(data))
+	defer f.Close()
+	h := sha256.New()
+	n, err := io.Copy(h, f) // streamed: a huge file is not held in memory
+	if err != nil {
+		return Fingerprint{}, err
+	}
+	h.Sum(fp.Hash[:0])
+	fp.Size = n
 	return fp, nil
 }
 
@@ -292,30 +298,11 @@ var ErrNotRegular = errors.New("not a regular file")
 // is refused at once (it is opened without blocking, then checked), so a
 // path that names a FIFO never hangs. max > 0 bounds the size read.
 func ReadRegular(path string, max int64) ([]byte, error) {
-	f, err := openNoBlock(path)
+	f, st, err := openRegular(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	st, err := f.Stat()
-	if err != nil {
-		return nil, err
-	}
-	if !st.Mode().IsRegular() {
-		what := "not a regular file"
-		switch {
-		case st.IsDir():
-			what = "is a folder, not a file"
-		case st.Mode()&fs.ModeNamedPipe != 0:
-			what = "is a FIFO (named pipe), not a regular file"
-		case st.Mode()&fs.ModeDevice != 0:
-			what = "is a device, not a regular file"
-		}
-		return nil, &fs.PathError{Op: "open", Path: path, Err: fmt.Errorf("%s: %w", what, ErrNotRegular)}
-	}
-	if err := clearNoBlock(f); err != nil {
-		return nil, err
-	}
 	var r io.Reader = f
 	if max > 0 {
 		if st.Size() > max {
@@ -332,4 +319,36 @@ func ReadRegular(path string, max int64) ([]byte, error) {
 		return nil, &fs.PathError{Op: "read", Path: path, Err: fmt.Errorf("file is larger than the %d bytes allowed", max)}
 	}
 	return buf.Bytes(), nil
+}
+
+// openRegular opens path for reading without blocking (a FIFO), checks it
+// is a regular file, and returns it in blocking mode.
+func openRegular(path string) (*os.File, fs.FileInfo, error) {
+	f, err := openNoBlock(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	st, err := f.Stat()
+	if err != nil {
+		f.Close()
+		return nil, nil, err
+	}
+	if !st.Mode().IsRegular() {
+		f.Close()
+		what := "not a regular file"
+		switch {
+		case st.IsDir():
+			what = "is a folder, not a file"
+		case st.Mode()&fs.ModeNamedPipe != 0:
+			what = "is a FIFO (named pipe), not a regular file"
+		case st.Mode()&fs.ModeDevice != 0:
+			what = "is a device, not a regular file"
+		}
+		return nil, nil, &fs.PathError{Op: "open", Path: path, Err: fmt.Errorf("%s: %w", what, ErrNotRegular)}
+	}
+	if err := clearNoBlock(f); err != nil {
+		f.Close()
+		return nil, nil, err
+	}
+	return f, st, nil
 }
