@@ -210,6 +210,23 @@ func writeInPlace(path, target string, data []byte, st fs.FileInfo, backup bool)
 	return nil
 }
 
+// retryRename calls rename until it succeeds, fails for a reason transient
+// does not accept, or budget is spent; the waits grow from 5 ms to 200 ms.
+func retryRename(rename func(from, to string) error, transient func(error) bool, from, to string, budget time.Duration) error {
+	delay := 5 * time.Millisecond
+	deadline := time.Now().Add(budget)
+	for {
+		err := rename(from, to)
+		if err == nil || !transient(err) || time.Now().After(deadline) {
+			return err
+		}
+		time.Sleep(delay)
+		if delay < 200*time.Millisecond {
+			delay *= 2
+		}
+	}
+}
+
 // Fingerprint identifies one state of a file: it changes when the file is
 // rewritten, replaced or removed.
 type Fingerprint struct {
