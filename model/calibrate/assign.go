@@ -6,6 +6,9 @@ import (
 	"sort"
 	"strings"
 
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -39,9 +42,19 @@ func fittedSpread(sd, tMin float64) float64 { return math.Max(2*sd, 0.004) + 0.0
 // line fitted to the matches, then from the fit) and s_i its spread; a
 // compound may also stay unassigned at cost gate², and each peak takes one
 // compound at most.
-func assignLoop(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, opt Options, rep *Report) error {
+func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.Runs, opt Options, rep *Report) error {
 	assigned := map[obsKey]bool{} // names set by the previous round
 	fitted := map[string]bool{}
+	type loo struct{ t, s float64 }
+	loos := map[obsKey]loo{} // leave-one-out predictions of the last fit, min
+	useArea := amountsDiffer(out)
+	// the first round's view (the method's own values): an assignment
+	// the fit later confirms is only as sure as this view allowed
+	type view struct {
+		pred, spread, a, b float64
+		times              []float64
+	}
+	first := map[obsKey]view{}
 	sd := 0.0
 	prev := ""
 	var asg []Assignment
@@ -77,13 +90,27 @@ func assignLoop(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, op
 					continue
 				}
 				t := tr / 60
+				sp := startSpread(t)
+				if l, ok := loos[obsKey{s.name, mcs[ci].Name}]; ok {
+					t, sp = l.t, l.s
+				} else if fitted[mcs[ci].Name] {
+					sp = fittedSpread(sd, t)
+				}
 				cand = append(cand, ci)
 				pred = append(pred, t)
-				if fitted[mcs[ci].Name] {
-					spread = append(spread, fittedSpread(sd, t))
-				} else {
-					spread = append(spread, startSpread(t))
+				spread = append(spread, sp)
+			}
+			// peaks at the holdup time (solvent, air) are never assigned
+			tm, _ := s.cond.RetentionTime(nil, s.prog)
+			var keep []int
+			for _, k := range un {
+				if r.Peaks[k].TimeMin > 1.003*tm/60 {
+					keep = append(keep, k)
 				}
+			}
+			un = keep
+			if len(un) == 0 {
+				continue
 			}
 			if len(cand) == 0 {
 				continue
@@ -92,19 +119,27 @@ func assignLoop(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, op
 			for j, k := range un {
 				times[j] = r.Peaks[k].TimeMin
 			}
+			var areaTerm [][]float64
+			if useArea {
+				areaTerm = areaCosts(mcs, cand, r, un)
+			}
 			a, b := 0.0, 1.0
 			var match []int
-			for pass := 0; pass < 4; pass++ {
+			for pass := 0; pass < 5; pass++ {
 				cost := costMatrix(pred, spread, times, a, b)
-				match = hungarian(cost)
-				if round > 0 || len(fitted) > 0 {
+				addArea(cost, areaTerm, match)
+				next := hungarian(cost)
+				same := equalInts(next, match)
+				match = next
+				moved := false
+				if len(fitted) == 0 {
+					if na, nb, ok := alignLine(pred, times, match); ok && (math.Abs(na-a) > 1e-4 || math.Abs(nb-b) > 1e-5) {
+						a, b, moved = na, nb, true
+					}
+				}
+				if same && !moved {
 					break
 				}
-				na, nb, ok := alignLine(pred, times, match)
-				if !ok || math.Abs(na-a) < 1e-4 && math.Abs(nb-b) < 1e-5 {
-					break
-				}
-				a, b = na, nb
 			}
 			for i, j := range match {
 				if j < 0 || j >= len(times) {
@@ -114,8 +149,15 @@ func assignLoop(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, op
 				pk := r.Peaks[un[j]]
 				r.SetRetention(name, pk.TimeMin, pk.WidthMin)
 				assigned[obsKey{s.name, name}] = true
+				conf := confidence(pred[i], spread[i], times, j, a, b)
+				k := obsKey{s.name, name}
+				if round == 0 {
+					first[k] = view{pred[i], spread[i], a, b, times}
+				} else if v, ok := first[k]; ok {
+					conf = math.Min(conf, confidence(v.pred, v.spread, v.times, j, v.a, v.b))
+				}
 				asg = append(asg, Assignment{Run: s.name, Compound: name, MeasuredMin: pk.TimeMin,
-					PredictedMin: a + b*pred[i], Confidence: confidence(pred[i], spread[i], times, j, a, b)})
+					PredictedMin: a + b*pred[i], Confidence: conf})
 			}
 		}
 		key := assignKey(asg)
@@ -144,6 +186,50 @@ func assignLoop(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, op
 		if dof > 0 {
 			sd = math.Sqrt(ssr/float64(dof)) / 60
 		}
+		// leave-one-out predictions, linearised: t̂₍ᵢ₎ = t + rᵢ/(1 − hᵢᵢ),
+		// spread 1.5 √(σ²/(1 − hᵢᵢ)) + 0.001 min
+		loos = map[obsKey]loo{}
+		for _, f := range fits {
+			if f.cov == nil || len(f.obs) <= len(f.free) {
+				continue
+			}
+			var hat mat.Dense
+			hat.Product(f.jac, f.cov, f.jac.T())
+			for i, o := range f.obs {
+				h := hat.At(i, i)
+				if h > 0.98 {
+					continue
+				}
+				loos[obsKey{st[o.run].name, f.Name}] = loo{t: (o.t + f.resid[i]/(1-h)) / 60, s: 1.5*math.Sqrt(sd*sd/(1-h)) + 0.001}
+			}
+		}
+	}
+	if n := pairSearch(start, st, assigned, sd, &rep.Warnings); n > 0 {
+		rep.Notes = append(rep.Notes, fmt.Sprintf("%d close %s re-assigned by trying both identities in every run and keeping the fit that is both tightest and closest to the method's values", n, plural(n, "pair", "pairs")))
+		// refresh the predictions in the report
+		mcs, _ := out.ModelCompounds()
+		var junk []string
+		if fits, err := fitAll(out, st, runs, opt, nil, &junk); err == nil {
+			for _, f := range fits {
+				if ci := compoundIndex(out, f.Name); ci >= 0 {
+					c := &out.Compounds[ci]
+					c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = f.DHkJ, f.DS, f.DCp, 100, false
+				}
+			}
+			mcs, _ = out.ModelCompounds()
+		}
+		for i := range asg {
+			for ri := range st {
+				if st[ri].name != asg[i].Run {
+					continue
+				}
+				asg[i].MeasuredMin = st[ri].run.Retention[asg[i].Compound]
+				if ci := compoundIndex(out, asg[i].Compound); ci >= 0 && ci < len(mcs) {
+					tp, _ := st[ri].cond.RetentionTime(&mcs[ci], st[ri].prog)
+					asg[i].PredictedMin = tp / 60
+				}
+			}
+		}
 	}
 	rep.Assignments = append([]Assignment(nil), asg...)
 	sort.SliceStable(rep.Assignments, func(i, j int) bool {
@@ -155,7 +241,7 @@ func assignLoop(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, op
 	})
 	for _, a := range rep.Assignments {
 		if a.Confidence < 0.9 {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("run %q: the peak at %.3f min was assigned to %s (predicted %.3f min) with confidence %.2f only: another peak is nearly as close", a.Run, a.MeasuredMin, a.Compound, a.PredictedMin, a.Confidence))
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("run %q: the peak at %.3f min was assigned to %s (predicted %.3f min) with confidence %.2f only: another peak is nearly as close (check it, or name it in the peak table)", a.Run, a.MeasuredMin, a.Compound, a.PredictedMin, a.Confidence))
 		}
 	}
 	for i := range st {
@@ -327,4 +413,224 @@ func hungarian(cost [][]float64) []int {
 		}
 	}
 	return out
+}
+
+// amountsDiffer: the method gives relative peak areas (amount) that are
+// not all the same, so a peak's area says something about its identity.
+func amountsDiffer(m *methodfile.Method) bool {
+	for _, c := range m.Compounds {
+		if c.Amount != m.Compounds[0].Amount {
+			return true
+		}
+	}
+	return false
+}
+
+// areaSD is the spread of ln(area/amount) between compounds of one run
+// (a factor of about 1.4: response factors differ; common practice for
+// flame ionisation, a guess for other detectors).
+const areaSD = 0.35
+
+// areaCosts: for candidate i and peak j, ln(area_j) − ln(amount_i), to be
+// centred on the run's median and squared in addArea; NaN when the peak
+// has no area.
+func areaCosts(mcs []model.Compound, cand []int, r *methodfile.Run, un []int) [][]float64 {
+	out := make([][]float64, len(cand))
+	for i, ci := range cand {
+		row := make([]float64, len(un))
+		for j, k := range un {
+			a := r.Peaks[k].Area
+			if a > 0 && mcs[ci].Amount > 0 {
+				row[j] = math.Log(a) - math.Log(mcs[ci].Amount)
+			} else {
+				row[j] = math.NaN()
+			}
+		}
+		out[i] = row
+	}
+	return out
+}
+
+// addArea adds ((x − median)/areaSD)², at most 4, to the peak columns, the
+// median over the current matches (none on the first pass: no area term).
+func addArea(cost, area [][]float64, match []int) {
+	if area == nil || match == nil {
+		return
+	}
+	var xs []float64
+	for i, j := range match {
+		if j >= 0 && j < len(area[i]) && !math.IsNaN(area[i][j]) {
+			xs = append(xs, area[i][j])
+		}
+	}
+	if len(xs) < 3 {
+		return
+	}
+	sort.Float64s(xs)
+	med := xs[len(xs)/2]
+	for i := range cost {
+		for j := range area[i] {
+			if x := area[i][j]; !math.IsNaN(x) && cost[i][j] < 1e8 {
+				d := (x - med) / areaSD
+				cost[i][j] += math.Min(d*d, 4)
+			}
+		}
+	}
+}
+
+func equalInts(a, b []int) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// pairSearch settles close pairs the alternation cannot: for two
+// compounds assigned from unnamed peaks that come within 0.05 min of each
+// other in some run, every choice of which runs swap their two peaks is
+// fitted, and the choice with the least χ² = SSR/σ² plus the squared
+// distance of both compounds' fitted ΔH, ΔS from the method's values (in
+// units of goal.robust.prior_dH_kJ_mol and prior_dS_J_mol_K) is kept. A
+// labelling swapped in every run fits the times exactly as well; only the
+// method's values tell it apart, which is what the prior term does. It
+// returns how many pairs changed.
+func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]bool, sd float64, warn *[]string) int {
+	out := start
+	sigma := math.Max(sd, 0.002) * 60
+	pdh, pds := out.Goal.Robust.PriorDHkJ, out.Goal.Robust.PriorDS
+	if !(pdh > 0) {
+		pdh = 2
+	}
+	if !(pds > 0) {
+		pds = 4
+	}
+	startC, err := out.ModelCompounds()
+	if err != nil {
+		return 0
+	}
+	type pair struct{ a, b string }
+	var pairs []pair
+	seen := map[pair]bool{}
+	for ri := range st {
+		var names []string
+		for k := range assigned {
+			if k.run == st[ri].name {
+				names = append(names, k.compound)
+			}
+		}
+		sort.Slice(names, func(i, j int) bool {
+			return st[ri].run.Retention[names[i]] < st[ri].run.Retention[names[j]]
+		})
+		for i := 1; i < len(names); i++ {
+			x, y := names[i-1], names[i]
+			if st[ri].run.Retention[y]-st[ri].run.Retention[x] > 0.05 {
+				continue
+			}
+			if x > y {
+				x, y = y, x
+			}
+			p := pair{x, y}
+			if !seen[p] {
+				seen[p] = true
+				pairs = append(pairs, p)
+			}
+		}
+	}
+	sort.Slice(pairs, func(i, j int) bool { return pairs[i].a+"\x00"+pairs[i].b < pairs[j].a+"\x00"+pairs[j].b })
+	changed := 0
+	for _, p := range pairs {
+		ia, ib := compoundIndex(out, p.a), compoundIndex(out, p.b)
+		if ia < 0 || ib < 0 {
+			continue
+		}
+		var both []int
+		for ri := range st {
+			if assigned[obsKey{st[ri].name, p.a}] && assigned[obsKey{st[ri].name, p.b}] {
+				both = append(both, ri)
+			}
+		}
+		if len(both) == 0 || len(both) > 8 {
+			continue
+		}
+		score := func(mask int) (float64, bool) {
+			total := 0.0
+			for side, ci := range []int{ia, ib} {
+				name := []string{p.a, p.b}[side]
+				other := []string{p.b, p.a}[side]
+				var obs []obsPoint
+				for ri := range st {
+					r := st[ri].run
+					t, ok := r.Retention[name]
+					if !ok {
+						continue
+					}
+					for bi, rj := range both {
+						if rj == ri && mask&(1<<bi) != 0 {
+							t = r.Retention[other]
+						}
+					}
+					obs = append(obs, obsPoint{run: ri, t: t * 60})
+				}
+				if len(obs) < 2 {
+					return 0, false
+				}
+				f, err := fitCompound(st, obs, startC[ci], false)
+				if err != nil {
+					return 0, false
+				}
+				c := startC[ci]
+				total += f.ssr/(sigma*sigma) + priorDist2(f, c, sigma, pdh, pds)
+			}
+			return total, true
+		}
+		best, bestScore := 0, math.Inf(1)
+		for mask := 0; mask < 1<<len(both); mask++ {
+			if sc, ok := score(mask); ok && sc < bestScore {
+				best, bestScore = mask, sc
+			}
+		}
+		full := (1 << len(both)) - 1
+		if alt, ok := score(full ^ best); ok && alt-bestScore < 2 {
+			*warn = append(*warn, fmt.Sprintf("%s and %s: their peaks are too close and their values too alike to tell which is which from retention alone (the other labelling scores only %.1f worse); name one of them in a peak table", p.a, p.b, alt-bestScore))
+		}
+		if best == 0 {
+			continue
+		}
+		changed++
+		for bi, ri := range both {
+			if best&(1<<bi) == 0 {
+				continue
+			}
+			r := st[ri].run
+			ta, tb := r.Retention[p.a], r.Retention[p.b]
+			wa, wb := r.Widths[p.a], r.Widths[p.b]
+			r.SetRetention(p.a, tb, wb)
+			r.SetRetention(p.b, ta, wa)
+		}
+	}
+	return changed
+}
+
+// priorDist2 is (θ̂ − θ₀)ᵀ (C_prior + C_fit)⁻¹ (θ̂ − θ₀) for ΔH (kJ/mol)
+// and ΔS: the fit's own covariance is added so that the long, poorly
+// determined direction along the ΔH–ΔS ridge does not count as evidence.
+func priorDist2(f fitResult, c model.Compound, sigma, pdh, pds float64) float64 {
+	d0, d1 := f.DHkJ-c.DH/1000, f.DS-c.DS
+	a, b, d := pdh*pdh, 0.0, pds*pds
+	if f.cov != nil && len(f.free) == 2 {
+		s2 := sigma * sigma
+		a += f.cov.At(0, 0) * s2 / 1e6
+		b += f.cov.At(0, 1) * s2 / 1e3
+		d += f.cov.At(1, 1) * s2
+	}
+	det := a*d - b*b
+	if !(det > 0) {
+		return d0*d0/a + d1*d1/d
+	}
+	return (d*d0*d0 - 2*b*d0*d1 + a*d1*d1) / det
 }

@@ -159,7 +159,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 	// 3. assignment of unnamed peaks, alternating with the fit
 	start := out.Clone()
 	if hasUnnamed(runs) {
-		if err := assignLoop(out, st, runs, opt, rep); err != nil {
+		if err := assignLoop(out, start, st, runs, opt, rep); err != nil {
 			return nil, err
 		}
 	}
