@@ -60,6 +60,7 @@ Usage:
   rampwise optimize [FILE] [flags]  find the fastest program meeting the target
   rampwise fit METHOD RUNS [flags]  calibrate ΔH, ΔS (ΔCp) from scouting runs
   rampwise index METHOD [flags]     retention indices against the ladder alkanes
+  rampwise check METHOD RUN [flags] does a measured run meet the target?
   rampwise export METHOD [flags]    figure (PNG/SVG/PDF), peak CSV, method sheet
   rampwise sweep METHOD [flags]     window diagram of one or two program values
   rampwise compare METHOD... [flags] rank phases and column dimensions
@@ -69,7 +70,8 @@ FILE is a method file (TOML: column, carrier, oven program, limits, goal and
 compounds). Without FILE the built-in demo method is used.
 
 Exit codes: 0 success; 1 unexpected failure; 2 bad input (the message names
-file, line and key); 3 optimize could not meet the target resolution.
+file, line and key); 3 optimize could not meet the target resolution, or
+check: the measured run does not meet it.
 
 Safety: never program the oven above the column's maximum temperature; the
 oven and inlet are hot; hydrogen carrier gas is flammable (leak checks, a
@@ -124,6 +126,8 @@ func dispatch(args []string, stdout, stderr io.Writer) error {
 		return runFit(args[1:], stdout, stderr)
 	case "index":
 		return runIndex(args[1:], stdout, stderr)
+	case "check":
+		return runCheck(args[1:], stdout, stderr)
 	case "export":
 		return runExport(args[1:], stdout, stderr)
 	case "sweep":

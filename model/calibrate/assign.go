@@ -239,10 +239,19 @@ func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.R
 		}
 		return a.MeasuredMin < b.MeasuredMin
 	})
+	low := map[string][]string{}
+	var lowNames []string
 	for _, a := range rep.Assignments {
-		if a.Confidence < 0.9 {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("run %q: the peak at %.3f min was assigned to %s (predicted %.3f min) with confidence %.2f only: another peak is nearly as close (check it, or name it in the peak table)", a.Run, a.MeasuredMin, a.Compound, a.PredictedMin, a.Confidence))
+		if a.Confidence < 0.8 {
+			if low[a.Compound] == nil {
+				lowNames = append(lowNames, a.Compound)
+			}
+			low[a.Compound] = append(low[a.Compound], fmt.Sprintf("%q %.3f min (%.2f)", a.Run, a.MeasuredMin, a.Confidence))
 		}
+	}
+	sort.Strings(lowNames)
+	for _, n := range lowNames {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: assigned with low confidence (another peak nearly as close to the prediction) in %s %s; check, or name it in the peak table", n, plural(len(low[n]), "run", "runs"), strings.Join(low[n], ", ")))
 	}
 	for i := range st {
 		r := st[i].run

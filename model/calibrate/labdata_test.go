@@ -32,6 +32,8 @@ import (
 // and an unnamed impurity; compound peaks are unnamed but for the few listed
 // in named.
 
+const hiddenHeader = "# Generated from hidden parameters with 0.002 min noise (see labdata_test.go).\n"
+
 var writeLab = flag.Bool("write-lab", false, "rewrite the example lab files under testdata/lab")
 
 type truePeak struct {
@@ -192,10 +194,10 @@ func ramp(t0, hold, rate, final float64) methodfile.Oven {
 
 // writeLabRuns writes the runs' files and the runs file into dir and
 // returns the runs file's path. tweak may change a run's true peaks.
-func writeLabRuns(t *testing.T, dir string, truth *methodfile.Method, runs []labRun, named map[string]bool, seed uint64, tweak func(run int, ps []truePeak)) string {
+func writeLabRuns(t *testing.T, header, dir string, truth *methodfile.Method, runs []labRun, named map[string]bool, seed uint64, tweak func(run int, ps []truePeak)) string {
 	rng := rand.New(rand.NewPCG(seed, 5))
 	var b strings.Builder
-	b.WriteString("# Generated from hidden parameters with 0.002 min noise (see labdata_test.go).\n")
+	b.WriteString(header)
 	for i, lr := range runs {
 		ps, tm := simulatePeaks(t, truth, lr.oven, 0.002, rng)
 		if tweak != nil {
@@ -289,7 +291,7 @@ func TestLabTablesAndTraceAssignAndPredict(t *testing.T) {
 			{"scout-20", "tab", ramp(40, 1, 20, 280)},
 			{"scout-8", "cdf", ramp(60, 0.5, 8, 280)},
 		}
-		path := writeLabRuns(t, dir, truth, runs, map[string]bool{"limonene": true}, seed, nil)
+		path := writeLabRuns(t, hiddenHeader, dir, truth, runs, map[string]bool{"limonene": true}, seed, nil)
 		rep := labFit(t, demo(t), path, Options{})
 		if len(rep.Assignments) < 50 {
 			t.Errorf("seed %d: only %d assignments", seed, len(rep.Assignments))
@@ -319,7 +321,7 @@ func TestLabTracesOnly(t *testing.T) {
 		{"b", "cdf", ramp(40, 1, 10, 280)},
 		{"c", "cdf", ramp(50, 1, 25, 280)},
 	}
-	path := writeLabRuns(t, dir, truth, runs, nil, 11, nil)
+	path := writeLabRuns(t, hiddenHeader, dir, truth, runs, nil, 11, nil)
 	rep := labFit(t, demo(t), path, Options{})
 	checkAssignments(t, rep, truth)
 	for name, d := range newProgramErrors(t, rep.Method, truth) {
@@ -346,7 +348,7 @@ func TestLabPlantedOutlier(t *testing.T) {
 	}
 	// octanal is named in every table; in scout-10 it is typed 0.25 min late
 	named := map[string]bool{"octanal": true}
-	path := writeLabRuns(t, dir, truth, runs, named, 4, func(run int, ps []truePeak) {
+	path := writeLabRuns(t, hiddenHeader, dir, truth, runs, named, 4, func(run int, ps []truePeak) {
 		if run == 1 {
 			for i := range ps {
 				if ps[i].name == "octanal" {
@@ -438,7 +440,7 @@ func TestMisspelledInTableAssigned(t *testing.T) {
 	truth := hiddenTruth(t, 7)
 	dir := t.TempDir()
 	runs := []labRun{{"a", "comma", ramp(40, 1, 5, 280)}, {"b", "tab", ramp(40, 1, 12, 280)}, {"c", "semicolon", ramp(40, 1, 25, 280)}}
-	path := writeLabRuns(t, dir, truth, runs, map[string]bool{"camphene": true}, 7, nil)
+	path := writeLabRuns(t, hiddenHeader, dir, truth, runs, map[string]bool{"camphene": true}, 7, nil)
 	b, _ := os.ReadFile(filepath.Join(dir, "a.csv"))
 	os.WriteFile(filepath.Join(dir, "a.csv"), []byte(strings.Replace(string(b), ",camphene", ",camphen", 1)), 0o644)
 	rep := labFit(t, demo(t), path, Options{})
@@ -474,5 +476,10 @@ func TestWriteLabExamples(t *testing.T) {
 		{"scout-20", "tab", ramp(40, 1, 20, 280)},
 		{"scout-8", "cdf", ramp(60, 0.5, 8, 280)},
 	}
-	writeLabRuns(t, dir, demo(t), runs, map[string]bool{"limonene": true}, 42, nil)
+	m := demo(t)
+	writeLabRuns(t, "# Example scouting runs (invented: generated from the demo method's own parameters\n# with 0.002 min noise by labdata_test.go -write-lab).\n", dir, m, runs, map[string]bool{"limonene": true}, 42, nil)
+	// a verification run of the demo's own program, unnamed but limonene
+	rng := rand.New(rand.NewPCG(43, 5))
+	ps, tm := simulatePeaks(t, m, m.Oven, 0.002, rng)
+	writePeakTable(t, filepath.Join(dir, "verify.csv"), "comma", withExtras(ps, tm, rng), map[string]bool{"limonene": true})
 }
