@@ -71,8 +71,8 @@ type Table struct {
 	Separator string // ",", ";" or "tab"
 	Decimal   string // "." or ","
 	Header    bool
-	TimeUnit  string // "min" or "s"
-	WidthKind string // "half-height", "base", "sigma" or "" without widths
+	TimeUnit  string         // "min" or "s"
+	WidthKind string         // "half-height", "base", "sigma" or "" without widths
 	Columns   map[string]int // role -> 0-based column
 }
 
