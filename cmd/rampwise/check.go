@@ -85,18 +85,9 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	var run *methodfile.Run
-	var all *methodfile.Runs
-	if strings.EqualFold(filepath.Ext(files[1]), ".toml") {
-		all, err = methodfile.ReadRuns(files[1], m)
-		if err != nil {
-			return err
-		}
-		run = &all.Runs[len(all.Runs)-1]
-	} else {
-		if run, err = methodfile.ReadExportRun(files[1], m, nil); err != nil {
-			return bad(err)
-		}
+	run, all, err := readVerificationRun(m, files[1])
+	if err != nil {
+		return err
 	}
 	ck, err := calibrate.Verify(m, run)
 	if err != nil {
@@ -218,4 +209,22 @@ func printCheck(w io.Writer, ck *calibrate.Check, rep *calibrate.Report, out str
 			fmt.Fprintf(w, "saved the refitted method to %s\n", out)
 		}
 	}
+}
+
+// readVerificationRun reads RUN: a runs file (its last run; all of it is
+// returned too), or a peak table or chromatogram as a run of the method's
+// program.
+func readVerificationRun(m *methodfile.Method, path string) (*methodfile.Run, *methodfile.Runs, error) {
+	if strings.EqualFold(filepath.Ext(path), ".toml") {
+		all, err := methodfile.ReadRuns(path, m)
+		if err != nil {
+			return nil, nil, err
+		}
+		return &all.Runs[len(all.Runs)-1], all, nil
+	}
+	run, err := methodfile.ReadExportRun(path, m, nil)
+	if err != nil {
+		return nil, nil, bad(err)
+	}
+	return run, nil, nil
 }

@@ -31,6 +31,9 @@ type Sim struct {
 	Method *methodfile.Method
 	System *model.System
 	Result model.Result
+	// Measured, when set, is drawn under the predicted chromatogram with
+	// the matched peaks joined.
+	Measured *Measured
 }
 
 // Simulate builds the system for m and simulates its program.
@@ -215,6 +218,16 @@ func (s *Sim) Figure(format string, width, height int) ([]byte, error) {
 	if r.Critical >= 0 {
 		top.Legend.Add(fmt.Sprintf("min Rs %.2f (target %.2f)", r.MinResolution, s.Method.Goal.MinResolution))
 		top.Legend.Top = true
+	}
+	if s.Measured != nil {
+		for _, p := range s.Measured.Peaks {
+			end = math.Max(end, (p.TimeMin+3*p.WidthMin)*60)
+		}
+		top.X.Max = end / 60
+		apex := func(tMin float64) float64 { return s.signal(tMin*60) / ymax }
+		if err := s.Measured.draw(top, end/60, apex); err != nil {
+			return nil, err
+		}
 	}
 
 	bottom := plot.New()
