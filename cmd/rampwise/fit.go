@@ -20,7 +20,11 @@ Calibrates the method's compounds from scouting runs: for each compound seen
 in at least two runs, ΔH and ΔS (and with --with-dcp ΔCp, from three runs or
 more) by least squares on the measured retention times through the same
 retention model simulate uses. With measured holdup times in the runs, the
-column's effective internal diameter is calibrated first; with measured
+column's effective internal diameter is calibrated first (on a packed
+column its particle size, which sets the bed's permeability; the phase ratio
+then follows from the diameter of an open tube and is the given one of a
+packed column, since it cannot be told apart from ΔS); with measured
+half-height widths, the plate-height factor. Reports standard errors and the
 half-height widths, the plate-height factor.
 
 A run gives its times in [run.retention_min], or names a data-system export:
@@ -62,8 +66,10 @@ type fitCompoundJSON struct {
 type fitJSON struct {
 	Compounds []fitCompoundJSON `json:"compounds"`
 	Column    struct {
-		Diameter    float64 `json:"diameter_mm"`
-		PlateHeight float64 `json:"plate_height_factor"`
+		Diameter    float64  `json:"diameter_mm"`
+		PlateHeight float64  `json:"plate_height_factor"`
+		Particle    *float64 `json:"particle_um,omitempty"`
+		PhaseRatio  float64  `json:"phase_ratio"`
 	} `json:"column"`
 	Warnings    []string         `json:"warnings"`
 	Notes       []string         `json:"notes"`
@@ -136,7 +142,10 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		for _, o := range rep.Outliers {
 			j.Outliers = append(j.Outliers, outlierJSON{o.Run, o.Compound, o.MeasuredMin, o.PredictedMin, o.Studentized, o.Excluded})
 		}
-		j.Column.Diameter, j.Column.PlateHeight = rep.DiameterMM, rep.PlateHeightFactor
+		j.Column.Diameter, j.Column.PlateHeight, j.Column.PhaseRatio = rep.DiameterMM, rep.PlateHeightFactor, rep.PhaseRatio
+		if m.Column.Kind == "packed" {
+			j.Column.Particle = &rep.ParticleUM
+		}
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
 		return enc.Encode(j)
@@ -161,7 +170,11 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		how = fmt.Sprintf("no degrees of freedom left: the method's retention_time_sd_min %.4f min assumed", rep.ResidualSDMin)
 	}
 	fmt.Fprintf(stdout, "\n± is one standard error; residual SD %s\n", how)
-	fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PlateHeightFactor, fitted(rep.PlateFitted))
+	if m.Column.Kind == "packed" {
+		fmt.Fprintf(stdout, "\nparticle size %.2f µm%s · phase ratio %.4g (given) · plate-height factor %.3f%s\n", rep.ParticleUM, fitted(rep.ParticleFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
+	} else {
+		fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · phase ratio %.4g · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
+	}
 	for _, w := range rep.Warnings {
 		fmt.Fprintf(stdout, "warning: %s\n", textsafe.Inert(w))
 	}

@@ -1,7 +1,9 @@
 // Package calibrate turns scouting runs into model parameters: each
 // compound's ΔH and ΔS (and optionally ΔCp) by least squares on retention
 // times through the forward model, the column's effective diameter from
-// measured holdup times, and the plate-height factor from measured widths.
+// measured holdup times (for a packed column, its particle size: the
+// permeability of the bed), and the plate-height factor from measured
+// widths.
 package calibrate
 
 import (
@@ -69,9 +71,18 @@ type Outlier struct {
 
 // Report is a whole calibration.
 type Report struct {
-	Compounds         []CompoundFit
-	DiameterMM        float64 // effective internal diameter used
-	DiameterFitted    bool
+	Compounds      []CompoundFit
+	DiameterMM     float64 // effective internal diameter used
+	DiameterFitted bool
+	// ParticleUM is the packed column's effective particle size used, fitted
+	// from the holdup times in place of the diameter (MODEL.md §10).
+	ParticleUM     float64
+	ParticleFitted bool
+	// PhaseRatio is β of the calibrated column: for an open tube it follows
+	// from the fitted diameter (exact annulus), for a packed column it is
+	// the given one (holdup times do not tell it; it and ΔS are one
+	// parameter, ΔS − R ln β).
+	PhaseRatio        float64
 	PlateHeightFactor float64
 	PlateFitted       bool
 	Warnings          []string
@@ -140,7 +151,15 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 			withHoldup = append(withHoldup, i)
 		}
 	}
-	if len(withHoldup) > 0 {
+	rep.ParticleUM = m.Column.ParticleUM
+	if len(withHoldup) > 0 && out.Column.Kind == "packed" {
+		dp, err := fitParticle(out, runs, withHoldup)
+		if err != nil {
+			return nil, err
+		}
+		out.Column.ParticleUM = dp
+		rep.ParticleUM, rep.ParticleFitted = dp, true
+	} else if len(withHoldup) > 0 {
 		d, err := fitDiameter(out, runs, withHoldup)
 		if err != nil {
 			return nil, err
@@ -148,6 +167,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		out.Column.DiameterMM = d
 		rep.DiameterMM, rep.DiameterFitted = d, true
 	}
+	rep.PhaseRatio = out.ModelColumn().PhaseRatio()
 	st, err := setups(out, runs)
 	if err != nil {
 		return nil, err
@@ -218,6 +238,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		}
 		c := &out.Compounds[ci]
 		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
+		c.FromFormula = false
 		c.HasSE = false
 		if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
 			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true
@@ -531,9 +552,38 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 // the measured ones (golden-section search between 0.5 and 1.5 times the
 // nominal diameter).
 func fitDiameter(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float64, error) {
-	ssr := func(d float64) float64 {
+	d0 := m.Column.DiameterMM
+	a, b := 0.5*d0, 1.5*d0
+	if min := 2 * m.Column.FilmUM * 1e-3 * 1.01; a < min {
+		a = min
+	}
+	d, err := fitHoldup(m, runs, idx, func(c *methodfile.Method, x float64) { c.Column.DiameterMM = x }, a, b)
+	if err != nil {
+		return 0, errors.New("holdup calibration failed: no diameter reproduces the measured holdup times")
+	}
+	return d, nil
+}
+
+// fitParticle finds a packed column's particle size (µm) whose
+// Kozeny–Carman permeability best reproduces the measured holdup times
+// (golden section between 0.5 and 1.5 times the nominal size, within the
+// file's 50-400 µm).
+func fitParticle(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float64, error) {
+	p0 := m.Column.ParticleUM
+	a, b := math.Max(0.5*p0, 50), math.Min(1.5*p0, 400)
+	dp, err := fitHoldup(m, runs, idx, func(c *methodfile.Method, x float64) { c.Column.ParticleUM = x }, a, b)
+	if err != nil {
+		return 0, errors.New("holdup calibration failed: no particle size in 50-400 µm reproduces the measured holdup times")
+	}
+	return dp, nil
+}
+
+// fitHoldup is the golden-section search on [a, b] for the column value
+// that set writes, minimising the squared holdup-time residuals of runs idx.
+func fitHoldup(m *methodfile.Method, runs *methodfile.Runs, idx []int, set func(*methodfile.Method, float64), a, b float64) (float64, error) {
+	ssr := func(x float64) float64 {
 		c := m.Clone()
-		c.Column.DiameterMM = d
+		set(c, x)
 		s := 0.0
 		for _, i := range idx {
 			r := &runs.Runs[i]
@@ -552,11 +602,6 @@ func fitDiameter(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float6
 		}
 		return s
 	}
-	d0 := m.Column.DiameterMM
-	a, b := 0.5*d0, 1.5*d0
-	if min := 2 * m.Column.FilmUM * 1e-3 * 1.01; a < min {
-		a = min
-	}
 	gr := (math.Sqrt(5) - 1) / 2
 	for i := 0; i < 100; i++ {
 		c, d := b-gr*(b-a), a+gr*(b-a)
@@ -566,11 +611,11 @@ func fitDiameter(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float6
 			a = c
 		}
 	}
-	d := (a + b) / 2
-	if math.IsInf(ssr(d), 0) {
-		return 0, errors.New("holdup calibration failed: no diameter reproduces the measured holdup times")
+	x := (a + b) / 2
+	if math.IsInf(ssr(x), 0) {
+		return 0, errors.New("no value reproduces the holdup times")
 	}
-	return d, nil
+	return x, nil
 }
 
 // fitPlateHeight fits φ from measured half-height widths: σ² = φ a + σ0²,
