@@ -24,7 +24,6 @@ column's effective internal diameter is calibrated first (on a packed
 column its particle size, which sets the bed's permeability; the phase ratio
 then follows from the diameter of an open tube and is the given one of a
 packed column, since it cannot be told apart from ΔS); with measured
-half-height widths, the plate-height factor. Reports standard errors and the
 half-height widths, the plate-height factor.
 
 A run gives its times in [run.retention_min], or names a data-system export:
