@@ -588,7 +588,7 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 				if len(obs) < 2 {
 					return 0, false
 				}
-				f, err := fitCompound(st, obs, startC[ci], false)
+				f, err := fitCompoundFrom(st, obs, startC[ci], false, []float64{startC[ci].DH, startC[ci].DS})
 				if err != nil {
 					return 0, false
 				}

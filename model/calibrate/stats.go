@@ -124,7 +124,7 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 		var cs []cand
 		for i := 0; i < n; i++ {
 			rest := append(append([]obsPoint(nil), f.obs[:i]...), f.obs[i+1:]...)
-			g, err := fitCompound(st, rest, f.base, len(f.th) > 2 && len(rest) >= 3)
+			g, err := fitCompoundFrom(st, rest, f.base, len(f.th) > 2 && len(rest) >= 3, f.th)
 			if err != nil || g.onlyDS {
 				continue
 			}
