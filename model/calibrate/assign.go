@@ -102,6 +102,9 @@ func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.R
 			}
 			// peaks at the holdup time (solvent, air) are never assigned
 			tm, _ := s.cond.RetentionTime(nil, s.prog)
+			if r.HasHoldup {
+				tm = r.HoldupMin * 60
+			}
 			var keep []int
 			for _, k := range un {
 				if r.Peaks[k].TimeMin > 1.003*tm/60 {
