@@ -507,10 +507,11 @@ func equalInts(a, b []int) bool {
 // other in some run, every choice of which runs swap their two peaks is
 // fitted, and the choice with the least χ² = SSR/σ² plus the squared
 // distance of both compounds' fitted ΔH, ΔS from the method's values (in
-// units of goal.robust.prior_dH_kJ_mol and prior_dS_J_mol_K) is kept. A
-// labelling swapped in every run fits the times exactly as well; only the
-// method's values tell it apart, which is what the prior term does. It
-// returns how many pairs changed.
+// units of goal.robust.prior_dH_kJ_mol and prior_dS_J_mol_K), plus the
+// peak-area term of the assignment when the method gives amounts, is kept.
+// A labelling swapped in every run fits the times exactly as well; only the
+// method's values (and the areas) tell it apart. It returns how many pairs
+// changed.
 func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]bool, sd float64, warn *[]string) int {
 	out := start
 	sigma := math.Max(sd, 0.002) * 60
@@ -569,8 +570,63 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 		if len(both) == 0 || len(both) > 8 {
 			continue
 		}
+		// peak-area evidence, as in the assignment: ln(area) − ln(amount)
+		// against the run's median, in units of areaSD
+		areaOf := func(r *methodfile.Run, name string) float64 {
+			t := r.Retention[name]
+			for _, pk := range r.Peaks {
+				if pk.TimeMin == t && pk.Area > 0 {
+					return pk.Area
+				}
+			}
+			return math.NaN()
+		}
+		useArea := amountsDiffer(start)
+		medians := map[int]float64{}
+		if useArea {
+			for _, ri := range both {
+				r := st[ri].run
+				var xs []float64
+				for _, n := range r.Names() {
+					if ci := compoundIndex(start, n); ci >= 0 && startC[ci].Amount > 0 {
+						if a := areaOf(r, n); !math.IsNaN(a) {
+							xs = append(xs, math.Log(a)-math.Log(startC[ci].Amount))
+						}
+					}
+				}
+				if len(xs) >= 3 {
+					sort.Float64s(xs)
+					medians[ri] = xs[len(xs)/2]
+				}
+			}
+		}
+		// fused peaks share their area by a drop line: no evidence then
+		resolved := func(ri int) bool {
+			r := st[ri].run
+			wa, wb := r.Widths[p.a], r.Widths[p.b]
+			return wa > 0 && wb > 0 && math.Abs(r.Retention[p.a]-r.Retention[p.b]) > 1.5*(wa+wb)/1.1774100225154747
+		}
+		areaCost := func(ri int, peakOf string, ci int) float64 {
+			med, ok := medians[ri]
+			if !resolved(ri) {
+				return 0
+			}
+			a := areaOf(st[ri].run, peakOf)
+			if !ok || math.IsNaN(a) || !(startC[ci].Amount > 0) {
+				return 0
+			}
+			d := (math.Log(a) - math.Log(startC[ci].Amount) - med) / areaSD
+			return math.Min(d*d, 4)
+		}
 		score := func(mask int) (float64, bool) {
 			total := 0.0
+			for bi, ri := range both {
+				if mask&(1<<bi) != 0 {
+					total += areaCost(ri, p.b, ia) + areaCost(ri, p.a, ib)
+				} else {
+					total += areaCost(ri, p.a, ia) + areaCost(ri, p.b, ib)
+				}
+			}
 			for side, ci := range []int{ia, ib} {
 				name := []string{p.a, p.b}[side]
 				other := []string{p.b, p.a}[side]
@@ -607,7 +663,10 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 			}
 		}
 		full := (1 << len(both)) - 1
-		if alt, ok := score(full ^ best); ok && alt-bestScore < 2 {
+		// the mirror labelling fits the times as well; unless the values
+		// and areas favour one by Δ ≥ 6 (a likelihood ratio of 20:1) the
+		// identities are a guess
+		if alt, ok := score(full ^ best); ok && alt-bestScore < 6 {
 			*warn = append(*warn, fmt.Sprintf("%s and %s: their peaks are too close and their values too alike to tell which is which from retention alone (the other labelling scores only %.1f worse); name one of them in a peak table", p.a, p.b, alt-bestScore))
 		}
 		if best == 0 {

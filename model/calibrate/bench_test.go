@@ -13,10 +13,10 @@ func BenchmarkFitLabTables(b *testing.B) {
 	truth := hiddenTruth(t, 1)
 	dir := b.TempDir()
 	runs := []labRun{
-		{"scout-5", "comma", ramp(40, 1, 5, 280)},
-		{"scout-10", "semicolon", ramp(40, 1, 10, 280)},
-		{"scout-20", "tab", ramp(40, 1, 20, 280)},
-		{"scout-8", "comma", ramp(60, 0.5, 8, 280)},
+		{"scout-5", "comma", ramp(40, 1, 5, 280), nil},
+		{"scout-10", "semicolon", ramp(40, 1, 10, 280), nil},
+		{"scout-20", "tab", ramp(40, 1, 20, 280), nil},
+		{"scout-8", "comma", ramp(60, 0.5, 8, 280), nil},
 	}
 	path := writeLabRuns(t, hiddenHeader, dir, truth, runs, map[string]bool{"limonene": true}, 1, nil)
 	m := demo(t)
