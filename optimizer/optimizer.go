@@ -23,31 +23,13 @@ import (
 )
 
 // Objective is what the optimizer minimises among programs that meet the target.
-type Objective int
+type Objective = model.Objective
 
 // The objectives.
 const (
-	// RunTime is the time the last peak elutes plus the tail.
-	RunTime Objective = iota
-	// CycleTime is the run time plus cool-down and equilibration.
-	CycleTime
+	RunTime   = model.RunTime
+	CycleTime = model.CycleTime
 )
-
-// String is the objective as written in a method file.
-func (o Objective) String() string {
-	if o == CycleTime {
-		return "cycle-time"
-	}
-	return "run-time"
-}
-
-// Variable names a program value, as in a method file's goal.lock.
-func Variable(kind string, ramp int) string {
-	if ramp == 0 {
-		return kind
-	}
-	return fmt.Sprintf("%s_%d", kind, ramp)
-}
 
 // Limits bound the programs the optimizer may return (SI units: K, K/s, s, Pa).
 type Limits struct {
@@ -66,7 +48,7 @@ type Problem struct {
 	// and one of the starting points.
 	Start         model.Program
 	Ramps         int // ramps the optimizer may use, 1..5
-	Lock          []string
+	Lock          []model.ProgramValue
 	Limits        Limits
 	MinResolution float64
 	Objective     Objective
@@ -206,9 +188,9 @@ func (p *Problem) check() error {
 		p.Limits.MinRate = p.Limits.MaxRate / 10
 	}
 	for _, name := range p.Lock {
-		_, n, ok := parseVariable(name)
-		if !ok {
-			return fmt.Errorf("optimizer: unknown program value %q to lock", name)
+		n := name.Ramp
+		if !name.Valid(model.MaxRampNumber) {
+			return fmt.Errorf("optimizer: %s is not a program value to lock", name)
 		}
 		if n > 0 && n > len(p.Start.Ramps) {
 			return fmt.Errorf("optimizer: %s is locked but the method's program has only %d ramps", name, len(p.Start.Ramps))
@@ -222,35 +204,20 @@ func (p *Problem) check() error {
 
 func (p *Problem) rampLocks() bool {
 	for _, name := range p.Lock {
-		if _, n, _ := parseVariable(name); n > 0 {
+		if name.Kind.PerRamp() {
 			return true
 		}
 	}
 	return false
 }
 
-func (p *Problem) locked(kind string, ramp int) bool {
-	name := Variable(kind, ramp)
+func (p *Problem) locked(v model.ProgramValue) bool {
 	for _, l := range p.Lock {
-		if l == name {
+		if l == v {
 			return true
 		}
 	}
 	return false
-}
-
-func parseVariable(s string) (kind string, ramp int, ok bool) {
-	switch s {
-	case "initial_c", "initial_hold_min":
-		return s, 0, true
-	}
-	for _, k := range []string{"rate", "final", "hold"} {
-		var n int
-		if _, err := fmt.Sscanf(s, k+"_%d", &n); err == nil && fmt.Sprintf("%s_%d", k, n) == s && n >= 1 && n <= 5 {
-			return k, n, true
-		}
-	}
-	return "", 0, false
 }
 
 func (s Settings) withDefaults() Settings {
@@ -519,7 +486,7 @@ func (sh *shared) finish(ctx context.Context, sp *space, x []float64) (*Result, 
 	if n := len(r.Program.Ramps); n > 0 && r.Program.Ramps[n-1].Hold > p.Limits.MaxHold {
 		r.Program.Ramps[n-1].Hold = p.Limits.MaxHold
 		holdCut = true
-	} else if n == 0 && r.Program.InitialHold > p.Limits.MaxHold && !p.locked("initial_hold_min", 0) {
+	} else if n == 0 && r.Program.InitialHold > p.Limits.MaxHold && !p.locked(model.ProgramValue{Kind: model.InitialHold}) {
 		r.Program.InitialHold = p.Limits.MaxHold
 		holdCut = true
 	}

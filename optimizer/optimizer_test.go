@@ -19,7 +19,18 @@ func demoProblem(t testing.TB) Problem {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return FromMethod(m, sys)
+	// what methodsearch.Problem builds (that package imports this one)
+	return Problem{
+		System: sys, Start: m.ModelProgram(), Ramps: m.Goal.Ramps, Lock: m.Goal.Lock,
+		Limits: Limits{
+			OvenMin:  m.Limits.OvenMinC + model.ZeroCelsius,
+			MaxTemp:  m.Column.MaxTempC + model.ZeroCelsius,
+			MaxRate:  m.Limits.MaxRateCMin / 60,
+			MaxHold:  m.Limits.MaxHoldMin * 60,
+			MaxInlet: m.Limits.MaxInletKPa * 1000,
+		},
+		MinResolution: m.Goal.MinResolution, Objective: m.Goal.Objective, Tail: m.Goal.TailMin * 60,
+	}
 }
 
 func TestDemoMeetsTarget(t *testing.T) {
@@ -44,7 +55,7 @@ func checkResult(t *testing.T, p Problem, r *Result) {
 	if err := prog.Validate(l.MaxTemp); err != nil {
 		t.Errorf("returned program invalid: %v", err)
 	}
-	if !p.locked("initial_c", 0) && prog.Initial < l.OvenMin-1e-9 {
+	if !p.locked(model.ProgramValue{Kind: model.InitialTemp}) && prog.Initial < l.OvenMin-1e-9 {
 		t.Errorf("initial %v below oven minimum %v", prog.Initial, l.OvenMin)
 	}
 	if prog.InitialHold > l.MaxHold+1e-9 {

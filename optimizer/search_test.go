@@ -138,7 +138,7 @@ func TestIdenticalPairUnreachable(t *testing.T) {
 func TestLockedValuesStay(t *testing.T) {
 	p := smallProblem(t, smallCompounds(), 2)
 	p.Start = model.Program{Initial: 318.15, InitialHold: 45, Ramps: []model.Ramp{{Rate: 7 * perMin, Final: 400}, {Rate: 20 * perMin, Final: 560, Hold: 30}}}
-	p.Lock = []string{"initial_c", "rate_1"}
+	p.Lock = []model.ProgramValue{{Kind: model.InitialTemp}, {Kind: model.RampRate, Ramp: 1}}
 	r, err := Optimize(context.Background(), p, Settings{Starts: 6})
 	if err != nil {
 		t.Fatal(err)

@@ -14,8 +14,11 @@ import (
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 const compareHelp = `Usage: rampwise compare METHOD... [--length L,...] [--diameter D,...] [--film F,...]
@@ -48,6 +51,7 @@ type candidateJSON struct {
 	Film          float64     `json:"film_um"`
 	Feasible      bool        `json:"feasible"`
 	Objective     string      `json:"objective"`
+	target        float64     // the candidate's goal.min_resolution, for the table
 	Time          float64     `json:"time_min"`
 	RunTime       float64     `json:"run_time_min"`
 	CycleTime     float64     `json:"cycle_time_min"`
@@ -100,7 +104,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return bad(err)
 	}
-	var cands []optimizer.Candidate
+	var cands []methodsearch.Candidate
 	for _, file := range files {
 		m, name, err := loadMethod(file)
 		if err != nil {
@@ -123,8 +127,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 				for _, df := range fv {
 					c := m.Clone()
 					c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
-					data, _ := methodfile.Marshal(c)
-					if _, err := methodfile.Parse(name, data); err != nil {
+					if err := c.Validate(); err != nil {
 						if kindName(m.Column.Kind) != kindOfLists {
 							fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
 							lastSkip = err
@@ -132,7 +135,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 						}
 						return badf("%s at %g m × %g mm × %g µm: %v", name, l, d, df, err)
 					}
-					cands = append(cands, optimizer.Candidate{Source: name, Method: c})
+					cands = append(cands, methodsearch.Candidate{Source: name, Method: c})
 				}
 			}
 		}
@@ -145,13 +148,13 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	out := optimizer.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
+	out := methodsearch.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
 		fmt.Fprintf(stderr, "compare: %d of %d candidates optimized\n", done, total)
 	})
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
@@ -163,14 +166,14 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 		// report what optimize reports: the keypad-rounded program
-		oven, sim, err := optimizer.KeypadProgram(m, sys, r)
+		oven, sim, err := methodsearch.KeypadProgram(m, sys, r)
 		if err != nil {
 			return err
 		}
 		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
 		j.RunTime, j.CycleTime = sim.RunTime/60, sim.CycleTime/60
 		j.Time = j.RunTime
-		if m.Goal.Objective == "cycle-time" {
+		if m.Goal.Objective == model.CycleTime {
 			j.Time = j.CycleTime
 		}
 		if sim.Critical >= 0 {
@@ -196,8 +199,8 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			if len(j.CriticalPair) == 2 {
 				c1, c2 = j.CriticalPair[0], j.CriticalPair[1]
 			}
-			recs = append(recs, []string{strconv.Itoa(i + 1), j.Method, j.Phase, j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), fmt.Sprint(j.Feasible), j.Objective,
-				fmtNum(j.Time), rs, c1, c2, fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), j.Explanation + j.Error})
+			recs = append(recs, []string{strconv.Itoa(i + 1), textsafe.CSVCell(j.Method), textsafe.CSVCell(j.Phase), j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), fmt.Sprint(j.Feasible), j.Objective,
+				fmtNum(j.Time), rs, textsafe.CSVCell(c1), textsafe.CSVCell(c2), fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), textsafe.CSVCell(j.Explanation + j.Error)})
 		}
 		if err := writeCSVFile(*csvF, recs, stderr); err != nil {
 			return err
@@ -215,20 +218,20 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		if j.Kind != "wall-coated" {
 			col = j.Kind + " " + col
 		}
-		phase := j.Phase
+		phase := textsafe.Inert(j.Phase)
 		if phase == "" {
-			phase = j.Method
+			phase = textsafe.Inert(j.Method)
 		}
 		if j.Error != "" {
-			fmt.Fprintf(tw, "%d\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, j.Error)
+			fmt.Fprintf(tw, "%d\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, textsafe.Inert(j.Error))
 			continue
 		}
 		rs, cp := "-", "-"
 		if j.MinResolution != nil {
-			rs = fmt.Sprintf("%.2f", *j.MinResolution)
+			rs = format.RsNumber(*j.MinResolution, j.target) + " " + format.Verdict(*j.MinResolution, j.target)
 		}
 		if len(j.CriticalPair) == 2 {
-			cp = j.CriticalPair[0] + " / " + j.CriticalPair[1]
+			cp = format.CriticalPair(textsafe.Inert(j.CriticalPair[0]), textsafe.Inert(j.CriticalPair[1]))
 		}
 		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
 		if !j.Feasible {
@@ -239,7 +242,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	tw.Flush()
 	for i, j := range rows {
 		if !j.Feasible && j.Explanation != "" {
-			fmt.Fprintf(stdout, "%d: %s\n", i+1, j.Explanation)
+			fmt.Fprintf(stdout, "%d: %s\n", i+1, textsafe.Inert(j.Explanation))
 		}
 	}
 	return nil

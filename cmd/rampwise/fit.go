@@ -10,6 +10,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/textsafe"
 )
@@ -106,7 +107,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, _, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
@@ -119,7 +120,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		return badf("%s: %v", files[1], err)
 	}
 	if *out != "" {
-		if err := methodfile.WriteFile(*out, rep.Method); err != nil {
+		if err := saveMethodOut(*out, files[0], rep.Method); err != nil {
 			return err
 		}
 	}
@@ -159,7 +160,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintln(stdout)
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "compound\tΔH kJ/mol\t±\tΔS J/(mol·K)\t±\tΔCp\t±\truns\trms min\tmax min\t")
+	fmt.Fprintf(tw, "compound\tΔH %s\t±\tΔS %s\t±\tΔCp\t±\truns\trms min\tmax min\t\n", format.UnitDH, format.UnitDS)
 	for _, c := range rep.Compounds {
 		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%s\t%d\t%.4f\t%.4f\t\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, fmtErr(c.StdErrDCp), c.Runs, c.RMS, c.Max)
 	}
@@ -181,7 +182,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(stdout, "note: %s\n", textsafe.Inert(n))
 	}
 	if *out != "" {
-		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", *out)
+		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", textsafe.Inert(*out))
 	}
 	return nil
 }
@@ -233,11 +234,11 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
-	s, err := simulateMethod(m, files[0])
+	s, err := simulateMethod(m, name)
 	if err != nil {
 		return err
 	}
@@ -305,7 +306,7 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 		if e.Given != nil {
 			given = fmt.Sprintf("%.1f", *e.Given)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", e.Name, idx, given, e.From)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", textsafe.Inert(e.Name), idx, given, textsafe.Inert(e.From))
 	}
 	tw.Flush()
 	fmt.Fprintln(stdout, "\nCompounds given by retention index are modelled as the virtual n-alkane of that carbon number: an assumption, refine them with fit when runs exist.")

@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"strings"
@@ -13,8 +12,12 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 const optimizeHelp = `Usage: rampwise optimize [FILE] [flags]
@@ -86,34 +89,30 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if *ramps != 0 {
-		if *ramps < 1 || *ramps > 5 {
-			return badf("optimize: --ramps must be 1..5, got %d", *ramps)
-		}
+	if given(fs, "ramps") {
 		m.Goal.Ramps = *ramps
+		if err := override(m, "ramps", "goal.ramps"); err != nil {
+			return err
+		}
 	}
 	if *objective != "" {
-		if *objective != "run-time" && *objective != "cycle-time" {
-			return badf("optimize: --objective must be run-time or cycle-time, got %q", *objective)
+		o, err := model.ParseObjective(*objective)
+		if err != nil {
+			return badf("optimize: --objective: %v", err)
 		}
-		m.Goal.Objective = *objective
+		m.Goal.Objective = o
 	}
-	if *minRs != 0 {
-		if !(*minRs > 0) || math.IsInf(*minRs, 0) {
-			return badf("optimize: --min-resolution must be positive")
-		}
+	if given(fs, "min-resolution") {
 		m.Goal.MinResolution = *minRs
-	}
-	for _, l := range m.Goal.Lock {
-		if !methodfile.ValidLockName(l, m.Goal.Ramps) {
-			return badf("optimize: goal.lock names %s, which does not exist with %d ramps", l, m.Goal.Ramps)
+		if err := override(m, "min-resolution", "goal.min_resolution"); err != nil {
+			return err
 		}
 	}
 	before, err := simulateMethod(m, name)
 	if err != nil {
 		return err
 	}
-	prob := optimizer.FromMethod(m, before.sys)
+	prob := methodsearch.Problem(m, before.sys)
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
@@ -125,7 +124,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	}
 
 	after := m.Clone()
-	oven, _, err := optimizer.KeypadProgram(m, before.sys, res)
+	oven, _, err := methodsearch.KeypadProgram(m, before.sys, res)
 	if err != nil {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
 	}
@@ -140,14 +139,14 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	met := res.Feasible() && meets(afterSim)
 
 	if *out != "" {
-		if err := methodfile.WriteFile(*out, after); err != nil {
+		if err := saveMethodOut(*out, file, after); err != nil {
 			return err
 		}
 	}
 	if *asJSON {
 		j := optimizeJSON{
 			Feasible:    met,
-			Objective:   m.Goal.Objective,
+			Objective:   m.Goal.Objective.String(),
 			Program:     programToJSON(after.Oven),
 			RunTime:     afterSim.res.RunTime / 60,
 			CycleTime:   afterSim.res.CycleTime / 60,
@@ -172,7 +171,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	} else {
 		writeComparison(stdout, m, before, after, afterSim, res, met)
 		if *out != "" {
-			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", *out)
+			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", textsafe.Inert(*out))
 		}
 	}
 	if !met {
@@ -186,31 +185,31 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	if title == "" {
 		title = "method"
 	}
-	fmt.Fprintf(w, "%s\n%s\n\n", title, describeColumn(m))
+	fmt.Fprintf(w, "%s\n%s\n\n", textsafe.Inert(title), describeColumn(m))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "\tbefore\tafter\t")
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
 	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.res.RunTime/60, afterSim.res.RunTime/60)
 	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.res.CycleTime/60, afterSim.res.CycleTime/60)
-	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before), fmtRs(afterSim))
+	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before, m.Goal.MinResolution), fmtRs(afterSim, m.Goal.MinResolution))
 	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
 	tw.Flush()
-	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %.2f)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, m.Goal.MinResolution)
+	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %s)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, format.Target(m.Goal.MinResolution))
 	if met {
 		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
 	} else {
-		fmt.Fprintf(w, "target NOT met within the limits: %s\n", res.Explanation)
+		fmt.Fprintf(w, "target NOT met within the limits: %s\n", textsafe.Inert(res.Explanation))
 	}
 	for _, warn := range afterSim.warnings(after.ModelProgram()) {
-		fmt.Fprintf(w, "warning: %s\n", warn)
+		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
 }
 
-func fmtRs(s *simulation) string {
+func fmtRs(s *simulation, target float64) string {
 	if s.res.Critical < 0 {
 		return "-"
 	}
-	return fmt.Sprintf("%.2f", s.res.MinResolution)
+	return format.RsNumber(s.res.MinResolution, target) + " " + format.Verdict(s.res.MinResolution, target)
 }
 
 func critName(s *simulation) string {
@@ -218,7 +217,7 @@ func critName(s *simulation) string {
 		return "-"
 	}
 	cp := s.res.Pairs[s.res.Critical]
-	return s.sys.Compounds[cp.First].Name + " / " + s.sys.Compounds[cp.Second].Name
+	return format.CriticalPair(textsafe.Inert(s.sys.Compounds[cp.First].Name), textsafe.Inert(s.sys.Compounds[cp.Second].Name))
 }
 
 // progressPrinter reports progress on stderr: a bar redrawn in place on a

@@ -69,7 +69,7 @@ func TestSecondWaveKeysRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatalf("re-read: %v\n%s", err, data)
 	}
-	if !reflect.DeepEqual(m, m2) {
+	if !m.Equal(m2) {
 		t.Errorf("round trip differs:\n%+v\n%+v", m, m2)
 	}
 }
