@@ -3,6 +3,7 @@ package calibrate
 import (
 	"fmt"
 	"math"
+	"math/bits"
 	"sort"
 	"strings"
 
@@ -48,13 +49,10 @@ func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.R
 	type loo struct{ t, s float64 }
 	loos := map[obsKey]loo{} // leave-one-out predictions of the last fit, min
 	useArea := amountsDiffer(out)
-	// the first round's view (the method's own values): an assignment
-	// the fit later confirms is only as sure as this view allowed
-	type view struct {
-		pred, spread, a, b float64
-		times              []float64
-	}
-	first := map[obsKey]view{}
+	// assignments the method's own values left in doubt (round 0): the
+	// close-pair search looks at them again after the fit
+	unsure := map[obsKey]bool{}
+	first := map[obsKey][2]float64{} // round 0: aligned prediction and spread, min
 	sd := 0.0
 	prev := ""
 	var asg []Assignment
@@ -144,6 +142,11 @@ func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.R
 					break
 				}
 			}
+			if round == 0 {
+				for i, ci := range cand {
+					first[obsKey{s.name, mcs[ci].Name}] = [2]float64{a + b*pred[i], spread[i]}
+				}
+			}
 			for i, j := range match {
 				if j < 0 || j >= len(times) {
 					continue
@@ -153,11 +156,10 @@ func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.R
 				r.SetRetention(name, pk.TimeMin, pk.WidthMin)
 				assigned[obsKey{s.name, name}] = true
 				conf := confidence(pred[i], spread[i], times, j, a, b)
-				k := obsKey{s.name, name}
 				if round == 0 {
-					first[k] = view{pred[i], spread[i], a, b, times}
-				} else if v, ok := first[k]; ok {
-					conf = math.Min(conf, confidence(v.pred, v.spread, v.times, j, v.a, v.b))
+					if conf < 0.8 {
+						unsure[obsKey{s.name, name}] = true
+					}
 				}
 				asg = append(asg, Assignment{Run: s.name, Compound: name, MeasuredMin: pk.TimeMin,
 					PredictedMin: a + b*pred[i], Confidence: conf})
@@ -207,7 +209,13 @@ func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.R
 			}
 		}
 	}
-	if n := pairSearch(start, st, assigned, sd, &rep.Warnings); n > 0 {
+	n, ambiguous := pairSearch(start, out, st, assigned, unsure, first, sd, &rep.Warnings)
+	for i := range asg {
+		if ambiguous[asg[i].Compound] {
+			asg[i].Confidence = math.Min(asg[i].Confidence, 0.5)
+		}
+	}
+	if n > 0 {
 		rep.Notes = append(rep.Notes, fmt.Sprintf("%d close %s re-assigned by trying both identities in every run and keeping the fit that is both tightest and closest to the method's values", n, plural(n, "pair", "pairs")))
 		// refresh the predictions in the report
 		mcs, _ := out.ModelCompounds()
@@ -503,17 +511,20 @@ func equalInts(a, b []int) bool {
 }
 
 // pairSearch settles close pairs the alternation cannot: for two
-// compounds assigned from unnamed peaks that come within 0.05 min of each
-// other in some run, every choice of which runs swap their two peaks is
+// compounds assigned from unnamed peaks, adjacent in some run and within
+// 0.05 min of each other there or left in doubt by the method's values, every choice of which runs swap their two peaks is
 // fitted, and the choice with the least χ² = SSR/σ² plus the squared
 // distance of both compounds' fitted ΔH, ΔS from the method's values (in
 // units of goal.robust.prior_dH_kJ_mol and prior_dS_J_mol_K), plus the
-// peak-area term of the assignment when the method gives amounts, is kept.
+// first round's time cost (the method's own predictions) and the peak-area
+// term of the assignment when the method gives amounts, is kept.
 // A labelling swapped in every run fits the times exactly as well; only the
 // method's values (and the areas) tell it apart. It returns how many pairs
 // changed.
-func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]bool, sd float64, warn *[]string) int {
+func pairSearch(start, current *methodfile.Method, st []runSetup, assigned, unsure map[obsKey]bool, first map[obsKey][2]float64, sd float64, warn *[]string) (int, map[string]bool) {
 	out := start
+	curC, _ := current.ModelCompounds()
+	ambiguous := map[string]bool{}
 	sigma := math.Max(sd, 0.002) * 60
 	pdh, pds := out.Goal.Robust.PriorDHkJ, out.Goal.Robust.PriorDS
 	if !(pdh > 0) {
@@ -524,7 +535,7 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 	}
 	startC, err := out.ModelCompounds()
 	if err != nil {
-		return 0
+		return 0, ambiguous
 	}
 	type pair struct{ a, b string }
 	var pairs []pair
@@ -541,7 +552,8 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 		})
 		for i := 1; i < len(names); i++ {
 			x, y := names[i-1], names[i]
-			if st[ri].run.Retention[y]-st[ri].run.Retention[x] > 0.05 {
+			doubt := unsure[obsKey{st[ri].name, x}] || unsure[obsKey{st[ri].name, y}]
+			if st[ri].run.Retention[y]-st[ri].run.Retention[x] > 0.05 && !doubt {
 				continue
 			}
 			if x > y {
@@ -618,13 +630,23 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 			d := (math.Log(a) - math.Log(startC[ci].Amount) - med) / areaSD
 			return math.Min(d*d, 4)
 		}
+		// the method's own prediction of each time (round 0), as in the
+		// assignment's cost
+		timeCost := func(ri int, peakOf, name string) float64 {
+			v, ok := first[obsKey{st[ri].name, name}]
+			if !ok || !(v[1] > 0) {
+				return 0
+			}
+			z := (st[ri].run.Retention[peakOf] - v[0]) / v[1]
+			return math.Min(z*z, gate*gate)
+		}
 		score := func(mask int) (float64, bool) {
 			total := 0.0
 			for bi, ri := range both {
 				if mask&(1<<bi) != 0 {
-					total += areaCost(ri, p.b, ia) + areaCost(ri, p.a, ib)
+					total += areaCost(ri, p.b, ia) + areaCost(ri, p.a, ib) + timeCost(ri, p.b, p.a) + timeCost(ri, p.a, p.b)
 				} else {
-					total += areaCost(ri, p.a, ia) + areaCost(ri, p.b, ib)
+					total += areaCost(ri, p.a, ia) + areaCost(ri, p.b, ib) + timeCost(ri, p.a, p.a) + timeCost(ri, p.b, p.b)
 				}
 			}
 			for side, ci := range []int{ia, ib} {
@@ -647,7 +669,17 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 				if len(obs) < 2 {
 					return 0, false
 				}
-				f, err := fitCompoundFrom(st, obs, startC[ci], false, []float64{startC[ci].DH, startC[ci].DS})
+				th0 := []float64{startC[ci].DH, startC[ci].DS}
+				// warm start: the current fit of the compound whose peaks
+				// this side takes in most runs
+				from := name
+				if 2*bits.OnesCount(uint(mask)) > len(both) {
+					from = other
+				}
+				if cj := compoundIndex(current, from); cj >= 0 && cj < len(curC) {
+					th0 = []float64{curC[cj].DH, curC[cj].DS}
+				}
+				f, err := fitCompoundFrom(st, obs, startC[ci], false, th0)
 				if err != nil {
 					return 0, false
 				}
@@ -656,17 +688,42 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 			}
 			return total, true
 		}
+		// every swap pattern for up to 3 runs; beyond, none, all and each
+		// single run swapped (and their mirrors)
+		var masks []int
+		full := (1 << len(both)) - 1
+		close := false
+		for _, ri := range both {
+			if r := st[ri].run; math.Abs(r.Retention[p.a]-r.Retention[p.b]) <= 0.05 {
+				close = true
+			}
+		}
+		switch {
+		case !close:
+			// apart everywhere, in doubt only by the method's values: the
+			// alternation settles single runs; test the mirror labelling
+			masks = []int{0, full}
+		case len(both) <= 3:
+			for mask := 0; mask <= full; mask++ {
+				masks = append(masks, mask)
+			}
+		default:
+			masks = append(masks, 0, full)
+			for bi := range both {
+				masks = append(masks, 1<<bi, full^(1<<bi))
+			}
+		}
 		best, bestScore := 0, math.Inf(1)
-		for mask := 0; mask < 1<<len(both); mask++ {
+		for _, mask := range masks {
 			if sc, ok := score(mask); ok && sc < bestScore {
 				best, bestScore = mask, sc
 			}
 		}
-		full := (1 << len(both)) - 1
 		// the mirror labelling fits the times as well; unless the values
 		// and areas favour one by Δ ≥ 6 (a likelihood ratio of 20:1) the
 		// identities are a guess
 		if alt, ok := score(full ^ best); ok && alt-bestScore < 6 {
+			ambiguous[p.a], ambiguous[p.b] = true, true
 			*warn = append(*warn, fmt.Sprintf("%s and %s: their peaks are too close and their values too alike to tell which is which from retention alone (the other labelling scores only %.1f worse); name one of them in a peak table", p.a, p.b, alt-bestScore))
 		}
 		if best == 0 {
@@ -684,7 +741,7 @@ func pairSearch(start *methodfile.Method, st []runSetup, assigned map[obsKey]boo
 			r.SetRetention(p.b, ta, wa)
 		}
 	}
-	return changed
+	return changed, ambiguous
 }
 
 // priorDist2 is (θ̂ − θ₀)ᵀ (C_prior + C_fit)⁻¹ (θ̂ − θ₀) for ΔH (kJ/mol)
