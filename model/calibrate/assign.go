@@ -89,6 +89,10 @@ func assignLoop(out, start *methodfile.Method, st []runSetup, runs *methodfile.R
 				}
 				t := tr / 60
 				sp := startSpread(t)
+				if sc := compoundIndex(start, mcs[ci].Name); sc >= 0 && start.Compounds[sc].HasSE {
+					// values from an earlier fit: predicted to the fit's precision
+					sp = 1.5 * fittedSpread(assumedSD(start)/60, t)
+				}
 				if l, ok := loos[obsKey{s.name, mcs[ci].Name}]; ok {
 					t, sp = l.t, l.s
 				} else if fitted[mcs[ci].Name] {

@@ -240,7 +240,9 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
 		c.FromFormula = false
 		c.HasSE = false
-		if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
+		if finite(cf.StdErrDH) && finite(cf.StdErrDS) && (cf.StdErrDH > 500 || cf.StdErrDS > 1000) {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: standard errors ±%.3g kJ/mol, ±%.3g J/(mol·K): the runs hardly determine it; errors not written to the method", cf.Name, cf.StdErrDH, cf.StdErrDS))
+		} else if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
 			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true
 		}
 		rep.Compounds = append(rep.Compounds, cf)
@@ -425,7 +427,7 @@ func fitCompoundFrom(st []runSetup, obs []obsPoint, base model.Compound, withDCp
 			th = append(th, dcp)
 			free = append(free, 2)
 		}
-		if res, err := fitFree(st, obs, base, th, free); err == nil {
+		if res, err := fitFree(st, obs, base, th, free); err == nil && determined(res) {
 			return res, nil
 		}
 	}
@@ -436,8 +438,11 @@ func fitCompoundFrom(st []runSetup, obs []obsPoint, base model.Compound, withDCp
 		free = append(free, 2)
 	}
 	res, err := fitFree(st, obs, base, th, free)
-	if err == nil {
+	if err == nil && determined(res) {
 		return res, nil
+	}
+	if err == nil {
+		err = errors.New("the runs do not determine ΔH")
 	}
 	// Too little retention to tell ΔH from ΔS: keep ΔH of the homologous
 	// rule and fit ΔS alone.
@@ -447,6 +452,17 @@ func fitCompoundFrom(st []runSetup, obs []obsPoint, base model.Compound, withDCp
 	}
 	res.onlyDS = true
 	return res, nil
+}
+
+// determined: with a retention-time SD of 0.002 min the fit's ΔH would be
+// known to better than half its size (else ΔH and ΔS are not separable
+// from these runs: a compound eluting near the holdup time).
+func determined(r fitResult) bool {
+	if r.cov == nil || len(r.free) < 2 || r.free[0] != 0 {
+		return r.cov != nil
+	}
+	se := 0.12 * math.Sqrt(math.Abs(r.cov.At(0, 0))) / 1000
+	return se < 0.5*math.Abs(r.DHkJ)
 }
 
 // fitFree fits the parameters listed in free (0 ΔH, 1 ΔS, 2 ΔCp) from th.

@@ -98,7 +98,10 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 	var out []Outlier
 	for _, f := range fits {
 		n, p := len(f.obs), len(f.free)
-		if n <= p || f.onlyDS {
+		if f.onlyDS {
+			p = 2 // a gross error also makes ΔH look undeterminable: judge by two-parameter refits
+		}
+		if n <= p {
 			continue
 		}
 		// screen: leave-one-out residuals rᵢ/(1 − hᵢᵢ) all below the floor
