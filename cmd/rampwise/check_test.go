@@ -3,10 +3,13 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/rampwise/rampwise/model/andi"
 )
 
 func TestCheckNotMetJSON(t *testing.T) {
@@ -83,6 +86,28 @@ func TestCheckMetAfterOptimize(t *testing.T) {
 	}
 	if !strings.Contains(out, "MET: the target holds") {
 		t.Errorf("%s", out)
+	}
+	// the same run as an AIA/ANDI chromatogram (peaks found in the trace)
+	tr := &andi.Chromatogram{IntervalS: 0.05, Values: make([]float64, int((sim.Peaks[len(sim.Peaks)-1].T+1)*60/0.05))}
+	for i := range tr.Values {
+		tm := tr.Time(i)
+		y := 5.0
+		for _, p := range sim.Peaks {
+			z := (tm - p.T) / p.Sigma
+			if z > -10 && z < 10 {
+				y += 1000 * math.Exp(-z*z/2)
+			}
+		}
+		tr.Values[i] = y
+	}
+	cdf, err := andi.EncodeChromatogram(tr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cdfPath := filepath.Join(dir, "run.cdf")
+	os.WriteFile(cdfPath, cdf, 0o644)
+	if code, out, stderr = runCmd(t, "check", opt, cdfPath, "--json"); code != 0 {
+		t.Errorf("check of the chromatogram: exit %d: %s%s", code, out, stderr)
 	}
 	// the same run with the critical pair's second peak gone: a target is missing, not met
 	lines := strings.Split(b.String(), "\n")
