@@ -192,8 +192,14 @@ func (a *App) resimulate() error {
 // apply makes m the method if it is valid: the previous one goes on the
 // undo stack. An invalid m leaves everything as it was, with a message.
 // It is the only place an edit becomes the method.
-func (a *App) apply(m *methodfile.Method, what string) bool {
-	if err := validate(m); err != nil {
+func (a *App) apply(m *methodfile.Method, what, key string) bool {
+	var err error
+	if key != "" {
+		err = m.ValidateKey(key) // the edited key's rules only: Validate's answer for one edit
+	} else {
+		err = validate(m)
+	}
+	if err != nil {
 		a.say(msgError, "%v (kept the last valid value)", inertErr(err))
 		return false
 	}
@@ -457,7 +463,7 @@ type forgetMsg struct{}
 func (a *App) intent(msg tea.Msg) tea.Cmd {
 	switch msg := msg.(type) {
 	case editMsg:
-		a.apply(msg.m, msg.what)
+		a.apply(msg.m, msg.what, msg.key)
 	case openMsg:
 		a.open(msg.d)
 	case closeMsg:

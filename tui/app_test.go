@@ -349,7 +349,7 @@ func TestSelectionSurvivesShorterProgram(t *testing.T) {
 	}
 	m := a.Method().Clone()
 	m.Oven.Ramps = m.Oven.Ramps[:1]
-	a.apply(m, "test")
+	a.apply(m, "test", "")
 	a.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
 	press(a, "+", "enter", "esc", "right", "left")
 	if a.program.list.sel >= len(programFields(a.Method())) {

@@ -189,22 +189,9 @@ func (c *chart) free(r, a, b, pw int) bool {
 	return true
 }
 
-// signalAt is the summed detector signal at time t: each peak a Gaussian
-// of area proportional to the compound's amount.
-func signalAt(in chartInput, t float64) float64 {
-	y := 0.0
-	for _, pk := range in.res.Peaks {
-		if !pk.Eluted || pk.Sigma <= 0 {
-			continue
-		}
-		z := (t - pk.RetentionTime) / pk.Sigma
-		if z < -6 || z > 6 {
-			continue
-		}
-		y += in.comps[pk.Compound].AreaOrOne() / pk.Sigma * math.Exp(-0.5*z*z)
-	}
-	return y
-}
+// signalAt is the detector signal at time t (model.Result.Signal, the
+// figure's too).
+func signalAt(in chartInput, t float64) float64 { return in.res.Signal(in.comps, t) }
 
 // row renders one canvas row, one style per run of like cells.
 func (c *chart) row(b *strings.Builder, r, pw int, st *Styles) {

@@ -42,6 +42,7 @@ type (
 	editMsg struct {
 		m    *methodfile.Method
 		what string
+		key  string // the one key edited, when known: only its rules are checked
 	}
 	// openMsg puts a dialog in the overlay slot.
 	openMsg struct{ d component }

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -254,7 +255,7 @@ var settingsSaved = map[string]int{
 // instrument limits included (so the messages are the ones a file gets).
 func validate(m *methodfile.Method) error { return m.Validate() }
 
-func trimNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+func trimNum(x float64) string { return format.Num(x) }
 
 func round(x float64, digits int) float64 {
 	s := strconv.FormatFloat(x, 'f', digits, 64)

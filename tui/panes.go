@@ -106,7 +106,7 @@ func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 			what += " · " + err.Error()
 		}
 	}
-	return editMsg{m: m, what: strings.TrimSpace(what)}
+	return editMsg{m: m, what: strings.TrimSpace(what), key: f.key}
 }
 
 // --- program pane ---
@@ -479,7 +479,7 @@ func (p *peaksPane) key(msg tea.KeyMsg) {
 			cc := &m.Compounds[ci]
 			*compoundValue(cc, col) = round(v, compoundDigits)
 			cc.FromIndex = false
-			return editMsg{m: m, what: fmt.Sprintf("%s %s = %s %s", inert(cc.Name), pc.name, trimNum(*compoundValue(cc, col)), pc.unit)}
+			return editMsg{m: m, what: fmt.Sprintf("%s %s = %s %s", inert(cc.Name), pc.name, trimNum(*compoundValue(cc, col)), pc.unit), key: fmt.Sprintf("compound[%d]", ci+1)}
 		})})
 	}
 }

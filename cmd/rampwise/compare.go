@@ -128,7 +128,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 					c := m.Clone()
 					c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
 					if err := c.Validate(); err != nil {
-						if kindName(m.Column.Kind) != kindOfLists {
+						if m.Column.Kind != kindOfLists {
 							fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
 							lastSkip = err
 							continue
@@ -215,7 +215,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintln(tw, "#\tphase\tcolumn\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
 	for i, j := range rows {
 		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
-		if j.Kind != "wall-coated" {
+		if j.Kind != kindOfLists.String() {
 			col = j.Kind + " " + col
 		}
 		phase := textsafe.Inert(j.Phase)
@@ -251,11 +251,6 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 // kindOfLists is the kind the dimension lists are written for: a list
 // value outside another kind's ranges skips that candidate instead of
 // failing the comparison.
-const kindOfLists = "wall-coated"
+const kindOfLists = model.WallCoated
 
-func kindName(k string) string {
-	if k == "" {
-		return "wall-coated"
-	}
-	return k
-}
+func kindName(k model.ColumnKind) string { return k.String() }

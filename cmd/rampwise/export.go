@@ -58,13 +58,11 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if _, err := simulateMethod(m, name); err != nil {
+	sim, err := simulateMethod(m, name)
+	if err != nil {
 		return err
 	}
-	rs, err := report.Simulate(m)
-	if err != nil {
-		return badf("%s: %v", name, err)
-	}
+	rs := &sim.Sim
 	if *measured != "" {
 		run, _, err := readVerificationRun(m, *measured)
 		if err != nil {
@@ -226,7 +224,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintf(tw, "%s\tmin Rs\tcritical pair\trun (min)\t\n", *vary)
 	for _, p := range pts {
 		if !p.Valid {
-			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, textsafe.Inert(p.Reason))
+			fmt.Fprintf(tw, "%.6g\t-\tnot a valid program: %s\t\t\n", p.Value, textsafe.Inert(p.Reason))
 			continue
 		}
 		rs, pair := "–", "no counted pair"
@@ -234,7 +232,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.Verdict(p.MinRs, m.Goal.MinResolution)
 			pair = format.CriticalPair(textsafe.Inert(p.Critical[0]), textsafe.Inert(p.Critical[1]))
 		}
-		fmt.Fprintf(tw, "%g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
+		fmt.Fprintf(tw, "%.6g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
 	}
 	tw.Flush()
 	if *csvF != "" {

@@ -143,7 +143,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 			j.Outliers = append(j.Outliers, outlierJSON{o.Run, o.Compound, o.MeasuredMin, o.PredictedMin, o.Studentized, o.Excluded})
 		}
 		j.Column.Diameter, j.Column.PlateHeight, j.Column.PhaseRatio = rep.DiameterMM, rep.PlateHeightFactor, rep.PhaseRatio
-		if m.Column.Kind == "packed" {
+		if m.Column.Kind == model.Packed {
 			j.Column.Particle = &rep.ParticleUM
 		}
 		enc := json.NewEncoder(stdout)
@@ -170,7 +170,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		how = fmt.Sprintf("no degrees of freedom left: the method's retention_time_sd_min %.4f min assumed", rep.ResidualSDMin)
 	}
 	fmt.Fprintf(stdout, "\n± is one standard error; residual SD %s\n", how)
-	if m.Column.Kind == "packed" {
+	if m.Column.Kind == model.Packed {
 		fmt.Fprintf(stdout, "\nparticle size %.2f µm%s · phase ratio %.4g (given) · plate-height factor %.3f%s\n", rep.ParticleUM, fitted(rep.ParticleFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
 	} else {
 		fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · phase ratio %.4g · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
@@ -207,8 +207,8 @@ Retention indices of the method's compounds against its ladder n-alkanes
 (compounds with alkane_carbons): programmed indices (van den Dool & Kratz)
 under the method's oven program, or with --isothermal-c isothermal Kováts
 indices at T °C. Compounds outside the ladder get no index. A compound given
-only by retention_index is modelled as the virtual n-alkane of that carbon
-number (ΔH, ΔS linear in carbon number across the ladder).
+only by retention_index has its ln K interpolated between the two ladder
+alkanes that bracket it, so it keeps its index at every temperature.
 
 Flags:
 `
@@ -250,10 +250,10 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	retention := make([]float64, len(m.Compounds))
 	for i := range m.Compounds {
 		if kovats {
-			retention[i] = s.sys.Cond.RetentionFactor(&s.sys.Compounds[i], *iso+model.ZeroCelsius)
+			retention[i] = s.System.Cond.RetentionFactor(&s.System.Compounds[i], *iso+model.ZeroCelsius)
 		}
 	}
-	for _, pk := range s.res.Peaks {
+	for _, pk := range s.Result.Peaks {
 		if !kovats {
 			retention[pk.Compound] = pk.RetentionTime
 		}
@@ -275,7 +275,7 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	for i, c := range m.Compounds {
 		e := indexEntryJSON{Name: c.Name, From: "entered"}
 		if c.FromIndex {
-			e.From = "from retention index (virtual n-alkane)"
+			e.From = "from retention index (ln K between the bracketing ladder alkanes)"
 		}
 		if c.RetentionIndex > 0 {
 			g := c.RetentionIndex
@@ -309,6 +309,6 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", textsafe.Inert(e.Name), idx, given, textsafe.Inert(e.From))
 	}
 	tw.Flush()
-	fmt.Fprintln(stdout, "\nCompounds given by retention index are modelled as the virtual n-alkane of that carbon number: an assumption, refine them with fit when runs exist.")
+	fmt.Fprintln(stdout, "\nCompounds given by retention index have ln K interpolated between the bracketing ladder alkanes (their index taken as independent of temperature): an assumption, refine them with fit when runs exist.")
 	return nil
 }

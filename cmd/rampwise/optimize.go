@@ -112,7 +112,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	prob := methodsearch.Problem(m, before.sys)
+	prob := methodsearch.Problem(m, before.System)
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
@@ -124,7 +124,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	}
 
 	after := m.Clone()
-	oven, _, err := methodsearch.KeypadProgram(m, before.sys, res)
+	oven, _, err := methodsearch.KeypadProgram(m, before.System, res)
 	if err != nil {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
 	}
@@ -134,7 +134,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
 	}
 	meets := func(s *simulation) bool {
-		return s.res.Critical < 0 || s.res.MinResolution >= m.Goal.MinResolution
+		return s.Result.Critical < 0 || s.Result.MinResolution >= m.Goal.MinResolution
 	}
 	met := res.Feasible() && meets(afterSim)
 
@@ -148,8 +148,8 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 			Feasible:    met,
 			Objective:   m.Goal.Objective.String(),
 			Program:     programToJSON(after.Oven),
-			RunTime:     afterSim.res.RunTime / 60,
-			CycleTime:   afterSim.res.CycleTime / 60,
+			RunTime:     afterSim.Result.RunTime / 60,
+			CycleTime:   afterSim.Result.CycleTime / 60,
 			Evaluations: res.Evaluations,
 			Elapsed:     res.Elapsed.Seconds(),
 			TargetRs:    m.Goal.MinResolution,
@@ -161,7 +161,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		j.MinResolution, j.CriticalPair = sj.MinResolution, sj.CriticalPair
 		for _, i := range res.Limiting {
 			pr := res.Sim.Pairs[i]
-			j.Limiting = append(j.Limiting, []string{before.sys.Compounds[pr.First].Name, before.sys.Compounds[pr.Second].Name})
+			j.Limiting = append(j.Limiting, []string{before.System.Compounds[pr.First].Name, before.System.Compounds[pr.Second].Name})
 		}
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
@@ -189,8 +189,8 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "\tbefore\tafter\t")
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
-	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.res.RunTime/60, afterSim.res.RunTime/60)
-	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.res.CycleTime/60, afterSim.res.CycleTime/60)
+	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.Result.RunTime/60, afterSim.Result.RunTime/60)
+	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.Result.CycleTime/60, afterSim.Result.CycleTime/60)
 	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before, m.Goal.MinResolution), fmtRs(afterSim, m.Goal.MinResolution))
 	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
 	tw.Flush()
@@ -206,18 +206,18 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 }
 
 func fmtRs(s *simulation, target float64) string {
-	if s.res.Critical < 0 {
+	if s.Result.Critical < 0 {
 		return "-"
 	}
-	return format.RsNumber(s.res.MinResolution, target) + " " + format.Verdict(s.res.MinResolution, target)
+	return format.RsNumber(s.Result.MinResolution, target) + " " + format.Verdict(s.Result.MinResolution, target)
 }
 
 func critName(s *simulation) string {
-	if s.res.Critical < 0 {
+	if s.Result.Critical < 0 {
 		return "-"
 	}
-	cp := s.res.Pairs[s.res.Critical]
-	return format.CriticalPair(textsafe.Inert(s.sys.Compounds[cp.First].Name), textsafe.Inert(s.sys.Compounds[cp.Second].Name))
+	cp := s.Result.Pairs[s.Result.Critical]
+	return format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name))
 }
 
 // progressPrinter reports progress on stderr: a bar redrawn in place on a

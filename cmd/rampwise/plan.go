@@ -25,7 +25,8 @@ Says what to inject next so that the next injection is the last:
   inject   a scouting program, within every instrument limit of the method,
            chosen to shrink the uncertainty of the resolution of the pairs
            that are or could become critical near the optimum (the run that
-           most reduces the summed variance of those resolutions);
+           leaves the least shortfall of the margin, by the expected
+           posterior SD of those resolutions);
   verify   the optimized program, when its predicted minimum resolution
            clears the target by z standard deviations (z = [goal.robust]
            retention_sigma, at least 3; parameters and measurement) and holds

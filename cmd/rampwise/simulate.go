@@ -27,6 +27,11 @@ that involve a target compound, and the critical pair. Without FILE the
 built-in demo method is used. The column may be wall-coated, packed or
 porous-layer ([column] kind); with [limits] coolant_c the oven may start
 below ambient, and the cautions for the cryogenic coolant are printed.
+A program beyond an instrument limit (max_rate_c_min, rate bands, the inlet
+pressure limits, max_temp_c, max_isothermal_c, ambient or coolant_c) is
+refused with file, line and key (exit 2); one that only breaks a search bound
+(oven_min_c, max_hold_min, keypad steps, min_first_k) is simulated as it is,
+with a warning.
 
 Flags:
 `
@@ -67,20 +72,17 @@ func finiteOrNil(x float64) *float64 {
 	return &x
 }
 
-// simulation is a method's system and the result of its program.
-type simulation struct {
-	method *methodfile.Method
-	sys    *model.System
-	res    model.Result
-}
+// simulation is a method's system and the result of its program: the
+// report's Sim, with what the commands print from it.
+type simulation struct{ report.Sim }
 
 func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 	sys, err := m.System()
 	if err != nil {
 		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
 	}
-	s := &simulation{method: m, sys: sys}
-	if err := sys.Simulate(m.ModelProgram(), &s.res); err != nil {
+	s := &simulation{report.Sim{Method: m, System: sys}}
+	if err := sys.Simulate(m.ModelProgram(), &s.Result); err != nil {
 		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
 	}
 	return s, nil
@@ -88,11 +90,11 @@ func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 
 // warnings are the cautions a chromatographer needs with this result.
 func (s *simulation) warnings(prog model.Program) []string {
-	w := checks.Warnings(s.method, s.sys, &s.res)
-	if s.sys.Cond.Carrier.Gas.Flammable() {
+	w := checks.Warnings(s.Method, s.System, &s.Result)
+	if s.System.Cond.Carrier.Gas.Flammable() {
 		w = append(w, model.HydrogenCaution)
 	}
-	if note := checks.CoolantNote(s.method); note != "" {
+	if note := checks.CoolantNote(s.Method); note != "" {
 		w = append(w, note, model.CryogenCaution)
 	}
 	return w
@@ -106,7 +108,7 @@ func fmtMin(s float64) string {
 }
 
 func (s *simulation) json(prog model.Program) simulateJSON {
-	r := &s.res
+	r := &s.Result
 	out := simulateJSON{
 		HoldupTime: r.HoldupTime / 60,
 		RunTime:    r.RunTime / 60,
@@ -119,7 +121,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 		out.Warnings = []string{}
 	}
 	for _, pk := range r.Peaks {
-		c := &s.sys.Compounds[pk.Compound]
+		c := &s.System.Compounds[pk.Compound]
 		out.Peaks = append(out.Peaks, peakJSON{
 			Name:            c.Name,
 			RetentionTime:   finiteOrNil(pk.RetentionTime / 60),
@@ -133,7 +135,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 	}
 	for _, pr := range r.Pairs {
 		out.Pairs = append(out.Pairs, pairJSON{
-			First: s.sys.Compounds[pr.First].Name, Second: s.sys.Compounds[pr.Second].Name,
+			First: s.System.Compounds[pr.First].Name, Second: s.System.Compounds[pr.Second].Name,
 			Resolution: pr.Resolution, Counts: pr.Counts,
 		})
 	}
@@ -141,7 +143,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 		v := r.MinResolution
 		out.MinResolution = &v
 		cp := r.Pairs[r.Critical]
-		out.CriticalPair = []string{s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name}
+		out.CriticalPair = []string{s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name}
 	}
 	return out
 }
@@ -160,8 +162,8 @@ func resolutionAfter(r *model.Result) []float64 {
 }
 
 func (s *simulation) writeTable(w io.Writer, name string) {
-	r := &s.res
-	m := s.method
+	r := &s.Result
+	m := s.Method
 	title := m.Title
 	if title == "" {
 		title = name
@@ -172,7 +174,7 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 	fmt.Fprintf(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\t%s\t%s\t\n", format.HeadRsNext, format.HeadTarget)
 	rs := resolutionAfter(r)
 	for i, pk := range r.Peaks {
-		c := &s.sys.Compounds[pk.Compound]
+		c := &s.System.Compounds[pk.Compound]
 		rsText := ""
 		if !math.IsNaN(rs[i]) {
 			rsText = format.Pair(rs[i], m.Goal.MinResolution)
@@ -199,41 +201,29 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 }
 
 func (s *simulation) summary() string {
-	r := &s.res
+	r := &s.Result
 	crit := "no counted pair"
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.method.Goal.MinResolution),
-			format.CriticalPair(textsafe.Inert(s.sys.Compounds[cp.First].Name), textsafe.Inert(s.sys.Compounds[cp.Second].Name)))
+		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.Method.Goal.MinResolution),
+			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }
 
-func describeColumn(m *methodfile.Method) string {
-	c, g := m.Column, m.Carrier
-	phase := c.Phase
-	if phase == "" {
-		phase = "phase not named"
-	}
-	flow := fmt.Sprintf("%s mL/min constant flow", fmtNum(g.FlowMLMin))
-	if g.Mode == model.ConstantPressure {
-		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
-	}
-	return fmt.Sprintf("%s %s (max %s °C) · %s %s · %s outlet",
-		c.Describe(), textsafe.Inert(phase), fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
-}
+func describeColumn(m *methodfile.Method) string { return textsafe.Inert(m.Describe()) }
 
-func describeProgram(o methodfile.Oven) string { return report.Program(o) }
+func describeProgram(o methodfile.Oven) string { return o.Describe() }
 
 func round(x float64, digits int) float64 {
 	p := math.Pow(10, float64(digits))
 	return math.Round(x*p) / p
 }
 
-func fmtNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+func fmtNum(x float64) string { return format.Num(x) }
 
 func (s *simulation) writeCSV(w io.Writer) error {
-	rs := report.Sim{Method: s.method, System: s.sys, Result: s.res}
+	rs := s.Sim
 	data, err := rs.CSV()
 	if err != nil {
 		return err

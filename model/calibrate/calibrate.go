@@ -152,7 +152,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		}
 	}
 	rep.ParticleUM = m.Column.ParticleUM
-	if len(withHoldup) > 0 && out.Column.Kind == "packed" {
+	if len(withHoldup) > 0 && out.Column.Kind == model.Packed {
 		dp, err := fitParticle(out, runs, withHoldup)
 		if err != nil {
 			return nil, err

@@ -52,7 +52,7 @@ func ColumnCapacity(c methodfile.Column) float64 {
 	if c.HasCapacity && c.CapacityNG > 0 {
 		return c.CapacityNG
 	}
-	if c.Kind == "packed" {
+	if c.Kind == model.Packed {
 		return PackedCapacity
 	}
 	return Capacity(c.DiameterMM, c.FilmUM, 0)
@@ -89,11 +89,11 @@ func Overloads(m *methodfile.Method) []Overload {
 }
 
 // remedy is the column change that raises capacity, by kind.
-func remedy(kind string) string {
+func remedy(kind model.ColumnKind) string {
 	switch kind {
-	case "packed":
+	case model.Packed:
 		return "higher loading or a wider tube"
-	case "porous-layer":
+	case model.PorousLayer:
 		return "thicker layer or a wider bore"
 	}
 	return "thicker film"

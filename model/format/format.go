@@ -95,3 +95,12 @@ func Rs(rs, target float64) string {
 // Pair is the resolution of one adjacent pair in a peak table: two
 // decimals, or RsDigits near the target.
 func Pair(rs, target float64) string { return RsNumber(rs, target) }
+
+// Num is a number as the file would hold it, without trailing zeros: 1.2,
+// 325, 0.25; very small or very large magnitudes in exponent form (1e-09).
+func Num(x float64) string {
+	if a := math.Abs(x); a != 0 && (a < 1e-4 || a >= 1e9) {
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	}
+	return strconv.FormatFloat(x, 'f', -1, 64)
+}

@@ -28,3 +28,11 @@ func TestRs(t *testing.T) {
 		t.Error(CriticalPair("a", "b"))
 	}
 }
+
+func TestNum(t *testing.T) {
+	for x, want := range map[float64]string{1.2: "1.2", 325: "325", 0.25: "0.25", 1e-9: "1e-09", 0: "0", 101.325: "101.325", 2e9: "2e+09", -40: "-40"} {
+		if got := Num(x); got != want {
+			t.Errorf("Num(%v) = %q, want %q", x, got, want)
+		}
+	}
+}

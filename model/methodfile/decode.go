@@ -304,17 +304,6 @@ type bound struct {
 	loOpen, hiOpen bool
 }
 
-func (b bound) String() string {
-	l, r := "[", "]"
-	if b.loOpen {
-		l = "("
-	}
-	if b.hiOpen {
-		r = ")"
-	}
-	return fmt.Sprintf("%s%s, %s%s", l, fmtNum(b.lo), fmtNum(b.hi), r)
-}
-
 func fmtNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 // num checks an optional or required number against its range and returns
@@ -327,12 +316,7 @@ func (v *validator) num(path string, p *float64, required bool, def float64, b b
 		return def
 	}
 	x := *p
-	if !finite(x) {
-		v.fail(path, "must be a finite number, got %v", x)
-		return def
-	}
-	if x < b.lo || x > b.hi || (b.loOpen && x == b.lo) || (b.hiOpen && x == b.hi) {
-		v.fail(path, "%s %s is out of range %s %s", fmtNum(x), unit, b, unit)
+	if !v.in(path, x, b.rng(unit), "") {
 		return def
 	}
 	return x
@@ -447,7 +431,7 @@ func (v *validator) column(r *rawMethod, m *Method) {
 		return
 	}
 	c := r.Column
-	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
+	m.Column.Kind = choice(v, "column.kind", c.Kind, false, model.WallCoated, model.ParseColumnKind)
 	kr := rulesFor(m.Column.Kind)
 	m.Column.LengthM = v.opt("column.length_m", c.LengthM, true, 30)
 	m.Column.DiameterMM = v.opt("column.diameter_mm", c.DiameterMM, true, 0.25)
@@ -665,6 +649,9 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 		}
 		if rc.AlkaneCarbons != nil {
 			c.AlkaneCarbons = whole(*rc.AlkaneCarbons)
+			if c.AlkaneCarbons == 0 { // 0 would read as "not a ladder alkane"
+				v.intIn(base+".alkane_carbons", 0, 1, 100)
+			}
 		}
 		if rc.RetentionIndex != nil {
 			c.RetentionIndex = *rc.RetentionIndex

@@ -119,6 +119,7 @@ func (m *Method) ValidateKey(key string) error {
 	case "column":
 		v.checkColumn(m)
 		v.checkProgram(m)
+		v.checkGoal(m) // goal.bakeout_c is bounded by the column maximum
 		v.checkPressure(m)
 	case "carrier":
 		v.checkCarrier(m)

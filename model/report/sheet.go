@@ -6,8 +6,8 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
-	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/model/format"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 // Sheet is the method sheet in Markdown: column, carrier and pressure mode
@@ -36,9 +36,9 @@ func (s *Sim) Sheet() []byte {
 		phase = "(not named)"
 	}
 	fmt.Fprintf(&b, "| stationary phase | %s |\n", textsafe.Inert(phase))
-	if m.Column.Kind == "packed" || m.Column.Kind == "porous-layer" {
+	if m.Column.Kind != model.WallCoated {
 		fmt.Fprintf(&b, "| column | %s, maximum %s °C |\n", m.Column.Describe(), num(m.Column.MaxTempC))
-		if m.Column.Kind == "porous-layer" { // a packed column's is in its description
+		if m.Column.Kind == model.PorousLayer { // a packed column's is in its description
 			fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
 		}
 	} else {
@@ -124,10 +124,10 @@ func (s *Sim) Sheet() []byte {
 		fmt.Fprintf(&b, "- ΔH and ΔS in the method file (entered, or fitted from scouting runs with `rampwise fit`): %s.\n", strings.Join(entered, ", "))
 	}
 	if len(idx) > 0 {
-		fmt.Fprintf(&b, "- From retention indices on this phase, modelled as virtual n-alkanes (an assumption): %s.\n", strings.Join(idx, ", "))
+		fmt.Fprintf(&b, "- From retention indices on this phase, ln K interpolated between the bracketing ladder alkanes (the index taken as independent of temperature, an assumption): %s.\n", strings.Join(idx, ", "))
 	}
 	ideal := "ideal Golay column"
-	if m.Column.Kind == "packed" {
+	if m.Column.Kind == model.Packed {
 		ideal = "the van Deemter plate height with the column's eddy, obstruction and mobile-phase factors"
 	}
 	fmt.Fprintf(&b, "- Plate-height factor %s (1 = %s).\n", num(m.Column.PlateHeight), ideal)

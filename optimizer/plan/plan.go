@@ -5,14 +5,19 @@
 //
 //   - inject: a scouting program, within every instrument limit of the
 //     method, chosen to shrink the uncertainty of the resolution of the
-//     pairs that are or could become critical near the optimum. The
-//     criterion is the expected reduction of the variance of those
-//     resolutions (a linear, "L-optimum" design: Atkinson, Donev & Tobias,
-//     Optimum Experimental Designs, with SAS, Oxford 2007, §10.1; with one
-//     pair it is c-optimum). The variances come from first-order propagation
-//     of each compound's (ΔH, ΔS) covariance; a candidate run updates that
-//     covariance by its retention-time sensitivities (a Bayesian update
-//     with the retention-time SD as the measurement error).
+//     pairs that are or could become critical near the optimum: the run
+//     after which the summed squared shortfall of the margin,
+//     Σ max(0, target − Rs + z·SD_after)², is least, SD_after being each
+//     pair's expected posterior SD. This is expected reduction of the Rs
+//     variance weighted towards the pairs that would block a verification,
+//     a Bayesian linear design (Atkinson, Donev & Tobias, Optimum
+//     Experimental Designs, with SAS, Oxford 2007, criteria of optimality:
+//     linear and c-optimality; Chaloner & Verdinelli, Statistical Science
+//     10, 1995, 273); the weighting is ours. The variances come from
+//     first-order propagation of each compound's (ΔH, ΔS) covariance; a
+//     candidate run updates that covariance by its retention-time
+//     sensitivities (a Bayesian update with the retention-time SD as the
+//     measurement error).
 //   - verify: the optimized program, when its predicted minimum resolution
 //     minus z standard deviations (parameters and measurement) meets the
 //     target and, when [goal.robust] gives instrument tolerances, every
@@ -26,6 +31,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"sort"
 	"strings"
 
@@ -74,11 +80,16 @@ type Settings struct {
 	// trades a slower verified program for fewer injections, never a
 	// likelier failed verification.
 	MarginGain float64
+	// Draws is how many draws of the parameters from their uncertainty
+	// are optimized to find the pairs that could become critical near the
+	// optimum, for the design of a scouting run. Default 3.
+	Draws int
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
 	// is at most (1 + Tolerance) times that of the program now predicted
-	// to hold the margin. Default 0.5: after a passing verification a
-	// program predicted a little faster is mentioned, not demanded.
+	// to hold the margin. Default 1: after a passing verification a
+	// program predicted faster is mentioned, not demanded; a slow scouting
+	// ramp that happens to meet the target is not taken for the method.
 	Tolerance float64
 }
 
@@ -98,8 +109,11 @@ func (s Settings) withDefaults() Settings {
 	if s.Slower <= 0 {
 		s.Slower = 0.25
 	}
+	if s.Draws <= 0 {
+		s.Draws = 3
+	}
 	if s.Tolerance <= 0 {
-		s.Tolerance = 0.5
+		s.Tolerance = 1
 	}
 	return s
 }
@@ -301,6 +315,18 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	bestOven, best = nomOven, nominal
 
 	// inject: the scouting run that shrinks the Rs variance the most
+	// where the optimum could be: the optimized programs of a few draws of
+	// the parameters from their uncertainty, so that the pairs critical
+	// there are weighed too
+	for k := 0; k < s.Draws && ctx.Err() == nil; k++ {
+		o, ok, err := st.optimizeDraw(ctx, target, s.Optimizer, uint64(k+1))
+		if err != nil {
+			return nil, err
+		}
+		if ok {
+			tried = append(tried, o)
+		}
+	}
 	d, err := st.design(tried, target, z)
 	if err != nil {
 		return nil, err
@@ -608,6 +634,48 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 	}
 	oven := onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits)
 	return oven, res.Feasible(), nil
+}
+
+// optimizeDraw optimizes, at the target, the method with every compound's
+// parameters drawn from their uncertainty (Gaussian, seeded by the
+// optimizer's seed and draw, so that a plan repeats exactly).
+func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.Settings, draw uint64) (methodfile.Oven, bool, error) {
+	seed := s.Seed
+	if seed == 0 {
+		seed = 1
+	}
+	rng := rand.New(rand.NewPCG(seed, draw))
+	m := st.m.Clone()
+	m.Compounds = append([]methodfile.Compound(nil), st.m.Compounds...)
+	for i := range m.Compounds {
+		c := st.cov[i]
+		// Cholesky of the 2×2 covariance
+		l11 := math.Sqrt(math.Max(c.hh, 0))
+		var l21, l22 float64
+		if l11 > 0 {
+			l21 = c.hs / l11
+			l22 = math.Sqrt(math.Max(c.ss-l21*l21, 0))
+		}
+		// at most three SDs, so that a draw stays a plausible compound
+		z1 := math.Max(-3, math.Min(3, rng.NormFloat64()))
+		z2 := math.Max(-3, math.Min(3, rng.NormFloat64()))
+		m.Compounds[i].DHkJ += l11 * z1 / 1000
+		m.Compounds[i].DS += l21*z1 + l22*z2
+		if !(m.Compounds[i].DHkJ < 0) {
+			m.Compounds[i].DHkJ = st.m.Compounds[i].DHkJ
+			m.Compounds[i].DS = st.m.Compounds[i].DS
+		}
+	}
+	m.Goal.MinResolution = target
+	sys, err := m.System()
+	if err != nil {
+		return methodfile.Oven{}, false, nil // an implausible draw: skip it
+	}
+	res, err := optimizer.Optimize(ctx, methodsearch.Problem(m, sys), s)
+	if err != nil {
+		return methodfile.Oven{}, false, nil
+	}
+	return onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits), res.Feasible(), nil
 }
 
 // duration is the program's run time or cycle time (the goal's objective),
