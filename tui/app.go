@@ -499,12 +499,13 @@ func (a *App) askQuit() {
 		a.sh.send(quitMsg{})
 		return
 	}
-	a.open(newConfirm(&a.sh, "unsaved changes", "save them before quitting?", []choice{
+	// no yes/no: "y" to "save them?" could be read either way
+	a.open(newConfirm(&a.sh, "unsaved changes", "s saves and quits · d discards the changes and quits · esc stays", []choice{
 		{keys: []string{"s"}, label: "save and quit", msgs: []tea.Msg{saveMsg{quit: true}}},
-		{keys: []string{"y"}, label: "quit without saving", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
-		{keys: []string{"esc", "n"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
+		{keys: []string{"d"}, label: "discard the changes and quit", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
+		{keys: []string{"esc"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
 	}))
-	a.say(msgWarn, "unsaved changes: s save and quit · y quit without saving · esc stay")
+	a.say(msgWarn, "unsaved changes: s save and quit · d discard and quit · esc stay")
 }
 
 // forgetMsg drops the guard's unsaved method (quitting without saving).

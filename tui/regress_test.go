@@ -76,8 +76,8 @@ func TestQuitFromFitReview(t *testing.T) {
 	if _, ok := a.overlay.(*confirmDialog); !ok {
 		t.Fatalf("ctrl+c did not ask: %T", a.overlay)
 	}
-	if !press(a, "y") {
-		t.Error("y did not quit")
+	if !press(a, "d") {
+		t.Error("d did not quit")
 	}
 }
 
