@@ -421,6 +421,8 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		return a.askExport(), true
 	case key.Matches(msg, k.Fit):
 		a.open(newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} }))
+	case key.Matches(msg, k.Verify):
+		a.open(newPrompt(&a.sh, "verification run (peak table, .cdf chromatogram or runs .toml): ", "", func(text string) tea.Msg { return startVerifyMsg{path: strings.TrimSpace(text)} }))
 	case key.Matches(msg, k.Compare):
 		m := a.sh.method
 		a.open(newPrompt(&a.sh, "columns to compare (lengths m, diameters mm, films µm): ",
@@ -505,6 +507,10 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		return a.startExport(msg.base)
 	case startFitMsg:
 		return a.startFit(msg.path)
+	case startVerifyMsg:
+		return a.startVerify(msg.path)
+	case measuredMsg:
+		a.chart.Update(msg)
 	case startCompareMsg:
 		return a.startCompare(msg.text)
 	case startSweepMsg:

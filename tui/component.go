@@ -102,4 +102,5 @@ var (
 	_ component = (*helpDialog)(nil)
 	_ component = (*progressDialog)(nil)
 	_ component = (*cautionDialog)(nil)
+	_ component = (*verifyDialog)(nil)
 )

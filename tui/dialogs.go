@@ -264,6 +264,8 @@ func dialogName(d component) string {
 		return "background work"
 	case *cautionDialog:
 		return "cautions"
+	case *verifyDialog:
+		return "verification run"
 	}
 	return "dialog"
 }

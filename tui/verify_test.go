@@ -1,0 +1,83 @@
+package tui
+
+import (
+	"math"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// V reads a verification run (a peak table here), draws it below the
+// predicted chromatogram with the matched peaks joined, and lists every
+// compound's Δt and whether the measured run meets the target, as check
+// judges it; esc takes it off the chart.
+func TestVerificationRun(t *testing.T) {
+	a, _ := newApp(t, 120, 40)
+	plain := a.chart.View()
+	run, _ := filepath.Abs("../testdata/lab/verify.csv")
+	press(a, "V", run, "enter")
+	d, ok := a.overlay.(*verifyDialog)
+	if !ok {
+		t.Fatalf("no verification dialog: %T %s", a.overlay, a.message)
+	}
+	ck := d.v.ck
+	if len(ck.Compounds) != len(a.Method().Compounds) {
+		t.Errorf("%d compounds judged, the method has %d", len(ck.Compounds), len(a.Method().Compounds))
+	}
+	s := screen(a)
+	verdict := "target met as measured"
+	if !ck.Met {
+		verdict = "target NOT met as measured"
+	}
+	if !strings.Contains(s, verdict) || !strings.Contains(s, "Δt min") {
+		t.Errorf("no verdict %q or Δt column:\n%s", verdict, s)
+	}
+	matched := 0
+	for _, c := range ck.Compounds {
+		if !math.IsNaN(c.DeltaMin) {
+			matched++
+			if want := strings.TrimSpace(num3(c.MeasuredMin)); !strings.Contains(strings.Join(d.body(), "\n"), want) {
+				t.Errorf("measured %s of %s not shown", want, c.Name)
+			}
+		}
+	}
+	if matched == 0 || len(a.chart.meas.Matches) != matched {
+		t.Fatalf("%d matched, %d joins", matched, len(a.chart.meas.Matches))
+	}
+	chart := a.chart.View()
+	if chart == plain || !strings.Contains(chart, "below: measured verify.csv") {
+		t.Errorf("the chart does not draw the measured run:\n%s", chart)
+	}
+	// joins: layerJoin cells between the two baselines
+	joins := 0
+	w, h := a.chart.c.cv.Size()
+	for r := 0; r < h; r++ {
+		for c := 0; c < w; c++ {
+			if a.chart.c.cv.At(c, r).Layers&(1<<layerJoin) != 0 {
+				joins++
+			}
+		}
+	}
+	if joins < matched/2 {
+		t.Errorf("%d join cells for %d matched peaks", joins, matched)
+	}
+	press(a, "pgdown")
+	if d.off == 0 && len(d.body()) > d.rows() {
+		t.Error("the list does not scroll")
+	}
+	t.Log(screen(a))
+	press(a, "q")
+	if a.overlay != nil || a.chart.meas != nil {
+		t.Errorf("q left %T and the measured run on the chart", a.overlay)
+	}
+}
+
+// A file that is not a peak table is refused with its name, nothing opens.
+func TestVerificationRunBadFile(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	bad, _ := filepath.Abs("../testdata/demo.toml") // a method, not a runs file
+	press(a, "V", bad, "enter")
+	if _, ok := a.overlay.(*verifyDialog); ok || !strings.Contains(a.message, "demo.toml") {
+		t.Errorf("a method file taken as a verification run: %T %q", a.overlay, a.message)
+	}
+}
