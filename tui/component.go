@@ -103,4 +103,5 @@ var (
 	_ component = (*progressDialog)(nil)
 	_ component = (*cautionDialog)(nil)
 	_ component = (*verifyDialog)(nil)
+	_ component = (*planDialog)(nil)
 )

@@ -266,6 +266,8 @@ func dialogName(d component) string {
 		return "cautions"
 	case *verifyDialog:
 		return "verification run"
+	case *planDialog:
+		return "next run"
 	}
 	return "dialog"
 }
