@@ -149,7 +149,7 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 		px, py = x, y
 	}
 	if in.meas != nil {
-		c.measured(in, base, dw, dh, t0, span)
+		c.measured(in, base, dw, dh, t0, span, ymax)
 	}
 	// labels: elution-order numbers above the apexes
 	crit := map[int]bool{}
@@ -221,12 +221,18 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 // (baseline at dot row base), scaled as the figure scales it
 // (report.Measured.Scale), and joins each matched peak's predicted time on
 // the predicted baseline to its measured time on the measured one.
-func (c *chart) measured(in chartInput, base, dw, dh int, t0, span float64) {
+func (c *chart) measured(in chartInput, base, dw, dh int, t0, span, ymax float64) {
 	top := base + 8 // a text row apart, for the joins
 	if top >= dh-1 {
 		return
 	}
-	scale := in.meas.Scale((t0 + span) / 60)
+	// on the prediction's scale: its trace at 1 for the tallest point shown
+	scale := in.meas.Scale((t0+span)/60, func(tmin float64) float64 {
+		if !(ymax > 0) {
+			return 0
+		}
+		return signalAt(in, tmin*60) / ymax
+	})
 	mrow := func(v float64) int { return top + int(math.Round(v/1.2*float64(dh-1-top))) }
 	prev := -1
 	// a peak narrower than a dot column still shows its apex

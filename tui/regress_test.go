@@ -76,8 +76,8 @@ func TestQuitFromFitReview(t *testing.T) {
 	if _, ok := a.overlay.(*confirmDialog); !ok {
 		t.Fatalf("ctrl+c did not ask: %T", a.overlay)
 	}
-	if !press(a, "y") {
-		t.Error("y did not quit")
+	if !press(a, "d") {
+		t.Error("d did not quit")
 	}
 }
 
@@ -535,5 +535,67 @@ func TestFiveRampResultFits(t *testing.T) {
 	}
 	if !strings.Contains(s, "0.125") {
 		t.Errorf("holds not shown at the precision saved:\n%s", s)
+	}
+}
+
+// A key typed while a save runs in the background (ctrl+s q sent together)
+// waits for the save and then acts: here q quits once the file is saved.
+func TestKeyDuringSaveWaits(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	press(a, "-")
+	_, save := a.Update(tea.KeyMsg{Type: tea.KeyCtrlS}) // the save, not run yet
+	if save == nil || !a.saving() {
+		t.Fatal("ctrl+s started no save")
+	}
+	if _, cmd := a.Update(keyRune('q')); cmd != nil && runCmd(a, cmd) {
+		t.Fatal("quit before the save was done")
+	}
+	if len(a.queued) != 1 {
+		t.Fatalf("%d keys waiting, want 1", len(a.queued))
+	}
+	if !runCmd(a, save) {
+		t.Fatalf("q typed during the save did not quit after it: %s", a.message)
+	}
+	back, err := methodfile.ReadFile(path)
+	if err != nil || !back.Equal(a.Method()) {
+		t.Errorf("not saved before quitting: %v", err)
+	}
+}
+
+// At the end of piped keys the UI finishes as if the user quit: unsaved
+// changes are reported (the command writes the recovery file) and a save
+// under way is waited for.
+func TestEndOfInputQuits(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	if !send(a, InputEndedMsg{}) {
+		t.Fatal("the end of input did not quit")
+	}
+	if ended, unsaved := a.InputEnded(); !ended || unsaved {
+		t.Errorf("ended %v unsaved %v, want true false", ended, unsaved)
+	}
+
+	a, _ = newApp(t, 80, 24)
+	press(a, "-", "q") // the question is open when the keys run out
+	if !send(a, InputEndedMsg{}) {
+		t.Fatal("the end of input did not quit with the question open")
+	}
+	if _, unsaved := a.InputEnded(); !unsaved {
+		t.Error("unsaved changes not reported")
+	}
+	if p, err := a.guard.WriteRecovery(); err != nil || p == "" {
+		t.Errorf("no recovery written: %q %v", p, err)
+	}
+
+	a, _ = newApp(t, 80, 24)
+	press(a, "-")
+	_, save := a.Update(tea.KeyMsg{Type: tea.KeyCtrlS})
+	if _, cmd := a.Update(InputEndedMsg{}); cmd != nil && runCmd(a, cmd) {
+		t.Fatal("ended before the save was done")
+	}
+	if !runCmd(a, save) {
+		t.Fatal("did not end after the save")
+	}
+	if _, unsaved := a.InputEnded(); unsaved {
+		t.Error("saved, yet reported unsaved")
 	}
 }

@@ -125,7 +125,7 @@ func (m *Measured) draw(top *plot.Plot, endMin float64, predApex func(t float64)
 		}
 		pts = append(pts, plotter.XY{X: t, Y: y})
 	}
-	scale := m.Scale(endMin)
+	scale := m.Scale(endMin, predApex)
 	for i := range pts {
 		pts[i].Y = -scale(pts[i].Y)
 	}
@@ -165,24 +165,33 @@ func (m *Measured) samples() int {
 func (m *Measured) Signal(t float64) float64 { return m.signal(t) }
 
 // Scale maps the measured signal over 0..endMin min to the overlay's
-// height, 0 at the baseline (a trace's lowest tenth) and 1 at the tallest
-// matched peak (a solvent peak would flatten the rest), at most 1.2: the
+// height, 0 at the baseline (a trace's lowest tenth) and at most 1.2, on
+// the prediction's scale (the predicted trace scaled to 1, predApex its
+// height at a time in min): the median matched apex of the measured run
+// is drawn as tall as the median predicted one (a solvent peak would
+// otherwise flatten the rest); with no match, the tallest point is 1. The
 // figure and the terminal UI scale alike.
-func (m *Measured) Scale(endMin float64) func(y float64) float64 {
+func (m *Measured) Scale(endMin float64, predApex func(t float64) float64) func(y float64) float64 {
 	lo, hi := 0.0, math.Inf(-1)
 	if len(m.TraceT) > 0 {
 		lo = percentile(m.TraceY, 0.1)
 	}
-	if len(m.Matches) > 0 {
-		for _, x := range m.Matches {
-			hi = math.Max(hi, m.signal(x.MeasuredMin))
+	n := m.samples()
+	for i := 0; i < n; i++ {
+		if y := m.signal(endMin * float64(i) / float64(n-1)); !math.IsNaN(y) {
+			hi = math.Max(hi, y)
 		}
-	} else {
-		n := m.samples()
-		for i := 0; i < n; i++ {
-			if y := m.signal(endMin * float64(i) / float64(n-1)); !math.IsNaN(y) {
-				hi = math.Max(hi, y)
-			}
+	}
+	if len(m.Matches) > 0 {
+		var pm, mm []float64
+		for _, x := range m.Matches {
+			pm = append(pm, predApex(x.PredictedMin))
+			mm = append(mm, m.signal(x.MeasuredMin)-lo)
+		}
+		sort.Float64s(pm)
+		sort.Float64s(mm)
+		if p, q := pm[len(pm)/2], mm[len(mm)/2]; p > 0 && q > 0 {
+			hi = lo + q/p
 		}
 	}
 	span := hi - lo
