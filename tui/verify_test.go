@@ -2,9 +2,14 @@ package tui
 
 import (
 	"math"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+
+	"github.com/rampwise/rampwise/optimizer"
 )
 
 // V reads a verification run (a peak table here), draws it below the
@@ -79,5 +84,47 @@ func TestVerificationRunBadFile(t *testing.T) {
 	press(a, "V", bad, "enter")
 	if _, ok := a.overlay.(*verifyDialog); ok || !strings.Contains(a.message, "demo.toml") {
 		t.Errorf("a method file taken as a verification run: %T %q", a.overlay, a.message)
+	}
+}
+
+// Names from the method and the run file reach the verification and plan
+// dialogs inert (no raw control character on the screen).
+func TestVerifyAndPlanTextInert(t *testing.T) {
+	m := demoMethod(t)
+	m.Compounds[0].Name = "x\x1b[2Jy"
+	a, err := New(m, Options{NoColor: true, Optimizer: optimizer.Settings{Workers: 1, Starts: 2, Evaluations: 300}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.Update(tea.WindowSizeMsg{Width: 120, Height: 40})
+	csv := filepath.Join(t.TempDir(), "evil.csv")
+	data, _ := os.ReadFile("../testdata/lab/verify.csv")
+	data = []byte(strings.Replace(string(data), "Total", "20,1100.0,500.0,400.0,0.9,evil\x1b]0;owned\x07name\r\nTotal", 1))
+	if err := os.WriteFile(csv, data, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	press(a, "V", csv, "enter")
+	vd, ok := a.overlay.(*verifyDialog)
+	if !ok {
+		t.Fatalf("no verification: %s", a.message)
+	}
+	if b := strings.Join(vd.body(), "\n"); !strings.Contains(b, "evil") || !strings.Contains(b, "x\\x1b[2Jy") {
+		t.Errorf("the file's names are not shown (escaped):\n%s", b)
+	}
+	for i := 0; i < 6; i++ {
+		if v := a.View(); strings.ContainsRune(v, 0x1b) || strings.ContainsRune(v, 0x07) {
+			t.Fatalf("a raw control character reached the screen: %q", v)
+		}
+		press(a, "pgdown")
+	}
+	press(a, "esc", "P")
+	if _, ok := a.overlay.(*planDialog); !ok {
+		t.Fatalf("no plan: %s", a.message)
+	}
+	for i := 0; i < 8; i++ {
+		if v := a.View(); strings.ContainsRune(v, 0x1b) || strings.ContainsRune(v, 0x07) {
+			t.Fatalf("a raw control character reached the plan: %q", v)
+		}
+		press(a, "pgdown")
 	}
 }
