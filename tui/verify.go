@@ -110,7 +110,7 @@ func (a *App) verifyDone(v verifyOutcome) {
 	a.open(d)
 	a.chart.Update(measuredMsg{meas: v.meas})
 	if !v.same {
-		a.chart.Update(previewMsg{res: &v.pred, prog: v.prog, label: "predicted for the run's program", showIt: true})
+		a.chart.Update(previewMsg{res: &d.v.pred, prog: d.v.prog, label: "predicted for the run's program", showIt: true})
 	}
 	if v.ck.Met {
 		a.say(msgGood, "%s meets the target as measured · esc closes", inert(v.ck.Run.Name))

@@ -128,3 +128,41 @@ func TestVerifyAndPlanTextInert(t *testing.T) {
 		press(a, "pgdown")
 	}
 }
+
+// A runs file's last run is checked against the prediction of its own
+// program (shown in the chart), and a chromatogram file draws its trace.
+func TestVerificationRunsFileAndTrace(t *testing.T) {
+	a, _ := newApp(t, 120, 40)
+	runs, _ := filepath.Abs("../testdata/lab/runs.toml")
+	press(a, "V", runs, "enter")
+	d, ok := a.overlay.(*verifyDialog)
+	if !ok {
+		t.Fatalf("no verification dialog: %s", a.message)
+	}
+	if !d.v.same {
+		if res, _ := a.chart.shown(); res != &d.v.pred || !strings.Contains(a.chart.View(), "predicted for the run's program") {
+			t.Error("the chart does not show the prediction of the run's own program")
+		}
+	}
+	press(a, "esc")
+	cdf, _ := filepath.Abs("../testdata/lab/scout-8.cdf")
+	press(a, "V", cdf, "enter")
+	if _, ok := a.overlay.(*verifyDialog); !ok {
+		t.Fatalf("no verification dialog for a chromatogram: %s", a.message)
+	}
+	if m := a.chart.meas; m == nil || len(m.TraceT) == 0 {
+		t.Fatal("the chromatogram's trace is not on the chart")
+	}
+	cells := 0
+	w, h := a.chart.c.cv.Size()
+	for r := 0; r < h; r++ {
+		for c := 0; c < w; c++ {
+			if a.chart.c.cv.At(c, r).Layers&(1<<layerMeas) != 0 {
+				cells++
+			}
+		}
+	}
+	if cells < w/2 {
+		t.Errorf("the trace covers %d cells of a %d-wide chart", cells, w)
+	}
+}
