@@ -258,9 +258,9 @@ func (d *fitDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	if km, ok := msg.(tea.KeyMsg); ok {
 		switch {
 		case key.Matches(km, d.keys.Accept):
-			d.sh.send(closeMsg{}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"})
+			d.sh.send(closeMsg{}, fitTakenMsg{path: d.fit.path, prior: d.sh.method}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"}, replanMsg{})
 		case key.Matches(km, d.keys.Reject):
-			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"})
+			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"}, replanMsg{})
 		default:
 			scroll(&d.off, km, d.keys, len(d.body()), d.rows())
 		}

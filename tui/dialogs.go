@@ -264,6 +264,10 @@ func dialogName(d component) string {
 		return "background work"
 	case *cautionDialog:
 		return "cautions"
+	case *verifyDialog:
+		return "verification run"
+	case *planDialog:
+		return "next run"
 	}
 	return "dialog"
 }
