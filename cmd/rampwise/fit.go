@@ -2,10 +2,12 @@ package main
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
 	"sort"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
@@ -120,8 +122,23 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		return badf("%s: %v", files[1], err)
 	}
 	if *out != "" {
+		// The fit never writes a value the method file refuses (it warns
+		// instead); should the fitted method still not validate, refuse
+		// before touching the file, naming the user's path, not a line of
+		// text that was never written.
+		if err := rep.Method.Validate(); err != nil {
+			what := err.Error()
+			var fe *methodfile.Error
+			if errors.As(err, &fe) {
+				what = fe.Key + ": " + fe.Msg
+			}
+			return badf("--out %s: not saved: the fitted method would not be valid (%s)", *out, what)
+		}
 		if err := saveMethodOut(*out, files[0], rep.Method); err != nil {
-			return err
+			if strings.Contains(err.Error(), *out) {
+				return bad(err)
+			}
+			return badf("--out %s: not saved: %v", *out, err)
 		}
 	}
 	if *asJSON {
@@ -161,10 +178,21 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "compound\tΔH %s\t±\tΔS %s\t±\tΔCp\t±\truns\trms min\tmax min\t\n", format.UnitDH, format.UnitDS)
+	marked := false
 	for _, c := range rep.Compounds {
-		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%s\t%d\t%.4f\t%.4f\t\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, fmtErr(c.StdErrDCp), c.Runs, c.RMS, c.Max)
+		mark := ""
+		switch {
+		case c.NotWritten:
+			mark, marked = "  ✗ not written", true
+		case c.LargeError():
+			mark, marked = "  ⚠ large ±", true
+		}
+		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%s\t%d\t%.4f\t%.4f\t%s\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, fmtErr(c.StdErrDCp), c.Runs, c.RMS, c.Max, mark)
 	}
 	tw.Flush()
+	if marked {
+		fmt.Fprintf(stdout, "\n⚠ large ±: a standard error over %g %s (ΔH) or %g %s (ΔS); ✗ not written: outside the method file's ranges, the method keeps its values\n", calibrate.LargeSEDHkJ, format.UnitDH, calibrate.LargeSEDS, format.UnitDS)
+	}
 	how := fmt.Sprintf("pooled over the compounds: %.4f min with %d degrees of freedom", rep.ResidualSDMin, rep.DOF)
 	if rep.SDAssumed {
 		how = fmt.Sprintf("no degrees of freedom left: the method's retention_time_sd_min %.4f min assumed", rep.ResidualSDMin)
