@@ -383,8 +383,8 @@ func fitAll(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, opt Op
 		// ΔCp is fitted only with a run to spare: with as many runs as
 		// parameters the curve passes exactly through the times, leaving
 		// no residual to judge it by, and the three values can go anywhere
-		// along the near-degenerate valley (ΔCp −9000 J/(mol·K) on the
-		// demo's three runs).
+		// along the near-degenerate valley (ΔCp from −42 to +21 J/(mol·K),
+		// true 0, with zero residuals on the demo's three runs).
 		withDCp := opt.WithDCp && len(obs) >= 4
 		if opt.WithDCp && !withDCp {
 			held = append(held, name)
