@@ -185,11 +185,11 @@ func (d *resultDialog) render() {
 
 // --- the fit review ---
 
-// Standard errors above these are called large (our threshold: about what
-// moves a retention factor at 100 °C by 30 %).
+// Standard errors above these are called large: the thresholds fit uses
+// too (calibrate.LargeSEDHkJ, LargeSEDS).
 const (
-	largeErrDH = 1.0 // kJ/mol
-	largeErrDS = 2.5 // J/(mol·K)
+	largeErrDH = calibrate.LargeSEDHkJ // kJ/mol
+	largeErrDS = calibrate.LargeSEDS   // J/(mol·K)
 )
 
 type fitDialog struct {
@@ -235,7 +235,7 @@ func (d *fitDialog) body() []string {
 	var out []string
 	for _, c := range d.order {
 		mark := " "
-		if c.StdErrDH > largeErrDH || c.StdErrDS > largeErrDS {
+		if c.LargeError() {
 			mark = "⚠"
 		}
 		added := ""
