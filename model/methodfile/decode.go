@@ -217,6 +217,9 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 	dec.DisallowUnknownFields()
 	err := dec.Decode(target)
 	if err == nil {
+		if err := checkExactKeys(name, data, target); err != nil {
+			return nil, err
+		}
 		return locate(data), nil
 	}
 	var strict *toml.StrictMissingError
