@@ -68,8 +68,10 @@ func usage() string {
 	}
 	b.WriteString(`
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
-compounds). Without FILE, or with - for FILE or METHOD, the built-in demo
-method is used. rampwise help COMMAND (or rampwise COMMAND --help) explains a
+compounds). - for FILE or METHOD reads the method from standard input
+(cat m.toml | rampwise simulate -); without FILE, or with @demo for FILE or
+METHOD, the built-in demo method is used; an empty name ("") is refused.
+rampwise help COMMAND (or rampwise COMMAND --help) explains a
 command and its flags.
 
 Limits: the instrument limits in the file (limits.max_rate_c_min and
@@ -228,6 +230,10 @@ func parseFlags(fs *flag.FlagSet, args []string) ([]string, error) {
 		args = fs.Args()
 		if len(args) == 0 {
 			break
+		}
+		if strings.TrimSpace(args[0]) == "" {
+			// an unset shell variable ("$METHOD") must not mean the demo
+			return nil, badf("%s: an empty file name (give a method file, - for standard input, or %s for the built-in demo)", fs.Name(), DemoArg)
 		}
 		pos = append(pos, args[0])
 		args = args[1:]

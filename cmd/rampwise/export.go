@@ -24,7 +24,8 @@ labelled peaks, the critical pair marked, the oven program in a panel below
 on the same time axis), the peak table as CSV, and a Markdown method sheet
 (column, carrier, heated zones, oven program, limits, expected retention,
 critical pair, where the parameters come from, and the cautions). Every file
-is written atomically. Without METHOD's name, "-" uses the built-in demo.
+is written atomically. - as METHOD reads the method from standard input;
+@demo uses the built-in demo.
 
 Flags:
 `
@@ -101,8 +102,8 @@ hold_N, or the carrier's flow_ml_min or inlet_kpa) from A to B in N steps and
 reports the minimum resolution, the critical pair and the run time at each: a
 window diagram (Laub & Purnell 1975). With --vary2, a map of the minimum
 resolution over two values (a text heat map here, an image with --png).
-Steps where the program is not valid are listed with the reason. "-" as
-METHOD uses the built-in demo. A sweep is at most 100000 points (steps ×
+Steps where the program is not valid are listed with the reason. - as METHOD
+reads the method from standard input; @demo uses the built-in demo. A sweep is at most 100000 points (steps ×
 steps2) unless --max-points raises it; after a second, progress and an
 estimate of the time left are shown on stderr.
 

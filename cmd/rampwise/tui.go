@@ -40,6 +40,12 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	switch file {
+	case "-":
+		return badf("tui: the terminal UI reads its keys from standard input; give the method file's name (or %s for the built-in demo)", DemoArg)
+	case DemoArg:
+		file = ""
+	}
 	m, name, err := loadMethod(file)
 	if err != nil {
 		return err
