@@ -166,7 +166,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		if err != nil {
 			return err
 		}
-		grid, err := sweep.Two(m, pv, sweep.Steps(*from, *to, *steps), pv2, sweep.Steps(*from2, *to2, *steps2), progress)
+		grid, err := sweep.Two(m, pv, keypadSteps(m, pv, *from, *to, *steps), pv2, keypadSteps(m, pv2, *from2, *to2, *steps2), progress)
 		if err != nil {
 			return badf("sweep: %v", err)
 		}
@@ -195,24 +195,28 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		}
 		return nil
 	}
-	pts, err := sweep.One(m, pv, sweep.Steps(*from, *to, *steps), progress)
+	pts, err := sweep.One(m, pv, keypadSteps(m, pv, *from, *to, *steps), progress)
 	if err != nil {
 		return badf("sweep: %v", err)
 	}
-	fmt.Fprintf(stdout, "%s: sweep of %s (now %g)\n\n", textsafe.Inert(name), *vary, current)
+	step := m.Limits.Step(pv.Kind)
+	fmt.Fprintf(stdout, "%s: sweep of %s (now %s)\n\n", textsafe.Inert(name), *vary, format.OnStep(current, step))
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "%s\tmin Rs\tcritical pair\trun (min)\t\n", *vary)
 	for _, p := range pts {
 		if !p.Valid {
-			fmt.Fprintf(tw, "%.6g\t-\tnot a valid program: %s\t\t\n", p.Value, textsafe.Inert(p.Reason))
+			fmt.Fprintf(tw, "%s\t-\tnot a valid program: %s\t\t\n", format.OnStep(p.Value, step), textsafe.Inert(p.Reason))
 			continue
 		}
 		rs, pair := "–", "no counted pair"
 		if !math.IsNaN(p.MinRs) {
-			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.Verdict(p.MinRs, m.Goal.MinResolution)
+			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.VerdictAll(p.MinRs, m.Goal.MinResolution, len(p.NotEluted))
 			pair = format.CriticalPair(textsafe.Inert(p.Critical[0]), textsafe.Inert(p.Critical[1]))
 		}
-		fmt.Fprintf(tw, "%.6g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
+		if len(p.NotEluted) > 0 {
+			pair += "; " + format.NotEluted(inertAll(p.NotEluted))
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%.2f\t\n", format.OnStep(p.Value, step), rs, pair, p.RunTime)
 	}
 	tw.Flush()
 	if *csvF != "" {
@@ -235,6 +239,21 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 	}
 	return nil
+}
+
+// keypadSteps are n values from a to b, each on the value's keypad step
+// (what the oven takes: 236.7 °C, not 236.66666666666666), repeats left
+// out when the steps are finer than the keypad.
+func keypadSteps(m *methodfile.Method, pv model.ProgramValue, a, b float64, n int) []float64 {
+	step := m.Limits.Step(pv.Kind)
+	var out []float64
+	for _, x := range sweep.Steps(a, b, n) {
+		x = methodfile.OnStep(x, step)
+		if len(out) == 0 || x != out[len(out)-1] {
+			out = append(out, x)
+		}
+	}
+	return out
 }
 
 // defaultMaxPoints bounds a sweep's size unless --max-points raises it: a

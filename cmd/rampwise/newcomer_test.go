@@ -1,7 +1,9 @@
 package main
 
 import (
+	"encoding/json"
 	"os"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -65,4 +67,90 @@ func TestEmptyNameAndStdin(t *testing.T) {
 			t.Errorf("tui -: exit %d %q", code, errs)
 		}
 	})
+}
+
+// notElutingDemo is the demo with a program that resolves every eluted
+// pair (min Rs 1.71) but ends before nootkatone elutes.
+func notElutingDemo(t *testing.T) string {
+	t.Helper()
+	demo, err := os.ReadFile("../../testdata/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(demo), "rate_c_min = 12.0\nfinal_c = 240.0\nhold_min = 2.0", "rate_c_min = 3.0\nfinal_c = 180.0\nhold_min = 0.0", 1)
+	if text == string(demo) {
+		t.Fatal("fixture did not change")
+	}
+	path := t.TempDir() + "/late.toml"
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// A target that does not elute within the program makes the result not
+// met in simulate's summary and JSON, which names it.
+func TestSimulateNotElutedTargetNotMet(t *testing.T) {
+	path := notElutingDemo(t)
+	code, out, errs := runCmd(t, "simulate", path)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "min Rs 1.71 not met (target 1.50; nootkatone does not elute)") {
+		t.Errorf("summary does not say not met:\n%s", out)
+	}
+	code, out, errs = runCmd(t, "simulate", "--json", path)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var j struct {
+		MinResolution    *float64 `json:"min_resolution"`
+		GoalMet          *bool    `json:"goal_met"`
+		TargetsNotEluted []string `json:"targets_not_eluted"`
+	}
+	if err := json.Unmarshal([]byte(out), &j); err != nil {
+		t.Fatal(err)
+	}
+	if j.MinResolution == nil || *j.MinResolution < 1.5 || j.GoalMet == nil || *j.GoalMet || len(j.TargetsNotEluted) != 1 || j.TargetsNotEluted[0] != "nootkatone" {
+		t.Errorf("JSON: min_resolution %v, goal_met %v, targets_not_eluted %v", j.MinResolution, j.GoalMet, j.TargetsNotEluted)
+	}
+	code, out, _ = runCmd(t, "simulate", "--json", DemoArg)
+	if code != 0 || !strings.Contains(out, `"goal_met": false`) || !strings.Contains(out, `"targets_not_eluted": []`) {
+		t.Errorf("demo JSON lacks goal_met/targets_not_eluted")
+	}
+	code, out, _ = runCmd(t, "sweep", path, "--vary", "final_1", "--from", "170", "--to", "180", "--steps", "2")
+	if code != 0 || !strings.Contains(out, "not met") || !strings.Contains(out, "nootkatone does not elute") {
+		t.Errorf("sweep does not say not met:\n%s", out)
+	}
+}
+
+// Printed numbers carry no binary noise: the keypad-step note says what
+// the oven takes at the step's precision, and sweep steps are on the
+// keypad step (what the oven takes).
+func TestNoRawFloatsInMessages(t *testing.T) {
+	noise := regexp.MustCompile(`\d\.\d*(0000000|9999999)\d`)
+	demo, err := os.ReadFile("../../testdata/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(demo), "initial_c = 50.0", "initial_c = 82.25", 1)
+	text = strings.Replace(text, "final_c = 240.0", "final_c = 308.95", 1)
+	path := t.TempDir() + "/h.toml"
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCmd(t, "simulate", path)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "the oven takes 82.3 °C") || !strings.Contains(out, "the oven takes 308.9 °C") || noise.MatchString(out) {
+		t.Errorf("step notes:\n%s", out)
+	}
+	code, out, errs = runCmd(t, "sweep", DemoArg, "--vary", "final_1", "--from", "200", "--to", "310", "--steps", "4")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "\n236.7 ") || !strings.Contains(out, "(now 240.0)") || noise.MatchString(out) || strings.Contains(out, "236.66") {
+		t.Errorf("sweep steps:\n%s", out)
+	}
 }

@@ -209,7 +209,11 @@ func fmtRs(s *simulation, target float64) string {
 	if s.Result.Critical < 0 {
 		return "-"
 	}
-	return format.RsNumber(s.Result.MinResolution, target) + " " + format.Verdict(s.Result.MinResolution, target)
+	r := &s.Result
+	if missing := inertAll(s.System.NotElutedTargets(r)); len(missing) > 0 {
+		return format.RsNumber(r.MinResolution, target) + " not met (" + format.NotEluted(missing) + ")"
+	}
+	return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
 }
 
 func critName(s *simulation) string {

@@ -8,13 +8,13 @@ import (
 	"math"
 	"regexp"
 	"sort"
-	"strconv"
 	"strings"
 
 	toml "github.com/pelletier/go-toml/v2"
 	"github.com/pelletier/go-toml/v2/unstable"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/fsafe"
 )
 
@@ -307,7 +307,9 @@ type bound struct {
 	loOpen, hiOpen bool
 }
 
-func fmtNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+// fmtNum is a number in a message: at most 12 significant digits, so that
+// a computed value never shows binary noise (format.Clean).
+func fmtNum(x float64) string { return format.Clean(x) }
 
 // num checks an optional or required number against its range and returns
 // it (or def when absent).

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 )
 
 // The rules of a method apart from TOML decoding. Parse applies them after
@@ -508,7 +509,7 @@ func (m *Method) Advice() []Note {
 	}
 	step := func(key string, x, st float64, stepKey, unit string) {
 		if st > 0 && math.Abs(x/st-math.Round(x/st)) > 1e-6 {
-			out = append(out, Note{key, fmt.Sprintf("%s %s is not on the oven's %s %s step (limits.%s): the oven takes %s %s", fmtNum(x), unit, fmtNum(st), unit, stepKey, fmtNum(math.Round(x/st)*st), unit)})
+			out = append(out, Note{key, fmt.Sprintf("%s %s is not on the oven's %s %s step (limits.%s): the oven takes %s %s", fmtNum(x), unit, fmtNum(st), unit, stepKey, format.OnStep(x, st), unit)})
 		}
 	}
 	l := &m.Limits
