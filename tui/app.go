@@ -95,6 +95,11 @@ type App struct {
 	optSettings optimizer.Settings
 	job         *job
 	jobSeq      int // the last job's id
+	// keys (and the end of input) that came while a save ran: handled,
+	// in order, once it is done, so that ctrl+s q saves and then quits
+	queued []tea.Msg
+	// the keys came from a pipe or a file and it ended (InputEndedMsg)
+	inputEnded, endedUnsaved bool
 
 	view cachedView
 }
@@ -149,6 +154,16 @@ type (
 	discardRecoveryMsg struct{}
 )
 
+// InputEndedMsg tells the UI that its keys came from a pipe or a file and
+// that it has ended: the UI finishes as if the user quit, at once (a save
+// under way is waited for). With unsaved changes, InputEnded says so and
+// the caller writes the recovery file.
+type InputEndedMsg struct{}
+
+// InputEnded reports whether the UI ended at the end of its input, and
+// whether changes were unsaved then.
+func (a *App) InputEnded() (ended, unsaved bool) { return a.inputEnded, a.endedUnsaved }
+
 // Init implements tea.Model.
 func (a *App) Init() tea.Cmd { return nil }
 
@@ -171,7 +186,8 @@ func (a *App) say(k msgKind, format string, args ...any) {
 
 // systemKey is everything the model's tables depend on.
 func systemKey(m *methodfile.Method) string {
-	return fmt.Sprintf("%v|%v|%v|%v %v %v", m.Column, m.Carrier, m.Compounds, m.Limits.AmbientC, m.Limits.CooldownTauMin, m.Limits.EquilibrationMin)
+	return fmt.Sprintf("%v|%v|%v|%v %v %v|%v %v", m.Column, m.Carrier, m.Compounds, m.Limits.AmbientC, m.Limits.CooldownTauMin, m.Limits.EquilibrationMin,
+		m.Limits.HasCoolant, m.Limits.CoolantC) // the oven's sink and the tables' low end (MODEL.md §12)
 }
 
 // resimulate rebuilds the tables when the column, carrier or compounds
@@ -225,8 +241,18 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 	if m.Carrier.Gas.Flammable() && !prev.Carrier.Gas.Flammable() {
 		a.say(msgWarn, "%s · %s", what, model.HydrogenCaution)
 	}
+	if m.Limits.HasCoolant && !prev.Limits.HasCoolant {
+		a.open(newCautionDialog(&a.sh)) // the cryogen cautions, in full
+	} else if below(m) && !below(prev) {
+		a.say(msgWarn, "%s · %s", what, checks.CoolantNote(m))
+	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 	return true
+}
+
+// below reports a start below ambient (a coolant is needed).
+func below(m *methodfile.Method) bool {
+	return m.Limits.HasCoolant && m.Oven.InitialC <= m.Limits.AmbientC
 }
 
 // restore makes m the method without touching the undo stacks (undo, redo
@@ -290,6 +316,31 @@ func (a *App) handle(msg tea.Msg, cmds *[]tea.Cmd) {
 		a.sh.outbox = a.sh.outbox[1:]
 		*cmds = append(*cmds, a.intent(next))
 	}
+	if len(a.queued) > 0 && !a.saving() {
+		// the save is done: the keys typed meanwhile, in order (one that
+		// starts another save queues the rest again)
+		q := a.queued
+		a.queued = nil
+		for _, m := range q {
+			a.handle(m, cmds)
+		}
+	}
+}
+
+// saving reports whether a save runs in the background.
+func (a *App) saving() bool { return a.job != nil && a.job.save }
+
+// endOfInput finishes at the end of piped keys as quitting would: any work
+// stops and the UI ends; unsaved changes are reported by InputEnded.
+func (a *App) endOfInput() tea.Cmd {
+	if a.job != nil {
+		a.job.cancel()
+		a.job = nil
+	}
+	a.overlay, a.pending = nil, nil
+	a.inputEnded, a.endedUnsaved = true, a.Dirty()
+	a.guard.update(a.path, a.sh.method, a.Dirty())
+	return tea.Quit
 }
 
 // typing reports whether a text prompt has the keys (a paste stays whole).
@@ -305,9 +356,20 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 		a.width, a.height, a.ready = msg.Width, msg.Height, true
 		a.layout()
 		return nil
+	case InputEndedMsg:
+		if a.saving() {
+			a.queued = append(a.queued, msg)
+			return nil
+		}
+		return a.endOfInput()
 	case tea.KeyMsg:
 		if key.Matches(msg, a.keys.Interrupt) {
 			return a.interrupt()
+		}
+		if a.saving() {
+			// typed while the file is written: taken once it is done
+			a.queued = append(a.queued, msg)
+			return nil
 		}
 		if a.overlay != nil {
 			if key.Matches(msg, a.keys.Help) && a.dialogHelp() {
@@ -448,12 +510,13 @@ func (a *App) askQuit() {
 		a.sh.send(quitMsg{})
 		return
 	}
-	a.open(newConfirm(&a.sh, "unsaved changes", "save them before quitting?", []choice{
+	// no yes/no: "y" to "save them?" could be read either way
+	a.open(newConfirm(&a.sh, "unsaved changes", "s saves and quits · d discards the changes and quits · esc stays", []choice{
 		{keys: []string{"s"}, label: "save and quit", msgs: []tea.Msg{saveMsg{quit: true}}},
-		{keys: []string{"y"}, label: "quit without saving", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
-		{keys: []string{"esc", "n"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
+		{keys: []string{"d"}, label: "discard the changes and quit", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
+		{keys: []string{"esc"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
 	}))
-	a.say(msgWarn, "unsaved changes: s save and quit · y quit without saving · esc stay")
+	a.say(msgWarn, "unsaved changes: s save and quit · d discard and quit · esc stay")
 }
 
 // forgetMsg drops the guard's unsaved method (quitting without saving).
@@ -472,8 +535,6 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		a.say(msg.kind, "%s", msg.text)
 	case quitMsg:
 		return tea.Quit
-	case askQuitMsg:
-		a.askQuit()
 	case forgetMsg:
 		a.guard.update(a.path, a.sh.method, false)
 	case previewMsg:
@@ -652,6 +713,7 @@ type cancelMsg struct{}
 type job struct {
 	id     int
 	what   string
+	save   bool // a save: keys typed meanwhile wait for it
 	cancel context.CancelFunc
 	ch     chan tea.Msg // optimizer progress, or nil
 }

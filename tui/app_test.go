@@ -171,7 +171,7 @@ func TestTooSmallAndPlaceholder(t *testing.T) {
 func TestHydrogenCaution(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
 	press(a, "tab", "tab", "tab") // settings
-	for i := 0; i < 4; i++ {
+	for i := 0; i < 5; i++ {
 		press(a, "down")
 	}
 	press(a, "+")
@@ -222,8 +222,40 @@ func TestQuitAsksWithUnsavedChanges(t *testing.T) {
 	if !strings.Contains(screen(a), "unsaved changes") {
 		t.Error("no question")
 	}
-	if !press(a, "y") {
-		t.Error("y did not quit")
+	// y and n are no answer: "y" to "save them?" could mean either
+	for _, k := range []string{"y", "n", "Y"} {
+		if press(a, k) {
+			t.Fatalf("%s quit", k)
+		}
+		if _, ok := a.overlay.(*confirmDialog); !ok {
+			t.Fatalf("%s closed the question", k)
+		}
+	}
+	for _, want := range []string{"s save and quit", "d discard", "esc stay"} {
+		if !strings.Contains(screen(a), want) {
+			t.Errorf("question does not say %q:\n%s", want, screen(a))
+		}
+	}
+	if !press(a, "d") {
+		t.Error("d did not quit")
+	}
+	if p, _ := a.guard.WriteRecovery(); p != "" {
+		t.Error("discarded changes still held for recovery")
+	}
+	// s saves, then quits
+	a, path := newApp(t, 80, 24)
+	press(a, "-", "q")
+	if !press(a, "s") {
+		t.Fatal("s did not quit")
+	}
+	if back, err := methodfile.ReadFile(path); err != nil || !back.Equal(a.Method()) {
+		t.Errorf("s quit without saving: %v", err)
+	}
+	// ctrl+c asks the same question
+	a, _ = newApp(t, 80, 24)
+	press(a, "-", "ctrl+c")
+	if press(a, "y") || !strings.Contains(screen(a), "d discard") {
+		t.Error("ctrl+c: y quit, or not the same question")
 	}
 }
 

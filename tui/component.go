@@ -66,6 +66,7 @@ type (
 		prog   model.Program
 		label  string
 		showIt bool // draw the preview (true) or the method's run (false)
+		faint  bool // draw the other run faint and dotted beneath
 	}
 )
 
@@ -100,4 +101,5 @@ var (
 	_ component = (*promptDialog)(nil)
 	_ component = (*helpDialog)(nil)
 	_ component = (*progressDialog)(nil)
+	_ component = (*cautionDialog)(nil)
 )

@@ -52,7 +52,7 @@ func TestResultReplacesHelp(t *testing.T) {
 	}
 }
 
-// q and ctrl+c work while a fit waits for a decision; the footer lists
+// q closes a fit review and ctrl+c asks to quit while it waits; the footer lists
 // the dialog's keys, not the program's.
 func TestQuitFromFitReview(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
@@ -65,8 +65,8 @@ func TestQuitFromFitReview(t *testing.T) {
 	if !strings.Contains(foot, "take it") || strings.Contains(foot, "add ramp") {
 		t.Errorf("footer is not the dialog's: %q", foot)
 	}
-	if !press(a, "q") {
-		t.Error("q did nothing in the fit review (nothing unsaved: it should quit)")
+	if press(a, "q") || a.overlay != nil {
+		t.Errorf("q in the fit review should close it (keeping the current parameters), not quit: %T", a.overlay)
 	}
 	press(a, "F", runs, "enter", "y") // now there is something unsaved
 	press(a, "F", runs, "enter")
@@ -76,8 +76,8 @@ func TestQuitFromFitReview(t *testing.T) {
 	if _, ok := a.overlay.(*confirmDialog); !ok {
 		t.Fatalf("ctrl+c did not ask: %T", a.overlay)
 	}
-	if !press(a, "y") {
-		t.Error("y did not quit")
+	if !press(a, "d") {
+		t.Error("d did not quit")
 	}
 }
 
@@ -127,7 +127,7 @@ func TestSelectionVisibleWithoutColour(t *testing.T) {
 		t.Errorf("peak selection not marked:\n%s", s)
 	}
 	press(a, "tab")
-	if s := screen(a); !strings.Contains(s, "[30.0 m]") {
+	if s := screen(a); !strings.Contains(s, "[wall-coated]") {
 		t.Errorf("setting selection not marked:\n%s", s)
 	}
 }
@@ -147,7 +147,7 @@ func TestSeeBeforeTaking(t *testing.T) {
 		t.Error("the chart does not show the optimized run")
 	}
 	s := screen(a)
-	if !strings.Contains(s, "optimized program") {
+	if !strings.Contains(s, "optimized run") {
 		t.Errorf("chart heading does not say which run it shows:\n%s", s)
 	}
 	for _, r := range d.after.Oven.Ramps {
@@ -178,7 +178,7 @@ func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
 	}
 	want := holdup()
 	press(a, "shift+tab") // settings
-	for i := 0; i < 5; i++ {
+	for i := 0; i < 6; i++ {
 		press(a, "down")
 	}
 	press(a, "+") // constant pressure
@@ -209,7 +209,7 @@ func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
 // What is shown is what is saved.
 func TestValuesAtSavedPrecision(t *testing.T) {
 	a, path := newApp(t, 100, 32)
-	press(a, "shift+tab", "down", "down", "down", "down", "down", "down") // column flow
+	press(a, "shift+tab", "down", "down", "down", "down", "down", "down", "down") // column flow
 	press(a, "enter", "ctrl+u", "1.234567", "enter")
 	if got := a.Method().Carrier.FlowMLMin; got != 1.23 {
 		t.Errorf("flow kept as %v, want 1.23 (what the screen shows)", got)
@@ -307,7 +307,7 @@ func TestFlowWindowDiagram(t *testing.T) {
 		}
 	}
 	// in constant pressure, the inlet pressure, never above the limit
-	press(a, "esc", "down", "down", "down", "down", "down", "+", "s") // pressure mode
+	press(a, "esc", "down", "down", "down", "down", "down", "down", "+", "s") // pressure mode
 	d, ok = a.overlay.(*sweepDialog)
 	if !ok || d.spec.value.Kind != model.InletPressure || d.spec.unit != "kPa" {
 		t.Fatalf("no inlet-pressure diagram in constant pressure: %T %s", a.overlay, a.message)
@@ -535,5 +535,67 @@ func TestFiveRampResultFits(t *testing.T) {
 	}
 	if !strings.Contains(s, "0.125") {
 		t.Errorf("holds not shown at the precision saved:\n%s", s)
+	}
+}
+
+// A key typed while a save runs in the background (ctrl+s q sent together)
+// waits for the save and then acts: here q quits once the file is saved.
+func TestKeyDuringSaveWaits(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	press(a, "-")
+	_, save := a.Update(tea.KeyMsg{Type: tea.KeyCtrlS}) // the save, not run yet
+	if save == nil || !a.saving() {
+		t.Fatal("ctrl+s started no save")
+	}
+	if _, cmd := a.Update(keyRune('q')); cmd != nil && runCmd(a, cmd) {
+		t.Fatal("quit before the save was done")
+	}
+	if len(a.queued) != 1 {
+		t.Fatalf("%d keys waiting, want 1", len(a.queued))
+	}
+	if !runCmd(a, save) {
+		t.Fatalf("q typed during the save did not quit after it: %s", a.message)
+	}
+	back, err := methodfile.ReadFile(path)
+	if err != nil || !back.Equal(a.Method()) {
+		t.Errorf("not saved before quitting: %v", err)
+	}
+}
+
+// At the end of piped keys the UI finishes as if the user quit: unsaved
+// changes are reported (the command writes the recovery file) and a save
+// under way is waited for.
+func TestEndOfInputQuits(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	if !send(a, InputEndedMsg{}) {
+		t.Fatal("the end of input did not quit")
+	}
+	if ended, unsaved := a.InputEnded(); !ended || unsaved {
+		t.Errorf("ended %v unsaved %v, want true false", ended, unsaved)
+	}
+
+	a, _ = newApp(t, 80, 24)
+	press(a, "-", "q") // the question is open when the keys run out
+	if !send(a, InputEndedMsg{}) {
+		t.Fatal("the end of input did not quit with the question open")
+	}
+	if _, unsaved := a.InputEnded(); !unsaved {
+		t.Error("unsaved changes not reported")
+	}
+	if p, err := a.guard.WriteRecovery(); err != nil || p == "" {
+		t.Errorf("no recovery written: %q %v", p, err)
+	}
+
+	a, _ = newApp(t, 80, 24)
+	press(a, "-")
+	_, save := a.Update(tea.KeyMsg{Type: tea.KeyCtrlS})
+	if _, cmd := a.Update(InputEndedMsg{}); cmd != nil && runCmd(a, cmd) {
+		t.Fatal("ended before the save was done")
+	}
+	if !runCmd(a, save) {
+		t.Fatal("did not end after the save")
+	}
+	if _, unsaved := a.InputEnded(); unsaved {
+		t.Error("saved, yet reported unsaved")
 	}
 }

@@ -53,8 +53,15 @@ func (a *App) methodLine(w int) string {
 	if phase == "" {
 		phase = "phase not named"
 	}
-	s := fmt.Sprintf(" %s m × %s mm × %s µm, max %s °C · %s %s · goal Rs %.2f, %s, %d ramps · %s",
-		v("column.length_m"), v("column.diameter_mm"), v("column.film_um"), v("column.max_temp_c"), g.Gas, flow,
+	col := fmt.Sprintf("%s m × %s mm × %s µm", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
+	switch c.Kind {
+	case model.Packed:
+		col = fmt.Sprintf("packed %s m × %s mm, %s µm particles", v("column.length_m"), v("column.diameter_mm"), v("column.particle_um"))
+	case model.PorousLayer:
+		col = fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
+	}
+	s := fmt.Sprintf(" %s, max %s °C · %s %s · goal Rs %.2f, %s, %d ramps · %s",
+		col, v("column.max_temp_c"), g.Gas, flow,
 		m.Goal.MinResolution, m.Goal.Objective, m.Goal.Ramps, phase)
 	if g.Gas.Flammable() {
 		return a.st.Warn.Render(" ⚠ H₂ flammable ") + a.st.Dim.Render(ansi.Truncate(s, w-16, "…"))

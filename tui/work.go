@@ -211,7 +211,7 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 		return nil
 	}
 	m := a.sh.method
-	_, cmd := a.startJob("saving "+inert(path), func(ctx context.Context) any {
+	j, cmd := a.startJob("saving "+inert(path), func(ctx context.Context) any {
 		existed := false
 		if fp, err := fsafe.Take(path); err == nil && fp.Exists {
 			existed = true
@@ -219,6 +219,7 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 		kept, err := methodfile.Save(path, nil, m)
 		return saveOutcome{path: path, m: m, err: err, quit: quit, fresh: existed && !kept}
 	})
+	j.save = true
 	return cmd
 }
 

@@ -33,6 +33,7 @@ func init() {
 		{"optimize", "[FILE] [flags]", "find the fastest program meeting the target", runOptimize},
 		{"fit", "METHOD RUNS [flags]", "calibrate ΔH, ΔS (ΔCp) from scouting runs", runFit},
 		{"index", "METHOD [flags]", "retention indices against the ladder alkanes", runIndex},
+		{"check", "METHOD RUN [flags]", "does a measured run meet the target? (exit 0 yes, 3 no)", runCheck},
 		{"export", "METHOD [flags]", "figure (PNG/SVG/PDF), peak CSV, method sheet", runExport},
 		{"sweep", "METHOD [flags]", "window diagram of one or two program values", runSweep},
 		{"compare", "METHOD... [flags]", "rank phases and column dimensions", runCompare},
@@ -82,7 +83,8 @@ limits.coolant_c) refuse a program everywhere; the search bounds
 bind what optimize proposes and are only noted for a program set by hand.
 
 Exit codes: 0 success; 1 unexpected failure; 2 bad input (the message names
-file, line and key); 3 optimize could not meet the target resolution.
+file, line and key); 3 optimize could not meet the target resolution, or
+check: the measured run does not meet it.
 
 Safety: never program the oven above the column's maximum temperature; the
 oven and inlet are hot; hydrogen carrier gas is flammable (leak checks, a

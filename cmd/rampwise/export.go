@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
@@ -17,7 +18,7 @@ import (
 	"github.com/rampwise/rampwise/model/textsafe"
 )
 
-const exportHelp = `Usage: rampwise export METHOD [--png F] [--svg F] [--pdf F] [--csv F] [--sheet F]
+const exportHelp = `Usage: rampwise export METHOD [--png F] [--svg F] [--pdf F] [--csv F] [--sheet F] [--measured RUN]
 
 Writes the method's simulated chromatogram as a figure (PNG, SVG or PDF:
 labelled peaks, the critical pair marked, the oven program in a panel below
@@ -26,6 +27,10 @@ on the same time axis), the peak table as CSV, and a Markdown method sheet
 critical pair, where the parameters come from, and the cautions). Every file
 is written atomically. - as METHOD reads the method from standard input;
 @demo uses the built-in demo.
+--measured RUN (a peak table, an AIA/ANDI chromatogram, or a runs file's
+last run, as check reads it) draws the measured run mirrored under the
+predicted chromatogram on the same time axis, each compound's predicted
+and measured apex joined by a dashed line.
 
 Flags:
 `
@@ -39,6 +44,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	sheetF := fs.String("sheet", "", "write the method sheet (Markdown) to this `file`")
 	width := fs.Int("width", 1200, "figure width (pixels for PNG, points otherwise)")
 	height := fs.Int("height", 800, "figure height")
+	measured := fs.String("measured", "", "draw this measured `run` (peak table, chromatogram or runs file) under the prediction")
 	files, err := parseArgsN(fs, args, 1, 1, "METHOD")
 	if err != nil {
 		return err
@@ -58,6 +64,21 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	rs := &sim.Sim
+	if *measured != "" {
+		run, _, err := readVerificationRun(m, *measured)
+		if err != nil {
+			return err
+		}
+		ck, err := calibrate.Verify(m, run)
+		if err != nil {
+			return badf("%s: %v", *measured, err)
+		}
+		// the prediction drawn is for the measured run's own program
+		if rs, err = report.Simulate(m.RunMethod(run)); err != nil {
+			return badf("%s: %v", *measured, err)
+		}
+		rs.Measured = report.MeasuredFromCheck(ck)
+	}
 	write := func(path string, data []byte) error {
 		if err := methodfile.WriteAtomic(path, data); err != nil {
 			return err

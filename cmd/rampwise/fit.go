@@ -15,7 +15,7 @@ import (
 	"github.com/rampwise/rampwise/model/textsafe"
 )
 
-const fitHelp = `Usage: rampwise fit METHOD RUNS [--out FILE] [--json] [--with-dcp]
+const fitHelp = `Usage: rampwise fit METHOD RUNS [--out FILE] [--json] [--with-dcp] [--add-unknown]
 
 Calibrates the method's compounds from scouting runs: for each compound seen
 in at least two runs, ΔH and ΔS (and with --with-dcp ΔCp, from three runs or
@@ -25,9 +25,24 @@ column's effective internal diameter is calibrated first (on a packed
 column its particle size, which sets the bed's permeability; the phase ratio
 then follows from the diameter of an open tube and is the given one of a
 packed column, since it cannot be told apart from ΔS); with measured
-half-height widths, the plate-height factor. Reports standard errors and the
-residual of every run, and warns about compounds seen once, runs too similar
-to separate ΔH from ΔS, and residuals that suggest a misassigned peak.
+half-height widths, the plate-height factor.
+
+A run gives its times in [run.retention_min], or names a data-system export:
+peaks = "FILE" (a peak table: comma, semicolon or tab separated, decimal
+point or comma, minutes or seconds, detected; [run.columns] settles what
+cannot be detected) or chromatogram = "FILE" (AIA/ANDI netCDF; without a
+peak table in the file the peaks are found in the trace). Unnamed peaks are
+assigned to the method's compounds by their predicted retention (minimum
+total cost, alternating with the fit until stable), each with a confidence.
+
+The fit distrusts bad data: a measurement far from what the other runs
+predict is flagged (run, compound, predicted time) and left out; a name the
+method lacks never becomes a target: a near miss of a method name ("tolune")
+is reported with the suggestion and left out (in a peak table: treated as
+unnamed), other names are added as non-targets. Standard errors (±) use the
+residual variance pooled over all compounds, with Σ(runs − parameters)
+degrees of freedom. A residual trend with temperature that an unfitted ΔCp
+leaves is reported. --out writes dH_se_kJ_mol, dS_se_J_mol_K and dH_dS_corr.
 
 Flags:
 `
@@ -40,6 +55,7 @@ type fitCompoundJSON struct {
 	StdErrDH  *float64           `json:"stderr_dH_kJ_mol"`
 	StdErrDS  *float64           `json:"stderr_dS_J_mol_K"`
 	StdErrDCp *float64           `json:"stderr_dCp_J_mol_K,omitempty"`
+	Corr      *float64           `json:"corr_dH_dS,omitempty"`
 	Runs      int                `json:"runs"`
 	RMS       float64            `json:"rms_residual_min"`
 	Max       float64            `json:"max_residual_min"`
@@ -55,7 +71,30 @@ type fitJSON struct {
 		Particle    *float64 `json:"particle_um,omitempty"`
 		PhaseRatio  float64  `json:"phase_ratio"`
 	} `json:"column"`
-	Warnings []string `json:"warnings"`
+	Warnings    []string         `json:"warnings"`
+	Notes       []string         `json:"notes"`
+	ResidualSD  float64          `json:"residual_sd_min"`
+	DOF         int              `json:"residual_dof"`
+	SDAssumed   bool             `json:"residual_sd_assumed"`
+	Assignments []assignmentJSON `json:"assignments"`
+	Outliers    []outlierJSON    `json:"outliers"`
+}
+
+type assignmentJSON struct {
+	Run        string  `json:"run"`
+	Compound   string  `json:"compound"`
+	Measured   float64 `json:"measured_min"`
+	Predicted  float64 `json:"predicted_min"`
+	Confidence float64 `json:"confidence"`
+}
+
+type outlierJSON struct {
+	Run         string  `json:"run"`
+	Compound    string  `json:"compound"`
+	Measured    float64 `json:"measured_min"`
+	Predicted   float64 `json:"predicted_min"`
+	Studentized float64 `json:"studentized_residual"`
+	Excluded    bool    `json:"excluded"`
 }
 
 func runFit(args []string, stdout, stderr io.Writer) error {
@@ -63,6 +102,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	asJSON := fs.Bool("json", false, "print the result as JSON")
 	out := fs.String("out", "", "write the method with the fitted values to this `file` (atomically)")
 	withDCp := fs.Bool("with-dcp", false, "also fit ΔCp (needs at least three runs)")
+	addUnknown := fs.Bool("add-unknown", false, "add names close to a method name too (as non-targets) instead of leaving them out")
 	files, err := parseArgsN(fs, args, 2, 2, "METHOD RUNS")
 	if err != nil {
 		return err
@@ -75,7 +115,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	rep, err := calibrate.Fit(m, runs, calibrate.Options{WithDCp: *withDCp})
+	rep, err := calibrate.Fit(m, runs, calibrate.Options{WithDCp: *withDCp, AddUnknown: *addUnknown})
 	if err != nil {
 		return badf("%s: %v", files[1], err)
 	}
@@ -85,13 +125,22 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	if *asJSON {
-		j := fitJSON{Compounds: []fitCompoundJSON{}, Warnings: append([]string{}, rep.Warnings...)}
+		j := fitJSON{Compounds: []fitCompoundJSON{}, Warnings: append([]string{}, rep.Warnings...), Notes: append([]string{}, rep.Notes...),
+			ResidualSD: rep.ResidualSDMin, DOF: rep.DOF, SDAssumed: rep.SDAssumed,
+			Assignments: []assignmentJSON{}, Outliers: []outlierJSON{}}
 		for _, c := range rep.Compounds {
 			j.Compounds = append(j.Compounds, fitCompoundJSON{
 				Name: c.Name, DH: c.DHkJ, DS: c.DS, DCp: c.DCp,
 				StdErrDH: finiteOrNil(c.StdErrDH), StdErrDS: finiteOrNil(c.StdErrDS), StdErrDCp: finiteOrNil(c.StdErrDCp),
+				Corr: finiteOrNil(c.CorrDHDS),
 				Runs: c.Runs, RMS: c.RMS, Max: c.Max, Residuals: c.Residuals, Added: c.Added,
 			})
+		}
+		for _, a := range rep.Assignments {
+			j.Assignments = append(j.Assignments, assignmentJSON{a.Run, a.Compound, a.MeasuredMin, a.PredictedMin, a.Confidence})
+		}
+		for _, o := range rep.Outliers {
+			j.Outliers = append(j.Outliers, outlierJSON{o.Run, o.Compound, o.MeasuredMin, o.PredictedMin, o.Studentized, o.Excluded})
 		}
 		j.Column.Diameter, j.Column.PlateHeight, j.Column.PhaseRatio = rep.DiameterMM, rep.PlateHeightFactor, rep.PhaseRatio
 		if m.Column.Kind == model.Packed {
@@ -101,12 +150,26 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		enc.SetIndent("", "  ")
 		return enc.Encode(j)
 	}
+	if len(rep.Assignments) > 0 {
+		tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
+		fmt.Fprintln(tw, "run\tpeak min\tassigned to\tpredicted min\tconfidence\t")
+		for _, a := range rep.Assignments {
+			fmt.Fprintf(tw, "%s\t%.4f\t%s\t%.4f\t%.2f\t\n", textsafe.Inert(a.Run), a.MeasuredMin, textsafe.Inert(a.Compound), a.PredictedMin, a.Confidence)
+		}
+		tw.Flush()
+		fmt.Fprintln(stdout)
+	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "compound\tΔH %s\t±\tΔS %s\t±\tΔCp\truns\trms min\tmax min\t\n", format.UnitDH, format.UnitDS)
+	fmt.Fprintf(tw, "compound\tΔH %s\t±\tΔS %s\t±\tΔCp\t±\truns\trms min\tmax min\t\n", format.UnitDH, format.UnitDS)
 	for _, c := range rep.Compounds {
-		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
+		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%s\t%d\t%.4f\t%.4f\t\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, fmtErr(c.StdErrDCp), c.Runs, c.RMS, c.Max)
 	}
 	tw.Flush()
+	how := fmt.Sprintf("pooled over the compounds: %.4f min with %d degrees of freedom", rep.ResidualSDMin, rep.DOF)
+	if rep.SDAssumed {
+		how = fmt.Sprintf("no degrees of freedom left: the method's retention_time_sd_min %.4f min assumed", rep.ResidualSDMin)
+	}
+	fmt.Fprintf(stdout, "\n± is one standard error; residual SD %s\n", how)
 	if m.Column.Kind == model.Packed {
 		fmt.Fprintf(stdout, "\nparticle size %.2f µm%s · phase ratio %.4g (given) · plate-height factor %.3f%s\n", rep.ParticleUM, fitted(rep.ParticleFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
 	} else {
@@ -114,6 +177,9 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	}
 	for _, w := range rep.Warnings {
 		fmt.Fprintf(stdout, "warning: %s\n", textsafe.Inert(w))
+	}
+	for _, n := range rep.Notes {
+		fmt.Fprintf(stdout, "note: %s\n", textsafe.Inert(n))
 	}
 	if *out != "" {
 		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", textsafe.Inert(*out))

@@ -110,6 +110,9 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 		}
 		return badf("%s: %v", where, strings.TrimPrefix(strings.TrimPrefix(err.Error(), "plan: "), "model: "))
 	}
+	if err := p.Method.Validate(); err != nil {
+		return fmt.Errorf("the planned program breaks an instrument limit (please report this): %v", err)
+	}
 	runName := ""
 	if p.Action != plan.Done {
 		runName = nextRunName(p.Action, runs)

@@ -179,7 +179,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 	// 3. assignment of unnamed peaks, alternating with the fit
 	start := out.Clone()
 	if hasUnnamed(runs) {
-		if err := assignLoop(out, st, runs, opt, rep); err != nil {
+		if err := assignLoop(out, start, st, runs, opt, rep); err != nil {
 			return nil, err
 		}
 	}
@@ -240,7 +240,9 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
 		c.FromFormula = false
 		c.HasSE = false
-		if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
+		if finite(cf.StdErrDH) && finite(cf.StdErrDS) && (cf.StdErrDH > 500 || cf.StdErrDS > 1000) {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: standard errors ±%.3g kJ/mol, ±%.3g J/(mol·K): the runs hardly determine it; errors not written to the method", cf.Name, cf.StdErrDH, cf.StdErrDS))
+		} else if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
 			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true
 		}
 		rep.Compounds = append(rep.Compounds, cf)
@@ -319,7 +321,11 @@ func fitAll(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, opt Op
 		if opt.WithDCp && !withDCp {
 			*warn = append(*warn, fmt.Sprintf("%s: seen in %d runs; ΔCp needs 3, fitted ΔH and ΔS only", name, len(obs)))
 		}
-		cf, err := fitCompound(st, obs, base, withDCp)
+		var th0 []float64
+		if ci >= 0 && (base.RefTemp == 0 || base.RefTemp == model.DefaultRefTemp) {
+			th0 = []float64{base.DH, base.DS, base.DCp} // warm start from the method's values
+		}
+		cf, err := fitCompoundFrom(st, obs, base, withDCp, th0)
 		if err != nil {
 			*warn = append(*warn, fmt.Sprintf("%s: %v; parameters not fitted", name, err))
 			continue
@@ -387,7 +393,7 @@ func startValues(st []runSetup, obs []obsPoint, base model.Compound) []float64 {
 	at := func(n float64) []float64 { return []float64{-(9 + 4.9*n) * 1000, -(44 + 6.0*n)} }
 	o := obs[0]
 	lo, hi := -1.5, 60.0
-	for it := 0; it < 60; it++ {
+	for it := 0; it < 36; it++ { // 61.5 / 2^36 ≈ 1e-9 carbon numbers
 		mid := (lo + hi) / 2
 		c := paramCompound(base, at(mid))
 		tr, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
@@ -403,6 +409,28 @@ func startValues(st []runSetup, obs []obsPoint, base model.Compound) []float64 {
 // fitCompound is Levenberg–Marquardt on the retention-time residuals with
 // a forward-difference Jacobian; standard errors from σ² (JᵀJ)⁻¹.
 func fitCompound(st []runSetup, obs []obsPoint, base model.Compound, withDCp bool) (fitResult, error) {
+	return fitCompoundFrom(st, obs, base, withDCp, nil)
+}
+
+// fitCompoundFrom is fitCompound started from th0 (ΔH J/mol, ΔS) when given
+// (a warm start: a fit of nearly the same data), falling back to the
+// homologous-rule start when that fails.
+func fitCompoundFrom(st []runSetup, obs []obsPoint, base model.Compound, withDCp bool, th0 []float64) (fitResult, error) {
+	if len(th0) >= 2 {
+		th := []float64{th0[0], th0[1]}
+		free := []int{0, 1}
+		if withDCp {
+			dcp := 0.0
+			if len(th0) > 2 {
+				dcp = th0[2]
+			}
+			th = append(th, dcp)
+			free = append(free, 2)
+		}
+		if res, err := fitFree(st, obs, base, th, free); err == nil && determined(res) {
+			return res, nil
+		}
+	}
 	th := startValues(st, obs, base)
 	free := []int{0, 1}
 	if withDCp {
@@ -410,8 +438,11 @@ func fitCompound(st []runSetup, obs []obsPoint, base model.Compound, withDCp boo
 		free = append(free, 2)
 	}
 	res, err := fitFree(st, obs, base, th, free)
-	if err == nil {
+	if err == nil && determined(res) {
 		return res, nil
+	}
+	if err == nil {
+		err = errors.New("the runs do not determine ΔH")
 	}
 	// Too little retention to tell ΔH from ΔS: keep ΔH of the homologous
 	// rule and fit ΔS alone.
@@ -421,6 +452,17 @@ func fitCompound(st []runSetup, obs []obsPoint, base model.Compound, withDCp boo
 	}
 	res.onlyDS = true
 	return res, nil
+}
+
+// determined: with a retention-time SD of 0.002 min the fit's ΔH would be
+// known to better than half its size (else ΔH and ΔS are not separable
+// from these runs: a compound eluting near the holdup time).
+func determined(r fitResult) bool {
+	if r.cov == nil || len(r.free) < 2 || r.free[0] != 0 {
+		return r.cov != nil
+	}
+	se := 0.12 * math.Sqrt(math.Abs(r.cov.At(0, 0))) / 1000
+	return se < 0.5*math.Abs(r.DHkJ)
 }
 
 // fitFree fits the parameters listed in free (0 ΔH, 1 ΔS, 2 ΔCp) from th.
@@ -451,7 +493,8 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 		}
 		jtj.Mul(J.T(), J)
 	}
-	for iter := 0; iter < 200; iter++ {
+	converged := false
+	for iter := 0; iter < 60; iter++ {
 		jacobian(J, &jtj)
 		g := mat.NewVecDense(n, append([]float64(nil), r...))
 		var jtr mat.VecDense
@@ -472,13 +515,22 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 			for j := 0; j < p; j++ {
 				tn[free[j]] -= delta.AtVec(j)
 			}
+			small := true
+			for j := 0; j < p; j++ {
+				if math.Abs(delta.AtVec(j)) > 1e-4*steps[j] {
+					small = false
+				}
+			}
 			sn, _ := residuals(st, obs, base, tn, rt)
+			if sn >= ssr && small {
+				// at the minimum: even a tiny step no longer helps
+				iter = 1 << 30
+				improved = true
+				break
+			}
 			if sn < ssr {
-				small := true
-				for j := 0; j < p; j++ {
-					if math.Abs(delta.AtVec(j)) > 1e-7*steps[j] {
-						small = false
-					}
+				if ssr-sn < 1e-7*ssr+1e-12 {
+					small = true // no longer worth another iteration
 				}
 				th, ssr = tn, sn
 				copy(r, rt)
@@ -492,7 +544,11 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 			lambda *= 10
 		}
 		if !improved || iter >= 1<<30 {
+			converged = true
 			break
+		}
+		if len(free) > 1 && th[0] > 0 {
+			break // ΔH > 0 is no retention: the data cannot tell ΔH from ΔS
 		}
 	}
 	// Jacobian at the solution for errors and conditioning
@@ -542,6 +598,9 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 		lo, hi = math.Min(lo, te), math.Max(hi, te)
 	}
 	res.ElutionSpreadC = hi - lo
+	if !converged {
+		return res, errors.New("the fit did not converge (the runs do not pin ΔH and ΔS down)")
+	}
 	if !(res.DHkJ < 0) || math.IsNaN(res.DS) {
 		return res, errors.New("the fit did not converge to a retained compound")
 	}

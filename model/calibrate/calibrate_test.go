@@ -274,6 +274,9 @@ func TestAddedAndSingleRunCompounds(t *testing.T) {
 	for _, c := range rep.Method.Compounds {
 		if c.Name == "decanal" {
 			found = true
+			if c.Target {
+				t.Error("a compound the method lacked was added as a target")
+			}
 			for _, w := range truth.Compounds {
 				if w.Name == "decanal" && (math.Abs(c.DHkJ-w.DHkJ) > 1 || math.Abs(c.DS-w.DS) > 2) {
 					t.Errorf("added decanal: ΔH %.2f ΔS %.2f, true %.2f %.2f", c.DHkJ, c.DS, w.DHkJ, w.DS)

@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -69,16 +70,19 @@ func pool(fits []fitResult, m *methodfile.Method, rep *Report) {
 	}
 }
 
-// findOutliers flags, per compound, the measurement with the largest
-// externally studentized residual t = r / (σ₍ᵢ₎ √(1 − hᵢᵢ)), h the leverage
-// from J(JᵀJ)⁻¹Jᵀ and σ₍ᵢ₎² = (Σ SSR − rᵢ²/(1 − hᵢᵢ)) / (ν − 1) the pooled
-// variance without it (Belsley, Kuh & Welsch, Regression Diagnostics, 1980),
-// when |t| > OutlierT and the residual exceeds 5 × retention_time_sd_min.
-// With as many runs as parameters plus one, every residual of a compound has
-// the same |t|; the run is then the one whose time departs most from the
-// method's own prediction (start). The prediction reported is that of a
-// fit to the other runs; the measurement is left out (Excluded) when the
-// other runs still determine the parameters.
+// findOutliers flags, per compound, the measurement that the other runs
+// predict worst: each run is left out in turn, the compound refitted to the
+// others, and the left-out time compared with that prediction:
+// t = e / (σ₍ᵢ₎ √(1 + g C gᵀ)), e the measured less the predicted time, g
+// the prediction's gradient, C the refit's (JᵀJ)⁻¹ and σ₍ᵢ₎² the pooled
+// residual variance without the point (the externally studentized
+// prediction residual; Belsley, Kuh & Welsch, Regression Diagnostics,
+// 1980). A point is flagged when |t| > OutlierT and |e| exceeds 5 ×
+// retention_time_sd_min. With one run more than parameters every point has
+// nearly the same |t|; the run named is then the one whose removal leaves
+// the most plausible parameters (closest to the method's own values, or to
+// the enthalpy–entropy compensation line ΔS ≈ 1.224 ΔH − 33 of the
+// homologous rule). The point is left out of the fit (Excluded).
 func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep *Report, opt Options) []Outlier {
 	ssr := 0.0
 	dof := 0
@@ -94,60 +98,122 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 	var out []Outlier
 	for _, f := range fits {
 		n, p := len(f.obs), len(f.free)
-		if n <= p || f.cov == nil {
+		if f.onlyDS {
+			p = 2 // a gross error also makes ΔH look undeterminable: judge by two-parameter refits
+		}
+		if n <= p {
 			continue
 		}
-		var hat mat.Dense
-		hat.Product(f.jac, f.cov, f.jac.T())
-		best, bestT, bestTie := -1, 0.0, 0.0
-		for i := 0; i < n; i++ {
-			h := hat.At(i, i)
-			if h > 1-1e-9 {
-				continue
-			}
-			r := f.resid[i]
-			s2 := (ssr - r*r/(1-h)) / float64(dof-1)
-			if !(s2 > 0) {
-				s2 = 1e-30
-			}
-			t := r / math.Sqrt(s2*(1-h))
-			if math.Abs(t) <= opt.OutlierT || math.Abs(r) < floor {
-				continue
-			}
-			tie := 0.0
-			if ci := compoundIndex(start, f.Name); ci >= 0 {
-				o := f.obs[i]
-				if tp, _ := st[o.run].cond.RetentionTime(&startC[ci], st[o.run].prog); finite(tp) && tp > 0 {
-					tie = math.Abs(o.t-tp) / tp
+		// screen: leave-one-out residuals rᵢ/(1 − hᵢᵢ) all below the floor
+		// cannot make an outlier
+		if f.cov != nil {
+			var hat mat.Dense
+			hat.Product(f.jac, f.cov, f.jac.T())
+			big := false
+			for i, r := range f.resid {
+				if h := hat.At(i, i); h > 0.98 || math.Abs(r)/(1-h) >= floor {
+					big = true
 				}
 			}
-			switch {
-			case best < 0, math.Abs(t) > 1.02*math.Abs(bestT):
-				best, bestT, bestTie = i, t, tie
-			case math.Abs(t) >= 0.98*math.Abs(bestT) && tie > bestTie:
-				best, bestT, bestTie = i, t, tie
+			if !big {
+				continue
 			}
 		}
-		if best < 0 {
+		type cand struct {
+			i          int
+			t, e, pred float64
+			plaus      float64
+		}
+		var cs []cand
+		for i := 0; i < n; i++ {
+			rest := append(append([]obsPoint(nil), f.obs[:i]...), f.obs[i+1:]...)
+			g, err := fitCompoundFrom(st, rest, f.base, len(f.th) > 2 && len(rest) >= 3, f.th)
+			if err != nil || g.onlyDS {
+				continue
+			}
+			o := f.obs[i]
+			c := paramCompound(f.base, g.th)
+			tp, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
+			if !finite(tp) {
+				continue
+			}
+			pv := 0.0
+			if g.cov != nil {
+				grad := make([]float64, len(g.free))
+				steps := []float64{5, 0.01, 0.1}
+				for j, fr := range g.free {
+					th := append([]float64(nil), g.th...)
+					th[fr] += steps[fr]
+					cc := paramCompound(f.base, th)
+					t2, _ := st[o.run].cond.RetentionTime(&cc, st[o.run].prog)
+					grad[j] = (t2 - tp) / steps[fr]
+				}
+				for a := range grad {
+					for b := range grad {
+						pv += grad[a] * g.cov.At(a, b) * grad[b]
+					}
+				}
+			}
+			s2 := (ssr - f.ssr + g.ssr) / float64(dof-1)
+			if !(s2 > 0) {
+				s2 = 1e-12
+			}
+			e := o.t - tp
+			x := cand{i: i, e: e, pred: tp, t: e / math.Sqrt(s2*(1+math.Abs(pv)))}
+			x.plaus = plausibility(g.th, startC, compoundIndex(start, f.Name), start)
+			cs = append(cs, x)
+		}
+		if len(cs) == 0 {
 			continue
 		}
-		o := f.obs[best]
-		x := Outlier{Run: st[o.run].name, Compound: f.Name, MeasuredMin: o.t / 60, Studentized: bestT, PredictedMin: math.NaN()}
-		rest := append(append([]obsPoint(nil), f.obs[:best]...), f.obs[best+1:]...)
-		if len(rest) >= p {
-			if g, err := fitCompound(st, rest, f.base, len(f.th) > 2 && len(rest) >= 3); err == nil {
-				c := paramCompound(f.base, g.th)
-				tp, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
-				x.PredictedMin = tp / 60
-				x.Excluded = true
+		best := 0
+		for k := range cs {
+			if math.Abs(cs[k].t) > math.Abs(cs[best].t) {
+				best = k
 			}
 		}
-		if math.IsNaN(x.PredictedMin) {
-			x.PredictedMin = (o.t + f.resid[best]) / 60
+		top := math.Abs(cs[best].t)
+		for k := range cs {
+			if math.Abs(cs[k].t) >= 0.85*top && cs[k].plaus < cs[best].plaus {
+				best = k
+			}
 		}
-		out = append(out, x)
+		b := cs[best]
+		if math.Abs(b.t) <= opt.OutlierT || math.Abs(b.e) < floor {
+			continue
+		}
+		o := f.obs[b.i]
+		out = append(out, Outlier{Run: st[o.run].name, Compound: f.Name, MeasuredMin: o.t / 60, PredictedMin: b.pred / 60, Studentized: b.t, Excluded: true})
 	}
 	return out
+}
+
+// plausibility of fitted θ (lower is more plausible): the smaller of the
+// distance to the method's own values in units of the priors
+// (goal.robust.prior_dH_kJ_mol, prior_dS_J_mol_K) and the distance from the
+// compensation line ΔS = 1.224 ΔH − 33 in units of 15 J/(mol·K) (the
+// demo's homologous rule; a loose guide for other classes).
+func plausibility(th []float64, startC []model.Compound, ci int, m *methodfile.Method) float64 {
+	dh, ds := th[0]/1000, th[1]
+	comp := math.Abs(ds-(1.224*dh-33)) / 15
+	if ci < 0 || ci >= len(startC) {
+		return comp
+	}
+	c := startC[ci]
+	pdh, pds := m.Goal.Robust.PriorDHkJ, m.Goal.Robust.PriorDS
+	if !(pdh > 0) {
+		pdh = 2
+	}
+	if !(pds > 0) {
+		pds = 4
+	}
+	// the start's values at the fit's reference temperature
+	sc := c
+	if c.RefTemp != 0 && c.RefTemp != model.DefaultRefTemp || c.DCp != 0 {
+		return comp
+	}
+	prior := math.Hypot((dh-sc.DH/1000)/pdh, (ds-sc.DS)/pds)
+	return math.Min(prior, comp)
 }
 
 // dcpTrend tests for a ΔCp the fit leaves out: per compound (≥ 3 runs) the

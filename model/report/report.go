@@ -32,6 +32,9 @@ type Sim struct {
 	Method *methodfile.Method
 	System *model.System
 	Result model.Result
+	// Measured, when set, is drawn mirrored under the predicted
+	// chromatogram with the matched peaks joined (overlay.go).
+	Measured *Measured
 }
 
 // Simulate builds the system for m and simulates its program.
@@ -190,6 +193,17 @@ func (s *Sim) figurePlots() (top, bottom *plot.Plot, labels *peakLabels, err err
 			format.RsAll(r.MinResolution, target, inertNames(s.System.NotElutedTargets(r)))), mark)
 		top.Legend.Top = true
 		top.Legend.TextStyle.Font.Size = vg.Points(7)
+	}
+
+	if s.Measured != nil {
+		for _, p := range s.Measured.Peaks {
+			end = math.Max(end, (p.TimeMin+3*p.WidthMin)*60)
+		}
+		top.X.Max = end / 60
+		apex := func(tMin float64) float64 { return s.signal(tMin*60) / ymax }
+		if err := s.Measured.draw(top, end/60, apex); err != nil {
+			return nil, nil, nil, err
+		}
 	}
 
 	bottom = plot.New()

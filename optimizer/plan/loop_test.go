@@ -53,11 +53,15 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool, preset
 		if err != nil {
 			t.Fatalf("seed %d: plan: %v", seed, err)
 		}
+		if err := p.Method.Validate(); err != nil {
+			t.Errorf("seed %d: the planned program (%s) breaks a limit: %v", seed, p.Action, err)
+		}
 		if p.Action == Done {
 			// a run already made meets the target (as measured) by a
 			// margin the model vouches for: that run is the verification
 			t.Logf("seed %d: done after %d injections, before a planned verification: %s", seed, k-1, p.Reason)
 			out.verified, out.done = p.VerifiedBy != "", true
+			out.injections = k - 1
 			out.runTime = methodfile.ProgramToModel(p.Oven).RunTime() / 60
 			out.trueRs = rampRsOf(t, truth, p.Oven)
 			return out

@@ -129,8 +129,8 @@ type Plan struct {
 	Reason  string
 	// ExpectedMinResolution is the predicted minimum resolution of the
 	// optimized program; ExpectedSD its standard deviation (parameters and
-	// measurement); SDAfter (inject) the SD expected once the planned run
-	// is fitted.
+	// measurement); SDAfter (inject) the parameters' part of that SD
+	// expected once the planned run is fitted.
 	ExpectedMinResolution float64
 	ExpectedSD            float64
 	SDAfter               float64
@@ -186,7 +186,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		// raise by the shortfall; when the raised target cannot be met
 		// within the limits, halve the raise
 		lo, step := 0.0, nominal.deficit+0.01
-		for iter := 0; iter < 8 && ctx.Err() == nil && step >= 0.01; iter++ {
+		for iter := 0; iter < 12 && ctx.Err() == nil && step >= 0.01; iter++ {
 			extra := lo + step
 			if extra > s.MaxMargin*target {
 				step = s.MaxMargin*target - lo
@@ -242,6 +242,37 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			// a raised target may lead where the parameters are less
 			// known: never raise by more than the last step
 			lo, step = extra, math.Min(ev.deficit+0.01, step)
+		}
+	}
+	// A raised target can lead where the parameters are less known. The
+	// robust counterpart instead: optimize on the method whose near-critical
+	// pairs are moved, each pair's two compounds along the direction that
+	// lowers its resolution most, by z parameter SDs (first order), with the
+	// target raised by the measurement's part of the margin only.
+	if robust == nil && feasible {
+		o := nomOven
+		for it := 0; it < 3 && ctx.Err() == nil; it++ {
+			pm, extra, err := st.pessimistic(o, z, s.WidthScatter)
+			if err != nil {
+				return nil, err
+			}
+			po, ok, err := st.optimizeMethod(ctx, pm, target+extra, s.Optimizer)
+			if err != nil {
+				return nil, err
+			}
+			if !ok {
+				break
+			}
+			ev, err := st.evaluate(po, z, s.WidthScatter)
+			if err != nil {
+				return nil, err
+			}
+			tried = append(tried, po)
+			if ev.ok {
+				robust, robustOven = ev, po
+				break
+			}
+			o = po
 		}
 	}
 	best, bestOven := nominal, nomOven
@@ -347,7 +378,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	} else if best.sdOK && best.cornerText != "" {
 		why = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f does not hold at every instrument tolerance%s", best.minRs, best.sd, best.cornerText)
 	}
-	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink that to ± %.2f (%d pairs that are or could become critical weighed)",
+	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%d pairs that are or could become critical weighed)",
 		why, robustNote, d.sdAfter, d.pairs)
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
@@ -627,13 +658,103 @@ func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
 func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
 	m := st.m.Clone()
 	m.Goal.MinResolution = rs
-	prob := methodsearch.Problem(m, st.sys)
-	res, err := optimizer.Optimize(ctx, prob, s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, st.sys), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
 	oven := onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits)
 	return oven, res.Feasible(), nil
+}
+
+// problem is the optimizer's problem for m with every instrument limit the
+// scouting runs keep: the highest temperature (detector − 20 °C,
+// max_isothermal_c, inlet pressure) and, when rate bands are given, the
+// slowest band's rate throughout (the search has one rate limit).
+func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
+	prob := methodsearch.Problem(m, sys)
+	sl := st.scoutLimits()
+	prob.Limits.MaxTemp = math.Min(prob.Limits.MaxTemp, sl.highC+model.ZeroCelsius)
+	if len(sl.bands) > 0 {
+		prob.Limits.MaxRate = math.Min(prob.Limits.MaxRate, sl.rateTo(sl.highC)/60)
+	}
+	return prob
+}
+
+// optimizeMethod runs the optimizer on method m (the current one with
+// other parameters) for target rs.
+func (st *state) optimizeMethod(ctx context.Context, m *methodfile.Method, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
+	m = m.Clone()
+	m.Goal.MinResolution = rs
+	sys, err := m.System()
+	if err != nil {
+		return methodfile.Oven{}, false, nil // an implausible shift: no program
+	}
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
+	if err != nil {
+		return methodfile.Oven{}, false, err
+	}
+	return onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits), res.Feasible(), nil
+}
+
+// pessimistic is the method with the compounds of every pair with a
+// target whose bound at program o falls short of the target plus half a
+// unit moved to the first-order worst case on their joint uncertainty
+// ellipsoid: Δθ = −z Σ g / √(gᵀ Σ g) for the pair's stacked gradient g (a
+// compound in several such pairs takes the move of its weakest pair), and
+// the largest measurement part of the margin, z × that SD, over those
+// pairs.
+func (st *state) pessimistic(o methodfile.Oven, z, widthScatter float64) (*methodfile.Method, float64, error) {
+	target := st.m.Goal.MinResolution
+	if err := st.sens.eval(methodfile.ProgramToModel(o)); err != nil {
+		return nil, 0, err
+	}
+	s := st.sens
+	var order []int
+	for i := 0; i < s.n; i++ {
+		if s.eluted[i] {
+			order = append(order, i)
+		}
+	}
+	sort.Slice(order, func(a, b int) bool { return s.t[order[a]] < s.t[order[b]] })
+	move := make([][2]float64, s.n)
+	bound := make([]float64, s.n)
+	for i := range bound {
+		bound[i] = math.Inf(1)
+	}
+	extra := 0.0
+	for k := 0; k+1 < len(order); k++ {
+		a, b := order[k], order[k+1]
+		if !st.sys.Compounds[a].Target && !st.sys.Compounds[b].Target {
+			continue
+		}
+		rs, ga, gb := s.resolution(a, b)
+		sp := rsSD(ga, gb, st.cov[a], st.cov[b])
+		sm := st.measurementSD(rs, a, b, widthScatter)
+		low := rs - z*math.Hypot(sp, sm)
+		if low > target+0.5 || !(sp > 0) {
+			continue
+		}
+		extra = math.Max(extra, z*sm)
+		da, db := st.cov[a].mul(ga), st.cov[b].mul(gb)
+		for _, x := range []struct {
+			i int
+			d [2]float64
+		}{{a, da}, {b, db}} {
+			if low < bound[x.i] {
+				bound[x.i] = low
+				move[x.i] = [2]float64{-z * x.d[0] / sp, -z * x.d[1] / sp}
+			}
+		}
+	}
+	m := st.m.Clone()
+	m.Compounds = append([]methodfile.Compound(nil), st.m.Compounds...)
+	for i := range m.Compounds {
+		c := &m.Compounds[i]
+		if dh := c.DHkJ + move[i][0]/1000; dh < 0 {
+			c.DHkJ, c.DS = dh, c.DS+move[i][1]
+		}
+	}
+	return m, extra + 0.01, nil
 }
 
 // optimizeDraw optimizes, at the target, the method with every compound's
@@ -671,7 +792,7 @@ func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.S
 	if err != nil {
 		return methodfile.Oven{}, false, nil // an implausible draw: skip it
 	}
-	res, err := optimizer.Optimize(ctx, methodsearch.Problem(m, sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
 	if err != nil {
 		return methodfile.Oven{}, false, nil
 	}
