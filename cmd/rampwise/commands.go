@@ -212,11 +212,41 @@ func newFlags(name, help string, _ io.Writer) *flag.FlagSet {
 			if !strings.HasSuffix(strings.TrimRight(help, "\n"), ":") {
 				fmt.Fprint(fs.Output(), "\nFlags:\n")
 			}
-			fs.PrintDefaults()
+			printDefaults(fs)
 		}
 	}
 	return fs
 }
+
+// printDefaults is flag.PrintDefaults in its layout, except that a flag
+// whose default is NaN (a value that must be given, or one that is off
+// unless given) shows no default rather than "(default NaN)".
+func printDefaults(fs *flag.FlagSet) {
+	fs.VisitAll(func(f *flag.Flag) {
+		var b strings.Builder
+		fmt.Fprintf(&b, "  -%s", f.Name)
+		name, usage := flag.UnquoteUsage(f)
+		if name != "" {
+			b.WriteString(" " + name)
+		}
+		if b.Len() <= 4 {
+			b.WriteString("\t")
+		} else {
+			b.WriteString("\n    \t")
+		}
+		b.WriteString(strings.ReplaceAll(usage, "\n", "\n    \t"))
+		if d := f.DefValue; d != "" && d != "0" && d != "false" && d != "NaN" {
+			if g, ok := f.Value.(flag.Getter); ok && isString(g.Get()) {
+				fmt.Fprintf(&b, " (default %q)", d)
+			} else {
+				fmt.Fprintf(&b, " (default %v)", d)
+			}
+		}
+		fmt.Fprintln(fs.Output(), b.String())
+	})
+}
+
+func isString(v any) bool { _, ok := v.(string); return ok }
 
 // parseFlags parses args with fs, flags before and after the positional
 // arguments, which it returns.

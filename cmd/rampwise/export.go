@@ -19,6 +19,7 @@ import (
 )
 
 const exportHelp = `Usage: rampwise export METHOD [--png F] [--svg F] [--pdf F] [--csv F] [--sheet F] [--measured RUN]
+                       [--width W] [--height H]
 
 Writes the method's simulated chromatogram as a figure (PNG, SVG or PDF:
 labelled peaks, the critical pair marked, the oven program in a panel below
@@ -117,6 +118,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 
 const sweepHelp = `Usage: rampwise sweep METHOD --vary NAME --from A --to B [--steps N]
                       [--vary2 NAME --from2 A --to2 B --steps2 N] [--csv F] [--png F]
+                      [--max-points N]
 
 Varies one program value (initial_c, initial_hold_min, rate_N, final_N,
 hold_N, or the carrier's flow_ml_min or inlet_kpa) from A to B in N steps and

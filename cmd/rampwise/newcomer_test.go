@@ -154,3 +154,27 @@ func TestNoRawFloatsInMessages(t *testing.T) {
 		t.Errorf("sweep steps:\n%s", out)
 	}
 }
+
+// Every command's usage lines name all its flags, and no flag shows a
+// "(default NaN)".
+func TestUsageComplete(t *testing.T) {
+	flagLine := regexp.MustCompile(`(?m)^  -([a-z0-9-]+)`)
+	for _, c := range commands {
+		if c.name == "version" || c.name == "help" {
+			continue
+		}
+		code, out, errs := runCmd(t, "help", c.name)
+		if code != 0 {
+			t.Fatalf("help %s: exit %d %s", c.name, code, errs)
+		}
+		if strings.Contains(out, "NaN") {
+			t.Errorf("help %s shows NaN:\n%s", c.name, out)
+		}
+		usage, _, _ := strings.Cut(out, "\n\n")
+		for _, m := range flagLine.FindAllStringSubmatch(out, -1) {
+			if !strings.Contains(usage, "--"+m[1]) {
+				t.Errorf("help %s: usage lines lack --%s:\n%s", c.name, m[1], usage)
+			}
+		}
+	}
+}

@@ -20,7 +20,8 @@ import (
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
-const optimizeHelp = `Usage: rampwise optimize [FILE] [flags]
+const optimizeHelp = `Usage: rampwise optimize [FILE] [--out F] [--json] [--seed N] [--ramps N]
+                         [--objective run-time|cycle-time] [--min-resolution RS]
 
 Searches oven programs (initial temperature and hold, then up to N ramps with
 their rates, final temperatures and holds) for the shortest run time, or oven

@@ -12,7 +12,7 @@ import (
 	"github.com/rampwise/rampwise/tui"
 )
 
-const tuiHelp = `Usage: rampwise tui [FILE]
+const tuiHelp = `Usage: rampwise tui [FILE] [--no-color]
 
 Opens the interactive program editor: the oven program, a live simulated
 chromatogram with the oven temperature, the peak table and the method
