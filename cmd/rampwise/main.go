@@ -81,6 +81,9 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 		hr.fs.Usage()
 		return exitOK
 	}
+	// messages show names from files through textsafe.Inert already; the
+	// last line of defence escapes what is left without doubling their
+	// backslashes (as the text output does)
 	fmt.Fprintf(stderr, "rampwise: %s\n", inertLines(err.Error()))
 	var bi badInput
 	var me *methodfile.Error

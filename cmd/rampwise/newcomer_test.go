@@ -178,3 +178,44 @@ func TestUsageComplete(t *testing.T) {
 		}
 	}
 }
+
+// The message on stderr shows a name with controls once escaped, as the
+// method file's error writes it.
+func TestDuplicateNameEscapedOnce(t *testing.T) {
+	demo, err := os.ReadFile("../../testdata/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	evil := `ethanol\u001b]0;owned\u0007x`
+	text := strings.Replace(string(demo), `name = "ethanol"`, `name = "`+evil+`"`, 1)
+	text = strings.Replace(text, `name = "hexanal"`, `name = "`+evil+`"`, 1)
+	path := t.TempDir() + "/dup.toml"
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errs := runCmd(t, "simulate", path)
+	if code != 2 || !strings.Contains(errs, `duplicate compound name "ethanol\x1b]0;owned\x07x"`) || strings.Contains(errs, `\\x1b`) || strings.ContainsAny(errs, "\x1b\x07") {
+		t.Errorf("exit %d: %q", code, errs)
+	}
+}
+
+// fit --out writes fitted values at the decimals the file keeps (the UI's
+// fit rule, methodfile.RoundFitted), not 16 digits.
+func TestFitOutRounded(t *testing.T) {
+	out := t.TempDir() + "/o.toml"
+	code, _, errs := runCmd(t, "fit", "../../testdata/demo.toml", "../../testdata/scouting.toml", "--out", out)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	data, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	long := regexp.MustCompile(`(?m)^(diameter_mm|plate_height_factor|dH_kJ_mol|dS_J_mol_K|dCp_J_mol_K) = -?\d+\.\d{5,}`)
+	if m := long.FindAll(data, -1); len(m) > 0 {
+		t.Errorf("long fitted values: %q", m)
+	}
+	if !regexp.MustCompile(`(?m)^dH_kJ_mol = -20\.063$`).Match(data) {
+		t.Errorf("the first fitted ΔH is not at 3 decimals:\n%s", data)
+	}
+}

@@ -138,7 +138,7 @@ func unsafeRune(r rune) bool {
 func inertLines(s string) string {
 	lines := strings.Split(s, "\n")
 	for i, l := range lines {
-		lines[i] = textsafe.Inert(l)
+		lines[i] = textsafe.Message(l)
 	}
 	return strings.Join(lines, "\n")
 }

@@ -89,3 +89,46 @@ func TestUpdateNoSecondSpelling(t *testing.T) {
 		t.Errorf("saved text does not read back: %v", err)
 	}
 }
+
+// Names in error messages are shown by textsafe.Inert, the same way in
+// every message (not Go's %q: \a for BEL, \\ doubled on the way out).
+func TestErrorNamesInert(t *testing.T) {
+	base, err := os.ReadFile(demoPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	evil := `ethanol\u001b]0;owned\u0007x`
+	text := strings.Replace(string(base), `name = "ethanol"`, `name = "`+evil+`"`, 1)
+	text = strings.Replace(text, `name = "hexanal"`, `name = "`+evil+`"`, 1)
+	_, err = Parse("m.toml", []byte(text))
+	want := `duplicate compound name "ethanol\x1b]0;owned\x07x" (also compound 1)`
+	if err == nil || !strings.HasSuffix(err.Error(), want) {
+		t.Errorf("got %v, want …%s", err, want)
+	}
+	text = strings.Replace(string(base), `gas = "helium"`, "gas = \"he\\u001blium\"", 1)
+	if _, err = Parse("m.toml", []byte(text)); err == nil || strings.ContainsAny(err.Error(), "\x1b") {
+		t.Errorf("gas: %v", err)
+	}
+}
+
+// A wrong type in a runs file reads as in a method file, in plain words,
+// with the run's element in the key.
+func TestRunsWrongTypePlainWords(t *testing.T) {
+	m := readDemo(t)
+	runs, err := os.ReadFile("../../testdata/scouting.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct{ from, to, want string }{
+		{`"ethanol" = 1.7672`, `"ethanol" = "1.7672"`, "r.toml:14: run[1].retention_min.ethanol: wrong type: expected a number, got string"},
+		{"holdup_min = 1.7521", `holdup_min = "1.75"`, "r.toml:5: run[1].holdup_min: wrong type: expected a number, got string"},
+	} {
+		bad := strings.Replace(string(runs), c.from, c.to, 1)
+		if bad == string(runs) {
+			t.Fatal("fixture did not change")
+		}
+		if _, err := ParseRuns("r.toml", []byte(bad), m); err == nil || err.Error() != c.want {
+			t.Errorf("got %v, want %s", err, c.want)
+		}
+	}
+}

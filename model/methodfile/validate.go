@@ -168,10 +168,10 @@ func (v *validator) checkColumn(m *Method) {
 func (v *validator) checkCarrier(m *Method) {
 	c := &m.Carrier
 	if v.err == nil && !validChoice(c.Gas, model.Gases) {
-		v.fail("carrier.gas", "%q is not one of helium, hydrogen, nitrogen", c.Gas.String())
+		v.fail("carrier.gas", "%s is not one of helium, hydrogen, nitrogen", quoted(c.Gas.String()))
 	}
 	if v.err == nil && !validChoice(c.Mode, model.PressureModes) {
-		v.fail("carrier.mode", "%q is not one of constant-flow, constant-pressure", c.Mode.String())
+		v.fail("carrier.mode", "%s is not one of constant-flow, constant-pressure", quoted(c.Mode.String()))
 	}
 	flow := closed(0.01, 200, "mL/min")
 	inlet := closed(0.1, 10000, "kPa")
@@ -182,7 +182,7 @@ func (v *validator) checkCarrier(m *Method) {
 		v.in("carrier.inlet_kpa", c.InletKPa, inlet, "gauge")
 	}
 	if v.err == nil && c.Outlet != "atmospheric" && c.Outlet != "vacuum" {
-		v.fail("carrier.outlet", "%q is not one of atmospheric, vacuum", c.Outlet)
+		v.fail("carrier.outlet", "%s is not one of atmospheric, vacuum", quoted(c.Outlet))
 	}
 	v.in("carrier.ambient_kpa", c.AmbientKPa, closed(20, 200, "kPa"), "")
 	v.in("carrier.initial_band_s", c.InitialBand, closed(0, 600, "s"), "")
@@ -351,11 +351,11 @@ func (v *validator) checkGoal(m *Method) {
 			return
 		}
 		if !pv.Valid(g.Ramps) {
-			v.fail("goal.lock", "%q is not a program value for %d ramps (use %s)", pv.String(), g.Ramps, model.ValueNames(model.ProgramValues(g.Ramps)))
+			v.fail("goal.lock", "%s is not a program value for %d ramps (use %s)", quoted(pv.String()), g.Ramps, model.ValueNames(model.ProgramValues(g.Ramps)))
 			return
 		}
 		if seen[pv] {
-			v.fail("goal.lock", "%q is listed twice", pv.String())
+			v.fail("goal.lock", "%s is listed twice", quoted(pv.String()))
 			return
 		}
 		seen[pv] = true
