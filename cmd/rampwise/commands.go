@@ -152,16 +152,31 @@ func runVersion(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-// versionLine is "rampwise VERSION (commit REV[, modified], TIME)" from the
-// build information; a value Go did not record is left out or "unknown".
+// buildCommit is the commit given at link time, for builds where Go
+// records no version-control information (a git worktree, whose .git is a
+// file Go does not recognise, golang/go#58218; -buildvcs=false; go run):
+//
+//	go build -ldflags "-X main.buildCommit=$(git rev-parse HEAD)" ./cmd/rampwise
+var buildCommit string
+
+// versionLine is "rampwise VERSION (commit REV[, modified], TIME, GO)" from
+// the build information.
 func versionLine() string {
 	info, ok := debug.ReadBuildInfo()
-	if !ok {
+	return versionFrom(info, ok, buildCommit)
+}
+
+// versionFrom is versionLine for the given build information and link-time
+// commit. Without a recorded revision it names the link-time commit, or
+// says the binary was built without version control information (never
+// "commit unknown", which reads like a fault of the checkout).
+func versionFrom(info *debug.BuildInfo, ok bool, ldCommit string) string {
+	if !ok || info == nil {
 		return "rampwise (no build information)"
 	}
 	version := info.Main.Version
 	if version == "" {
-		version = "unknown"
+		version = "(devel)"
 	}
 	var rev, when string
 	modified := false
@@ -176,14 +191,17 @@ func versionLine() string {
 		}
 	}
 	var extra []string
-	if rev != "" {
+	switch {
+	case rev != "":
 		c := "commit " + rev
 		if modified {
 			c += " (modified)"
 		}
 		extra = append(extra, c)
-	} else {
-		extra = append(extra, "commit unknown")
+	case strings.TrimSpace(ldCommit) != "":
+		extra = append(extra, "commit "+strings.TrimSpace(ldCommit))
+	default:
+		extra = append(extra, "built without version control information")
 	}
 	if when != "" {
 		extra = append(extra, when)

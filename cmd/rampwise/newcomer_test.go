@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"os"
 	"regexp"
+	"runtime/debug"
 	"strings"
 	"testing"
 )
@@ -217,5 +218,24 @@ func TestFitOutRounded(t *testing.T) {
 	}
 	if !regexp.MustCompile(`(?m)^dH_kJ_mol = -20\.063$`).Match(data) {
 		t.Errorf("the first fitted ΔH is not at 3 decimals:\n%s", data)
+	}
+}
+
+// version names the recorded revision, else the link-time commit, else
+// says plainly that the build has no version control information.
+func TestVersionWithoutVCS(t *testing.T) {
+	info := &debug.BuildInfo{GoVersion: "go1.26", Main: debug.Module{Version: "(devel)"}}
+	if got := versionFrom(info, true, ""); got != "rampwise (devel) (built without version control information, go1.26)" || strings.Contains(got, "unknown") {
+		t.Errorf("no VCS: %q", got)
+	}
+	if got := versionFrom(info, true, "abc123"); got != "rampwise (devel) (commit abc123, go1.26)" {
+		t.Errorf("link-time commit: %q", got)
+	}
+	info.Settings = []debug.BuildSetting{{Key: "vcs.revision", Value: "f00d"}, {Key: "vcs.modified", Value: "true"}, {Key: "vcs.time", Value: "2026-01-02T03:04:05Z"}}
+	if got := versionFrom(info, true, "abc123"); got != "rampwise (devel) (commit f00d (modified), 2026-01-02T03:04:05Z, go1.26)" {
+		t.Errorf("VCS: %q", got)
+	}
+	if got := versionFrom(nil, false, ""); got != "rampwise (no build information)" {
+		t.Errorf("no build info: %q", got)
 	}
 }
