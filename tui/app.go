@@ -226,7 +226,7 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 		a.sh.method, a.sh.sys = prev, prevSys
 		a.sysk = prevKey
 		a.resimulate()
-		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
+		a.say(msgError, "%s (kept the last valid value)", inertMsg(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
 	caution := a.newCaution(prev, prevSys)

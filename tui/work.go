@@ -416,12 +416,7 @@ func fitRuns(m *methodfile.Method, path string) fitOutcome {
 		return out
 	}
 	fm := rep.Method.Clone()
-	fm.Column.DiameterMM = round(fm.Column.DiameterMM, settingsSaved["column.diameter_mm"])
-	fm.Column.PlateHeight = round(fm.Column.PlateHeight, 3)
-	for i := range fm.Compounds {
-		c := &fm.Compounds[i]
-		c.DHkJ, c.DS, c.DCp = round(c.DHkJ, compoundDigits), round(c.DS, compoundDigits), round(c.DCp, compoundDigits)
-	}
+	methodfile.RoundFitted(fm) // the rule fit --out uses too
 	rep.Method = fm
 	out.rep = rep
 	sys, err := fm.System()
@@ -438,7 +433,7 @@ func fitRuns(m *methodfile.Method, path string) fitOutcome {
 
 // compoundDigits is how many decimals ΔH (kJ/mol), ΔS and ΔCp (J/(mol·K))
 // keep when they are fitted or typed.
-const compoundDigits = 3
+const compoundDigits = methodfile.FittedCompoundDecimals
 
 // --- ranking of column dimensions (C) ---
 
