@@ -102,6 +102,8 @@ type App struct {
 	inputEnded, endedUnsaved bool
 
 	view cachedView
+	rows rowCount // of the root's own lines, as last drawn
+	cautionsOf *methodfile.Method // the method sh.cautions belong to
 }
 
 type cachedView struct {
@@ -182,6 +184,7 @@ func (a *App) Path() string { return a.path }
 func (a *App) say(k msgKind, format string, args ...any) {
 	a.kind = k
 	a.message = fmt.Sprintf(format, args...)
+	a.sh.status = a.message
 }
 
 // systemKey is everything the model's tables depend on.
@@ -227,7 +230,7 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
-	caution := a.newCaution(prev, prevSys)
+	caution, more := a.newCaution(prev, prevSys)
 	a.undo = append(a.undo, prev)
 	if len(a.undo) > maxUndo {
 		a.undo = append(a.undo[:0], a.undo[len(a.undo)-maxUndo:]...)
@@ -235,10 +238,15 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 	a.redo = nil
 	a.say(msgInfo, "%s", what)
 	if caution != "" {
-		a.say(msgWarn, "%s · %s", what, caution)
+		a.say(msgWarn, "%s · %s", what, inert(caution))
+		if more > 0 {
+			a.say(msgWarn, "%s · %s (and %d more: ! lists them)", what, inert(caution), more)
+		}
 	}
 	if m.Carrier.Gas.Flammable() && !prev.Carrier.Gas.Flammable() {
-		a.say(msgWarn, "%s · %s", what, model.HydrogenCaution)
+		// the caution itself stands whole at the top of the settings (where
+		// the gas is switched) and in the cautions list
+		a.say(msgWarn, "%s · ⚠ hydrogen is flammable: see the caution above", what)
 	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 	return true
@@ -255,11 +263,12 @@ func (a *App) restore(m *methodfile.Method) {
 }
 
 // newCaution is the first caution (overload, detector zone, inlet
-// pressure, late peak) that the change from prev brought in.
-func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string {
+// pressure, late peak) that the change from prev brought in, and how many
+// more it brought.
+func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) (string, int) {
 	now := checks.Warnings(a.sh.method, a.sh.sys, &a.res)
 	if len(now) == 0 {
-		return ""
+		return "", 0
 	}
 	var before []string
 	if prevSys != nil {
@@ -268,6 +277,7 @@ func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string 
 			before = checks.Warnings(prev, prevSys, &r)
 		}
 	}
+	first, more := "", 0
 	for _, w := range now {
 		seen := false
 		for _, b := range before {
@@ -275,11 +285,15 @@ func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string 
 				seen = true
 			}
 		}
-		if !seen {
-			return w
+		switch {
+		case seen:
+		case first == "":
+			first = w
+		default:
+			more++
 		}
 	}
-	return ""
+	return first, more
 }
 
 // Update implements tea.Model.
@@ -455,6 +469,9 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		a.setFocus((a.sh.focus + 1) % paneCount)
 	case key.Matches(msg, k.FocusBack):
 		a.setFocus((a.sh.focus + paneCount - 1) % paneCount)
+	case key.Matches(msg, k.Cautions):
+		a.cautions()
+		a.open(newCautionsDialog(&a.sh))
 	case key.Matches(msg, k.Help):
 		a.open(newHelpDialog(&a.sh, &a.help, a.pane(a.sh.focus), paneNames[a.sh.focus], a.keys))
 	case key.Matches(msg, k.Export):
@@ -605,13 +622,45 @@ func (a *App) View() string {
 	default:
 		parts = append(parts, a.chart.View(), a.pane(a.lower).View())
 	}
-	parts = append(parts, v.summary, v.message, v.footer)
+	parts = append(parts, v.summary)
+	if v.message != "" || a.rows.message > 0 {
+		parts = append(parts, v.message)
+	}
+	parts = append(parts, v.footer)
 	return strings.Join(parts, "\n")
 }
 
-// The fixed rows: title, method line, two program lines, summary, two
-// message lines and the footer.
-const fixedRows = 8
+// The rows around the panes: the title, the method lines, the two program
+// lines, the summary, the status message (as many lines as it needs, none
+// when there is none) and the footer. They wrap rather than cut; the chart
+// keeps its height whatever the message, the lower pane takes the rest.
+type rowCount struct{ title, method, summary, message int }
+
+func (r rowCount) fixed() int { return r.title + r.method + r.summary + 2 + 1 }
+
+// maxMessageRows is the most the status message takes; a longer one ends
+// with a pointer to the list of cautions, which shows it whole.
+const maxMessageRows = 6
+
+// minLowerRows is the least the lower pane keeps: its heading, the table
+// head and one row.
+const minLowerRows = 3
+
+// heights are the chart's and the lower pane's (dialog's) rows.
+func (a *App) heights() (chartH, lowerH int) {
+	base := a.height - a.rows.fixed()
+	chartH = chartRows(base)
+	return chartH, max(minLowerRows, base-chartH-a.rows.message)
+}
+
+// chartRows is the chart's share of the base rows left by the fixed ones.
+func chartRows(base int) int {
+	h := base * 11 / 20
+	if base < 20 {
+		h-- // a small terminal: the row goes to the peak table
+	}
+	return max(7, h)
+}
 
 // layout gives every child its size (the resize fan-out).
 func (a *App) layout() {
@@ -619,12 +668,8 @@ func (a *App) layout() {
 	if a.width < MinWidth || a.height < MinHeight {
 		return
 	}
-	rest := a.height - fixedRows
-	chartH := rest * 11 / 20
-	if chartH < 7 {
-		chartH = 7
-	}
-	lowerH := rest - chartH
+	a.measure()
+	chartH, lowerH := a.heights()
 	a.program.SetSize(a.width, 2)
 	a.chart.SetSize(a.width, chartH)
 	a.peaks.SetSize(a.width, lowerH)
@@ -645,16 +690,36 @@ func (a *App) sizeDialog(d component) {
 	if !a.ready || a.width < MinWidth || a.height < MinHeight {
 		return
 	}
-	rest := a.height - fixedRows
-	chartH := rest * 11 / 20
-	if chartH < 7 {
-		chartH = 7
-	}
-	h := rest - chartH
+	chartH, h := a.heights()
 	if t, ok := d.(interface{ tall() bool }); ok && t.tall() {
-		h = rest
+		h += chartH
 	}
 	d.SetSize(a.width, h)
+}
+
+// measure renders the root's own lines and counts them; it reports
+// whether the count changed (the panes then need new sizes).
+func (a *App) measure() bool {
+	w := a.width
+	v := &a.view
+	title, method, summary := a.titleLines(w), a.methodLines(w), a.summaryLines(w)
+	was := a.rows
+	a.rows = rowCount{title: len(title), method: len(method), summary: len(summary)}
+	base := a.height - a.rows.fixed()
+	chartH := chartRows(base)
+	n := max(0, min(maxMessageRows, base-chartH-minLowerRows))
+	if _, ok := a.overlay.(*cautionsDialog); ok {
+		n = 0 // the list shows the message whole
+	}
+	msg := a.messageLines(w, n)
+	a.rows.message = len(msg)
+	a.sh.status = a.message
+	v.title = strings.Join(title, "\n")
+	v.method = strings.Join(method, "\n")
+	v.summary = strings.Join(summary, "\n")
+	v.message = strings.Join(msg, "\n")
+	v.footer = a.footerLine(w)
+	return a.rows != was
 }
 
 // refresh tells every child that the state may have changed, then
@@ -663,19 +728,16 @@ func (a *App) refresh() {
 	if !a.ready || a.width < MinWidth || a.height < MinHeight {
 		return
 	}
+	if a.measure() {
+		a.layout()
+	}
 	for p := 0; p < paneCount; p++ {
 		a.toPane(p, refreshMsg{})
 	}
 	if a.overlay != nil {
 		a.overlay, _ = a.overlay.Update(refreshMsg{})
 	}
-	w := a.width
-	v := &a.view
-	v.title = a.titleLine(w)
-	v.method = a.methodLine(w)
-	v.summary = a.summaryLine(w)
-	v.message = strings.Join(a.messageLines(w), "\n")
-	v.footer = a.footerLine(w)
+	a.view.footer = a.footerLine(a.width)
 }
 
 // footerLine is the active component's short key help, "? all keys" first
@@ -693,8 +755,18 @@ func (a *App) footerLine(w int) string {
 		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
 		b = append(b, a.keys.ShortHelp()...)
 	}
-	// bubbles/help adds the last item when even its ellipsis does not fit
-	return ansi.Truncate(a.help.ShortHelpView(b), w, "…")
+	// as many whole items as fit ("? all keys" first lists the rest)
+	hm := a.help
+	hm.Width = 0
+	line := ""
+	for i := range b {
+		next := hm.ShortHelpView(b[:i+1])
+		if ansi.StringWidth(next) > w {
+			break
+		}
+		line = next
+	}
+	return line
 }
 
 // cancelMsg asks the root to stop the background work.

@@ -266,6 +266,8 @@ func dialogName(d component) string {
 		return "question"
 	case *progressDialog:
 		return "background work"
+	case *cautionsDialog:
+		return "cautions"
 	}
 	return "dialog"
 }

@@ -68,6 +68,8 @@ var screens = []struct {
 		}
 		a.refresh()
 	}},
+	{"cautions", func(t *testing.T, a *App) { press(a, "shift+tab", "down", "down", "down", "down", "+", "!") }},
+	{"settings-hydrogen", func(t *testing.T, a *App) { press(a, "shift+tab", "down", "down", "down", "down", "+") }},
 	{"window-diagram", func(t *testing.T, a *App) { press(a, "right", "right", "s") }},
 	{"window-diagram-flow", func(t *testing.T, a *App) { press(a, "shift+tab", "s") }},
 }

@@ -8,13 +8,14 @@ func bind(keys []string, k, desc string) key.Binding {
 
 // GlobalKeys work whenever no dialog is open (ctrl+c also with one open).
 type GlobalKeys struct {
-	Help, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare key.Binding
+	Help, Cautions, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
 func DefaultGlobalKeys() GlobalKeys {
 	return GlobalKeys{
 		Help:      bind([]string{"?"}, "?", "all keys"),
+		Cautions:  bind([]string{"!"}, "!", "all cautions, last message"),
 		Quit:      bind([]string{"q"}, "q", "quit"),
 		Interrupt: bind([]string{"ctrl+c"}, "ctrl+c", "quit (asks when unsaved)"),
 		Save:      bind([]string{"ctrl+s"}, "ctrl+s", "save"),
@@ -38,7 +39,7 @@ func (k GlobalKeys) ShortHelp() []key.Binding {
 // FullHelp groups the global keys for the key list.
 func (k GlobalKeys) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
-		{k.Help, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
+		{k.Help, k.Cautions, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
 		{k.Optimize, k.Fit, k.Compare, k.Export},
 		{k.Save, k.SaveAs, k.Undo, k.Redo},
 	}

@@ -97,7 +97,7 @@ func fieldPrompt(f field) string {
 // mode switch also sets the flow or the inlet pressure so that the holdup
 // time at the start temperature stays what it was.
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
-	what := fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit)
+	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
 	if (f.key == "carrier.mode" || f.key == "carrier.gas") && sh.sys != nil && m.Carrier != sh.method.Carrier {
 		tm := sh.sys.Cond.HoldupTimeAt(sh.method.Oven.InitialC + model.ZeroCelsius)
 		if desc, err := keepHoldup(m, tm); err == nil {
@@ -394,7 +394,12 @@ func (c *chartPane) render() {
 	} else if c.prev != nil {
 		extra += " · the current program"
 	}
-	extra += " · numbers are elution order · oven temperature at right"
+	// the legend, as much of it as fits whole
+	for _, l := range []string{" · numbers are elution order", " · oven temperature at right"} {
+		if ansi.StringWidth(" chromatogram"+extra+l) <= c.w {
+			extra += l
+		}
+	}
 	plot := c.c.render(chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1}, c.w, c.h-1, st)
 	c.lines = fill(append([]string{heading(st, c.sh.focus == paneChart, "chromatogram", c.w, extra)}, plot...), c.h)
 }
@@ -598,9 +603,14 @@ func (p *settingsPane) render() {
 	focused := sh.focus == paneSettings
 	lines := []string{heading(st, focused, "settings", p.w, "  ↑/↓ choose · +/- change · enter types · s sweeps the flow or pressure")}
 	if m.Carrier.Gas.Flammable() {
-		lines = append(lines, ansi.Truncate(st.Warn.Render(" ⚠ "+model.HydrogenCaution), p.w, "…"))
+		// safety text is never cut: it wraps
+		for _, l := range wrap(" ⚠ "+model.HydrogenCaution, p.w) {
+			lines = append(lines, st.Warn.Render(l))
+		}
 	}
-	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil {
+	// the derived inlet pressure gives way when fewer than three settings
+	// would show
+	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil && p.h-len(lines)-1 >= 3 {
 		prog := m.ModelProgram()
 		lo, hi := sh.sys.Cond.InletGauge(prog.Initial)/1000, sh.sys.Cond.InletGauge(prog.MaxTemp())/1000
 		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("  %-30s ", "inlet pressure (gauge), derived"))+

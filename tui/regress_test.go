@@ -10,6 +10,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -597,5 +598,88 @@ func TestEndOfInputQuits(t *testing.T) {
 	}
 	if _, unsaved := a.InputEnded(); unsaved {
 		t.Error("saved, yet reported unsaved")
+	}
+}
+
+// At 80×24 nothing on the main screen is cut with "…" (title, method
+// lines, summary, message, footer wrap or keep whole items), no row stays
+// blank at the bottom, and the peak table gets the rows the message does
+// not need.
+func TestNothingCutAt80x24(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "tab", "tab") // peaks
+	s := screen(a)
+	for i, l := range strings.Split(s, "\n") {
+		if strings.Contains(l, "…") {
+			t.Errorf("line %d cut: %q", i, l)
+		}
+	}
+	lines := strings.Split(s, "\n")
+	if strings.TrimSpace(lines[len(lines)-2]) == "" {
+		t.Errorf("a blank row above the footer:\n%s", s)
+	}
+	if !strings.Contains(s, "  7 alpha-pinene") {
+		t.Errorf("the peak table shows fewer than 7 compounds:\n%s", s)
+	}
+	if !strings.Contains(unwrap(s), "Rs 1.06 not met ◆ beta-pinene / myrcene (target 1.50)") {
+		t.Errorf("the critical pair is not named whole:\n%s", s)
+	}
+	// a long message wraps; past its rows it points to the list, which
+	// shows it whole
+	long := strings.Repeat("a long status message that goes on ", 20)
+	a.say(msgInfo, "%s", long)
+	a.refresh()
+	if s := screen(a); !strings.Contains(s, "! shows it all") {
+		t.Errorf("a cut message does not say where it is whole:\n%s", s)
+	}
+	press(a, "!")
+	if s := screen(a); strings.Contains(s, "! shows it all") {
+		t.Errorf("the message still cut under the list:\n%s", s)
+	}
+	var list []string
+	for i := 0; i < 30; i++ {
+		d := a.overlay.(*cautionsDialog)
+		if i == 0 || d.top > 0 {
+			list = append(list, d.lines[1+max(0, len(list)-d.top):]...)
+		}
+		press(a, "down")
+	}
+	if !strings.Contains(unwrap(strings.Join(list, "\n")), strings.TrimSpace(long)) {
+		t.Errorf("the cautions list does not show the whole message:\n%s", strings.Join(list, "\n"))
+	}
+}
+
+// ! lists every caution simulate prints (checks.Cautions), scrollable,
+// also after taking the optimizer's program.
+func TestCautionsListedLikeSimulate(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	fastOptimizer(a)
+	press(a, "o")
+	press(a, "y")
+	want := checks.Cautions(a.Method(), a.sh.sys, a.Result())
+	if len(want) == 0 {
+		t.Skip("no cautions for this program")
+	}
+	press(a, "!")
+	d, ok := a.overlay.(*cautionsDialog)
+	if !ok {
+		t.Fatalf("! opened %T", a.overlay)
+	}
+	var seen strings.Builder
+	for i := 0; i < 40; i++ {
+		seen.WriteString(screen(a) + "\n")
+		press(a, "down")
+	}
+	for _, w := range want {
+		if !strings.Contains(unwrap(seen.String()), w) {
+			t.Errorf("caution not listed: %s", w)
+		}
+	}
+	if len(d.body) > d.h-1 && d.top == 0 {
+		t.Error("↓ did not scroll a long list")
+	}
+	press(a, "esc")
+	if a.overlay != nil {
+		t.Error("esc did not close the list")
 	}
 }
