@@ -104,6 +104,7 @@ type App struct {
 	view cachedView
 	rows rowCount // of the root's own lines, as last drawn
 	cautionsOf *methodfile.Method // the method sh.cautions belong to
+	quitQ      component          // the last quit question
 }
 
 type cachedView struct {
@@ -330,6 +331,9 @@ func (a *App) handle(msg tea.Msg, cmds *[]tea.Cmd) {
 	}
 }
 
+// tooSmall reports whether the terminal is below the size the UI draws in.
+func (a *App) tooSmall() bool { return a.ready && (a.width < MinWidth || a.height < MinHeight) }
+
 // saving reports whether a save runs in the background.
 func (a *App) saving() bool { return a.job != nil && a.job.save }
 
@@ -372,6 +376,17 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 		if a.saving() {
 			// typed while the file is written: taken once it is done
 			a.queued = append(a.queued, msg)
+			return nil
+		}
+		if a.tooSmall() {
+			// nothing is drawn but the request to enlarge: only q (and
+			// the answer to its question) act, never the hidden dialog
+			switch {
+			case a.overlay != nil && a.overlay == a.quitQ:
+				return a.toOverlay(msg)
+			case key.Matches(msg, a.keys.Quit):
+				return a.interrupt()
+			}
 			return nil
 		}
 		if a.overlay != nil {
@@ -517,11 +532,12 @@ func (a *App) askQuit() {
 		return
 	}
 	// no yes/no: "y" to "save them?" could be read either way
-	a.open(newConfirm(&a.sh, "unsaved changes", "s saves and quits · d discards the changes and quits · esc stays", []choice{
+	a.quitQ = newConfirm(&a.sh, "unsaved changes", "s saves and quits · d discards the changes and quits · esc stays", []choice{
 		{keys: []string{"s"}, label: "save and quit", msgs: []tea.Msg{saveMsg{quit: true}}},
 		{keys: []string{"d"}, label: "discard the changes and quit", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
 		{keys: []string{"esc"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
-	}))
+	})
+	a.open(a.quitQ)
 	a.say(msgWarn, "unsaved changes: s save and quit · d discard and quit · esc stay")
 }
 
@@ -605,8 +621,12 @@ func (a *App) View() string {
 	if !a.ready {
 		return "rampwise: starting…"
 	}
-	if a.width < MinWidth || a.height < MinHeight {
-		return fmt.Sprintf("rampwise needs a terminal of at least %d×%d; this one is %d×%d.\nEnlarge the window (q quits).", MinWidth, MinHeight, a.width, a.height)
+	if a.tooSmall() {
+		s := fmt.Sprintf("rampwise needs a terminal of at least %d×%d; this one is %d×%d.\nEnlarge the window (q quits).", MinWidth, MinHeight, a.width, a.height)
+		if a.overlay != nil && a.overlay == a.quitQ {
+			s += "\nUnsaved changes: s save and quit · d discard and quit · esc stay."
+		}
+		return s
 	}
 	v := &a.view
 	parts := []string{v.title, v.method, a.program.View()}

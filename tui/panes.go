@@ -412,13 +412,14 @@ var peakColumns = []struct{ name, unit string }{{"ΔH", format.UnitDH}, {"ΔS", 
 type peaksPane struct {
 	sh    *shared
 	keys  PeakKeys
-	sel   int
+	sel   int // the selected row (elution order)
+	comp  int // the selected compound (index in the method), -1 before any
 	col   int // index into peakColumns
 	w, h  int
 	lines []string
 }
 
-func newPeaksPane(sh *shared) *peaksPane { return &peaksPane{sh: sh, keys: DefaultPeakKeys()} }
+func newPeaksPane(sh *shared) *peaksPane { return &peaksPane{sh: sh, keys: DefaultPeakKeys(), comp: -1} }
 
 func (p *peaksPane) ShortHelp() []key.Binding  { return p.keys.ShortHelp() }
 func (p *peaksPane) FullHelp() [][]key.Binding { return p.keys.FullHelp() }
@@ -435,12 +436,24 @@ func (p *peaksPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	return p, nil
 }
 
+// clamp keeps the selection on the same compound when the table re-sorts
+// (an edit moves it in the elution order), else within the table.
 func (p *peaksPane) clamp() {
-	if n := len(p.sh.res.Peaks); p.sel >= n {
+	peaks := p.sh.res.Peaks
+	for i, pk := range peaks {
+		if p.comp >= 0 && pk.Compound == p.comp {
+			p.sel = i
+			return
+		}
+	}
+	if n := len(peaks); p.sel >= n {
 		p.sel = n - 1
 	}
 	if p.sel < 0 {
 		p.sel = 0
+	}
+	if p.sel < len(peaks) {
+		p.comp = peaks[p.sel].Compound
 	}
 }
 
@@ -454,8 +467,10 @@ func (p *peaksPane) key(msg tea.KeyMsg) {
 	switch {
 	case key.Matches(msg, k.Up):
 		p.sel = (p.sel + n - 1) % n
+		p.comp = sh.res.Peaks[p.sel].Compound
 	case key.Matches(msg, k.Down):
 		p.sel = (p.sel + 1) % n
+		p.comp = sh.res.Peaks[p.sel].Compound
 	case key.Matches(msg, k.Column):
 		p.col = (p.col + 1) % len(peakColumns)
 	case key.Matches(msg, k.ColumnBack):

@@ -683,3 +683,76 @@ func TestCautionsListedLikeSimulate(t *testing.T) {
 		t.Error("esc did not close the list")
 	}
 }
+
+// On a terminal too small to draw in, keys never reach the hidden dialog
+// (typing once gave "45q" in a value): only q acts, and its question is
+// shown and answered there.
+func TestTooSmallOnlyQuits(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "-", "enter") // a change, and the value's prompt open
+	p, ok := a.overlay.(*promptDialog)
+	if !ok {
+		t.Fatalf("no prompt: %T", a.overlay)
+	}
+	before := p.ti.Value()
+	send(a, tea.WindowSizeMsg{Width: 60, Height: 20})
+	if press(a, "4", "5", "+", "u", "o") {
+		t.Fatal("quit")
+	}
+	if got := p.ti.Value(); got != before {
+		t.Errorf("the hidden prompt took keys: %q, was %q", got, before)
+	}
+	if a.job != nil || len(a.undo) != 1 {
+		t.Errorf("keys acted on the hidden screen: job %v, %d undo", a.job != nil, len(a.undo))
+	}
+	if press(a, "q") {
+		t.Fatal("q quit with unsaved changes without asking")
+	}
+	if s := screen(a); !strings.Contains(s, "s save and quit") || !strings.Contains(s, "q quits") {
+		t.Errorf("the question is not shown on the small screen:\n%s", s)
+	}
+	if !press(a, "d") {
+		t.Error("d did not quit")
+	}
+	// nothing unsaved: q quits at once
+	a, _ = newApp(t, 60, 20)
+	if !press(a, "q") {
+		t.Error("q did not quit a small, clean screen")
+	}
+}
+
+// After an edit re-sorts the peak table, the selection stays on the
+// compound edited, so that the next edit lands on it too.
+func TestPeakSelectionFollowsCompound(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "tab", "tab")
+	for i := 0; i < 8; i++ {
+		press(a, "down")
+	}
+	name := func() string {
+		return a.Method().Compounds[a.Result().Peaks[a.peaks.sel].Compound].Name
+	}
+	if name() != "beta-pinene" {
+		t.Fatalf("selected %s", name())
+	}
+	row := a.peaks.sel
+	press(a, "enter", "ctrl+u", "-58", "enter") // ΔH: now after myrcene
+	if name() != "beta-pinene" {
+		t.Errorf("after the re-sort the selection moved to %s", name())
+	}
+	if a.peaks.sel == row {
+		t.Fatal("the edit did not move beta-pinene in the table")
+	}
+	press(a, "enter", "ctrl+u", "-58.5", "enter")
+	for _, c := range a.Method().Compounds {
+		if c.Name == "beta-pinene" && c.DHkJ != -58.5 {
+			t.Errorf("the second edit missed beta-pinene: ΔH %v", c.DHkJ)
+		}
+		if c.Name == "myrcene" && c.DHkJ == -58.5 {
+			t.Error("the second edit landed on myrcene")
+		}
+	}
+	if !strings.Contains(screen(a), "›11 beta-pinene") {
+		t.Errorf("the marked row is not beta-pinene:\n%s", screen(a))
+	}
+}

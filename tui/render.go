@@ -144,9 +144,15 @@ func plural(n int, one, many string) string {
 // wrapStyled wraps styled text at spaces into lines of at most w columns,
 // the lines after the first indented by one.
 func wrapStyled(s string, w int) []string {
-	lines := strings.Split(ansi.Wrap(s, w-1, ""), "\n")
-	for i := 1; i < len(lines); i++ {
-		lines[i] = " " + strings.TrimLeft(lines[i], " ")
+	// ansi.Wrap breaks at every hyphen: keep names such as beta-pinene
+	// whole (a non-breaking hyphen, as wide, stands in while wrapping)
+	const nbh = "\u2011"
+	lines := strings.Split(ansi.Wrap(strings.ReplaceAll(s, "-", nbh), w-1, ""), "\n")
+	for i := range lines {
+		lines[i] = strings.ReplaceAll(lines[i], nbh, "-")
+		if i > 0 {
+			lines[i] = " " + strings.TrimLeft(lines[i], " ")
+		}
 	}
 	return lines
 }
