@@ -190,7 +190,8 @@ func (a *App) say(k msgKind, format string, args ...any) {
 
 // systemKey is everything the model's tables depend on.
 func systemKey(m *methodfile.Method) string {
-	return fmt.Sprintf("%v|%v|%v|%v %v %v", m.Column, m.Carrier, m.Compounds, m.Limits.AmbientC, m.Limits.CooldownTauMin, m.Limits.EquilibrationMin)
+	return fmt.Sprintf("%v|%v|%v|%v %v %v|%v %v", m.Column, m.Carrier, m.Compounds, m.Limits.AmbientC, m.Limits.CooldownTauMin, m.Limits.EquilibrationMin,
+		m.Limits.HasCoolant, m.Limits.CoolantC) // the oven's sink and the tables' low end (MODEL.md §12)
 }
 
 // resimulate rebuilds the tables when the column, carrier or compounds
@@ -249,8 +250,18 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 		// the gas is switched) and in the cautions list
 		a.say(msgWarn, "%s · ⚠ hydrogen is flammable: see the caution above", what)
 	}
+	if m.Limits.HasCoolant && !prev.Limits.HasCoolant {
+		a.open(newCautionDialog(&a.sh)) // the cryogen cautions, in full
+	} else if below(m) && !below(prev) {
+		a.say(msgWarn, "%s · %s", what, checks.CoolantNote(m))
+	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 	return true
+}
+
+// below reports a start below ambient (a coolant is needed).
+func below(m *methodfile.Method) bool {
+	return m.Limits.HasCoolant && m.Oven.InitialC <= m.Limits.AmbientC
 }
 
 // restore makes m the method without touching the undo stacks (undo, redo
@@ -557,8 +568,6 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		a.say(msg.kind, "%s", msg.text)
 	case quitMsg:
 		return tea.Quit
-	case askQuitMsg:
-		a.askQuit()
 	case forgetMsg:
 		a.guard.update(a.path, a.sh.method, false)
 	case previewMsg:

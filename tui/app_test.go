@@ -171,7 +171,7 @@ func TestTooSmallAndPlaceholder(t *testing.T) {
 func TestHydrogenCaution(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
 	press(a, "tab", "tab", "tab") // settings
-	for i := 0; i < 4; i++ {
+	for i := 0; i < 5; i++ {
 		press(a, "down")
 	}
 	press(a, "+")

@@ -13,9 +13,10 @@ import (
 )
 
 const (
-	layerPeak = 0
-	layerTemp = 1
-	tempAxisW = 7 // right margin for the temperature axis
+	layerPeak  = 0
+	layerTemp  = 1
+	layerUnder = 3 // the faint run beneath (layer 2 is the window diagram's)
+	tempAxisW  = 7 // right margin for the temperature axis
 )
 
 // chartInput is what the chromatogram shows.
@@ -25,6 +26,9 @@ type chartInput struct {
 	comps []model.Compound
 	// visible time window, s
 	t0, t1 float64
+	// under is another run drawn faint and dotted beneath this one (the
+	// current program's while the optimizer's waits), or nil
+	under *model.Result
 }
 
 // chart draws the simulated chromatogram: the summed Gaussian peaks as a
@@ -90,11 +94,24 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 			}
 		}
 	}
+	var under []float64
+	if in.under != nil {
+		under = make([]float64, dw)
+		for x := range under {
+			under[x] = in.under.Signal(in.comps, t0+(float64(x)+0.5)/float64(dw)*span)
+			ymax = math.Max(ymax, under[x])
+		}
+	}
 	row := func(y float64) int {
 		if ymax <= 0 {
 			return dh - 1
 		}
 		return dh - 1 - int(math.Round(y/ymax*float64(dh-2)))
+	}
+	// the run beneath: every other dot column, so that it reads as dotted
+	// without colour too
+	for x := 0; x < len(under); x += 2 {
+		c.cv.Set(x, row(under[x]), layerUnder)
 	}
 	prev := row(c.ys[0])
 	for x := 0; x < dw; x++ {
@@ -211,6 +228,8 @@ func (c *chart) row(b *strings.Builder, r, pw int, st *Styles) {
 			b.WriteString(st.PeakLabel.Render(s))
 		case 4:
 			b.WriteString(st.Critical.Render(s))
+		case 5:
+			b.WriteString(st.Dim.Render(s))
 		default:
 			b.WriteString(s)
 		}
@@ -228,6 +247,8 @@ func (c *chart) row(b *strings.Builder, r, pw int, st *Styles) {
 			kind = 1
 		case cell.Layers&(1<<layerTemp) != 0:
 			kind = 2
+		case cell.Layers&(1<<layerUnder) != 0:
+			kind = 5
 		}
 		if kind != cur {
 			flush()

@@ -69,6 +69,7 @@ type (
 		prog   model.Program
 		label  string
 		showIt bool // draw the preview (true) or the method's run (false)
+		faint  bool // draw the other run faint and dotted beneath
 	}
 )
 
@@ -104,4 +105,5 @@ var (
 	_ component = (*helpDialog)(nil)
 	_ component = (*progressDialog)(nil)
 	_ component = (*cautionsDialog)(nil)
+	_ component = (*cautionDialog)(nil)
 )

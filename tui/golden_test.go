@@ -68,8 +68,32 @@ var screens = []struct {
 		}
 		a.refresh()
 	}},
-	{"cautions", func(t *testing.T, a *App) { press(a, "shift+tab", "down", "down", "down", "down", "+", "!") }},
-	{"settings-hydrogen", func(t *testing.T, a *App) { press(a, "shift+tab", "down", "down", "down", "down", "+") }},
+	{"settings-packed", func(t *testing.T, a *App) {
+		press(a, "shift+tab", "+") // the kind: packed
+		pickSetting(t, a, "column.particle_um")
+		a.message = "column.kind = packed"
+	}},
+	{"settings-porous-layer-coolant", func(t *testing.T, a *App) {
+		press(a, "shift+tab", "+", "+") // porous-layer
+		pickSetting(t, a, "limits.coolant_c")
+		press(a, "-", "esc") // a coolant (its cautions open), then a start below ambient
+		a.setFocus(paneProgram)
+		a.program.list.sel = 0
+		press(a, "enter", "ctrl+u", "-40", "enter")
+		pickSetting(t, a, "limits.coolant_c")
+	}},
+	{"cautions", func(t *testing.T, a *App) {
+		pickSetting(t, a, "limits.coolant_c")
+		press(a, "-")
+	}},
+	{"all-cautions", func(t *testing.T, a *App) {
+		pickSetting(t, a, "carrier.gas")
+		press(a, "+", "!")
+	}},
+	{"settings-hydrogen", func(t *testing.T, a *App) {
+		pickSetting(t, a, "carrier.gas")
+		press(a, "+")
+	}},
 	{"window-diagram", func(t *testing.T, a *App) { press(a, "right", "right", "s") }},
 	{"window-diagram-flow", func(t *testing.T, a *App) { press(a, "shift+tab", "s") }},
 }

@@ -50,7 +50,7 @@ var globalTitles = []string{"everywhere", "work", "file and history"}
 
 // FieldKeys edit a list of values (the program and the settings).
 type FieldKeys struct {
-	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp, Sweep key.Binding
+	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp, Sweep, Cautions key.Binding
 }
 
 // DefaultProgramKeys are the program pane's bindings.
@@ -79,7 +79,8 @@ func DefaultSettingsKeys() FieldKeys {
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
 		Type:    bind([]string{"enter"}, "enter", "type value"),
-		Sweep:   bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
+		Sweep:    bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
+		Cautions: bind([]string{"c"}, "c", "cautions in full (coolant, hydrogen)"),
 	}
 }
 
@@ -96,7 +97,7 @@ func (k FieldKeys) ShortHelp() []key.Binding {
 func (k FieldKeys) FullHelp() [][]key.Binding {
 	// the second key of each pair (→, -, [) is named with the first
 	b := []key.Binding{k.Prev, k.Up, k.BigUp, k.Type}
-	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep} {
+	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep, k.Cautions} {
 		if len(x.Keys()) > 0 {
 			b = append(b, x)
 		}

@@ -11,6 +11,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
@@ -98,6 +99,13 @@ func fieldPrompt(f field) string {
 // time at the start temperature stays what it was.
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
+	editKey := f.key
+	if f.after != nil {
+		if more := f.after(sh.method, m); more != "" {
+			what = strings.TrimSpace(what) + " · " + more
+			editKey = "" // it changed other keys too: check all of it
+		}
+	}
 	if (f.key == "carrier.mode" || f.key == "carrier.gas") && sh.sys != nil && m.Carrier != sh.method.Carrier {
 		tm := sh.sys.Cond.HoldupTimeAt(sh.method.Oven.InitialC + model.ZeroCelsius)
 		if desc, err := keepHoldup(m, tm); err == nil {
@@ -106,7 +114,7 @@ func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 			what += " · " + err.Error()
 		}
 	}
-	return editMsg{m: m, what: strings.TrimSpace(what), key: f.key}
+	return editMsg{m: m, what: strings.TrimSpace(what), key: editKey}
 }
 
 // --- program pane ---
@@ -297,6 +305,7 @@ type chartPane struct {
 	prevProg  model.Program
 	prevLabel string
 	showPrev  bool
+	faint     bool // draw the other run faint beneath (a waiting result)
 }
 
 func newChartPane(sh *shared) *chartPane {
@@ -314,9 +323,9 @@ func (c *chartPane) Update(msg tea.Msg) (component, tea.Cmd) {
 		c.render()
 	case previewMsg:
 		if msg.res == nil {
-			c.prev, c.showPrev = nil, false
+			c.prev, c.showPrev, c.faint = nil, false, false
 		} else {
-			c.prev, c.prevProg, c.prevLabel, c.showPrev = msg.res, msg.prog, msg.label, msg.showIt
+			c.prev, c.prevProg, c.prevLabel, c.showPrev, c.faint = msg.res, msg.prog, msg.label, msg.showIt, msg.faint
 		}
 		c.render()
 	case tea.KeyMsg:
@@ -389,9 +398,14 @@ func (c *chartPane) render() {
 	if c.zoom > 1 {
 		extra += fmt.Sprintf(" (zoom ×%.1f)", c.zoom)
 	}
-	if c.prev != nil && c.showPrev {
+	switch {
+	case c.prev != nil && c.showPrev && c.faint:
+		extra += " · " + c.prevLabel + " · ⠄⠄ dotted: the current run"
+	case c.prev != nil && c.showPrev:
 		extra += " · " + c.prevLabel
-	} else if c.prev != nil {
+	case c.prev != nil && c.faint:
+		extra += " · the current run · ⠄⠄ dotted: " + c.prevLabel
+	case c.prev != nil:
 		extra += " · the current program"
 	}
 	// the legend, as much of it as fits whole
@@ -400,7 +414,15 @@ func (c *chartPane) render() {
 			extra += l
 		}
 	}
-	plot := c.c.render(chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1}, c.w, c.h-1, st)
+	in := chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1}
+	if c.prev != nil && c.faint {
+		// the other run, faint and dotted beneath the one shown
+		in.under = c.sh.res
+		if !c.showPrev {
+			in.under = c.prev
+		}
+	}
+	plot := c.c.render(in, c.w, c.h-1, st)
 	c.lines = fill(append([]string{heading(st, c.sh.focus == paneChart, "chromatogram", c.w, extra)}, plot...), c.h)
 }
 
@@ -602,8 +624,13 @@ func (p *settingsPane) Update(msg tea.Msg) (component, tea.Cmd) {
 		p.list.clamp()
 		p.render()
 	case tea.KeyMsg:
-		if !p.list.key(msg) && key.Matches(msg, p.list.keys.Sweep) {
-			p.list.sh.send(startSweepMsg{spec: carrierSweep(p.list.sh.method)})
+		if !p.list.key(msg) {
+			switch {
+			case key.Matches(msg, p.list.keys.Sweep):
+				p.list.sh.send(startSweepMsg{spec: carrierSweep(p.list.sh.method)})
+			case key.Matches(msg, p.list.keys.Cautions):
+				p.list.sh.send(openMsg{newCautionDialog(p.list.sh)})
+			}
 		}
 		p.list.clamp()
 	}
@@ -617,6 +644,13 @@ func (p *settingsPane) render() {
 	fs := settingsFields(m)
 	focused := sh.focus == paneSettings
 	lines := []string{heading(st, focused, "settings", p.w, "  ↑/↓ choose · +/- change · enter types · s sweeps the flow or pressure")}
+	if note := checks.CoolantNote(m); note != "" {
+		// the cautions in full are one key away (c), and open by
+		// themselves when a coolant is added
+		tail := " · c: in full"
+		lines = append(lines, st.Warn.Render(ansi.Truncate(" ⚠ "+note, p.w-len(tail), "…")+tail),
+			st.Warn.Render(ansi.Truncate(" ⚠ "+model.CryogenCaution, p.w, "…")))
+	}
 	if m.Carrier.Gas.Flammable() {
 		// safety text is never cut: it wraps
 		for _, l := range wrap(" ⚠ "+model.HydrogenCaution, p.w) {

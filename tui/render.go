@@ -76,9 +76,16 @@ func (a *App) methodLines(w int) []string {
 	if phase == "" {
 		phase = "phase not named"
 	}
+	col := fmt.Sprintf("%s m × %s mm × %s µm", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
+	switch c.Kind {
+	case model.Packed:
+		col = fmt.Sprintf("packed %s m × %s mm, %s µm particles", v("column.length_m"), v("column.diameter_mm"), v("column.particle_um"))
+	case model.PorousLayer:
+		col = fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
+	}
 	// the target resolution is in the summary below
-	s := fmt.Sprintf(" %s m × %s mm × %s µm, max %s °C · %s %s · goal %s, %d ramps · %s",
-		v("column.length_m"), v("column.diameter_mm"), v("column.film_um"), v("column.max_temp_c"), g.Gas, flow,
+	s := fmt.Sprintf(" %s, max %s °C · %s %s · goal %s, %d ramps · %s",
+		col, v("column.max_temp_c"), g.Gas, flow,
 		m.Goal.Objective, m.Goal.Ramps, phase)
 	const h2 = " ⚠ H₂ flammable ·"
 	if g.Gas.Flammable() {

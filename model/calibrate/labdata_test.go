@@ -309,6 +309,11 @@ func TestLabTablesAndTraceAssignAndPredict(t *testing.T) {
 		if len(rep.Assignments) < 50 {
 			t.Errorf("seed %d: only %d assignments", seed, len(rep.Assignments))
 		}
+		// the tables' and the trace's half-height widths give back the
+		// plate-height factor the runs were generated with
+		if !rep.PlateFitted || math.Abs(rep.PlateHeightFactor/truth.Column.PlateHeight-1) > 0.05 {
+			t.Errorf("seed %d: plate-height factor %.3f (fitted %v), true %.3f", seed, rep.PlateHeightFactor, rep.PlateFitted, truth.Column.PlateHeight)
+		}
 		checkAssignments(t, rep, truth)
 		worst, wn := 0.0, ""
 		for name, d := range newProgramErrors(t, rep.Method, truth) {

@@ -151,9 +151,9 @@ func TestDialectsAgree(t *testing.T) {
 
 func TestThousandsSeparators(t *testing.T) {
 	for in, want := range map[string]float64{
-		"RT (min);Area\n3,62;1.234.567,5\n4,10;12,0\n":  1234567.5,
-		"RT (min)\tArea\n3.62\t15,234.1\n4.10\t12.0\n":  15234.1,
-		"\"RT (min)\",\"Area\"\n3.62,\"15,234.1\"\n": 15234.1,
+		"RT (min);Area\n3,62;1.234.567,5\n4,10;12,0\n": 1234567.5,
+		"RT (min)\tArea\n3.62\t15,234.1\n4.10\t12.0\n": 15234.1,
+		"\"RT (min)\",\"Area\"\n3.62,\"15,234.1\"\n":   15234.1,
 	} {
 		tab, err := Parse("t.csv", []byte(in), Columns{})
 		if err != nil {

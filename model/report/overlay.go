@@ -137,10 +137,18 @@ func (m *Measured) draw(top *plot.Plot, endMin float64, predApex func(t float64)
 		lo = 0
 	}
 	if len(m.Matches) > 0 {
-		// scale to the tallest matched peak (a solvent peak would flatten the rest)
-		hi = math.Inf(-1)
+		// the same scale as the prediction: the median matched apex of the
+		// measured run drawn as tall as the median predicted one (a solvent
+		// peak would otherwise flatten the rest)
+		var pm, mm []float64
 		for _, x := range m.Matches {
-			hi = math.Max(hi, m.signal(x.MeasuredMin))
+			pm = append(pm, predApex(x.PredictedMin))
+			mm = append(mm, m.signal(x.MeasuredMin)-lo)
+		}
+		sort.Float64s(pm)
+		sort.Float64s(mm)
+		if p, q := pm[len(pm)/2], mm[len(mm)/2]; p > 0 && q > 0 {
+			hi = lo + q/p
 		}
 	}
 	span := hi - lo

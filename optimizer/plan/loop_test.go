@@ -61,6 +61,7 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool, preset
 			// margin the model vouches for: that run is the verification
 			t.Logf("seed %d: done after %d injections, before a planned verification: %s", seed, k-1, p.Reason)
 			out.verified, out.done = p.VerifiedBy != "", true
+			out.injections = k - 1
 			out.runTime = methodfile.ProgramToModel(p.Oven).RunTime() / 60
 			out.trueRs = rampRsOf(t, truth, p.Oven)
 			return out
