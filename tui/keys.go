@@ -58,7 +58,7 @@ func DefaultProgramKeys() FieldKeys {
 	return FieldKeys{
 		Prev:    bind([]string{"left", "h"}, "←/→", "choose value"),
 		Next:    bind([]string{"right", "l"}, "→", "next value"),
-		Up:      bind([]string{"+", "=", "up", "k"}, "+/-", "step"),
+		Up:      bind([]string{"+", "=", "up", "k"}, "+/- ↑/↓", "step"),
 		Down:    bind([]string{"-", "_", "down", "j"}, "-", "step down"),
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
@@ -74,7 +74,7 @@ func DefaultSettingsKeys() FieldKeys {
 	return FieldKeys{
 		Prev:    bind([]string{"up", "k"}, "↑/↓", "choose setting"),
 		Next:    bind([]string{"down", "j"}, "↓", "next setting"),
-		Up:      bind([]string{"+", "=", "right", "l"}, "+/-", "step or choice"),
+		Up:      bind([]string{"+", "=", "right", "l"}, "+/- ←/→", "step or choice"),
 		Down:    bind([]string{"-", "_", "left", "h"}, "-", "step down"),
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),

@@ -161,14 +161,16 @@ func (p *programPane) key(msg tea.KeyMsg) {
 	}
 }
 
-// maxEditRamps is how many ramps a is allowed to add up to.
-const maxEditRamps = 5
+// maxEditRamps is how many ramps a adds up to: as many as a method file
+// holds (the optimizer's goal.ramps, 1–5, is how many it searches with,
+// not a limit of the program).
+const maxEditRamps = methodfile.MaxRamps
 
 func (p *programPane) addRamp() {
 	sh := p.list.sh
 	m := sh.method.Clone()
 	if len(m.Oven.Ramps) >= maxEditRamps {
-		sh.say(msgError, "five ramps at most")
+		sh.say(msgError, fmt.Sprintf("%d ramps at most: a method file holds no more (oven.ramp)", maxEditRamps))
 		return
 	}
 	prev := m.Oven.InitialC

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -754,5 +755,79 @@ func TestPeakSelectionFollowsCompound(t *testing.T) {
 	}
 	if !strings.Contains(screen(a), "›11 beta-pinene") {
 		t.Errorf("the marked row is not beta-pinene:\n%s", screen(a))
+	}
+}
+
+// ↑/↓ step a program value and ←/→ a setting: the key list says so.
+func TestArrowStepsListed(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	was := a.Method().Oven.InitialC
+	press(a, "up")
+	if a.Method().Oven.InitialC <= was {
+		t.Fatal("↑ did not step the start temperature")
+	}
+	press(a, "?")
+	if s := screen(a); !strings.Contains(s, "+/- ↑/↓ step") {
+		t.Errorf("the key list does not name ↑/↓ as a step:\n%s", s)
+	}
+	press(a, "esc", "shift+tab", "?")
+	if s := screen(a); !strings.Contains(s, "+/- ←/→ step or choice") {
+		t.Errorf("the settings' key list does not name ←/→:\n%s", s)
+	}
+}
+
+// a adds ramps up to what a method file holds, and says that limit; a
+// method with more ramps than the optimizer's goal.ramps (1–5) edits.
+func TestAddRampLimit(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	m := a.Method().Clone()
+	m.Oven.Ramps = nil
+	for i := 0; i < 7; i++ {
+		m.Oven.Ramps = append(m.Oven.Ramps, methodfile.Ramp{RateCMin: 5, FinalC: 60 + 10*float64(i), HoldMin: 0.1})
+	}
+	if !a.apply(m, "seven ramps", "") {
+		t.Fatalf("a 7-ramp program refused: %s", a.message)
+	}
+	press(a, "a")
+	if n := len(a.Method().Oven.Ramps); n != 8 {
+		t.Fatalf("a on 7 ramps: %d ramps (%s)", n, a.message)
+	}
+	m = a.Method().Clone()
+	for len(m.Oven.Ramps) < methodfile.MaxRamps-1 {
+		m.Oven.Ramps = append(m.Oven.Ramps, methodfile.Ramp{RateCMin: 5, FinalC: m.Oven.Ramps[len(m.Oven.Ramps)-1].FinalC + 1})
+	}
+	if !a.apply(m, "29 ramps", "") {
+		t.Fatalf("29 ramps refused: %s", a.message)
+	}
+	press(a, "a")
+	if n := len(a.Method().Oven.Ramps); n != methodfile.MaxRamps {
+		t.Fatalf("a on %d ramps: %d (%s)", methodfile.MaxRamps-1, n, a.message)
+	}
+	press(a, "a")
+	if n := len(a.Method().Oven.Ramps); n != methodfile.MaxRamps {
+		t.Errorf("%d ramps", n)
+	}
+	if want := fmt.Sprintf("%d ramps at most", methodfile.MaxRamps); !strings.Contains(a.message, want) {
+		t.Errorf("limit message %q, want %q", a.message, want)
+	}
+}
+
+// Save as to an existing folder is refused with a clear message (not
+// "replace it?").
+func TestSaveAsFolderRefused(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	dir := t.TempDir()
+	press(a, "-", "W", "ctrl+u", dir, "enter")
+	if _, ok := a.overlay.(*confirmDialog); ok {
+		t.Fatal("asked to replace a folder")
+	}
+	if !strings.Contains(a.message, "is a folder") || !strings.Contains(a.message, "not saved") {
+		t.Errorf("message %q", a.message)
+	}
+	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
+		t.Error("the folder is gone")
+	}
+	if !a.Dirty() || a.Path() != path {
+		t.Error("the method's file changed")
 	}
 }
