@@ -178,9 +178,24 @@ func TestHydrogenCaution(t *testing.T) {
 	if a.Method().Carrier.Gas != model.Hydrogen {
 		t.Fatalf("gas %q", a.Method().Carrier.Gas)
 	}
-	if s := screen(a); !strings.Contains(s, "flammable") || !strings.Contains(s, "leak") {
-		t.Errorf("no hydrogen caution:\n%s", s)
+	// the safety text is never cut: wrapped whole in the settings, with
+	// settings still to choose from, and in the cautions list
+	if s := screen(a); !strings.Contains(unwrap(s), model.HydrogenCaution) || !strings.Contains(s, "› carrier gas") {
+		t.Errorf("no whole hydrogen caution, or no settings:\n%s", s)
 	}
+	press(a, "tab", "tab", "!")
+	if s := screen(a); !strings.Contains(unwrap(s), model.HydrogenCaution) {
+		t.Errorf("no whole hydrogen caution in the cautions list:\n%s", s)
+	}
+}
+
+// unwrap joins wrapped screen lines (each with its indent) into one text.
+func unwrap(s string) string {
+	var words []string
+	for _, l := range strings.Split(s, "\n") {
+		words = append(words, strings.Fields(strings.TrimLeft(l, " ⚠"))...)
+	}
+	return strings.Join(words, " ")
 }
 
 func TestToggleTargetAndEditCompound(t *testing.T) {

@@ -262,6 +262,7 @@ func dialogName(d component) string {
 		return "question"
 	case *progressDialog:
 		return "background work"
+	case *cautionsDialog:
 	case *cautionDialog:
 		return "cautions"
 	case *verifyDialog:

@@ -100,6 +100,14 @@ var screens = []struct {
 			t.Fatalf("no verification dialog: %s", a.message)
 		}
 	}},
+	{"all-cautions", func(t *testing.T, a *App) {
+		pickSetting(t, a, "carrier.gas")
+		press(a, "+", "!")
+	}},
+	{"settings-hydrogen", func(t *testing.T, a *App) {
+		pickSetting(t, a, "carrier.gas")
+		press(a, "+")
+	}},
 	{"window-diagram", func(t *testing.T, a *App) { press(a, "right", "right", "s") }},
 	{"window-diagram-flow", func(t *testing.T, a *App) { press(a, "shift+tab", "s") }},
 }

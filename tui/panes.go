@@ -99,7 +99,7 @@ func fieldPrompt(f field) string {
 // mode switch also sets the flow or the inlet pressure so that the holdup
 // time at the start temperature stays what it was.
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
-	what := fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit)
+	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
 	editKey := f.key
 	if f.after != nil {
 		if more := f.after(sh.method, m); more != "" {
@@ -162,14 +162,16 @@ func (p *programPane) key(msg tea.KeyMsg) {
 	}
 }
 
-// maxEditRamps is how many ramps a is allowed to add up to.
-const maxEditRamps = 5
+// maxEditRamps is how many ramps a adds up to: as many as a method file
+// holds (the optimizer's goal.ramps, 1–5, is how many it searches with,
+// not a limit of the program).
+const maxEditRamps = methodfile.MaxRamps
 
 func (p *programPane) addRamp() {
 	sh := p.list.sh
 	m := sh.method.Clone()
 	if len(m.Oven.Ramps) >= maxEditRamps {
-		sh.say(msgError, "five ramps at most")
+		sh.say(msgError, fmt.Sprintf("%d ramps at most: a method file holds no more (oven.ramp)", maxEditRamps))
 		return
 	}
 	prev := m.Oven.InitialC
@@ -422,7 +424,12 @@ func (c *chartPane) render() {
 	if c.meas != nil {
 		extra += " · below: measured " + inert(c.meas.Label) + ", ╱ joins matched peaks"
 	}
-	extra += " · numbers are elution order · oven temperature at right"
+	// the legend, as much of it as fits whole
+	for _, l := range []string{" · numbers are elution order", " · oven temperature at right"} {
+		if ansi.StringWidth(" chromatogram"+extra+l) <= c.w {
+			extra += l
+		}
+	}
 	in := chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1, meas: c.meas}
 	if c.prev != nil && c.faint {
 		// the other run, faint and dotted beneath the one shown
@@ -443,13 +450,14 @@ var peakColumns = []struct{ name, unit string }{{"ΔH", format.UnitDH}, {"ΔS", 
 type peaksPane struct {
 	sh    *shared
 	keys  PeakKeys
-	sel   int
+	sel   int // the selected row (elution order)
+	comp  int // the selected compound (index in the method), -1 before any
 	col   int // index into peakColumns
 	w, h  int
 	lines []string
 }
 
-func newPeaksPane(sh *shared) *peaksPane { return &peaksPane{sh: sh, keys: DefaultPeakKeys()} }
+func newPeaksPane(sh *shared) *peaksPane { return &peaksPane{sh: sh, keys: DefaultPeakKeys(), comp: -1} }
 
 func (p *peaksPane) ShortHelp() []key.Binding  { return p.keys.ShortHelp() }
 func (p *peaksPane) FullHelp() [][]key.Binding { return p.keys.FullHelp() }
@@ -466,12 +474,24 @@ func (p *peaksPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	return p, nil
 }
 
+// clamp keeps the selection on the same compound when the table re-sorts
+// (an edit moves it in the elution order), else within the table.
 func (p *peaksPane) clamp() {
-	if n := len(p.sh.res.Peaks); p.sel >= n {
+	peaks := p.sh.res.Peaks
+	for i, pk := range peaks {
+		if p.comp >= 0 && pk.Compound == p.comp {
+			p.sel = i
+			return
+		}
+	}
+	if n := len(peaks); p.sel >= n {
 		p.sel = n - 1
 	}
 	if p.sel < 0 {
 		p.sel = 0
+	}
+	if p.sel < len(peaks) {
+		p.comp = peaks[p.sel].Compound
 	}
 }
 
@@ -485,8 +505,10 @@ func (p *peaksPane) key(msg tea.KeyMsg) {
 	switch {
 	case key.Matches(msg, k.Up):
 		p.sel = (p.sel + n - 1) % n
+		p.comp = sh.res.Peaks[p.sel].Compound
 	case key.Matches(msg, k.Down):
 		p.sel = (p.sel + 1) % n
+		p.comp = sh.res.Peaks[p.sel].Compound
 	case key.Matches(msg, k.Column):
 		p.col = (p.col + 1) % len(peakColumns)
 	case key.Matches(msg, k.ColumnBack):
@@ -646,9 +668,14 @@ func (p *settingsPane) render() {
 			st.Warn.Render(ansi.Truncate(" ⚠ "+model.CryogenCaution, p.w, "…")))
 	}
 	if m.Carrier.Gas.Flammable() {
-		lines = append(lines, ansi.Truncate(st.Warn.Render(" ⚠ "+model.HydrogenCaution), p.w, "…"))
+		// safety text is never cut: it wraps
+		for _, l := range wrap(" ⚠ "+model.HydrogenCaution, p.w) {
+			lines = append(lines, st.Warn.Render(l))
+		}
 	}
-	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil {
+	// the derived inlet pressure gives way when fewer than three settings
+	// would show
+	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil && p.h-len(lines)-1 >= 3 {
 		prog := m.ModelProgram()
 		lo, hi := sh.sys.Cond.InletGauge(prog.Initial)/1000, sh.sys.Cond.InletGauge(prog.MaxTemp())/1000
 		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("  %-30s ", "inlet pressure (gauge), derived"))+

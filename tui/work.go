@@ -196,6 +196,10 @@ func (a *App) saveAs(path string, quit bool) tea.Cmd {
 		a.say(msgError, "no file name given; not saved")
 		return nil
 	}
+	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		a.say(msgError, "%s is a folder: give a file name in it, such as %s (not saved)", inert(path), inert(filepath.Join(path, "method.toml")))
+		return nil
+	}
 	if _, err := os.Stat(path); err == nil && !a.wrote[path] {
 		a.open(newConfirm(&a.sh, "replace "+inert(path)+"?", "it exists and was not written here", []choice{
 			{keys: []string{"y"}, label: "replace it", msgs: []tea.Msg{saveMsg{path: path, quit: quit}}},
