@@ -89,7 +89,7 @@ func TestCoolantAndCryogenCautions(t *testing.T) {
 	if !m.Limits.HasCoolant || m.Limits.CoolantC != defaultCoolantC || m.Limits.OvenMinC != defaultCoolantC+10 {
 		t.Fatalf("coolant: %+v (%s)", m.Limits, a.message)
 	}
-	if _, ok := a.overlay.(*cautionDialog); !ok {
+	if _, ok := a.overlay.(*cautionsDialog); !ok {
 		t.Fatalf("adding a coolant did not show the cautions: %T", a.overlay)
 	}
 	s := strings.Join(strings.Fields(screen(a)), " ")
@@ -112,9 +112,12 @@ func TestCoolantAndCryogenCautions(t *testing.T) {
 	if s := screen(a); !strings.Contains(s, "a coolant is needed") || !strings.Contains(s, "Cryogenic coolant") {
 		t.Errorf("settings do not show the coolant need:\n%s", s)
 	}
-	press(a, "c")
-	if _, ok := a.overlay.(*cautionDialog); !ok {
-		t.Fatalf("c did not open the cautions: %T", a.overlay)
+	press(a, "!")
+	if _, ok := a.overlay.(*cautionsDialog); !ok {
+		t.Fatalf("! did not open the cautions: %T", a.overlay)
+	}
+	if s := strings.Join(strings.Fields(screen(a)), " "); !strings.Contains(s, "asphyxiate") || !strings.Contains(s, "a coolant is needed") {
+		t.Errorf("the cautions lack the coolant:\n%s", screen(a))
 	}
 	press(a, "q")
 	if a.overlay != nil {
