@@ -25,7 +25,7 @@ func TestEmptyNameAndStdin(t *testing.T) {
 	for _, args := range [][]string{
 		{"simulate", ""}, {"optimize", ""}, {"tui", ""}, {"export", "", "--csv", "x.csv"},
 		{"sweep", "", "--vary", "rate_1", "--from", "5", "--to", "10"}, {"index", ""},
-		{"compare", ""}, {"plan", ""}, {"fit", "", "../../testdata/scouting.toml"},
+		{"compare", ""}, {"plan", ""}, {"fit", "", "../../testdata/scouting.toml"}, {"check", "", "../../testdata/lab/verify.csv"},
 	} {
 		code, out, errs := runCmd(t, args...)
 		if code != 2 || !strings.Contains(errs, "empty file name") || out != "" {
