@@ -189,11 +189,11 @@ func (d *resultDialog) render() {
 
 // --- the fit review ---
 
-// Standard errors above these are called large (our threshold: about what
-// moves a retention factor at 100 °C by 30 %).
+// Standard errors above these are called large: the thresholds fit uses
+// too (calibrate.LargeSEDHkJ, LargeSEDS).
 const (
-	largeErrDH = 1.0 // kJ/mol
-	largeErrDS = 2.5 // J/(mol·K)
+	largeErrDH = calibrate.LargeSEDHkJ // kJ/mol
+	largeErrDS = calibrate.LargeSEDS   // J/(mol·K)
 )
 
 type fitDialog struct {
@@ -239,7 +239,7 @@ func (d *fitDialog) body() []string {
 	var out []string
 	for _, c := range d.order {
 		mark := " "
-		if c.StdErrDH > largeErrDH || c.StdErrDS > largeErrDS {
+		if c.LargeError() {
 			mark = "⚠"
 		}
 		added := ""
@@ -262,9 +262,9 @@ func (d *fitDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	if km, ok := msg.(tea.KeyMsg); ok {
 		switch {
 		case key.Matches(km, d.keys.Accept):
-			d.sh.send(closeMsg{}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"})
+			d.sh.send(closeMsg{}, fitTakenMsg{path: d.fit.path, prior: d.sh.method}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"}, replanMsg{})
 		case key.Matches(km, d.keys.Reject):
-			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"})
+			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"}, replanMsg{})
 		default:
 			scroll(&d.off, km, d.keys, len(d.body()), d.rows())
 		}

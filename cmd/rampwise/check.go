@@ -111,7 +111,7 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 		}
 		methodfile.RoundFitted(rep.Method) // as fit --out saves them
 		if *out != "" {
-			if err := methodfile.WriteFile(*out, rep.Method); err != nil {
+			if err := saveFitted(*out, rep.Method, func() error { return methodfile.WriteFile(*out, rep.Method) }); err != nil {
 				return err
 			}
 		}

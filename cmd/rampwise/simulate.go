@@ -95,14 +95,7 @@ func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 
 // warnings are the cautions a chromatographer needs with this result.
 func (s *simulation) warnings(prog model.Program) []string {
-	w := checks.Warnings(s.Method, s.System, &s.Result)
-	if s.System.Cond.Carrier.Gas.Flammable() {
-		w = append(w, model.HydrogenCaution)
-	}
-	if note := checks.CoolantNote(s.Method); note != "" {
-		w = append(w, note, model.CryogenCaution)
-	}
-	return w
+	return checks.Cautions(s.Method, s.System, &s.Result)
 }
 
 func fmtMin(s float64) string {
