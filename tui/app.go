@@ -93,6 +93,7 @@ type App struct {
 	kind    msgKind
 
 	optSettings optimizer.Settings
+	plan        planState
 	job         *job
 	jobSeq      int // the last job's id
 	// keys (and the end of input) that came while a save ran: handled,
@@ -229,7 +230,7 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 		a.sh.method, a.sh.sys = prev, prevSys
 		a.sysk = prevKey
 		a.resimulate()
-		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
+		a.say(msgError, "%s (kept the last valid value)", inertMsg(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
 	caution, more := a.newCaution(prev, prevSys)
@@ -503,7 +504,11 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 	case key.Matches(msg, k.Export):
 		return a.askExport(), true
 	case key.Matches(msg, k.Fit):
-		a.open(newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} }))
+		a.open(a.fitPrompt())
+	case key.Matches(msg, k.Plan):
+		return a.startPlan(), true
+	case key.Matches(msg, k.Verify):
+		a.open(newPrompt(&a.sh, "verification run (peak table, .cdf chromatogram or runs .toml): ", "", func(text string) tea.Msg { return startVerifyMsg{path: strings.TrimSpace(text)} }))
 	case key.Matches(msg, k.Compare):
 		m := a.sh.method
 		a.open(newPrompt(&a.sh, "columns to compare (lengths m, diameters mm, films µm): ",
@@ -512,6 +517,11 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		return nil, false
 	}
 	return nil, true
+}
+
+// fitPrompt asks for a scouting runs file (F).
+func (a *App) fitPrompt() component {
+	return newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} })
 }
 
 func (a *App) setFocus(p int) {
@@ -591,6 +601,23 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		return a.startExport(msg.base)
 	case startFitMsg:
 		return a.startFit(msg.path)
+	case startPlanMsg:
+		return a.startPlan()
+	case replanMsg:
+		if a.plan.shown && a.job == nil {
+			return a.startPlan()
+		}
+	case fitTakenMsg:
+		if a.plan.prior == nil || msg.path != a.plan.runs {
+			a.plan.prior = msg.prior
+		}
+		a.plan.runs = msg.path
+	case askFitMsg:
+		a.open(a.fitPrompt())
+	case startVerifyMsg:
+		return a.startVerify(msg.path)
+	case measuredMsg:
+		a.chart.Update(msg)
 	case startCompareMsg:
 		return a.startCompare(msg.text)
 	case startSweepMsg:

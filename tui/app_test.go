@@ -413,9 +413,10 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 	a.optSettings = optimizer.Settings{Workers: 1, Starts: 1, Evaluations: 200}
 	rng := rand.New(rand.NewPCG(42, 1))
 	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "shift+tab", "backspace", "pgdown", "pgup"}
-	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCo")
+	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCocV")
 	w, h := 90, 28
 	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	verify, _ := filepath.Abs("../testdata/lab/verify.csv")
 	dialogs := map[string]bool{}
 	for i := 0; i < 3000; i++ {
 		if rng.IntN(3) == 0 {
@@ -434,6 +435,12 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 		case 700:
 			a.overlay, a.pending = nil, nil
 			press(a, "C", "ctrl+u", "20,30", "enter")
+		case 500:
+			a.overlay, a.pending = nil, nil
+			press(a, "V", verify, "enter")
+		case 900:
+			a.overlay, a.pending = nil, nil
+			press(a, "P")
 		}
 		if i%500 == 0 {
 			w, h = 80+rng.IntN(60), 24+rng.IntN(30)

@@ -106,4 +106,6 @@ var (
 	_ component = (*progressDialog)(nil)
 	_ component = (*cautionsDialog)(nil)
 	_ component = (*cautionDialog)(nil)
+	_ component = (*verifyDialog)(nil)
+	_ component = (*planDialog)(nil)
 )

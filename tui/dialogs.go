@@ -265,6 +265,10 @@ func dialogName(d component) string {
 	case *cautionsDialog:
 	case *cautionDialog:
 		return "cautions"
+	case *verifyDialog:
+		return "verification run"
+	case *planDialog:
+		return "next run"
 	}
 	return "dialog"
 }

@@ -8,7 +8,7 @@ func bind(keys []string, k, desc string) key.Binding {
 
 // GlobalKeys work whenever no dialog is open (ctrl+c also with one open).
 type GlobalKeys struct {
-	Help, Cautions, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare key.Binding
+	Help, Cautions, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare, Verify, Plan key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
@@ -28,6 +28,8 @@ func DefaultGlobalKeys() GlobalKeys {
 		Export:    bind([]string{"e"}, "e", "export figure+sheet"),
 		Fit:       bind([]string{"F"}, "F", "fit from scouting runs"),
 		Compare:   bind([]string{"C"}, "C", "compare columns"),
+		Verify:    bind([]string{"V"}, "V", "verification run vs prediction"),
+		Plan:      bind([]string{"P"}, "P", "plan the next run"),
 	}
 }
 
@@ -40,7 +42,7 @@ func (k GlobalKeys) ShortHelp() []key.Binding {
 func (k GlobalKeys) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Help, k.Cautions, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
-		{k.Optimize, k.Fit, k.Compare, k.Export},
+		{k.Optimize, k.Plan, k.Fit, k.Verify, k.Compare, k.Export},
 		{k.Save, k.SaveAs, k.Undo, k.Redo},
 	}
 }

@@ -14,6 +14,7 @@ import (
 	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/report"
 )
 
 // heading is a pane's first line: a marker and the name, bold when focused.
@@ -309,6 +310,8 @@ type chartPane struct {
 	prevLabel string
 	showPrev  bool
 	faint     bool // draw the other run faint beneath (a waiting result)
+	// a measured run drawn below the prediction (a verification run)
+	meas *report.Measured
 }
 
 func newChartPane(sh *shared) *chartPane {
@@ -323,6 +326,9 @@ func (c *chartPane) View() string              { return strings.Join(c.lines, "\
 func (c *chartPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
 	case refreshMsg:
+		c.render()
+	case measuredMsg:
+		c.meas = msg.meas
 		c.render()
 	case previewMsg:
 		if msg.res == nil {
@@ -352,6 +358,11 @@ func (c *chartPane) fullWindow() (float64, float64) {
 	for _, pk := range res.Peaks {
 		if pk.Eluted && pk.RetentionTime+4*pk.Sigma > end {
 			end = pk.RetentionTime + 4*pk.Sigma
+		}
+	}
+	if c.meas != nil { // every measured peak on the same axis
+		for _, p := range c.meas.Peaks {
+			end = math.Max(end, (p.TimeMin+2*p.WidthMin)*60)
 		}
 	}
 	return 0, end
@@ -411,13 +422,16 @@ func (c *chartPane) render() {
 	case c.prev != nil:
 		extra += " · the current program"
 	}
+	if c.meas != nil {
+		extra += " · below: measured " + inert(c.meas.Label) + ", ╱ joins matched peaks"
+	}
 	// the legend, as much of it as fits whole
 	for _, l := range []string{" · numbers are elution order", " · oven temperature at right"} {
 		if ansi.StringWidth(" chromatogram"+extra+l) <= c.w {
 			extra += l
 		}
 	}
-	in := chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1}
+	in := chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1, meas: c.meas}
 	if c.prev != nil && c.faint {
 		// the other run, faint and dotted beneath the one shown
 		in.under = c.sh.res

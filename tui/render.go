@@ -112,11 +112,11 @@ func (a *App) summaryLines(w int) []string {
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
 		target := a.sh.method.Goal.MinResolution
-		if !format.Met(r.MinResolution, target) {
+		if !format.MetAll(r.MinResolution, target, r.TargetsNotEluted) {
 			style = a.st.Bad
 		}
 		// the pair before the target, so that a narrow screen still names it
-		rs = "Rs " + format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target) + " " +
+		rs = "Rs " + format.RsNumber(r.MinResolution, target) + " " + format.VerdictAll(r.MinResolution, target, r.TargetsNotEluted) + " " +
 			format.CriticalPair(inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name)) +
 			" (target " + format.Target(target) + ")"
 	}
