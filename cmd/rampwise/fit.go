@@ -140,6 +140,9 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return badf("%s: %v", files[1], err)
 	}
+	// fitted values at the decimals the file keeps (the UI's fit saves
+	// the same), never 16 digits
+	methodfile.RoundFitted(rep.Method)
 	if *out != "" {
 		if err := saveFitted(*out, rep.Method, func() error { return saveMethodOut(*out, files[0], rep.Method) }); err != nil {
 			return err

@@ -22,6 +22,17 @@ import (
 // the last fraction of a percent of run time.
 var testOptimizer = optimizer.Settings{Starts: 8, Evaluations: 1200, Restarts: 1, Workers: 1}
 
+// testSettings are the planner's settings in the loop tests: the defaults,
+// or with RAMPWISE_PLAN_GAIN the margin gain that still allows a
+// verification (a study of the injections-against-run-time trade).
+func testSettings() Settings {
+	s := Settings{Optimizer: testOptimizer}
+	if v, err := strconv.ParseFloat(os.Getenv("RAMPWISE_PLAN_GAIN"), 64); err == nil && v > 0 {
+		s.MarginGain, s.Slower = v, v
+	}
+	return s
+}
+
 // outcome of one sample.
 type outcome struct {
 	injections   int  // until a verification run met the target
@@ -49,7 +60,7 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool, preset
 		if err != nil {
 			t.Fatalf("seed %d: runs file: %v\n%s", seed, err, l.runs.String())
 		}
-		p, err := Next(ctx, rough, runs, Settings{Optimizer: testOptimizer})
+		p, err := Next(ctx, rough, runs, testSettings())
 		if err != nil {
 			t.Fatalf("seed %d: plan: %v", seed, err)
 		}
@@ -88,7 +99,7 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool, preset
 			if err != nil {
 				t.Fatal(err)
 			}
-			q, err := Next(ctx, rough, runs, Settings{Optimizer: testOptimizer})
+			q, err := Next(ctx, rough, runs, testSettings())
 			if err != nil {
 				t.Fatal(err)
 			}
