@@ -472,6 +472,8 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		return a.askExport(), true
 	case key.Matches(msg, k.Fit):
 		a.open(newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} }))
+	case key.Matches(msg, k.Plan):
+		a.open(newPrompt(&a.sh, "scouting runs so far (empty: none yet): ", "", func(text string) tea.Msg { return startPlanMsg{path: strings.TrimSpace(text)} }))
 	case key.Matches(msg, k.Compare):
 		m := a.sh.method
 		a.open(newPrompt(&a.sh, "columns to compare (lengths m, diameters mm, films µm): ",
@@ -559,6 +561,8 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		return a.startFit(msg.path)
 	case startCompareMsg:
 		return a.startCompare(msg.text)
+	case startPlanMsg:
+		return a.startPlan(msg.path)
 	case startSweepMsg:
 		return a.startSweep(msg.spec)
 	case cancelMsg:

@@ -445,3 +445,19 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 	}
 	t.Logf("dialogs reached: %v", dialogs)
 }
+
+// P plans the next injection: without runs it advises a scouting run
+// within the limits and says so on the message line; a bad runs file is
+// an error naming it.
+func TestPlanKey(t *testing.T) {
+	a, _ := newApp(t, 100, 32)
+	a.optSettings.Starts, a.optSettings.Evaluations = 4, 600
+	press(a, "P", "enter")
+	if !strings.HasPrefix(a.message, "plan: INJECT") || !strings.Contains(a.message, "initial temperature") {
+		t.Fatalf("no plan: %s", a.message)
+	}
+	press(a, "P", "/nonexistent/runs.toml", "enter")
+	if !strings.Contains(a.message, "/nonexistent/runs.toml") {
+		t.Errorf("bad runs file message: %s", a.message)
+	}
+}

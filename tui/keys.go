@@ -8,7 +8,7 @@ func bind(keys []string, k, desc string) key.Binding {
 
 // GlobalKeys work whenever no dialog is open (ctrl+c also with one open).
 type GlobalKeys struct {
-	Help, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare key.Binding
+	Help, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare, Plan key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
@@ -27,6 +27,7 @@ func DefaultGlobalKeys() GlobalKeys {
 		Export:    bind([]string{"e"}, "e", "export figure+sheet"),
 		Fit:       bind([]string{"F"}, "F", "fit from scouting runs"),
 		Compare:   bind([]string{"C"}, "C", "compare columns"),
+		Plan:      bind([]string{"P"}, "P", "plan the next injection"),
 	}
 }
 
@@ -39,7 +40,7 @@ func (k GlobalKeys) ShortHelp() []key.Binding {
 func (k GlobalKeys) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Help, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
-		{k.Optimize, k.Fit, k.Compare, k.Export},
+		{k.Optimize, k.Fit, k.Compare, k.Export, k.Plan},
 		{k.Save, k.SaveAs, k.Undo, k.Redo},
 	}
 }

@@ -151,6 +151,8 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		}
 		a.wrote[v.base+".png"], a.wrote[v.base+".md"] = true, true
 		a.say(msgGood, "exported %s.png (figure) and %s.md (method sheet)", inert(v.base), inert(v.base))
+	case planOutcome:
+		a.planDone(v)
 	case fitOutcome:
 		if v.err != nil {
 			a.say(msgError, "%v", inertErr(v.err))
