@@ -93,6 +93,7 @@ type App struct {
 	kind    msgKind
 
 	optSettings optimizer.Settings
+	plan        planState
 	job         *job
 	jobSeq      int // the last job's id
 	// keys (and the end of input) that came while a save ran: handled,
@@ -102,6 +103,9 @@ type App struct {
 	inputEnded, endedUnsaved bool
 
 	view cachedView
+	rows rowCount // of the root's own lines, as last drawn
+	cautionsOf *methodfile.Method // the method sh.cautions belong to
+	quitQ      component          // the last quit question
 }
 
 type cachedView struct {
@@ -182,6 +186,7 @@ func (a *App) Path() string { return a.path }
 func (a *App) say(k msgKind, format string, args ...any) {
 	a.kind = k
 	a.message = fmt.Sprintf(format, args...)
+	a.sh.status = a.message
 }
 
 // systemKey is everything the model's tables depend on.
@@ -225,10 +230,10 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 		a.sh.method, a.sh.sys = prev, prevSys
 		a.sysk = prevKey
 		a.resimulate()
-		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
+		a.say(msgError, "%s (kept the last valid value)", inertMsg(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
-	caution := a.newCaution(prev, prevSys)
+	caution, more := a.newCaution(prev, prevSys)
 	a.undo = append(a.undo, prev)
 	if len(a.undo) > maxUndo {
 		a.undo = append(a.undo[:0], a.undo[len(a.undo)-maxUndo:]...)
@@ -236,10 +241,15 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 	a.redo = nil
 	a.say(msgInfo, "%s", what)
 	if caution != "" {
-		a.say(msgWarn, "%s · %s", what, caution)
+		a.say(msgWarn, "%s · %s", what, inert(caution))
+		if more > 0 {
+			a.say(msgWarn, "%s · %s (and %d more: ! lists them)", what, inert(caution), more)
+		}
 	}
 	if m.Carrier.Gas.Flammable() && !prev.Carrier.Gas.Flammable() {
-		a.say(msgWarn, "%s · %s", what, model.HydrogenCaution)
+		// the caution itself stands whole at the top of the settings (where
+		// the gas is switched) and in the cautions list
+		a.say(msgWarn, "%s · ⚠ hydrogen is flammable: see the caution above", what)
 	}
 	if m.Limits.HasCoolant && !prev.Limits.HasCoolant {
 		a.open(newCautionDialog(&a.sh)) // the cryogen cautions, in full
@@ -266,11 +276,12 @@ func (a *App) restore(m *methodfile.Method) {
 }
 
 // newCaution is the first caution (overload, detector zone, inlet
-// pressure, late peak) that the change from prev brought in.
-func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string {
+// pressure, late peak) that the change from prev brought in, and how many
+// more it brought.
+func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) (string, int) {
 	now := checks.Warnings(a.sh.method, a.sh.sys, &a.res)
 	if len(now) == 0 {
-		return ""
+		return "", 0
 	}
 	var before []string
 	if prevSys != nil {
@@ -279,6 +290,7 @@ func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string 
 			before = checks.Warnings(prev, prevSys, &r)
 		}
 	}
+	first, more := "", 0
 	for _, w := range now {
 		seen := false
 		for _, b := range before {
@@ -286,11 +298,15 @@ func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string 
 				seen = true
 			}
 		}
-		if !seen {
-			return w
+		switch {
+		case seen:
+		case first == "":
+			first = w
+		default:
+			more++
 		}
 	}
-	return ""
+	return first, more
 }
 
 // Update implements tea.Model.
@@ -326,6 +342,9 @@ func (a *App) handle(msg tea.Msg, cmds *[]tea.Cmd) {
 		}
 	}
 }
+
+// tooSmall reports whether the terminal is below the size the UI draws in.
+func (a *App) tooSmall() bool { return a.ready && (a.width < MinWidth || a.height < MinHeight) }
 
 // saving reports whether a save runs in the background.
 func (a *App) saving() bool { return a.job != nil && a.job.save }
@@ -369,6 +388,17 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 		if a.saving() {
 			// typed while the file is written: taken once it is done
 			a.queued = append(a.queued, msg)
+			return nil
+		}
+		if a.tooSmall() {
+			// nothing is drawn but the request to enlarge: only q (and
+			// the answer to its question) act, never the hidden dialog
+			switch {
+			case a.overlay != nil && a.overlay == a.quitQ:
+				return a.toOverlay(msg)
+			case key.Matches(msg, a.keys.Quit):
+				return a.interrupt()
+			}
 			return nil
 		}
 		if a.overlay != nil {
@@ -466,14 +496,19 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		a.setFocus((a.sh.focus + 1) % paneCount)
 	case key.Matches(msg, k.FocusBack):
 		a.setFocus((a.sh.focus + paneCount - 1) % paneCount)
+	case key.Matches(msg, k.Cautions):
+		a.cautions()
+		a.open(newCautionsDialog(&a.sh))
 	case key.Matches(msg, k.Help):
 		a.open(newHelpDialog(&a.sh, &a.help, a.pane(a.sh.focus), paneNames[a.sh.focus], a.keys))
 	case key.Matches(msg, k.Export):
 		return a.askExport(), true
 	case key.Matches(msg, k.Fit):
-		a.open(newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} }))
+		a.open(a.fitPrompt())
 	case key.Matches(msg, k.Plan):
-		a.open(newPrompt(&a.sh, "scouting runs so far (empty: none yet): ", "", func(text string) tea.Msg { return startPlanMsg{path: strings.TrimSpace(text)} }))
+		return a.startPlan(), true
+	case key.Matches(msg, k.Verify):
+		a.open(newPrompt(&a.sh, "verification run (peak table, .cdf chromatogram or runs .toml): ", "", func(text string) tea.Msg { return startVerifyMsg{path: strings.TrimSpace(text)} }))
 	case key.Matches(msg, k.Compare):
 		m := a.sh.method
 		a.open(newPrompt(&a.sh, "columns to compare (lengths m, diameters mm, films µm): ",
@@ -482,6 +517,11 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		return nil, false
 	}
 	return nil, true
+}
+
+// fitPrompt asks for a scouting runs file (F).
+func (a *App) fitPrompt() component {
+	return newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} })
 }
 
 func (a *App) setFocus(p int) {
@@ -513,11 +553,12 @@ func (a *App) askQuit() {
 		return
 	}
 	// no yes/no: "y" to "save them?" could be read either way
-	a.open(newConfirm(&a.sh, "unsaved changes", "s saves and quits · d discards the changes and quits · esc stays", []choice{
+	a.quitQ = newConfirm(&a.sh, "unsaved changes", "s saves and quits · d discards the changes and quits · esc stays", []choice{
 		{keys: []string{"s"}, label: "save and quit", msgs: []tea.Msg{saveMsg{quit: true}}},
 		{keys: []string{"d"}, label: "discard the changes and quit", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
 		{keys: []string{"esc"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
-	}))
+	})
+	a.open(a.quitQ)
 	a.say(msgWarn, "unsaved changes: s save and quit · d discard and quit · esc stay")
 }
 
@@ -559,10 +600,25 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		return a.startExport(msg.base)
 	case startFitMsg:
 		return a.startFit(msg.path)
+	case startPlanMsg:
+		return a.startPlan()
+	case replanMsg:
+		if a.plan.shown && a.job == nil {
+			return a.startPlan()
+		}
+	case fitTakenMsg:
+		if a.plan.prior == nil || msg.path != a.plan.runs {
+			a.plan.prior = msg.prior
+		}
+		a.plan.runs = msg.path
+	case askFitMsg:
+		a.open(a.fitPrompt())
+	case startVerifyMsg:
+		return a.startVerify(msg.path)
+	case measuredMsg:
+		a.chart.Update(msg)
 	case startCompareMsg:
 		return a.startCompare(msg.text)
-	case startPlanMsg:
-		return a.startPlan(msg.path)
 	case startSweepMsg:
 		return a.startSweep(msg.spec)
 	case cancelMsg:
@@ -601,8 +657,12 @@ func (a *App) View() string {
 	if !a.ready {
 		return "rampwise: starting…"
 	}
-	if a.width < MinWidth || a.height < MinHeight {
-		return fmt.Sprintf("rampwise needs a terminal of at least %d×%d; this one is %d×%d.\nEnlarge the window (q quits).", MinWidth, MinHeight, a.width, a.height)
+	if a.tooSmall() {
+		s := fmt.Sprintf("rampwise needs a terminal of at least %d×%d; this one is %d×%d.\nEnlarge the window (q quits).", MinWidth, MinHeight, a.width, a.height)
+		if a.overlay != nil && a.overlay == a.quitQ {
+			s += "\nUnsaved changes: s save and quit · d discard and quit · esc stay."
+		}
+		return s
 	}
 	v := &a.view
 	parts := []string{v.title, v.method, a.program.View()}
@@ -618,13 +678,45 @@ func (a *App) View() string {
 	default:
 		parts = append(parts, a.chart.View(), a.pane(a.lower).View())
 	}
-	parts = append(parts, v.summary, v.message, v.footer)
+	parts = append(parts, v.summary)
+	if v.message != "" || a.rows.message > 0 {
+		parts = append(parts, v.message)
+	}
+	parts = append(parts, v.footer)
 	return strings.Join(parts, "\n")
 }
 
-// The fixed rows: title, method line, two program lines, summary, two
-// message lines and the footer.
-const fixedRows = 8
+// The rows around the panes: the title, the method lines, the two program
+// lines, the summary, the status message (as many lines as it needs, none
+// when there is none) and the footer. They wrap rather than cut; the chart
+// keeps its height whatever the message, the lower pane takes the rest.
+type rowCount struct{ title, method, summary, message int }
+
+func (r rowCount) fixed() int { return r.title + r.method + r.summary + 2 + 1 }
+
+// maxMessageRows is the most the status message takes; a longer one ends
+// with a pointer to the list of cautions, which shows it whole.
+const maxMessageRows = 6
+
+// minLowerRows is the least the lower pane keeps: its heading, the table
+// head and one row.
+const minLowerRows = 3
+
+// heights are the chart's and the lower pane's (dialog's) rows.
+func (a *App) heights() (chartH, lowerH int) {
+	base := a.height - a.rows.fixed()
+	chartH = chartRows(base)
+	return chartH, max(minLowerRows, base-chartH-a.rows.message)
+}
+
+// chartRows is the chart's share of the base rows left by the fixed ones.
+func chartRows(base int) int {
+	h := base * 11 / 20
+	if base < 20 {
+		h-- // a small terminal: the row goes to the peak table
+	}
+	return max(7, h)
+}
 
 // layout gives every child its size (the resize fan-out).
 func (a *App) layout() {
@@ -632,12 +724,8 @@ func (a *App) layout() {
 	if a.width < MinWidth || a.height < MinHeight {
 		return
 	}
-	rest := a.height - fixedRows
-	chartH := rest * 11 / 20
-	if chartH < 7 {
-		chartH = 7
-	}
-	lowerH := rest - chartH
+	a.measure()
+	chartH, lowerH := a.heights()
 	a.program.SetSize(a.width, 2)
 	a.chart.SetSize(a.width, chartH)
 	a.peaks.SetSize(a.width, lowerH)
@@ -658,16 +746,36 @@ func (a *App) sizeDialog(d component) {
 	if !a.ready || a.width < MinWidth || a.height < MinHeight {
 		return
 	}
-	rest := a.height - fixedRows
-	chartH := rest * 11 / 20
-	if chartH < 7 {
-		chartH = 7
-	}
-	h := rest - chartH
+	chartH, h := a.heights()
 	if t, ok := d.(interface{ tall() bool }); ok && t.tall() {
-		h = rest
+		h += chartH
 	}
 	d.SetSize(a.width, h)
+}
+
+// measure renders the root's own lines and counts them; it reports
+// whether the count changed (the panes then need new sizes).
+func (a *App) measure() bool {
+	w := a.width
+	v := &a.view
+	title, method, summary := a.titleLines(w), a.methodLines(w), a.summaryLines(w)
+	was := a.rows
+	a.rows = rowCount{title: len(title), method: len(method), summary: len(summary)}
+	base := a.height - a.rows.fixed()
+	chartH := chartRows(base)
+	n := max(0, min(maxMessageRows, base-chartH-minLowerRows))
+	if _, ok := a.overlay.(*cautionsDialog); ok {
+		n = 0 // the list shows the message whole
+	}
+	msg := a.messageLines(w, n)
+	a.rows.message = len(msg)
+	a.sh.status = a.message
+	v.title = strings.Join(title, "\n")
+	v.method = strings.Join(method, "\n")
+	v.summary = strings.Join(summary, "\n")
+	v.message = strings.Join(msg, "\n")
+	v.footer = a.footerLine(w)
+	return a.rows != was
 }
 
 // refresh tells every child that the state may have changed, then
@@ -676,19 +784,16 @@ func (a *App) refresh() {
 	if !a.ready || a.width < MinWidth || a.height < MinHeight {
 		return
 	}
+	if a.measure() {
+		a.layout()
+	}
 	for p := 0; p < paneCount; p++ {
 		a.toPane(p, refreshMsg{})
 	}
 	if a.overlay != nil {
 		a.overlay, _ = a.overlay.Update(refreshMsg{})
 	}
-	w := a.width
-	v := &a.view
-	v.title = a.titleLine(w)
-	v.method = a.methodLine(w)
-	v.summary = a.summaryLine(w)
-	v.message = strings.Join(a.messageLines(w), "\n")
-	v.footer = a.footerLine(w)
+	a.view.footer = a.footerLine(a.width)
 }
 
 // footerLine is the active component's short key help, "? all keys" first
@@ -706,8 +811,18 @@ func (a *App) footerLine(w int) string {
 		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
 		b = append(b, a.keys.ShortHelp()...)
 	}
-	// bubbles/help adds the last item when even its ellipsis does not fit
-	return ansi.Truncate(a.help.ShortHelpView(b), w, "…")
+	// as many whole items as fit ("? all keys" first lists the rest)
+	hm := a.help
+	hm.Width = 0
+	line := ""
+	for i := range b {
+		next := hm.ShortHelpView(b[:i+1])
+		if ansi.StringWidth(next) > w {
+			break
+		}
+		line = next
+	}
+	return line
 }
 
 // cancelMsg asks the root to stop the background work.

@@ -178,9 +178,24 @@ func TestHydrogenCaution(t *testing.T) {
 	if a.Method().Carrier.Gas != model.Hydrogen {
 		t.Fatalf("gas %q", a.Method().Carrier.Gas)
 	}
-	if s := screen(a); !strings.Contains(s, "flammable") || !strings.Contains(s, "leak") {
-		t.Errorf("no hydrogen caution:\n%s", s)
+	// the safety text is never cut: wrapped whole in the settings, with
+	// settings still to choose from, and in the cautions list
+	if s := screen(a); !strings.Contains(unwrap(s), model.HydrogenCaution) || !strings.Contains(s, "› carrier gas") {
+		t.Errorf("no whole hydrogen caution, or no settings:\n%s", s)
 	}
+	press(a, "tab", "tab", "!")
+	if s := screen(a); !strings.Contains(unwrap(s), model.HydrogenCaution) {
+		t.Errorf("no whole hydrogen caution in the cautions list:\n%s", s)
+	}
+}
+
+// unwrap joins wrapped screen lines (each with its indent) into one text.
+func unwrap(s string) string {
+	var words []string
+	for _, l := range strings.Split(s, "\n") {
+		words = append(words, strings.Fields(strings.TrimLeft(l, " ⚠"))...)
+	}
+	return strings.Join(words, " ")
 }
 
 func TestToggleTargetAndEditCompound(t *testing.T) {
@@ -398,9 +413,10 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 	a.optSettings = optimizer.Settings{Workers: 1, Starts: 1, Evaluations: 200}
 	rng := rand.New(rand.NewPCG(42, 1))
 	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "shift+tab", "backspace", "pgdown", "pgup"}
-	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCo")
+	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCocV")
 	w, h := 90, 28
 	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	verify, _ := filepath.Abs("../testdata/lab/verify.csv")
 	dialogs := map[string]bool{}
 	for i := 0; i < 3000; i++ {
 		if rng.IntN(3) == 0 {
@@ -419,6 +435,12 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 		case 700:
 			a.overlay, a.pending = nil, nil
 			press(a, "C", "ctrl+u", "20,30", "enter")
+		case 500:
+			a.overlay, a.pending = nil, nil
+			press(a, "V", verify, "enter")
+		case 900:
+			a.overlay, a.pending = nil, nil
+			press(a, "P")
 		}
 		if i%500 == 0 {
 			w, h = 80+rng.IntN(60), 24+rng.IntN(30)
@@ -444,20 +466,4 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 		t.Errorf("the keys reached only %v", dialogs)
 	}
 	t.Logf("dialogs reached: %v", dialogs)
-}
-
-// P plans the next injection: without runs it advises a scouting run
-// within the limits and says so on the message line; a bad runs file is
-// an error naming it.
-func TestPlanKey(t *testing.T) {
-	a, _ := newApp(t, 100, 32)
-	a.optSettings.Starts, a.optSettings.Evaluations = 4, 600
-	press(a, "P", "enter")
-	if !strings.HasPrefix(a.message, "plan: INJECT") || !strings.Contains(a.message, "initial temperature") {
-		t.Fatalf("no plan: %s", a.message)
-	}
-	press(a, "P", "/nonexistent/runs.toml", "enter")
-	if !strings.Contains(a.message, "/nonexistent/runs.toml") {
-		t.Errorf("bad runs file message: %s", a.message)
-	}
 }

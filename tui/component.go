@@ -31,6 +31,9 @@ type shared struct {
 	res    *model.Result
 	focus  int // the focused pane
 	outbox []tea.Msg
+	// kept current by the root for the cautions list
+	cautions []string // checks.Cautions of the method, made inert
+	status   string   // the status message, whole
 }
 
 func (s *shared) send(msgs ...tea.Msg) { s.outbox = append(s.outbox, msgs...) }
@@ -101,5 +104,8 @@ var (
 	_ component = (*promptDialog)(nil)
 	_ component = (*helpDialog)(nil)
 	_ component = (*progressDialog)(nil)
+	_ component = (*cautionsDialog)(nil)
 	_ component = (*cautionDialog)(nil)
+	_ component = (*verifyDialog)(nil)
+	_ component = (*planDialog)(nil)
 )

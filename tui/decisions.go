@@ -51,7 +51,11 @@ func rsText(sh *shared, sys *model.System, r *model.Result) string {
 		return "no counted pair"
 	}
 	cp := r.Pairs[r.Critical]
-	return format.Rs(r.MinResolution, sh.method.Goal.MinResolution) + " " + format.CriticalPair(inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
+	var missing []string
+	for _, n := range sys.NotElutedTargets(r) {
+		missing = append(missing, inert(n))
+	}
+	return format.RsAll(r.MinResolution, sh.method.Goal.MinResolution, missing) + " " + format.CriticalPair(inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
 }
 
 // --- the optimizer's result ---
@@ -144,7 +148,7 @@ func (d *resultDialog) render() {
 		if r.Critical < 0 {
 			return "no counted pair"
 		}
-		return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
+		return format.RsNumber(r.MinResolution, target) + " " + format.VerdictAll(r.MinResolution, target, r.TargetsNotEluted)
 	}
 	right := []string{
 		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
@@ -185,11 +189,11 @@ func (d *resultDialog) render() {
 
 // --- the fit review ---
 
-// Standard errors above these are called large (our threshold: about what
-// moves a retention factor at 100 °C by 30 %).
+// Standard errors above these are called large: the thresholds fit uses
+// too (calibrate.LargeSEDHkJ, LargeSEDS).
 const (
-	largeErrDH = 1.0 // kJ/mol
-	largeErrDS = 2.5 // J/(mol·K)
+	largeErrDH = calibrate.LargeSEDHkJ // kJ/mol
+	largeErrDS = calibrate.LargeSEDS   // J/(mol·K)
 )
 
 type fitDialog struct {
@@ -235,7 +239,7 @@ func (d *fitDialog) body() []string {
 	var out []string
 	for _, c := range d.order {
 		mark := " "
-		if c.StdErrDH > largeErrDH || c.StdErrDS > largeErrDS {
+		if c.LargeError() {
 			mark = "⚠"
 		}
 		added := ""
@@ -258,9 +262,9 @@ func (d *fitDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	if km, ok := msg.(tea.KeyMsg); ok {
 		switch {
 		case key.Matches(km, d.keys.Accept):
-			d.sh.send(closeMsg{}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"})
+			d.sh.send(closeMsg{}, fitTakenMsg{path: d.fit.path, prior: d.sh.method}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"}, replanMsg{})
 		case key.Matches(km, d.keys.Reject):
-			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"})
+			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"}, replanMsg{})
 		default:
 			scroll(&d.off, km, d.keys, len(d.body()), d.rows())
 		}

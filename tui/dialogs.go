@@ -262,8 +262,13 @@ func dialogName(d component) string {
 		return "question"
 	case *progressDialog:
 		return "background work"
+	case *cautionsDialog:
 	case *cautionDialog:
 		return "cautions"
+	case *verifyDialog:
+		return "verification run"
+	case *planDialog:
+		return "next run"
 	}
 	return "dialog"
 }

@@ -8,13 +8,14 @@ func bind(keys []string, k, desc string) key.Binding {
 
 // GlobalKeys work whenever no dialog is open (ctrl+c also with one open).
 type GlobalKeys struct {
-	Help, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare, Plan key.Binding
+	Help, Cautions, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare, Verify, Plan key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
 func DefaultGlobalKeys() GlobalKeys {
 	return GlobalKeys{
 		Help:      bind([]string{"?"}, "?", "all keys"),
+		Cautions:  bind([]string{"!"}, "!", "all cautions, last message"),
 		Quit:      bind([]string{"q"}, "q", "quit"),
 		Interrupt: bind([]string{"ctrl+c"}, "ctrl+c", "quit (asks when unsaved)"),
 		Save:      bind([]string{"ctrl+s"}, "ctrl+s", "save"),
@@ -27,7 +28,8 @@ func DefaultGlobalKeys() GlobalKeys {
 		Export:    bind([]string{"e"}, "e", "export figure+sheet"),
 		Fit:       bind([]string{"F"}, "F", "fit from scouting runs"),
 		Compare:   bind([]string{"C"}, "C", "compare columns"),
-		Plan:      bind([]string{"P"}, "P", "plan the next injection"),
+		Verify:    bind([]string{"V"}, "V", "verification run vs prediction"),
+		Plan:      bind([]string{"P"}, "P", "plan the next run"),
 	}
 }
 
@@ -39,8 +41,8 @@ func (k GlobalKeys) ShortHelp() []key.Binding {
 // FullHelp groups the global keys for the key list.
 func (k GlobalKeys) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
-		{k.Help, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
-		{k.Optimize, k.Fit, k.Compare, k.Export, k.Plan},
+		{k.Help, k.Cautions, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
+		{k.Optimize, k.Plan, k.Fit, k.Verify, k.Compare, k.Export},
 		{k.Save, k.SaveAs, k.Undo, k.Redo},
 	}
 }
@@ -58,7 +60,7 @@ func DefaultProgramKeys() FieldKeys {
 	return FieldKeys{
 		Prev:    bind([]string{"left", "h"}, "←/→", "choose value"),
 		Next:    bind([]string{"right", "l"}, "→", "next value"),
-		Up:      bind([]string{"+", "=", "up", "k"}, "+/-", "step"),
+		Up:      bind([]string{"+", "=", "up", "k"}, "+/- ↑/↓", "step"),
 		Down:    bind([]string{"-", "_", "down", "j"}, "-", "step down"),
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
@@ -74,7 +76,7 @@ func DefaultSettingsKeys() FieldKeys {
 	return FieldKeys{
 		Prev:    bind([]string{"up", "k"}, "↑/↓", "choose setting"),
 		Next:    bind([]string{"down", "j"}, "↓", "next setting"),
-		Up:      bind([]string{"+", "=", "right", "l"}, "+/-", "step or choice"),
+		Up:      bind([]string{"+", "=", "right", "l"}, "+/- ←/→", "step or choice"),
 		Down:    bind([]string{"-", "_", "left", "h"}, "-", "step down"),
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),

@@ -110,7 +110,7 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 			return badf("%s: %v", files[1], err)
 		}
 		if *out != "" {
-			if err := methodfile.WriteFile(*out, rep.Method); err != nil {
+			if err := saveFitted(*out, rep.Method, func() error { return methodfile.WriteFile(*out, rep.Method) }); err != nil {
 				return err
 			}
 		}

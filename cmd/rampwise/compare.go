@@ -31,7 +31,8 @@ lengths (m), internal diameters (mm) and film thicknesses (µm). Every
 candidate is optimized with its own goal and limits, and the table ranks them:
 those that reach the target first, fastest first, with the inlet pressure the
 program needs at its start and end and the highest oven temperature it uses;
-then those that cannot reach it, with their limiting pair. "-" is the demo.
+then those that cannot reach it, with their limiting pair. - reads one method from
+standard input; @demo is the built-in demo.
 
 The column kind is part of a candidate: methods on wall-coated, packed and
 porous-layer columns are ranked together (a packed column with the same

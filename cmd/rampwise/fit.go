@@ -2,10 +2,12 @@ package main
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
 	"sort"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
@@ -18,8 +20,10 @@ import (
 const fitHelp = `Usage: rampwise fit METHOD RUNS [--out FILE] [--json] [--with-dcp] [--add-unknown]
 
 Calibrates the method's compounds from scouting runs: for each compound seen
-in at least two runs, ΔH and ΔS (and with --with-dcp ΔCp, from three runs or
-more) by least squares on the measured retention times through the same
+in at least two runs, ΔH and ΔS (and with --with-dcp ΔCp, for a compound
+seen in four runs or more: from three, three parameters would leave no
+residual to judge them by, so ΔCp keeps the method's value and a warning
+says so) by least squares on the measured retention times through the same
 retention model simulate uses. With measured holdup times in the runs, the
 column's effective internal diameter is calibrated first (on a packed
 column its particle size, which sets the bed's permeability; the phase ratio
@@ -36,7 +40,13 @@ assigned to the method's compounds by their predicted retention (minimum
 total cost, alternating with the fit until stable), each with a confidence.
 
 The fit distrusts bad data: a measurement far from what the other runs
-predict is flagged (run, compound, predicted time) and left out; a name the
+predict is flagged (run, compound, predicted time) and left out; with one
+run more than parameters, when no run can be singled out, the runs are named
+("cannot tell which run is wrong") and none is left out; parameters off the
+ΔH–ΔS trend of the other compounds are warned as implausible; a value
+outside the method file's ranges is never written (warned); a large ± is
+marked ⚠ and warned (the thresholds the UI uses, printed under the
+table); a name the
 method lacks never becomes a target: a near miss of a method name ("tolune")
 is reported with the suggestion and left out (in a peak table: treated as
 unnamed), other names are added as non-targets. Standard errors (±) use the
@@ -61,6 +71,9 @@ type fitCompoundJSON struct {
 	Max       float64            `json:"max_residual_min"`
 	Residuals map[string]float64 `json:"residuals_min"`
 	Added     bool               `json:"added"`
+	// NotWritten: outside the method file's ranges, not saved (warned).
+	NotWritten bool `json:"not_written,omitempty"`
+	LargeError bool `json:"large_error,omitempty"`
 }
 
 type fitJSON struct {
@@ -78,6 +91,14 @@ type fitJSON struct {
 	SDAssumed   bool             `json:"residual_sd_assumed"`
 	Assignments []assignmentJSON `json:"assignments"`
 	Outliers    []outlierJSON    `json:"outliers"`
+	// Suspects: runs that disagree where the data cannot tell which is wrong.
+	Suspects []suspectJSON `json:"unplaced_errors"`
+}
+
+type suspectJSON struct {
+	Compound    string   `json:"compound"`
+	Runs        []string `json:"runs"`
+	Studentized float64  `json:"studentized_residual"`
 }
 
 type assignmentJSON struct {
@@ -101,7 +122,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("fit", fitHelp, stderr)
 	asJSON := fs.Bool("json", false, "print the result as JSON")
 	out := fs.String("out", "", "write the method with the fitted values to this `file` (atomically)")
-	withDCp := fs.Bool("with-dcp", false, "also fit ΔCp (needs at least three runs)")
+	withDCp := fs.Bool("with-dcp", false, "also fit ΔCp (for compounds seen in at least four runs)")
 	addUnknown := fs.Bool("add-unknown", false, "add names close to a method name too (as non-targets) instead of leaving them out")
 	files, err := parseArgsN(fs, args, 2, 2, "METHOD RUNS")
 	if err != nil {
@@ -119,21 +140,28 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return badf("%s: %v", files[1], err)
 	}
+	// fitted values at the decimals the file keeps (the UI's fit saves
+	// the same), never 16 digits
+	methodfile.RoundFitted(rep.Method)
 	if *out != "" {
-		if err := saveMethodOut(*out, files[0], rep.Method); err != nil {
+		if err := saveFitted(*out, rep.Method, func() error { return saveMethodOut(*out, files[0], rep.Method) }); err != nil {
 			return err
 		}
 	}
 	if *asJSON {
 		j := fitJSON{Compounds: []fitCompoundJSON{}, Warnings: append([]string{}, rep.Warnings...), Notes: append([]string{}, rep.Notes...),
 			ResidualSD: rep.ResidualSDMin, DOF: rep.DOF, SDAssumed: rep.SDAssumed,
-			Assignments: []assignmentJSON{}, Outliers: []outlierJSON{}}
+			Assignments: []assignmentJSON{}, Outliers: []outlierJSON{}, Suspects: []suspectJSON{}}
+		for _, x := range rep.Suspects {
+			j.Suspects = append(j.Suspects, suspectJSON{x.Compound, append([]string{}, x.Runs...), x.Studentized})
+		}
 		for _, c := range rep.Compounds {
 			j.Compounds = append(j.Compounds, fitCompoundJSON{
 				Name: c.Name, DH: c.DHkJ, DS: c.DS, DCp: c.DCp,
 				StdErrDH: finiteOrNil(c.StdErrDH), StdErrDS: finiteOrNil(c.StdErrDS), StdErrDCp: finiteOrNil(c.StdErrDCp),
 				Corr: finiteOrNil(c.CorrDHDS),
 				Runs: c.Runs, RMS: c.RMS, Max: c.Max, Residuals: c.Residuals, Added: c.Added,
+				NotWritten: c.NotWritten, LargeError: c.LargeError(),
 			})
 		}
 		for _, a := range rep.Assignments {
@@ -161,10 +189,21 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "compound\tΔH %s\t±\tΔS %s\t±\tΔCp\t±\truns\trms min\tmax min\t\n", format.UnitDH, format.UnitDS)
+	marked := false
 	for _, c := range rep.Compounds {
-		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%s\t%d\t%.4f\t%.4f\t\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, fmtErr(c.StdErrDCp), c.Runs, c.RMS, c.Max)
+		mark := ""
+		switch {
+		case c.NotWritten:
+			mark, marked = "  ✗ not written", true
+		case c.LargeError():
+			mark, marked = "  ⚠ large ±", true
+		}
+		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%s\t%d\t%.4f\t%.4f\t%s\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, fmtErr(c.StdErrDCp), c.Runs, c.RMS, c.Max, mark)
 	}
 	tw.Flush()
+	if marked {
+		fmt.Fprintf(stdout, "\n⚠ large ±: a standard error over %g %s (ΔH) or %g %s (ΔS); ✗ not written: outside the method file's ranges, the method keeps its values\n", calibrate.LargeSEDHkJ, format.UnitDH, calibrate.LargeSEDS, format.UnitDS)
+	}
 	how := fmt.Sprintf("pooled over the compounds: %.4f min with %d degrees of freedom", rep.ResidualSDMin, rep.DOF)
 	if rep.SDAssumed {
 		how = fmt.Sprintf("no degrees of freedom left: the method's retention_time_sd_min %.4f min assumed", rep.ResidualSDMin)
@@ -183,6 +222,29 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	}
 	if *out != "" {
 		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", textsafe.Inert(*out))
+	}
+	return nil
+}
+
+// saveFitted saves a fitted method to the user's --out path with save. The
+// fit never writes a value the method file refuses (it warns instead);
+// should the fitted method still not validate, it refuses before touching
+// the file, naming the user's path, not a line of text never written. Any
+// failure is bad input (exit 2) naming the path.
+func saveFitted(out string, m *methodfile.Method, save func() error) error {
+	if err := m.Validate(); err != nil {
+		what := err.Error()
+		var fe *methodfile.Error
+		if errors.As(err, &fe) {
+			what = fe.Key + ": " + fe.Msg
+		}
+		return badf("--out %s: not saved: the fitted method would not be valid (%s)", out, what)
+	}
+	if err := save(); err != nil {
+		if strings.Contains(err.Error(), out) {
+			return bad(err)
+		}
+		return badf("--out %s: not saved: %v", out, err)
 	}
 	return nil
 }

@@ -277,7 +277,7 @@ func TestInstrumentLimitsRefusedEverywhere(t *testing.T) {
 func TestExportCSVEqualsSimulateJSON(t *testing.T) {
 	dir := t.TempDir()
 	csvPath := filepath.Join(dir, "peaks.csv")
-	if code, _, errs := runCmd(t, "export", "-", "--csv", csvPath, "--sheet", filepath.Join(dir, "s.md")); code != 0 {
+	if code, _, errs := runCmd(t, "export", DemoArg, "--csv", csvPath, "--sheet", filepath.Join(dir, "s.md")); code != 0 {
 		t.Fatalf("export: %s", errs)
 	}
 	_, out, _ := runCmd(t, "simulate", "--json")
@@ -296,17 +296,17 @@ func TestExportCSVEqualsSimulateJSON(t *testing.T) {
 			t.Errorf("row %d: %v vs %s %v %v", i, rows[i+1], pk.Name, *pk.RetentionTime, *pk.Sigma)
 		}
 	}
-	if code, _, _ := runCmd(t, "export", "-"); code != 2 {
+	if code, _, _ := runCmd(t, "export", DemoArg); code != 2 {
 		t.Error("export with nothing to write should be bad input")
 	}
-	if code, _, _ := runCmd(t, "sweep", "-", "--vary", "rate_7", "--from", "1", "--to", "2"); code != 2 {
+	if code, _, _ := runCmd(t, "sweep", DemoArg, "--vary", "rate_7", "--from", "1", "--to", "2"); code != 2 {
 		t.Error("sweep of a missing ramp should be bad input")
 	}
 }
 
 // compare's rows equal optimize run on each candidate alone.
 func TestCompareRowsEqualOptimize(t *testing.T) {
-	code, out, errs := runCmd(t, "compare", "--json", "--length", "20,40", "-")
+	code, out, errs := runCmd(t, "compare", "--json", "--length", "20,40", DemoArg)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}

@@ -20,7 +20,8 @@ import (
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
-const optimizeHelp = `Usage: rampwise optimize [FILE] [flags]
+const optimizeHelp = `Usage: rampwise optimize [FILE] [--out F] [--json] [--seed N] [--ramps N]
+                         [--objective run-time|cycle-time] [--min-resolution RS]
 
 Searches oven programs (initial temperature and hold, then up to N ramps with
 their rates, final temperatures and holds) for the shortest run time, or oven
@@ -209,7 +210,11 @@ func fmtRs(s *simulation, target float64) string {
 	if s.Result.Critical < 0 {
 		return "-"
 	}
-	return format.RsNumber(s.Result.MinResolution, target) + " " + format.Verdict(s.Result.MinResolution, target)
+	r := &s.Result
+	if missing := inertAll(s.System.NotElutedTargets(r)); len(missing) > 0 {
+		return format.RsNumber(r.MinResolution, target) + " not met (" + format.NotEluted(missing) + ")"
+	}
+	return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
 }
 
 func critName(s *simulation) string {

@@ -18,7 +18,7 @@ import (
 	"github.com/rampwise/rampwise/optimizer/plan"
 )
 
-const planHelp = `Usage: rampwise plan METHOD [RUNS] [--json]
+const planHelp = `Usage: rampwise plan METHOD [RUNS] [--json] [--seed N]
 
 Says what to inject next so that the next injection is the last:
 

@@ -62,7 +62,12 @@ type simulateJSON struct {
 	Pairs         []pairJSON `json:"pairs"`
 	MinResolution *float64   `json:"min_resolution"`
 	CriticalPair  []string   `json:"critical_pair"`
-	Warnings      []string   `json:"warnings"`
+	// GoalMet: min_resolution reaches goal.min_resolution and every
+	// target elutes within the program; TargetsNotEluted names the targets
+	// that do not (min_resolution counts only the pairs that eluted).
+	GoalMet          bool     `json:"goal_met"`
+	TargetsNotEluted []string `json:"targets_not_eluted"`
+	Warnings         []string `json:"warnings"`
 }
 
 func finiteOrNil(x float64) *float64 {
@@ -90,14 +95,7 @@ func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 
 // warnings are the cautions a chromatographer needs with this result.
 func (s *simulation) warnings(prog model.Program) []string {
-	w := checks.Warnings(s.Method, s.System, &s.Result)
-	if s.System.Cond.Carrier.Gas.Flammable() {
-		w = append(w, model.HydrogenCaution)
-	}
-	if note := checks.CoolantNote(s.Method); note != "" {
-		w = append(w, note, model.CryogenCaution)
-	}
-	return w
+	return checks.Cautions(s.Method, s.System, &s.Result)
 }
 
 func fmtMin(s float64) string {
@@ -145,6 +143,11 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 		cp := r.Pairs[r.Critical]
 		out.CriticalPair = []string{s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name}
 	}
+	out.TargetsNotEluted = s.System.NotElutedTargets(r)
+	if out.TargetsNotEluted == nil {
+		out.TargetsNotEluted = []string{}
+	}
+	out.GoalMet = r.Critical >= 0 && format.MetAll(r.MinResolution, s.Method.Goal.MinResolution, r.TargetsNotEluted)
 	return out
 }
 
@@ -202,13 +205,26 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 
 func (s *simulation) summary() string {
 	r := &s.Result
+	missing := inertAll(s.System.NotElutedTargets(r))
 	crit := "no counted pair"
+	if len(missing) > 0 {
+		crit += ", not met: " + format.NotEluted(missing)
+	}
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.Method.Goal.MinResolution),
+		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.RsAll(r.MinResolution, s.Method.Goal.MinResolution, missing),
 			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
+}
+
+// inertAll is names shown inert (textsafe.Inert).
+func inertAll(names []string) []string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = textsafe.Inert(n)
+	}
+	return out
 }
 
 func describeColumn(m *methodfile.Method) string { return textsafe.Inert(m.Describe()) }

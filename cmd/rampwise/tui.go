@@ -12,7 +12,7 @@ import (
 	"github.com/rampwise/rampwise/tui"
 )
 
-const tuiHelp = `Usage: rampwise tui [FILE]
+const tuiHelp = `Usage: rampwise tui [FILE] [--no-color]
 
 Opens the interactive program editor: the oven program, a live simulated
 chromatogram with the oven temperature, the peak table and the method
@@ -41,6 +41,12 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 	file, err := parseArgs(fs, args)
 	if err != nil {
 		return err
+	}
+	switch file {
+	case "-":
+		return badf("tui: the terminal UI reads its keys from standard input; give the method file's name (or %s for the built-in demo)", DemoArg)
+	case DemoArg:
+		file = ""
 	}
 	m, name, err := loadMethod(file)
 	if err != nil {

@@ -119,10 +119,27 @@ func TestDCpTrendAndItsError(t *testing.T) {
 			t.Errorf("%s: ΔCp %.1f ± %.1f, true 100", f.Name, f.DCp, f.StdErrDCp)
 		}
 	}
-	// three runs, three parameters: no freedom left, the assumed SD is used
-	r = fitText(t, start, runsText(t, truth, scouts[:3], 0.001, 3, nil), Options{WithDCp: true})
-	if !r.SDAssumed || r.DOF != 0 || !finite(r.Compounds[0].StdErrDCp) {
-		t.Errorf("dof %d assumed %v se %v", r.DOF, r.SDAssumed, r.Compounds[0].StdErrDCp)
+	// Three runs, three parameters would leave no freedom: ΔCp is not
+	// fitted but held at the method's value (set to 40 here), said in a
+	// warning, and ΔH and ΔS keep one degree of freedom each.
+	held := demo(t)
+	held.Compounds = held.Compounds[5:13]
+	for i := range held.Compounds {
+		held.Compounds[i].DCp = 40
+	}
+	r = fitText(t, held, runsText(t, truth, scouts[:3], 0.001, 3, nil), Options{WithDCp: true})
+	if r.SDAssumed || r.DOF != len(r.Compounds) || !anyWarning(r, "ΔCp not fitted") {
+		t.Errorf("dof %d assumed %v, warnings %v", r.DOF, r.SDAssumed, r.Warnings)
+	}
+	for _, f := range r.Compounds {
+		if f.DCp != 40 || finite(f.StdErrDCp) {
+			t.Errorf("%s: ΔCp %.1f ± %v with three runs, want held at 40", f.Name, f.DCp, f.StdErrDCp)
+		}
+	}
+	for _, c := range r.Method.Compounds {
+		if c.DCp != 40 {
+			t.Errorf("%s: ΔCp %.1f written, want the method's 40", c.Name, c.DCp)
+		}
 	}
 }
 

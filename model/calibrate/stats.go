@@ -11,6 +11,21 @@ import (
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
+// Standard errors above these are called large, by fit and by the UI
+// alike (our threshold: about what moves a retention factor at 100 °C by
+// 30 %: δ ln k = δΔH/(R T) with T = 373 K gives 0.32 for 1 kJ/mol, δΔS/R
+// gives 0.30 for 2.5 J/(mol·K)).
+const (
+	LargeSEDHkJ = 1.0 // kJ/mol
+	LargeSEDS   = 2.5 // J/(mol·K)
+)
+
+// LargeError reports whether either standard error is above its threshold
+// (LargeSEDHkJ, LargeSEDS); an unknown error is not called large.
+func (c *CompoundFit) LargeError() bool {
+	return c.StdErrDH > LargeSEDHkJ || c.StdErrDS > LargeSEDS
+}
+
 // assumedSD is the retention-time SD (s) used when no residual freedom is
 // left: the method's goal.robust.retention_time_sd_min.
 func assumedSD(m *methodfile.Method) float64 {
@@ -83,7 +98,14 @@ func pool(fits []fitResult, m *methodfile.Method, rep *Report) {
 // the most plausible parameters (closest to the method's own values, or to
 // the enthalpy–entropy compensation line ΔS ≈ 1.224 ΔH − 33 of the
 // homologous rule). The point is left out of the fit (Excluded).
-func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep *Report, opt Options) []Outlier {
+//
+// With one run more than parameters the plausibility must single one run
+// out: the most plausible choice within 1 unit (see plausibility) and every
+// other at least 1.5 units and 1 unit worse. Otherwise the compound is
+// returned as a Suspect (the runs named, none left out): the data cannot
+// tell which run is wrong, and dropping a good run would fit the error.
+func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep *Report, opt Options) ([]Outlier, []Suspect) {
+	var sus []Suspect
 	ssr := 0.0
 	dof := 0
 	for _, f := range fits {
@@ -91,7 +113,7 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 		dof += len(f.obs) - len(f.free)
 	}
 	if dof < 2 {
-		return nil
+		return nil, nil
 	}
 	floor := 5 * assumedSD(start)
 	startC, _ := start.ModelCompounds()
@@ -127,7 +149,7 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 		var cs []cand
 		for i := 0; i < n; i++ {
 			rest := append(append([]obsPoint(nil), f.obs[:i]...), f.obs[i+1:]...)
-			g, err := fitCompoundFrom(st, rest, f.base, len(f.th) > 2 && len(rest) >= 3, f.th)
+			g, err := fitCompoundFrom(st, rest, f.base, f.withDCp && len(rest) >= 4, f.th)
 			if err != nil || g.onlyDS {
 				continue
 			}
@@ -178,6 +200,33 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 				best = k
 			}
 		}
+		if n == p+1 {
+			// |t| is nearly the same for every run: judge by plausibility
+			// alone; a run whose refit failed counts as implausible.
+			best = 0
+			for k := range cs {
+				if cs[k].plaus < cs[best].plaus {
+					best = k
+				}
+			}
+			clear := cs[best].plaus <= 1
+			for k := range cs {
+				if k != best && (cs[k].plaus < 1.5 || cs[k].plaus < cs[best].plaus+1) {
+					clear = false
+				}
+			}
+			if !clear {
+				if top <= opt.OutlierT || math.Abs(cs[best].e) < floor {
+					continue
+				}
+				x := Suspect{Compound: f.Name, Studentized: cs[best].t}
+				for _, o := range f.obs {
+					x.Runs = append(x.Runs, st[o.run].name)
+				}
+				sus = append(sus, x)
+				continue
+			}
+		}
 		b := cs[best]
 		if math.Abs(b.t) <= opt.OutlierT || math.Abs(b.e) < floor {
 			continue
@@ -185,7 +234,7 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 		o := f.obs[b.i]
 		out = append(out, Outlier{Run: st[o.run].name, Compound: f.Name, MeasuredMin: o.t / 60, PredictedMin: b.pred / 60, Studentized: b.t, Excluded: true})
 	}
-	return out
+	return out, sus
 }
 
 // plausibility of fitted θ (lower is more plausible): the smaller of the
@@ -231,14 +280,17 @@ func dcpTrend(fits []fitResult, st []runSetup, rep *Report) string {
 	k := 0
 	for _, f := range fits {
 		n := len(f.obs)
-		if n < 3 || len(f.th) > 2 || f.onlyDS || f.cov == nil {
+		if n < 3 || f.withDCp || f.onlyDS || f.cov == nil {
 			continue
 		}
-		th := append(append([]float64(nil), f.th...), 0)
+		th := append([]float64(nil), f.th...)
+		if len(th) < 3 {
+			th = append(th, 0) // ΔCp held at 0; else at the compound's value
+		}
 		base := make([]float64, n)
 		plus := make([]float64, n)
 		residuals(st, f.obs, f.base, th, base)
-		th[2] = 1
+		th[2]++
 		residuals(st, f.obs, f.base, th, plus)
 		j3 := mat.NewVecDense(n, nil)
 		for i := range plus {
@@ -341,4 +393,66 @@ func orderChecks(m *methodfile.Method, st []runSetup, runs *methodfile.Runs, rep
 		}
 	}
 	sort.Strings(rep.Notes)
+}
+
+// trendWarnings flags fitted parameters implausible for a compound: ΔS far
+// from the ΔH–ΔS line. On one stationary phase ΔS of retention falls
+// nearly linearly with ΔH across compounds (enthalpy–entropy compensation;
+// common practice: the homologous-series rule the fit starts from,
+// ΔH = −(9 + 4.9 n), ΔS = −(44 + 6.0 n), is that line, ΔS ≈ 1.224 ΔH − 33).
+// The line is fitted by least squares to the other well-determined
+// compounds of this fit (not held at the rule's ΔH, errors not large) when
+// there are at least 4 spanning 10 kJ/mol or more, else the rule's line is
+// used. A compound is flagged when its ΔS is off the line by more than
+// max(15 J/(mol·K), 4 × the others' scatter about it): a gross error that
+// the fit passed through (a misassigned peak in one of three runs moves
+// ΔS by tens of J/(mol·K) along the ΔH–ΔS valley).
+func trendWarnings(fits []fitResult) map[string]string {
+	out := map[string]string{}
+	good := func(f *fitResult) bool {
+		return !f.onlyDS && finite(f.StdErrDH) && !f.LargeError()
+	}
+	for i := range fits {
+		f := &fits[i]
+		if f.onlyDS {
+			continue
+		}
+		var xs, ys []float64
+		for j := range fits {
+			if j != i && good(&fits[j]) {
+				xs, ys = append(xs, fits[j].DHkJ), append(ys, fits[j].DS)
+			}
+		}
+		a, b, scatter, src := 1.224, -33.0, 0.0, "the homologous-series rule's line"
+		if len(xs) >= 4 {
+			lo, hi := math.Inf(1), math.Inf(-1)
+			var mx, my float64
+			for k := range xs {
+				lo, hi = math.Min(lo, xs[k]), math.Max(hi, xs[k])
+				mx += xs[k] / float64(len(xs))
+				my += ys[k] / float64(len(xs))
+			}
+			if hi-lo >= 10 {
+				var sxy, sxx float64
+				for k := range xs {
+					sxy += (xs[k] - mx) * (ys[k] - my)
+					sxx += (xs[k] - mx) * (xs[k] - mx)
+				}
+				a = sxy / sxx
+				b = my - a*mx
+				for k := range xs {
+					r := ys[k] - (a*xs[k] + b)
+					scatter += r * r
+				}
+				scatter = math.Sqrt(scatter / float64(len(xs)-2))
+				src = fmt.Sprintf("the trend of the other %d fitted compounds", len(xs))
+			}
+		}
+		tol := math.Max(15, 4*scatter)
+		dev := f.DS - (a*f.DHkJ + b)
+		if math.Abs(dev) > tol {
+			out[f.Name] = fmt.Sprintf("%s: fitted ΔH %.2f kJ/mol, ΔS %.2f J/(mol·K) look implausible: ΔS is %+.0f J/(mol·K) off %s (ΔS ≈ %.3f ΔH %+.1f; flagged beyond ±%.0f J/(mol·K)); on one phase ΔH and ΔS of retention keep close to one line (enthalpy–entropy compensation): likely a misassigned or mistyped peak in one of its runs; check its peaks", f.Name, f.DHkJ, f.DS, dev, src, a, b, tol)
+		}
+	}
+	return out
 }

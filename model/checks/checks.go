@@ -150,3 +150,18 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 	}
 	return w
 }
+
+// Cautions are everything a chromatographer is warned of with this
+// result: Warnings, then the safety notes that go with the method (the
+// hydrogen caution for a flammable carrier, the coolant note and the
+// cryogen caution). simulate prints them and the UI lists them.
+func Cautions(m *methodfile.Method, sys *model.System, res *model.Result) []string {
+	w := Warnings(m, sys, res)
+	if sys.Cond.Carrier.Gas.Flammable() {
+		w = append(w, model.HydrogenCaution)
+	}
+	if note := CoolantNote(m); note != "" {
+		w = append(w, note, model.CryogenCaution)
+	}
+	return w
+}

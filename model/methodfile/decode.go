@@ -8,14 +8,15 @@ import (
 	"math"
 	"regexp"
 	"sort"
-	"strconv"
 	"strings"
 
 	toml "github.com/pelletier/go-toml/v2"
 	"github.com/pelletier/go-toml/v2/unstable"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/fsafe"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 // MaxFileSize is the largest method or runs file read (4 MiB): a method is
@@ -38,13 +39,19 @@ type Error struct {
 	Msg  string
 }
 
+// quoted is a name from a file in a message: in quotes, shown inert
+// (textsafe.Inert), the same way in every message.
+func quoted(s string) string { return `"` + textsafe.Inert(s) + `"` }
+
+// Error is file:line: key: message, the file name and key shown inert (a
+// key may hold a compound's name).
 func (e *Error) Error() string {
 	var b strings.Builder
-	b.WriteString(e.File)
+	b.WriteString(textsafe.Inert(e.File))
 	if e.Line > 0 {
 		fmt.Fprintf(&b, ":%d", e.Line)
 	}
-	for _, s := range []string{e.Key, e.Msg} {
+	for _, s := range []string{textsafe.Inert(e.Key), e.Msg} {
 		if s == "" {
 			continue
 		}
@@ -217,6 +224,9 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 	dec.DisallowUnknownFields()
 	err := dec.Decode(target)
 	if err == nil {
+		if err := checkExactKeys(name, data, target); err != nil {
+			return nil, err
+		}
 		return locate(data), nil
 	}
 	var strict *toml.StrictMissingError
@@ -234,9 +244,26 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 		} else if len(de.Key()) == 0 {
 			msg = "TOML syntax error: " + msg
 		}
-		return nil, &Error{File: name, Line: line, Key: strings.Join(de.Key(), "."), Msg: msg}
+		return nil, &Error{File: name, Line: line, Key: canonicalKey(data, line, de.Key()), Msg: msg}
 	}
 	return nil, &Error{File: name, Msg: strings.TrimPrefix(err.Error(), "toml: ")}
+}
+
+// canonicalKey is the decoder's key path as the other messages write it,
+// with the element of each array of tables (run[2].holdup_min, not
+// run.holdup_min): the located key on that line with the same last part.
+func canonicalKey(data []byte, line int, key []string) string {
+	plain := strings.Join(key, ".")
+	if line == 0 || len(key) == 0 {
+		return plain
+	}
+	last := key[len(key)-1]
+	for k, l := range locate(data) {
+		if l == line && (k == last || strings.HasSuffix(k, "."+last)) {
+			return k
+		}
+	}
+	return plain
 }
 
 // isUTF16 spots UTF-16 text: a UTF-16 byte order mark, or (without one)
@@ -262,7 +289,10 @@ func isUTF16(data []byte) bool {
 	return (odd > half*3/4 && even == 0) || (even > half*3/4 && odd == 0)
 }
 
-var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into .* of type (\S+)`)
+// typeMismatch matches go-toml's type errors: "cannot decode TOML string
+// into struct field ... of type *float64", and for a map's value "cannot
+// decode TOML string into float64".
+var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into (?:.* of type )?(\S+)$`)
 
 // goTypeWords names a decoding target type in the file's terms.
 func goTypeWords(t string) string {
@@ -304,7 +334,9 @@ type bound struct {
 	loOpen, hiOpen bool
 }
 
-func fmtNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+// fmtNum is a number in a message: at most 12 significant digits, so that
+// a computed value never shows binary noise (format.Clean).
+func fmtNum(x float64) string { return format.Clean(x) }
 
 // num checks an optional or required number against its range and returns
 // it (or def when absent).
@@ -354,7 +386,7 @@ func (v *validator) str(path string, p *string, required bool, def string, choic
 			return c
 		}
 	}
-	v.fail(path, "%q is not one of %s", *p, strings.Join(choices, ", "))
+	v.fail(path, "%s is not one of %s", quoted(*p), strings.Join(choices, ", "))
 	return def
 }
 
@@ -372,7 +404,7 @@ func (v *validator) distinct(path, name string, seen map[string]int, n int, what
 		v.fail(path, "empty name")
 	}
 	if j, dup := seen[name]; dup && v.err == nil {
-		v.fail(path, "duplicate %s name %q (also %s %d)", what, name, what, j)
+		v.fail(path, "duplicate %s name %s (also %s %d)", what, quoted(name), what, j)
 	}
 	seen[name] = n
 }
@@ -592,7 +624,7 @@ func (v *validator) goal(r *rawMethod, m *Method) {
 	for _, name := range g.Lock {
 		pv, err := model.ParseProgramValue(name)
 		if err != nil || !pv.Kind.InProgram() {
-			v.fail("goal.lock", "%q is not a program value (use %s)", name, model.ValueNames(model.ProgramValues(m.Goal.Ramps)))
+			v.fail("goal.lock", "%s is not a program value (use %s)", quoted(name), model.ValueNames(model.ProgramValues(m.Goal.Ramps)))
 			break
 		}
 		m.Goal.Lock = append(m.Goal.Lock, pv)

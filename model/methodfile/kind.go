@@ -89,7 +89,7 @@ func (v *validator) packedKeys(c *rawColumn, m *Method) {
 func (v *validator) checkKind(m *Method) {
 	c := &m.Column
 	if v.err == nil && !validChoice(c.Kind, model.ColumnKinds) {
-		v.fail("column.kind", "%q is not one of wall-coated, packed, porous-layer", c.Kind.String())
+		v.fail("column.kind", "%s is not one of wall-coated, packed, porous-layer", quoted(c.Kind.String()))
 		return
 	}
 	kr := rulesFor(c.Kind)

@@ -298,7 +298,7 @@ func (m *Method) ModelCompounds() ([]model.Compound, error) {
 		if c.Formula != "" {
 			f, err := model.ParseFormula(c.Formula, c.AromaticRings)
 			if err != nil {
-				return nil, fmt.Errorf("compound %q: %v", c.Name, err)
+				return nil, fmt.Errorf("compound %s: %v", quoted(c.Name), err)
 			}
 			mc.MolarMass, mc.DiffusionVolume = f.MolarMass, f.Volume
 		}

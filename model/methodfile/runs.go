@@ -241,7 +241,7 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 			x := w
 			r.Widths[cname] = v.num(key, &x, true, 0, positive(100), "min")
 			if _, ok := rr.Retention[cname]; !ok && v.err == nil {
-				v.fail(key, "a width for %q without its retention time", cname)
+				v.fail(key, "a width for %s without its retention time", quoted(cname))
 			}
 		}
 		sort.Strings(r.names)
@@ -463,12 +463,12 @@ func (v *validator) exportedPeaks(file, base string, rr *rawRun, r *Run) {
 			continue
 		}
 		if q, dup := seen[p.Name]; dup {
-			v.fail(key, "%s: %q named twice (also at %.4f min)", at(p), p.Name, q.TimeMin)
+			v.fail(key, "%s: %s named twice (also at %s min)", at(p), quoted(p.Name), fmtNum(q.TimeMin))
 			return
 		}
 		seen[p.Name] = p
 		if r.HasHoldup && p.TimeMin <= r.HoldupMin {
-			v.fail(key, "%s: %q at %s min is not after the run's holdup time %s min", at(p), p.Name, fmtNum(p.TimeMin), fmtNum(r.HoldupMin))
+			v.fail(key, "%s: %s at %s min is not after the run's holdup time %s min", at(p), quoted(p.Name), fmtNum(p.TimeMin), fmtNum(r.HoldupMin))
 			return
 		}
 		r.Retention[p.Name] = p.TimeMin

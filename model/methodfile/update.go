@@ -112,6 +112,16 @@ func (t *ttable) removal(data []byte) (int, int) {
 	return t.regionStart, end
 }
 
+// hasFolded reports whether t has a key spelled like rel but for case.
+func (t *ttable) hasFolded(rel string) bool {
+	for _, kv := range t.kvs {
+		if kv.rel != rel && strings.EqualFold(kv.rel, rel) {
+			return true
+		}
+	}
+	return false
+}
+
 // insertAt is where a new key of t goes: after its last key's line, or
 // after the header.
 func (t *ttable) insertAt() int {
@@ -386,6 +396,9 @@ func (p *patcher) table(at, bt, ot *ttable, where *ttable) bool {
 		if okv := p.okv(ot, tpath, bk.rel); okv != nil {
 			p.add(okv.valStart, okv.valEnd, keepSpelling(string(p.o.data[okv.valStart:okv.valEnd]), bv))
 			continue
+		}
+		if ot != nil && ot.hasFolded(bk.rel) {
+			return false // never a second spelling of a key beside the file's
 		}
 		added.WriteString(string(p.b.data[bk.lineStart:bk.lineEnd]))
 	}

@@ -23,11 +23,12 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"io"
+	"io/fs"
 	"math"
-	"os"
 	"strconv"
 	"strings"
+
+	"github.com/rampwise/rampwise/model/fsafe"
 	"unicode/utf8"
 )
 
@@ -98,31 +99,30 @@ func (e *Error) Error() string {
 	return b.String()
 }
 
-// Read reads a peak table file.
+// Read reads a peak table file. It opens only a regular file (a FIFO or
+// a device is refused at once, never waited on: fsafe.ReadRegular).
 func Read(path string, cols Columns) (*Table, error) {
-	if st, err := os.Stat(path); err == nil && !st.Mode().IsRegular() {
-		return nil, &Error{File: path, Msg: "not a regular file"}
-	}
-	f, err := os.Open(path)
+	data, err := fsafe.ReadRegular(path, MaxFileSize)
 	if err != nil {
-		var pe *os.PathError
-		if errors.As(err, &pe) {
-			err = pe.Err
-		}
-		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
-	}
-	defer f.Close()
-	if st, err := f.Stat(); err != nil || !st.Mode().IsRegular() {
-		return nil, &Error{File: path, Msg: "not a regular file"}
-	}
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
-	}
-	if len(data) > MaxFileSize {
-		return nil, &Error{File: path, Msg: fmt.Sprintf("larger than %d MiB: not a peak table", MaxFileSize>>20)}
+		return nil, &Error{File: path, Msg: readError(err)}
 	}
 	return Parse(path, data, cols)
+}
+
+// readError is why a file could not be read, without the path (Error
+// names it).
+func readError(err error) string {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		err = pe.Err
+	}
+	if errors.Is(err, fsafe.ErrNotRegular) {
+		return strings.TrimSuffix(err.Error(), ": "+fsafe.ErrNotRegular.Error())
+	}
+	if strings.Contains(err.Error(), "larger than") {
+		return fmt.Sprintf("larger than %d MiB: not a peak table", MaxFileSize>>20)
+	}
+	return "cannot read: " + err.Error()
 }
 
 type line struct {

@@ -115,12 +115,8 @@ func (m *Measured) signal(t float64) float64 {
 // chromatogram panel whose predicted trace is scaled to 1; endMin is the
 // panel's time range.
 func (m *Measured) draw(top *plot.Plot, endMin float64, predApex func(t float64) float64) error {
-	n := 4000
-	if len(m.TraceT) > 0 {
-		n = min(len(m.TraceT), 200000)
-	}
+	n := m.samples()
 	pts := make(plotter.XYs, 0, n)
-	lo, hi := math.Inf(1), math.Inf(-1)
 	for i := 0; i < n; i++ {
 		t := endMin * float64(i) / float64(n-1)
 		y := m.signal(t)
@@ -128,18 +124,65 @@ func (m *Measured) draw(top *plot.Plot, endMin float64, predApex func(t float64)
 			continue
 		}
 		pts = append(pts, plotter.XY{X: t, Y: y})
-		lo, hi = math.Min(lo, y), math.Max(hi, y)
 	}
+	scale := m.Scale(endMin, predApex)
+	for i := range pts {
+		pts[i].Y = -scale(pts[i].Y)
+	}
+	if len(pts) > 1 {
+		l, err := plotter.NewLine(pts)
+		if err != nil {
+			return err
+		}
+		l.Color = measuredColor
+		top.Add(l)
+		top.Legend.Add("measured "+m.Label+" (below)", l)
+	}
+	for _, x := range m.Matches {
+		j, err := plotter.NewLine(plotter.XYs{{X: x.PredictedMin, Y: predApex(x.PredictedMin)}, {X: x.MeasuredMin, Y: -scale(m.signal(x.MeasuredMin))}})
+		if err != nil {
+			return err
+		}
+		j.Color = joinColor
+		j.Width = vg.Points(0.4)
+		j.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
+		top.Add(j)
+	}
+	top.Y.Min = -1.25
+	return nil
+}
+
+// samples is how many points draw and Scale take over the time range.
+func (m *Measured) samples() int {
 	if len(m.TraceT) > 0 {
-		// baseline: the lowest tenth of the trace
+		return max(2, min(len(m.TraceT), 200000))
+	}
+	return 4000
+}
+
+// Signal is the measured run at t min, before scaling (NaN outside a
+// trace): what the figure draws and the terminal UI too.
+func (m *Measured) Signal(t float64) float64 { return m.signal(t) }
+
+// Scale maps the measured signal over 0..endMin min to the overlay's
+// height, 0 at the baseline (a trace's lowest tenth) and at most 1.2, on
+// the prediction's scale (the predicted trace scaled to 1, predApex its
+// height at a time in min): the median matched apex of the measured run
+// is drawn as tall as the median predicted one (a solvent peak would
+// otherwise flatten the rest); with no match, the tallest point is 1. The
+// figure and the terminal UI scale alike.
+func (m *Measured) Scale(endMin float64, predApex func(t float64) float64) func(y float64) float64 {
+	lo, hi := 0.0, math.Inf(-1)
+	if len(m.TraceT) > 0 {
 		lo = percentile(m.TraceY, 0.1)
-	} else {
-		lo = 0
+	}
+	n := m.samples()
+	for i := 0; i < n; i++ {
+		if y := m.signal(endMin * float64(i) / float64(n-1)); !math.IsNaN(y) {
+			hi = math.Max(hi, y)
+		}
 	}
 	if len(m.Matches) > 0 {
-		// the same scale as the prediction: the median matched apex of the
-		// measured run drawn as tall as the median predicted one (a solvent
-		// peak would otherwise flatten the rest)
 		var pm, mm []float64
 		for _, x := range m.Matches {
 			pm = append(pm, predApex(x.PredictedMin))
@@ -155,31 +198,7 @@ func (m *Measured) draw(top *plot.Plot, endMin float64, predApex func(t float64)
 	if !(span > 0) {
 		span = 1
 	}
-	scale := func(y float64) float64 { return -math.Min(1.2, math.Max(0, (y-lo)/span)) }
-	for i := range pts {
-		pts[i].Y = scale(pts[i].Y)
-	}
-	if len(pts) > 1 {
-		l, err := plotter.NewLine(pts)
-		if err != nil {
-			return err
-		}
-		l.Color = measuredColor
-		top.Add(l)
-		top.Legend.Add("measured "+m.Label+" (below)", l)
-	}
-	for _, x := range m.Matches {
-		j, err := plotter.NewLine(plotter.XYs{{X: x.PredictedMin, Y: predApex(x.PredictedMin)}, {X: x.MeasuredMin, Y: scale(m.signal(x.MeasuredMin))}})
-		if err != nil {
-			return err
-		}
-		j.Color = joinColor
-		j.Width = vg.Points(0.4)
-		j.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
-		top.Add(j)
-	}
-	top.Y.Min = -1.25
-	return nil
+	return func(y float64) float64 { return math.Min(1.2, math.Max(0, (y-lo)/span)) }
 }
 
 func percentile(xs []float64, q float64) float64 {

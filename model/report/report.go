@@ -120,6 +120,8 @@ func (s *Sim) Figure(format string, width, height int) ([]byte, error) {
 		return nil, fmt.Errorf("unknown figure format %q", format)
 	}
 	dc := draw.New(c.(vg.CanvasSizer))
+	// a margin above the title, which would otherwise touch the top edge
+	dc = draw.Crop(dc, 0, 0, 0, -vg.Points(8))
 	upper, lower := panels(top, bottom, dc)
 	top.Draw(upper)
 	bottom.Draw(lower)
@@ -146,8 +148,15 @@ func (s *Sim) figurePlots() (top, bottom *plot.Plot, labels *peakLabels, err err
 	r := &s.Result
 	target := s.Method.Goal.MinResolution
 	top = plot.New()
-	top.Title.Text = Describe(s.Method)
+	// the method's title over its column and program; every string from
+	// the file is drawn inert (a control character would make the SVG
+	// invalid XML)
+	top.Title.Text = textsafe.Inert(Describe(s.Method))
+	if t := textsafe.Inert(s.Method.Title); t != "" {
+		top.Title.Text = t + "\n" + top.Title.Text
+	}
 	top.Title.TextStyle.Font.Size = vg.Points(9)
+	top.Title.Padding = vg.Points(4)
 	top.Y.Label.Text = "signal (relative)"
 	top.X.Min, top.X.Max = 0, end/60
 	// headroom for the vertical labels above the tallest peak
@@ -171,7 +180,7 @@ func (s *Sim) figurePlots() (top, bottom *plot.Plot, labels *peakLabels, err err
 		}
 		labels.labels = append(labels.labels, peakLabel{
 			x: pk.RetentionTime / 60, y: s.signal(pk.RetentionTime) / ymax,
-			text: fmt.Sprintf("%d %s", i+1, s.System.Compounds[pk.Compound].Name), critical: crit[pk.Compound],
+			text: fmt.Sprintf("%d %s", i+1, textsafe.Inert(s.System.Compounds[pk.Compound].Name)), critical: crit[pk.Compound],
 		})
 	}
 	top.Add(labels)
@@ -180,8 +189,8 @@ func (s *Sim) figurePlots() (top, bottom *plot.Plot, labels *peakLabels, err err
 		mark, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 0, Y: 0}})
 		mark.Color = criticalColor
 		mark.Width = vg.Points(2)
-		top.Legend.Add(fmt.Sprintf("critical pair %s / %s: min Rs %s", s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name,
-			format.Rs(r.MinResolution, target)), mark)
+		top.Legend.Add(fmt.Sprintf("critical pair %s / %s: min Rs %s", textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name),
+			format.RsAll(r.MinResolution, target, inertNames(s.System.NotElutedTargets(r)))), mark)
 		top.Legend.Top = true
 		top.Legend.TextStyle.Font.Size = vg.Points(7)
 	}

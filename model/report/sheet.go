@@ -105,9 +105,12 @@ func (s *Sim) Sheet() []byte {
 		}
 		fmt.Fprintf(&b, "| %d | %s | %s | %.1f | %.2f | %s | %s |\n", i+1, textsafe.Inert(c.Name), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
 	}
+	if missing := s.System.NotElutedTargets(r); r.Critical < 0 && len(missing) > 0 {
+		fmt.Fprintf(&b, "\nNo counted pair; the goal is not met: %s.\n", format.NotEluted(inertNames(missing)))
+	}
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		fmt.Fprintf(&b, "\nMinimum resolution %s, critical pair %s.\n", format.Rs(r.MinResolution, m.Goal.MinResolution),
+		fmt.Fprintf(&b, "\nMinimum resolution %s, critical pair %s.\n", format.RsAll(r.MinResolution, m.Goal.MinResolution, inertNames(s.System.NotElutedTargets(r))),
 			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 
@@ -157,4 +160,13 @@ func inertLines(s string) string {
 		lines[i] = textsafe.Inert(strings.TrimSuffix(l, "\r"))
 	}
 	return strings.Join(lines, "\n")
+}
+
+// inertNames is names shown inert (textsafe.Inert).
+func inertNames(names []string) []string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = textsafe.Inert(n)
+	}
+	return out
 }
