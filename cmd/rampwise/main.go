@@ -128,6 +128,19 @@ func loadMethod(file string) (*methodfile.Method, string, error) {
 	return m, file, err
 }
 
+// readRuns reads a scouting runs file, or standard input for "-" (as a
+// method is read; not both from standard input at once).
+func readRuns(path string, m *methodfile.Method) (*methodfile.Runs, error) {
+	if path != "-" {
+		return methodfile.ReadRuns(path, m)
+	}
+	data, err := readStdin()
+	if err != nil {
+		return nil, err
+	}
+	return methodfile.ParseRuns(StdinName, data, m)
+}
+
 // readStdin reads a method from standard input, once. A terminal is
 // refused rather than waited on (- is standard input, not the demo).
 func readStdin() ([]byte, error) {
