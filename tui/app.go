@@ -860,15 +860,13 @@ func (a *App) onDone(msg optDoneMsg) {
 		return
 	}
 	o.result = msg.res
-	after := a.method.Clone()
-	oven, sim, err := optimizer.KeypadProgram(a.method, a.sys, msg.res)
-	if err != nil {
-		a.say(msgError, "optimizer: %v", err)
+	if msg.res.Canceled && !msg.res.Offer {
+		// an early stop offers only a better program that meets the target
+		a.say(msgInfo, "%s; kept the current program", msg.res.Explanation)
 		a.opt = nil
 		return
 	}
-	after.Oven, o.afterR = oven, sim
-	o.after = after
+	o.after, o.afterR = optimizer.Apply(a.method, msg.res), msg.res.Sim
 	if msg.res.Feasible() {
 		a.say(msgGood, "target met: enter or y takes the new program, n or esc keeps the old one")
 	} else {

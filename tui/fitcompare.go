@@ -160,18 +160,7 @@ func (a *App) onCompareRankKey(msg tea.KeyMsg) {
 			a.say(msgError, "that candidate has no program")
 			return
 		}
-		m := o.Method.Clone()
-		sys, err := m.System()
-		if err != nil {
-			a.say(msgError, "%v", err)
-			return
-		}
-		oven, _, err := optimizer.KeypadProgram(m, sys, o.Result)
-		if err != nil {
-			a.say(msgError, "%v", err)
-			return
-		}
-		m.Oven = oven
+		m := optimizer.Apply(o.Method, o.Result)
 		a.apply(m, "switched to "+o.Source+" with its optimized program (u undoes)")
 	case "esc", "n":
 		a.cmp = nil

@@ -310,7 +310,8 @@ func LockNames(n int) []string {
 		s := strconv.Itoa(i)
 		names = append(names, "rate_"+s, "final_"+s, "hold_"+s)
 	}
-	return names
+	// the carrier flow (or inlet pressure), which the optimizer varies
+	return append(names, "flow")
 }
 
 // ValidLockName reports whether s is a lock name for up to n ramps.
