@@ -248,6 +248,19 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 	if hi-lo < st/2 {
 		return best
 	}
+	// screen the robust margin by the loss it costs at the best program so
+	// far; the chosen setting is then searched with the exact checks
+	if sh.p.Robust.On() {
+		ev := newEvaluator(sh, best.rg, nil)
+		ev.score(best.prog, math.Inf(-1))
+		var rep RobustReport
+		if err := sh.p.robust(best.rg, ev.q, &ev.res, &ev.rsc, math.Inf(-1), &rep); err == nil && rep.Nominal-rep.Margin >= 0 {
+			sh.approx = rep.Nominal - rep.Margin
+		} else {
+			sh.approx = 0
+		}
+	}
+	start := best
 	tried := map[float64]candidate{best.rg.value: best}
 	probe := func(v float64) candidate {
 		v = roundGrid(math.Min(math.Max(v, lo), hi), st)
@@ -292,11 +305,17 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 			a = c
 		}
 	}
-	if ctx.Err() == nil && best.rg.value != sh.startValue() {
-		// a fuller program search at the chosen setting, from the best point
+	sh.approx = -1
+	if best.rg == start.rg {
+		return start
+	}
+	if ctx.Err() == nil {
+		// a fuller program search at the chosen setting, from the best point,
+		// with the exact robust checks
 		x, f := sh.stage(ctx, best.rg, best.sp, [][]float64{best.x}, sh.s.Starts/4, sh.s.Evaluations, sh.s.Restarts, 99)
-		if f < best.f {
-			best = candidate{rg: best.rg, sp: best.sp, x: x, f: f, prog: best.sp.program(x)}
+		best = candidate{rg: best.rg, sp: best.sp, x: x, f: f, prog: best.sp.program(x)}
+		if best.f >= start.f && start.f < infeasibleBase {
+			return start
 		}
 	}
 	return best

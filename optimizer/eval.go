@@ -34,10 +34,13 @@ type evaluator struct {
 	// best point this evaluator has seen (for Nelder–Mead runs)
 	bestX []float64
 	bestF float64
+	// approx ≥ 0 replaces the robust checks by a margin: nominal Rs − approx
+	// must reach the target (the carrier search's screen); negative: exact.
+	approx float64
 }
 
 func newEvaluator(sh *shared, rg *rig, sp *space) *evaluator {
-	e := &evaluator{p: &sh.p, sh: sh, rg: rg, lk: sh.p.lockFlags(), bestF: math.Inf(1)}
+	e := &evaluator{p: &sh.p, sh: sh, rg: rg, lk: sh.p.lockFlags(), bestF: math.Inf(1), approx: -1}
 	if sp != nil {
 		e.sp = sp.clone()
 	}
@@ -239,7 +242,11 @@ func (e *evaluator) score(prog model.Program, robustBelow float64) (f, rs float6
 	if miss > 0 {
 		return infeasibleBase + 1e5*miss + math.Min(obj, maxRunTime)*1e-3, rs
 	}
-	if p.Robust.On() && obj < robustBelow {
+	if p.Robust.On() && obj < robustBelow && e.approx >= 0 {
+		if m := rs - e.approx; m < target {
+			return infeasibleBase + 1e5*(target-m) + obj*1e-3, rs
+		}
+	} else if p.Robust.On() && obj < robustBelow {
 		if err := p.robust(e.rg, e.q, &e.res, &e.rsc, target, &e.rep); err != nil {
 			return 2 * infeasibleBase, rs
 		}

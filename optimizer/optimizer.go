@@ -208,6 +208,9 @@ type shared struct {
 
 	rigMu sync.Mutex
 	rigs  map[float64]*rig
+	// approx ≥ 0 while the carrier search screens the robust margin by the
+	// loss measured at the method's own setting (see evaluator.approx)
+	approx float64
 
 	mu      sync.Mutex
 	bestF   float64
@@ -218,7 +221,7 @@ type shared struct {
 }
 
 func newShared(p Problem, s Settings, begin time.Time) *shared {
-	return &shared{p: p, s: s, begin: begin, bestF: math.Inf(1), rigs: map[float64]*rig{}}
+	return &shared{p: p, s: s, begin: begin, bestF: math.Inf(1), rigs: map[float64]*rig{}, approx: -1}
 }
 
 func (sh *shared) offer(f, rs float64, prog model.Program, rg *rig) {
@@ -337,6 +340,7 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 // run is one Nelder–Mead search from x0 with the given simplex size.
 func (sh *shared) run(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) ([]float64, float64) {
 	ev := newEvaluator(sh, rg, sp)
+	ev.approx = sh.approx
 	if sp.dim == 0 {
 		return x0, ev.f(x0)
 	}

@@ -146,3 +146,17 @@ func checkResult(t *testing.T, p Problem, r *Result) {
 		t.Errorf("inlet pressure over the limit")
 	}
 }
+
+// The carrier range on the demo: 0.5×–3× the optimum velocity of the
+// model's plate height; the optimum itself lies inside.
+func TestDemoCarrierRange(t *testing.T) {
+	p := demoProblem(t)
+	lo, hi, err := CarrierRange(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("demo flow range %.2f–%.2f mL/min", lo, hi)
+	if !(lo > 0.05 && lo < hi && hi < 20) || !OnGrid(lo, 0.01) || !OnGrid(hi, 0.01) {
+		t.Errorf("implausible flow range %v–%v mL/min for 30 m × 0.25 mm helium", lo, hi)
+	}
+}
