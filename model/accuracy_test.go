@@ -45,6 +45,11 @@ func accuracyCases() []accuracyCase {
 	hevacP := Carrier{Gas: Helium, Mode: ConstantPressure, InletGauge: 80e3, Vacuum: true, InitialBand: 0.3}
 	h2alt := Carrier{Gas: Hydrogen, Mode: ConstantFlow, Flow: 2.0 * mlPerMin, Ambient: 84e3}
 	twoRamp := Program{Initial: celsius(40), InitialHold: 60, Ramps: []Ramp{{perMin(10), celsius(150), 0}, {perMin(25), celsius(300), 120}}}
+	packed := Column{Kind: Packed, Length: 2, Diameter: 2e-3, Particle: 165e-6, GivenPhaseRatio: 15, MaxTemp: celsius(320)}
+	packedFine := Column{Kind: Packed, Length: 3, Diameter: 3e-3, Film: 0.4e-6, Particle: 120e-6, Porosity: 0.35, GivenPhaseRatio: 40,
+		EddyFactor: 1.1, ObstructionFactor: 0.6, MobileFactor: 0.2, StationaryDiffusivity: 5e-10, MaxTemp: celsius(320)}
+	plot := Column{Kind: PorousLayer, Length: 25, Diameter: 0.32e-3, Film: 8e-6, MaxTemp: celsius(320)}
+	twoRampPacked := Program{Initial: celsius(80), InitialHold: 60, Ramps: []Ramp{{perMin(8), celsius(200), 0}, {perMin(20), celsius(310), 900}}}
 	threeRamp := Program{Initial: celsius(35), InitialHold: 120, Ramps: []Ramp{{perMin(5), celsius(80), 90}, {perMin(12), celsius(180), 30}, {perMin(30), celsius(320), 300}}}
 	return []accuracyCase{
 		{"isothermal he flow", col, he, comps, Program{Initial: celsius(120), InitialHold: 1800}},
@@ -55,6 +60,14 @@ func accuracyCases() []accuracyCase {
 		{"no initial hold h2 altitude", col, h2alt, comps, Program{Initial: celsius(60), Ramps: []Ramp{{perMin(20), celsius(200), 240}}}},
 		{"thick film wide bore", Column{Length: 15, Diameter: 0.53e-3, Film: 3e-6, MaxTemp: celsius(260)}, heliumFlow(5), comps,
 			Program{Initial: celsius(45), InitialHold: 30, Ramps: []Ramp{{perMin(15), celsius(250), 60}}}},
+		// packed columns (MODEL.md §10): Darcy flow, given β, van Deemter H
+		{"packed n2 flow two ramps", packed, Carrier{Gas: Nitrogen, Mode: ConstantFlow, Flow: 30 * mlPerMin}, comps, twoRampPacked},
+		{"packed he pressure isothermal", packed, Carrier{Gas: Helium, Mode: ConstantPressure, InletGauge: 150e3}, comps, Program{Initial: celsius(180), InitialHold: 2400}},
+		{"packed h2 vacuum three ramps", packedFine, Carrier{Gas: Hydrogen, Mode: ConstantFlow, Flow: 20 * mlPerMin, Vacuum: true, InitialBand: 0.5}, comps,
+			Program{Initial: celsius(60), InitialHold: 60, Ramps: []Ramp{{perMin(4), celsius(120), 60}, {perMin(10), celsius(200), 30}, {perMin(20), celsius(300), 600}}}},
+		// porous-layer columns (MODEL.md §11): open tube, layer as the film
+		{"porous layer he flow", plot, heliumFlow(2.5), comps, Program{Initial: celsius(60), InitialHold: 60, Ramps: []Ramp{{perMin(10), celsius(300), 600}}}},
+		{"porous layer n2 pressure vacuum", plot, Carrier{Gas: Nitrogen, Mode: ConstantPressure, InletGauge: 50e3, Vacuum: true}, comps, twoRamp},
 	}
 }
 
@@ -69,6 +82,14 @@ func checkAgainstReference(t *testing.T, s *System, p Program) {
 		t.Errorf("holdup time %.7f min vs reference %.7f (diff %.2g min)", res.HoldupTime/60, hold.tr/60, d)
 	}
 	refs := make(map[int]refPeak)
+	var maxTR, maxSigma, maxTe, maxRs float64
+	compared := 0
+	defer func() {
+		t.Logf("%d peaks: max |ΔtR| %.2g min, max σ rel %.2g, max |ΔTe| %.2g K, max |ΔRs| %.2g", compared, maxTR, maxSigma, maxTe, maxRs)
+		if compared == 0 {
+			t.Error("no peak compared with the reference")
+		}
+	}()
 	for _, pk := range res.Peaks {
 		c := &s.Compounds[pk.Compound]
 		ref := referenceElute(s.Cond, c, p)
@@ -76,6 +97,10 @@ func checkAgainstReference(t *testing.T, s *System, p Program) {
 		if math.IsInf(ref.tr, 0) || ref.tr > 1e7 {
 			continue
 		}
+		compared++
+		maxTR = math.Max(maxTR, math.Abs(pk.RetentionTime-ref.tr)/60)
+		maxSigma = math.Max(maxSigma, math.Abs(pk.Sigma-ref.sigma)/ref.sigma)
+		maxTe = math.Max(maxTe, math.Abs(pk.ElutionTemp-ref.te))
 		if d := math.Abs(pk.RetentionTime-ref.tr) / 60; d > 1e-4 {
 			t.Errorf("%s: tR %.6f min vs reference %.6f (diff %.2g min)", c.Name, pk.RetentionTime/60, ref.tr/60, d)
 		}
@@ -89,6 +114,7 @@ func checkAgainstReference(t *testing.T, s *System, p Program) {
 	for _, pr := range res.Pairs {
 		a, b := refs[pr.First], refs[pr.Second]
 		rs := (b.tr - a.tr) / (2 * (a.sigma + b.sigma))
+		maxRs = math.Max(maxRs, math.Abs(pr.Resolution-rs))
 		if d := math.Abs(pr.Resolution - rs); d > 0.005 {
 			t.Errorf("pair %s/%s: Rs %.4f vs reference %.4f", s.Compounds[pr.First].Name, s.Compounds[pr.Second].Name, pr.Resolution, rs)
 		}
@@ -99,6 +125,43 @@ func TestAccuracyAgainstReference(t *testing.T) {
 	for _, c := range accuracyCases() {
 		t.Run(c.name, func(t *testing.T) {
 			s := mustSystem(t, c.col, c.car, c.comps)
+			checkAgainstReference(t, s, c.prog)
+		})
+	}
+}
+
+// A porous-layer and a packed column started below ambient with a coolant
+// (MODEL.md §12): light compounds from −40 °C and −60 °C.
+func TestAccuracySubAmbientKinds(t *testing.T) {
+	var comps []Compound
+	for n := 1.0; n <= 6; n++ {
+		c := alkaneLike("light", n)
+		c.Name = fmt.Sprintf("C%g", n)
+		comps = append(comps, c)
+	}
+	comps[2].DCp = 40
+	oven := DefaultOven()
+	oven.Coolant = celsius(-78)
+	for _, c := range []struct {
+		col  Column
+		car  Carrier
+		prog Program
+	}{
+		{Column{Kind: PorousLayer, Length: 30, Diameter: 0.53e-3, Film: 20e-6, MaxTemp: celsius(250)}, heliumFlow(4),
+			Program{Initial: celsius(-40), InitialHold: 120, Ramps: []Ramp{{perMin(10), celsius(80), 60}, {perMin(25), celsius(240), 300}}}},
+		{Column{Kind: Packed, Length: 2, Diameter: 2e-3, Particle: 165e-6, GivenPhaseRatio: 10, MaxTemp: celsius(200)},
+			Carrier{Gas: Nitrogen, Mode: ConstantFlow, Flow: 25 * mlPerMin},
+			Program{Initial: celsius(-60), InitialHold: 30, Ramps: []Ramp{{perMin(15), celsius(150), 600}}}},
+	} {
+		t.Run(c.col.Kind.String(), func(t *testing.T) {
+			cond, err := NewConditions(c.col, c.car)
+			if err != nil {
+				t.Fatal(err)
+			}
+			s, err := NewSystem(cond, comps, oven)
+			if err != nil {
+				t.Fatal(err)
+			}
 			checkAgainstReference(t, s, c.prog)
 		})
 	}

@@ -8,10 +8,24 @@ type Conditions struct {
 	Column  Column
 	Carrier Carrier
 
-	dg, po, pamb float64
-	beta         float64
-	flowCoef     float64 // constant flow: pi² − po² = flowCoef · η(T) · T
-	pi2Fixed     float64 // constant pressure: pi²
+	flow     Flow
+	po, pamb float64
+	beta     float64
+	flowCoef float64 // constant flow: pi² − po² = flowCoef · η(T) · T
+	pi2Fixed float64 // constant pressure: pi²
+	tmCoef   float64 // tM = tmCoef · η (pi³ − po³) / (pi² − po²)²
+	upCoef   float64 // up = upCoef · (pi² − po²) / η
+	plate    plateTerms
+}
+
+// plateTerms are the constants of the one plate-height formula of every
+// kind (see plateHeight).
+type plateTerms struct {
+	longitudinal float64 // 2γ (open tube: 2)
+	m0, m1, m2   float64 // mobile-phase term (m0 + m1 k + m2 k²)/(1+k)², m²
+	eddy         float64 // 2λ dp (open tube: 0), m
+	stationary   float64 // 2 df² / (3 D_s), s
+	phi          float64
 }
 
 // NewConditions checks the column and carrier and prepares the constants.
@@ -23,23 +37,51 @@ func NewConditions(col Column, car Carrier) (*Conditions, error) {
 		return nil, err
 	}
 	c := &Conditions{Column: col, Carrier: car}
-	c.dg = col.ChannelDiameter()
+	c.flow = col.Flow()
 	c.po = car.OutletPressure()
 	c.pamb = car.AmbientPressure()
 	c.beta = col.PhaseRatio()
-	d4 := c.dg * c.dg * c.dg * c.dg
-	c.flowCoef = 256 * col.Length * FlowRefPressure * car.Flow / (math.Pi * d4 * FlowRefTemp)
+	L, B0, eps := col.Length, c.flow.Permeability, c.flow.Porosity
+	c.flowCoef = 2 * L * FlowRefPressure * car.Flow / (c.flow.Area * B0 * FlowRefTemp)
+	c.tmCoef = 4 * eps * L * L / (3 * B0)
+	c.upCoef = B0 / (2 * eps * L)
 	pi := c.pamb + car.InletGauge
 	c.pi2Fixed = pi * pi
+	c.plate = col.plateTerms()
 	return c, nil
 }
+
+// plateTerms writes each kind's plate height in the one form of plateHeight.
+// Open tube (Golay, MODEL.md §5): γ = 1, mobile term r² (1 + 6k + 11k²) /
+// (24 (1+k)²), no eddy term. Packed bed (van Deemter, §10): γ, ω dp² (the
+// same for every k, so m0 = ω dp², m1 = 2 ω dp², m2 = ω dp²) and 2 λ dp.
+func (c Column) plateTerms() plateTerms {
+	df := c.film()
+	t := plateTerms{stationary: 2 * df * df / (3 * c.ds()), phi: c.phi()}
+	if c.Kind == Packed {
+		dp2 := c.Particle * c.Particle
+		om := orDefault(c.MobileFactor, DefaultMobileFactor)
+		t.longitudinal = 2 * orDefault(c.ObstructionFactor, DefaultObstructionFactor)
+		t.m0, t.m1, t.m2 = om*dp2, 2*om*dp2, om*dp2
+		t.eddy = 2 * orDefault(c.EddyFactor, DefaultEddyFactor) * c.Particle
+		return t
+	}
+	r := c.ChannelDiameter() / 2
+	t.longitudinal = 2
+	t.m0, t.m1, t.m2 = r*r/24, 6*r*r/24, 11*r*r/24
+	return t
+}
+
+// Flow is the column's flow description used by every flow formula.
+func (c *Conditions) Flow() Flow { return c.flow }
 
 // PhaseRatio is β of the column.
 func (c *Conditions) PhaseRatio() float64 { return c.beta }
 
 // inletSquared is pi² at temperature t (K) given the viscosity eta. Constant
-// flow: pi² = po² + 256 η L pn T Fn / (π dg⁴ Tn) (Hagen–Poiseuille for a
-// compressible ideal gas, MODEL.md §2, with the channel diameter dg).
+// flow: pi² = po² + 2 η L pn T Fn / (A B0 Tn) (Darcy flow of a compressible
+// ideal gas, MODEL.md §10; for an open tube, A B0 = π dg⁴/128 and this is
+// the Hagen–Poiseuille form of §2).
 func (c *Conditions) inletSquared(t, eta float64) float64 {
 	if c.Carrier.Mode == ConstantPressure {
 		return c.pi2Fixed
@@ -63,10 +105,11 @@ type gasState struct {
 	f1  float64 // Giddings' compression correction
 }
 
-// state is the flow at temperature t (K), MODEL.md §2 and §5:
+// state is the flow at temperature t (K), MODEL.md §10 (§2 for an open
+// tube, where B0 = dg²/32 and ε = 1) and §5:
 //
-//	tM = 128 η L² (pi³ − po³) / (3 dg² (pi² − po²)²)
-//	up = dg² (pi² − po²) / (64 η L)
+//	tM = 4 η ε L² (pi³ − po³) / (3 B0 (pi² − po²)²)
+//	up = B0 (pi² − po²) / (2 η ε L)
 //	f1 = 9 (pi⁴ − po⁴)(pi² − po²) / (8 (pi³ − po³)²)
 func (c *Conditions) state(t float64) gasState {
 	eta := c.Carrier.Gas.Viscosity(t)
@@ -76,12 +119,10 @@ func (c *Conditions) state(t float64) gasState {
 	po2 := po * po
 	d2 := pi2 - po2
 	c3 := pi2*pi - po2*po
-	L := c.Column.Length
-	dg2 := c.dg * c.dg
 	return gasState{
 		eta: eta,
-		tm:  128 * eta * L * L * c3 / (3 * dg2 * d2 * d2),
-		up:  dg2 * d2 / (64 * eta * L),
+		tm:  c.tmCoef * eta * c3 / (d2 * d2),
+		up:  c.upCoef * d2 / eta,
 		f1:  9 * (pi2 + po2) * d2 * d2 / (8 * c3 * c3),
 	}
 }
@@ -93,20 +134,35 @@ func (c *Conditions) HoldupTimeAt(t float64) float64 { return c.state(t).tm }
 // AverageVelocity is ū = L / tM in m/s at temperature t (K).
 func (c *Conditions) AverageVelocity(t float64) float64 { return c.Column.Length / c.HoldupTimeAt(t) }
 
-// plateHeight is Golay's equation with Giddings' correction (MODEL.md §5):
+// plateHeight is the apparent plate height of every kind in one form
+// (MODEL.md §5 for open tubes, §10 for packed beds):
 //
-//	H = φ [ f1 (2 Dp/up + r² (1+6k+11k²) up / (24 (1+k)² Dp)) + 2 k df² ū / (3 (1+k)² Ds) ]
+//	H = φ [ f1 ( 2γ Dp/up + (m0 + m1 k + m2 k²) up / ((1+k)² Dp) + 2λ dp )
+//	        + 2 k df² ū / (3 (1+k)² Ds) ]
 //
-// with Dp = D_m(T, 1 atm)·101325 Pa, r = dg/2 and ū = L / tM.
+// with Dp = D_m(T, 1 atm)·101325 Pa and ū = L / tM. For an open tube γ = 1,
+// (m0, m1, m2) = r² (1, 6, 11)/24 with r = dg/2 and no eddy term: Golay's
+// equation with Giddings' correction. For a packed bed the mobile term is
+// ω dp² and the eddy term 2λ dp takes f1 like the other terms that are the
+// same all along the column; only the stationary term goes with ū.
 func (c *Conditions) plateHeight(s gasState, k, dm float64) float64 {
 	dp := dm * StandardAtmosphere
-	r := c.dg / 2
+	pt := &c.plate
 	k1 := 1 + k
-	gas := s.f1 * (2*dp/s.up + r*r*(1+6*k+11*k*k)*s.up/(24*k1*k1*dp))
-	df := c.Column.Film
+	inv := 1 / (k1 * k1)
+	gas := s.f1 * (pt.longitudinal*dp/s.up + (pt.m0+k*(pt.m1+k*pt.m2))*inv*s.up/dp + pt.eddy)
 	u := c.Column.Length / s.tm
-	liquid := 2 * k * df * df * u / (3 * k1 * k1 * c.Column.ds())
-	return c.Column.phi() * (gas + liquid)
+	return pt.phi * (gas + pt.stationary*k*inv*u)
+}
+
+// MinPlateHeight is the smallest plate height the column's gas terms allow
+// for a strongly retained solute (k → ∞), with f1 = 1 and no stationary
+// term: E + 2 sqrt(2γ m2), i.e. 1.915 r for an open tube (Golay) and
+// 2λ dp + 2 sqrt(2γω) dp for a packed bed (van Deemter). It bounds the plate
+// number a column can give.
+func (c *Conditions) MinPlateHeight() float64 {
+	pt := &c.plate
+	return pt.phi * (pt.eddy + 2*math.Sqrt(pt.longitudinal*pt.m2))
 }
 
 // PlateHeight is the apparent plate height H (m) of a solute with retention

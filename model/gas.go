@@ -73,3 +73,9 @@ func (g Gas) Flammable() bool { return gases[g].flammable }
 // HydrogenCaution is the safety note shown wherever hydrogen carrier is chosen.
 const HydrogenCaution = "Hydrogen carrier gas is flammable: leak-check every fitting, fit a hydrogen sensor in the oven, " +
 	"follow the instrument maker's guidance for hydrogen and your local codes; secure pressurised cylinders."
+
+// CryogenCaution is the safety note shown wherever a method uses an oven
+// coolant (MODEL.md §12).
+const CryogenCaution = "Cryogenic coolant (liquid CO2 or liquid nitrogen): the liquid and cold lines cause cold burns, so wear insulated gloves and eye protection; " +
+	"the boiled-off gas displaces oxygen and can asphyxiate in a closed or poorly ventilated room, so ventilate and fit an oxygen monitor; " +
+	"secure the dewar or cylinder, and follow the instrument maker's guidance and your local codes."

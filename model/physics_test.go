@@ -87,7 +87,7 @@ func TestGolayMinimumPlateHeight(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	r := cond.dg / 2
+	r := cond.Column.ChannelDiameter() / 2
 	dm := 3e-5
 	for _, k := range []float64{0, 0.5, 2, 10, 1e4} {
 		h := func(up float64) float64 {

@@ -17,11 +17,15 @@ const TableStep = 0.5
 const TableLow = 173.15
 
 // Oven holds the cool-down and equilibration behaviour of the oven
-// (MODEL.md §8). Temperatures in K, times in s.
+// (MODEL.md §8, §12). Temperatures in K, times in s.
 type Oven struct {
 	Ambient       float64 // Ta
 	CooldownTau   float64 // τ
 	Equilibration float64
+	// Coolant is Tc, the temperature of the coolant (liquid CO2 or
+	// nitrogen cooling) the oven cools toward instead of Ta; zero means
+	// the oven has none.
+	Coolant float64
 }
 
 // DefaultOven is 25 °C ambient, τ = 2.0 min, 0.5 min equilibration: typical
@@ -30,17 +34,32 @@ func DefaultOven() Oven {
 	return Oven{Ambient: ZeroCelsius + 25, CooldownTau: 120, Equilibration: 30}
 }
 
-// Cooldown is t_cool = τ ln((Tf − Ta)/(T0 − Ta)) in s, 0 if Tf ≤ T0
-// (Newton cooling, MODEL.md §8). It is an error if T0 ≤ Ta.
+// Sink is the temperature the oven cools toward: the coolant's when it has
+// one (MODEL.md §12), else ambient.
+func (o Oven) Sink() float64 {
+	if o.Coolant > 0 {
+		return o.Coolant
+	}
+	return o.Ambient
+}
+
+// Cooldown is t_cool = τ ln((Tf − Ts)/(T0 − Ts)) in s, 0 if Tf ≤ T0
+// (Newton cooling toward Ts, the ambient Ta or with a coolant its Tc;
+// MODEL.md §8, §12). It is an error if T0 ≤ Ts.
 func (o Oven) Cooldown(tf, t0 float64) (float64, error) {
-	if t0 <= o.Ambient {
-		return 0, fmt.Errorf("model: initial temperature %.1f °C is not above the oven's ambient %.1f °C; the oven cannot cool back to it",
-			t0-ZeroCelsius, o.Ambient-ZeroCelsius)
+	sink := o.Sink()
+	if t0 <= sink {
+		if o.Coolant > 0 {
+			return 0, fmt.Errorf("model: initial temperature %.1f °C is not above the coolant's %.1f °C; the oven cannot cool to it",
+				t0-ZeroCelsius, sink-ZeroCelsius)
+		}
+		return 0, fmt.Errorf("model: initial temperature %.1f °C is not above the oven's ambient %.1f °C; the oven cannot cool back to it without a coolant",
+			t0-ZeroCelsius, sink-ZeroCelsius)
 	}
 	if tf <= t0 {
 		return 0, nil
 	}
-	return o.CooldownTau * math.Log((tf-o.Ambient)/(t0-o.Ambient)), nil
+	return o.CooldownTau * math.Log((tf-sink)/(t0-sink)), nil
 }
 
 // node is one tabulated temperature: Φ and its derivative g = 1/(tM(1+k)),
@@ -63,7 +82,8 @@ type System struct {
 }
 
 // NewSystem checks its inputs and tabulates Φ and Ψ for every compound and
-// for an unretained solute from TableLow up to the column maximum.
+// for an unretained solute from TableLow (or the oven's coolant, if that is
+// colder) up to the column maximum.
 func NewSystem(cond *Conditions, comps []Compound, oven Oven) (*System, error) {
 	if cond == nil {
 		return nil, errors.New("model: no column conditions")
@@ -81,6 +101,9 @@ func NewSystem(cond *Conditions, comps []Compound, oven Oven) (*System, error) {
 		return nil, fmt.Errorf("model: column maximum temperature %.1f °C is below the model's range", hi-ZeroCelsius)
 	}
 	s := &System{Cond: cond, Compounds: comps, Oven: oven, lo: TableLow}
+	if oven.Coolant > 0 && oven.Coolant < s.lo {
+		s.lo = oven.Coolant // the tables reach down to the coolant (MODEL.md §12)
+	}
 	s.n = int(math.Ceil((hi-s.lo)/TableStep)) + 1
 	s.hi = s.lo + float64(s.n-1)*TableStep
 	nc := len(comps)

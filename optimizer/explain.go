@@ -41,8 +41,9 @@ func explain(p *Problem, res *model.Result, limiting []int, sys *model.System) s
 	}
 	// plates needed at large k (Purnell): N = 16 Rs² (α/(α−1))²
 	need := 16 * p.MinResolution * p.MinResolution * math.Pow(bestAlpha/(bestAlpha-1), 2)
-	r := sys.Cond.Column.ChannelDiameter() / 2
-	have := sys.Cond.Column.Length / (1.915 * r)
+	// at most L / H_min plates: Golay's 1.915 r for an open tube, the van
+	// Deemter minimum for a packed bed (MODEL.md §5, §10)
+	have := sys.Cond.Column.Length / sys.Cond.MinPlateHeight()
 	if need > have {
 		return fmt.Sprintf("%s: the selectivity on this phase is at most α = %.4f (at %.0f °C); Rs %.2f would need about %.0f plates even isothermally, and the column gives at most about %.0f: a longer column, a narrower bore or another phase would be needed",
 			name, bestAlpha, bestT-model.ZeroCelsius, p.MinResolution, need, have)

@@ -3,18 +3,16 @@ package tui
 import (
 	"context"
 	"fmt"
-	"math"
 	"os"
 	"reflect"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/help"
 	"github.com/charmbracelet/bubbles/key"
-	"github.com/charmbracelet/bubbles/textinput"
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
-	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
@@ -40,25 +38,6 @@ const (
 
 var paneNames = [paneCount]string{"program", "chromatogram", "peaks", "settings"}
 
-type inputMode int
-
-const (
-	inputNone inputMode = iota
-	inputValue
-	inputSaveAs
-	inputCompound
-	inputRuns
-	inputCompare
-)
-
-type confirmMode int
-
-const (
-	confirmNone confirmMode = iota
-	confirmQuit
-	confirmRestore
-)
-
 type msgKind int
 
 const (
@@ -79,83 +58,48 @@ type Options struct {
 	Optimizer optimizer.Settings
 }
 
-// App is the root model: the method and everything the panes share.
+// App is the root model. It owns the method, its undo and redo stacks, the
+// simulation and the background work; it routes every message: global keys
+// first, then the resize fan-out to every child, then the one overlay slot
+// (the open dialog takes every key and draws over the lower pane), then the
+// focused pane. Components send edits and requests through shared.send;
+// the root's one apply makes an edit the method.
 type App struct {
-	st    Styles
-	keys  GlobalKeys
-	pkeys FieldKeys
-	skeys FieldKeys
-	ckeys ChartKeys
-	tkeys PeakKeys
-	help  help.Model
+	sh   shared
+	st   Styles
+	keys GlobalKeys
+	help help.Model
 
 	path, name string
-	method     *methodfile.Method
 	saved      *methodfile.Method
 	undo, redo []*methodfile.Method
-	sys        *model.System
-	sysKey     string
 	res        model.Result
-	simErr     error
+	sysk       string // systemKey of the method the tables were built for
 	guard      *Guard
+	wrote      map[string]bool // files this session wrote or opened: replaced without asking
 
 	width, height int
 	ready         bool
-	focus, lower  int
-	progSel       int
-	setSel        int
-	peakSel       int
-	peakCol       int // 0 ΔH, 1 ΔS
-	zoom, center  float64
+	lower         int // the pane under the chart: peaks or settings
+
+	program  *programPane
+	chart    *chartPane
+	peaks    *peaksPane
+	settings *settingsPane
+	overlay  component   // the open dialog, or nil
+	pending  []component // dialogs waiting for the open one to close
 
 	message string
 	kind    msgKind
-	input   textinput.Model
-	inMode  inputMode
-	confirm confirmMode
-	recover *methodfile.Method
-	full    bool // full help shown
 
 	optSettings optimizer.Settings
-	opt         *optRun
-	sweepView   *sweepView
-	newCaution  string
-	fit         *calibrate.Report
-	cmp         *compareRun
+	job         *job
 
-	chart chart
-	view  cachedView
-}
-
-// optRun is the optimizer running in the background, or its outcome.
-type optRun struct {
-	id      int
-	cancel  context.CancelFunc
-	ch      chan tea.Msg
-	running bool
-	last    optimizer.Progress
-	preview model.Result
-	hasPrev bool
-	result  *optimizer.Result
-	err     error
-	after   *methodfile.Method
-	afterR  model.Result
+	view cachedView
 }
 
 type cachedView struct {
-	title, method, program, summary, message, help string
-	chart, lower                                   []string
-}
-
-type optProgressMsg struct {
-	id int
-	p  optimizer.Progress
-}
-
-type optDoneMsg struct {
-	id  int
-	res *optimizer.Result
-	err error
+	title, method, summary, message, footer string
 }
 
 // New makes the App for a method.
@@ -165,44 +109,62 @@ func New(m *methodfile.Method, opt Options) (*App, error) {
 		st = *opt.Styles
 	}
 	a := &App{
-		st: st, keys: DefaultGlobalKeys(), pkeys: DefaultProgramKeys(), skeys: DefaultSettingsKeys(),
-		ckeys: DefaultChartKeys(), tkeys: DefaultPeakKeys(), help: help.New(),
-		path: opt.Path, name: opt.Name, method: m, saved: m, guard: opt.Guard,
-		lower: panePeaks, zoom: 1, optSettings: opt.Optimizer,
+		st: st, keys: DefaultGlobalKeys(), help: help.New(),
+		path: opt.Path, name: opt.Name, saved: m, guard: opt.Guard,
+		lower: panePeaks, optSettings: opt.Optimizer, wrote: map[string]bool{},
 	}
+	a.sh = shared{st: &a.st, method: m, res: &a.res}
 	if a.name == "" {
 		a.name = opt.Path
+	}
+	if opt.Path != "" {
+		a.wrote[opt.Path] = true
 	}
 	if a.guard == nil {
 		a.guard = NewGuard(opt.Path)
 	}
-	a.help.Styles.ShortKey = st.Help
+	a.help.Styles.ShortKey = st.HelpKey
 	a.help.Styles.ShortDesc = st.Help
-	a.input = textinput.New()
-	a.input.CharLimit = 200
+	a.help.Styles.ShortSeparator = st.Help
+	a.help.Styles.FullKey = st.HelpKey
+	a.help.Styles.FullDesc = st.Help
+	a.help.Styles.Ellipsis = st.Help
 	if err := a.resimulate(); err != nil {
 		return nil, err
 	}
+	a.program = newProgramPane(&a.sh)
+	a.chart = newChartPane(&a.sh)
+	a.peaks = newPeaksPane(&a.sh)
+	a.settings = newSettingsPane(&a.sh)
 	if rm, rp, ok := recoveryAvailable(opt.Path); ok {
-		a.recover = rm
-		a.confirm = confirmRestore
-		a.say(msgWarn, "unsaved changes from an earlier session are in %s: r restore them · d discard the file · esc keep it and go on", rp)
+		a.open(newConfirm(&a.sh, "unsaved changes from an earlier session", "are in "+inert(rp)+": restore them?", []choice{
+			{keys: []string{"r"}, label: "restore them", msgs: []tea.Msg{restoreMsg{m: rm}}},
+			{keys: []string{"d"}, label: "discard the file", msgs: []tea.Msg{discardRecoveryMsg{}}},
+			{keys: []string{"esc", "n"}, label: "keep it and go on", msgs: []tea.Msg{sayMsg{msgInfo, "kept the recovery file " + inert(rp)}}},
+		}))
+		a.say(msgWarn, "unsaved changes from an earlier session are in %s: r restore them · d discard the file · esc keep it and go on", inert(rp))
 	}
-	a.guard.update(a.path, a.method, false)
+	a.guard.update(a.path, a.sh.method, false)
 	return a, nil
 }
+
+// restoreMsg and discardRecoveryMsg answer the recovery offer.
+type (
+	restoreMsg         struct{ m *methodfile.Method }
+	discardRecoveryMsg struct{}
+)
 
 // Init implements tea.Model.
 func (a *App) Init() tea.Cmd { return nil }
 
 // Method is the method as edited so far.
-func (a *App) Method() *methodfile.Method { return a.method }
+func (a *App) Method() *methodfile.Method { return a.sh.method }
 
 // Result is the simulation of the current program.
 func (a *App) Result() *model.Result { return &a.res }
 
 // Dirty reports unsaved changes.
-func (a *App) Dirty() bool { return !reflect.DeepEqual(a.method, a.saved) }
+func (a *App) Dirty() bool { return !reflect.DeepEqual(a.sh.method, a.saved) }
 
 // Path is the file the method saves to.
 func (a *App) Path() string { return a.path }
@@ -220,66 +182,68 @@ func systemKey(m *methodfile.Method) string {
 // resimulate rebuilds the tables when the column, carrier or compounds
 // changed, then simulates the program.
 func (a *App) resimulate() error {
-	if k := systemKey(a.method); k != a.sysKey || a.sys == nil {
-		sys, err := a.method.System()
+	m := a.sh.method
+	if k := systemKey(m); k != a.sysk || a.sh.sys == nil {
+		sys, err := m.System()
 		if err != nil {
 			return err
 		}
-		a.sys, a.sysKey = sys, k
+		a.sh.sys = sys
+		a.sysk = k
 	}
-	return a.sys.Simulate(a.method.ModelProgram(), &a.res)
+	return a.sh.sys.Simulate(m.ModelProgram(), &a.res)
 }
 
 // apply makes m the method if it is valid: the previous one goes on the
 // undo stack. An invalid m leaves everything as it was, with a message.
+// It is the only place an edit becomes the method.
 func (a *App) apply(m *methodfile.Method, what string) bool {
 	if err := validate(m); err != nil {
 		a.say(msgError, "%v (kept the last valid value)", err)
 		return false
 	}
-	prev, prevSys, prevKey := a.method, a.sys, a.sysKey
-	a.method = m
+	prev, prevSys, prevKey := a.sh.method, a.sh.sys, a.sysk
+	a.sh.method = m
 	if err := a.resimulate(); err != nil {
-		a.method, a.sys, a.sysKey = prev, prevSys, prevKey
+		a.sh.method, a.sh.sys = prev, prevSys
+		a.sysk = prevKey
 		a.resimulate()
 		a.say(msgError, "%s (kept the last valid value)", strings.TrimPrefix(err.Error(), "model: "))
 		return false
 	}
-	a.cautions(prev, prevSys)
+	caution := a.newCaution(prev, prevSys)
 	a.undo = append(a.undo, prev)
 	if len(a.undo) > maxUndo {
 		a.undo = append(a.undo[:0], a.undo[len(a.undo)-maxUndo:]...)
 	}
 	a.redo = nil
 	a.say(msgInfo, "%s", what)
-	if c := a.newCaution; c != "" {
-		a.say(msgWarn, "%s · %s", what, c)
+	if caution != "" {
+		a.say(msgWarn, "%s · %s", what, caution)
 	}
 	if m.Carrier.Gas == "hydrogen" && prev.Carrier.Gas != "hydrogen" {
-		a.say(msgWarn, "%s", model.HydrogenCaution)
+		a.say(msgWarn, "%s · %s", what, model.HydrogenCaution)
 	}
-	a.guard.update(a.path, a.method, a.Dirty())
+	a.guard.update(a.path, a.sh.method, a.Dirty())
 	return true
 }
 
+// restore makes m the method without touching the undo stacks (undo, redo
+// and the recovery offer manage them).
 func (a *App) restore(m *methodfile.Method) {
-	a.method = m
+	a.sh.method = m
 	if err := a.resimulate(); err != nil {
 		a.say(msgError, "%v", err)
 	}
-	if n := len(programFields(a.method)); a.progSel >= n {
-		a.progSel = n - 1
-	}
-	a.guard.update(a.path, a.method, a.Dirty())
+	a.guard.update(a.path, a.sh.method, a.Dirty())
 }
 
-// cautions notes the first caution (overload, detector zone, inlet
+// newCaution is the first caution (overload, detector zone, inlet
 // pressure, late peak) that the change from prev brought in.
-func (a *App) cautions(prev *methodfile.Method, prevSys *model.System) {
-	a.newCaution = ""
-	now := checks.Warnings(a.method, a.sys, &a.res)
+func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string {
+	now := checks.Warnings(a.sh.method, a.sh.sys, &a.res)
 	if len(now) == 0 {
-		return
+		return ""
 	}
 	var before []string
 	if prevSys != nil {
@@ -296,105 +260,108 @@ func (a *App) cautions(prev *methodfile.Method, prevSys *model.System) {
 			}
 		}
 		if !seen {
-			a.newCaution = w
-			return
+			return w
 		}
+	}
+	return ""
+}
+
+// Update implements tea.Model.
+func (a *App) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	var cmds []tea.Cmd
+	a.handle(msg, &cmds)
+	a.refresh()
+	return a, tea.Batch(cmds...)
+}
+
+// handle routes one message and then everything the components sent.
+func (a *App) handle(msg tea.Msg, cmds *[]tea.Cmd) {
+	if km, ok := msg.(tea.KeyMsg); ok && km.Type == tea.KeyRunes && len(km.Runes) > 1 && !a.typing() {
+		// keys that arrived in one read (+++ over a slow link): one by one
+		for _, r := range km.Runes {
+			a.handle(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{r}, Alt: km.Alt}, cmds)
+		}
+		return
+	}
+	*cmds = append(*cmds, a.route(msg))
+	for len(a.sh.outbox) > 0 {
+		next := a.sh.outbox[0]
+		a.sh.outbox = a.sh.outbox[1:]
+		*cmds = append(*cmds, a.intent(next))
 	}
 }
 
-// Update implements tea.Model: global keys first, then the resize fan-out,
-// then the message to the focused pane.
-func (a *App) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
-	var cmd tea.Cmd
+// typing reports whether a text prompt has the keys (a paste stays whole).
+func (a *App) typing() bool {
+	_, ok := a.overlay.(*promptDialog)
+	return ok
+}
+
+// route is the one place that decides who gets a message.
+func (a *App) route(msg tea.Msg) tea.Cmd {
 	switch msg := msg.(type) {
 	case tea.WindowSizeMsg:
 		a.width, a.height, a.ready = msg.Width, msg.Height, true
-		a.help.Width = msg.Width
-	case optProgressMsg:
-		cmd = a.onProgress(msg)
-	case optDoneMsg:
-		a.onDone(msg)
-	case compareDoneMsg:
-		if a.cmp != nil {
-			a.cmp.running = false
-			a.cmp.out = msg.out
-			a.say(msgGood, "ranked %d columns: enter switches the method to the chosen one", len(msg.out))
-		}
+		a.layout()
+		return nil
 	case tea.KeyMsg:
-		cmd = a.onKey(msg)
+		if key.Matches(msg, a.keys.Interrupt) {
+			return a.interrupt()
+		}
+		if a.overlay != nil {
+			return a.toOverlay(msg)
+		}
+		if cmd, ok := a.globalKey(msg); ok {
+			return cmd
+		}
+		return a.toPane(a.sh.focus, msg)
+	case progressWith:
+		return a.onOptProgress(msg)
+	case doneMsg:
+		return a.onDone(msg)
 	}
-	a.clampSelections()
-	a.refresh()
-	return a, cmd
+	if a.overlay != nil {
+		return a.toOverlay(msg)
+	}
+	return nil
 }
 
-// clampSelections keeps every selection inside its list after the method
-// changed shape (ramps removed, a pressure mode switched, compounds added).
-func (a *App) clampSelections() {
-	clamp := func(v *int, n int) {
-		if *v >= n {
-			*v = n - 1
-		}
-		if *v < 0 {
-			*v = 0
-		}
-	}
-	clamp(&a.progSel, len(programFields(a.method)))
-	clamp(&a.setSel, len(settingsFields(a.method)))
-	clamp(&a.peakSel, len(a.res.Peaks))
+func (a *App) toOverlay(msg tea.Msg) tea.Cmd {
+	var cmd tea.Cmd
+	a.overlay, cmd = a.overlay.Update(msg)
+	return cmd
 }
 
-func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {
-	if a.inMode != inputNone {
-		return a.onInput(msg)
+func (a *App) pane(p int) component {
+	switch p {
+	case paneProgram:
+		return a.program
+	case paneChart:
+		return a.chart
+	case panePeaks:
+		return a.peaks
 	}
-	if a.confirm != confirmNone {
-		return a.onConfirm(msg)
-	}
-	if a.opt != nil && a.opt.running {
-		if key.Matches(msg, a.keys.Cancel) {
-			a.opt.cancel()
-			a.say(msgInfo, "stopping the optimizer; the best program so far will be offered")
-			return nil
-		}
-		if key.Matches(msg, a.keys.Quit) && msg.String() == "ctrl+c" {
-			a.opt.cancel()
-			return tea.Quit
-		}
-		if a.focus == paneChart {
-			a.chartKey(msg)
-			return nil
-		}
-		a.say(msgInfo, "optimizing: esc stops and keeps the best program so far")
-		return nil
-	}
-	if a.opt != nil && a.opt.result != nil {
-		return a.onCompare(msg)
-	}
-	if a.fit != nil {
-		a.onFitDecision(msg)
-		return nil
-	}
-	if a.cmp != nil {
-		a.onCompareRankKey(msg)
-		return nil
-	}
+	return a.settings
+}
+
+func (a *App) toPane(p int, msg tea.Msg) tea.Cmd {
+	_, cmd := a.pane(p).Update(msg)
+	return cmd
+}
+
+// globalKey handles the keys every pane shares.
+func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
+	k := a.keys
 	switch {
-	case key.Matches(msg, a.keys.Quit):
-		if a.Dirty() {
-			a.confirm = confirmQuit
-			a.say(msgWarn, "unsaved changes: s save and quit · y quit without saving · esc stay")
-			return nil
-		}
-		return tea.Quit
-	case key.Matches(msg, a.keys.Save):
-		return a.save("")
-	case key.Matches(msg, a.keys.SaveAs):
-		a.startInput(inputSaveAs, "save as: ", a.path)
-		return nil
-	case key.Matches(msg, a.keys.Undo):
+	case key.Matches(msg, k.Quit):
+		a.askQuit()
+	case key.Matches(msg, k.Save):
+		return a.startSave(a.path, false), true
+	case key.Matches(msg, k.SaveAs):
+		a.open(a.saveAsPrompt(false))
+	case key.Matches(msg, k.Undo):
 		if n := len(a.undo); n > 0 {
-			a.redo = append(a.redo, a.method)
+			a.redo = append(a.redo, a.sh.method)
 			m := a.undo[n-1]
 			a.undo = a.undo[:n-1]
 			a.restore(m)
@@ -402,10 +369,9 @@ func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {
 		} else {
 			a.say(msgInfo, "nothing to undo")
 		}
-		return nil
-	case key.Matches(msg, a.keys.Redo):
+	case key.Matches(msg, k.Redo):
 		if n := len(a.redo); n > 0 {
-			a.undo = append(a.undo, a.method)
+			a.undo = append(a.undo, a.sh.method)
 			m := a.redo[n-1]
 			a.redo = a.redo[:n-1]
 			a.restore(m)
@@ -413,481 +379,135 @@ func (a *App) onKey(msg tea.KeyMsg) tea.Cmd {
 		} else {
 			a.say(msgInfo, "nothing to redo")
 		}
-		return nil
-	case key.Matches(msg, a.keys.Optimize):
-		return a.startOptimize()
-	case key.Matches(msg, a.keys.Focus):
-		a.setFocus((a.focus + 1) % paneCount)
-		return nil
-	case key.Matches(msg, a.keys.FocusBack):
-		a.setFocus((a.focus + paneCount - 1) % paneCount)
-		return nil
-	case key.Matches(msg, a.keys.Help):
-		a.full = !a.full
-		return nil
-	case key.Matches(msg, a.keys.Cancel):
-		a.full = false
-		a.sweepView = nil
-		a.message = ""
-		return nil
-	case key.Matches(msg, a.keys.Export):
-		a.export()
-		return nil
-	case key.Matches(msg, a.keys.Fit):
-		a.startInput(inputRuns, "scouting runs file: ", "")
-		return nil
-	case key.Matches(msg, a.keys.Compare):
-		a.startInput(inputCompare, "columns to compare (lengths m, diameters mm, films µm): ", fmt.Sprintf("%g,%g", a.method.Column.LengthM/2, a.method.Column.LengthM))
-		return nil
+	case key.Matches(msg, k.Optimize):
+		return a.startOptimize(), true
+	case key.Matches(msg, k.Focus):
+		a.setFocus((a.sh.focus + 1) % paneCount)
+	case key.Matches(msg, k.FocusBack):
+		a.setFocus((a.sh.focus + paneCount - 1) % paneCount)
+	case key.Matches(msg, k.Help):
+		a.open(newHelpDialog(&a.sh, &a.help, a.pane(a.sh.focus), paneNames[a.sh.focus], a.keys))
+	case key.Matches(msg, k.Export):
+		return a.askExport(), true
+	case key.Matches(msg, k.Fit):
+		a.open(newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} }))
+	case key.Matches(msg, k.Compare):
+		m := a.sh.method
+		a.open(newPrompt(&a.sh, "columns to compare (lengths m, diameters mm, films µm): ",
+			fmt.Sprintf("%g,%g", m.Column.LengthM/2, m.Column.LengthM), func(text string) tea.Msg { return startCompareMsg{text: text} }))
+	default:
+		return nil, false
 	}
-	switch a.focus {
-	case paneProgram:
-		a.programKey(msg)
-	case paneChart:
-		a.chartKey(msg)
-	case panePeaks:
-		a.peaksKey(msg)
-	case paneSettings:
-		a.settingsKey(msg)
-	}
-	return nil
+	return nil, true
 }
 
 func (a *App) setFocus(p int) {
-	a.focus = p
+	a.sh.focus = p
 	if p == panePeaks || p == paneSettings {
 		a.lower = p
 	}
 }
 
-func (a *App) startInput(mode inputMode, prompt, value string) {
-	a.inMode = mode
-	a.input.Prompt = prompt
-	a.input.SetValue(value)
-	a.input.CursorEnd()
-	a.input.Focus()
-}
-
-func (a *App) onInput(msg tea.KeyMsg) tea.Cmd {
-	switch msg.String() {
-	case "esc":
-		a.inMode = inputNone
-		a.input.Blur()
-		a.say(msgInfo, "not changed")
-		return nil
-	case "enter":
-		mode := a.inMode
-		text := a.input.Value()
-		a.inMode = inputNone
-		a.input.Blur()
-		switch mode {
-		case inputValue:
-			a.typeValue(text)
-		case inputCompound:
-			a.typeCompound(text)
-		case inputRuns:
-			a.runFit(strings.TrimSpace(text))
-		case inputCompare:
-			return a.startCompare(text)
-		case inputSaveAs:
-			if strings.TrimSpace(text) == "" {
-				a.say(msgError, "no file name given; not saved")
-				return nil
-			}
-			return a.save(strings.TrimSpace(text))
-		}
-		return nil
+// interrupt is ctrl+c: it stops any background work and asks like q when
+// there are unsaved changes, whatever dialog is open.
+func (a *App) interrupt() tea.Cmd {
+	if a.job != nil {
+		a.job.cancel()
+		a.job = nil
 	}
-	var cmd tea.Cmd
-	a.input, cmd = a.input.Update(msg)
-	return cmd
+	a.overlay, a.pending = nil, nil
+	a.chart.Update(previewMsg{})
+	if !a.Dirty() {
+		return tea.Quit
+	}
+	a.askQuit()
+	return nil
 }
 
-func (a *App) onConfirm(msg tea.KeyMsg) tea.Cmd {
-	mode := a.confirm
-	switch mode {
-	case confirmQuit:
-		switch msg.String() {
-		case "y":
-			a.confirm = confirmNone
-			a.guard.update(a.path, a.method, false)
-			return tea.Quit
-		case "s":
-			a.confirm = confirmNone
-			if a.path == "" {
-				a.startInput(inputSaveAs, "save as (then quit with q): ", "")
-				return nil
-			}
-			if a.saveTo(a.path) {
-				return tea.Quit
-			}
-			return nil
-		case "esc", "n":
-			a.confirm = confirmNone
-			a.say(msgInfo, "still here")
-		}
-	case confirmRestore:
-		switch msg.String() {
-		case "r":
-			a.confirm = confirmNone
-			a.undo = append(a.undo, a.method)
-			a.restore(a.recover)
-			a.say(msgGood, "restored the unsaved changes (u undoes); save with ctrl+s")
-			os.Remove(RecoveryPath(a.path))
-		case "d":
-			a.confirm = confirmNone
-			os.Remove(RecoveryPath(a.path))
-			a.say(msgInfo, "discarded the recovery file")
-		case "esc":
-			a.confirm = confirmNone
-			a.say(msgInfo, "kept the recovery file %s", RecoveryPath(a.path))
-		}
+func (a *App) askQuit() {
+	if !a.Dirty() {
+		a.sh.send(quitMsg{})
+		return
+	}
+	a.open(newConfirm(&a.sh, "unsaved changes", "save them before quitting?", []choice{
+		{keys: []string{"s"}, label: "save and quit", msgs: []tea.Msg{saveMsg{quit: true}}},
+		{keys: []string{"y"}, label: "quit without saving", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
+		{keys: []string{"esc", "n"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
+	}))
+	a.say(msgWarn, "unsaved changes: s save and quit · y quit without saving · esc stay")
+}
+
+// forgetMsg drops the guard's unsaved method (quitting without saving).
+type forgetMsg struct{}
+
+// intent handles one message a component sent.
+func (a *App) intent(msg tea.Msg) tea.Cmd {
+	switch msg := msg.(type) {
+	case editMsg:
+		a.apply(msg.m, msg.what)
+	case openMsg:
+		a.open(msg.d)
+	case closeMsg:
+		a.closeOverlay()
+	case sayMsg:
+		a.say(msg.kind, "%s", msg.text)
+	case quitMsg:
+		return tea.Quit
+	case askQuitMsg:
+		a.askQuit()
+	case forgetMsg:
+		a.guard.update(a.path, a.sh.method, false)
+	case previewMsg:
+		a.chart.Update(msg)
+	case restoreMsg:
+		a.undo = append(a.undo, a.sh.method)
+		a.restore(msg.m)
+		os.Remove(RecoveryPath(a.path))
+		a.say(msgGood, "restored the unsaved changes (u undoes); save with ctrl+s")
+	case discardRecoveryMsg:
+		os.Remove(RecoveryPath(a.path))
+		a.say(msgInfo, "discarded the recovery file")
+	case saveMsg:
+		return a.startSave(msg.path, msg.quit)
+	case saveAsMsg:
+		return a.saveAs(msg.path, msg.quit)
+	case exportMsg:
+		return a.startExport(msg.base)
+	case startFitMsg:
+		return a.startFit(msg.path)
+	case startCompareMsg:
+		return a.startCompare(msg.text)
+	case startSweepMsg:
+		return a.startSweep(msg.spec)
+	case cancelMsg:
+		a.cancelJob()
 	}
 	return nil
 }
 
-// save writes the method to path (or the current path).
-func (a *App) save(path string) tea.Cmd {
-	if path == "" {
-		path = a.path
-	}
-	if path == "" {
-		a.startInput(inputSaveAs, "save as: ", "")
-		return nil
-	}
-	a.saveTo(path)
-	return nil
-}
-
-func (a *App) saveTo(path string) bool {
-	if err := methodfile.WriteFile(path, a.method); err != nil {
-		a.say(msgError, "not saved: %v", err)
-		return false
-	}
-	a.path = path
-	a.name = path
-	a.saved = a.method
-	a.guard.update(a.path, a.method, false)
-	a.say(msgGood, "saved to %s", path)
-	return true
-}
-
-// --- program pane ---
-
-func (a *App) programKey(msg tea.KeyMsg) {
-	fs := programFields(a.method)
-	k := a.pkeys
-	if a.fieldKey(fs, &a.progSel, msg, k) {
-		return
-	}
-	switch {
-	case key.Matches(msg, k.AddRamp):
-		a.addRamp()
-	case key.Matches(msg, k.DelRamp):
-		a.removeRamp()
-	case key.Matches(msg, k.Sweep):
-		a.openSweep(fs[a.progSel])
-	}
-}
-
-// fieldKey handles the keys a list of fields shares (choose, step, type)
-// and reports whether msg was one of them.
-func (a *App) fieldKey(fs []field, sel *int, msg tea.KeyMsg, k FieldKeys) bool {
-	switch {
-	case key.Matches(msg, k.Prev):
-		*sel = (*sel + len(fs) - 1) % len(fs)
-	case key.Matches(msg, k.Next):
-		*sel = (*sel + 1) % len(fs)
-	case isStep(msg, k):
-		a.step(fs[*sel], msg, k)
-	case key.Matches(msg, k.Type):
-		f := fs[*sel]
-		a.startInput(inputValue, fmt.Sprintf("%s (%s): ", f.key, f.unit), f.text(a.method))
-	default:
-		return false
-	}
-	return true
-}
-
-func isStep(msg tea.KeyMsg, k FieldKeys) bool {
-	return key.Matches(msg, k.Up) || key.Matches(msg, k.Down) || key.Matches(msg, k.BigUp) || key.Matches(msg, k.BigDown)
-}
-
-// step moves field f by one step (or a big one), down for the Down keys.
-func (a *App) step(f field, msg tea.KeyMsg, k FieldKeys) {
-	n := 1.0
-	if key.Matches(msg, k.Down) || key.Matches(msg, k.BigDown) {
-		n = -1
-	}
-	big := key.Matches(msg, k.BigUp) || key.Matches(msg, k.BigDown)
-	m := f.stepped(a.method, n, big)
-	if f.key == "carrier.mode" {
-		fillPressureOrFlow(m, a.sys)
-	}
-	a.apply(m, fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
-}
-
-func (a *App) addRamp() {
-	m := a.method.Clone()
-	if len(m.Oven.Ramps) >= 5 {
-		a.say(msgError, "five ramps at most")
-		return
-	}
-	prev := m.Oven.InitialC
-	rate := 10.0
-	if n := len(m.Oven.Ramps); n > 0 {
-		prev = m.Oven.Ramps[n-1].FinalC
-		rate = m.Oven.Ramps[n-1].RateCMin
-	}
-	final := math.Min(m.Column.MaxTempC, prev+20)
-	if final <= prev {
-		a.say(msgError, "the program is already at the column maximum %s °C; no room for another ramp", trimNum(m.Column.MaxTempC))
-		return
-	}
-	m.Oven.Ramps = append(m.Oven.Ramps, methodfile.Ramp{RateCMin: rate, FinalC: final})
-	if a.apply(m, fmt.Sprintf("added ramp %d", len(m.Oven.Ramps))) {
-		a.progSel = len(programFields(m)) - 2
-	}
-}
-
-func (a *App) removeRamp() {
-	fs := programFields(a.method)
-	r := fs[a.progSel].ramp
-	if r == 0 {
-		r = len(a.method.Oven.Ramps)
-	}
-	if r == 0 {
-		a.say(msgError, "no ramp to remove")
-		return
-	}
-	m := a.method.Clone()
-	m.Oven.Ramps = append(m.Oven.Ramps[:r-1], m.Oven.Ramps[r:]...)
-	if len(m.Oven.Ramps) == 0 && m.Oven.InitialHoldMin == 0 {
-		m.Oven.InitialHoldMin = 10
-	}
-	if a.apply(m, fmt.Sprintf("removed ramp %d", r)) {
-		if n := len(programFields(m)); a.progSel >= n {
-			a.progSel = n - 1
+// open puts d in the overlay slot. An open prompt or question keeps the
+// slot (d waits its turn); help and a finished progress display give it up.
+func (a *App) open(d component) {
+	switch a.overlay.(type) {
+	case *promptDialog, *confirmDialog:
+		if _, isProgress := d.(*progressDialog); !isProgress {
+			a.pending = append(a.pending, d)
+			return
 		}
 	}
+	a.overlay = d
+	a.sizeOverlay()
 }
 
-func (a *App) typeValue(text string) {
-	var f field
-	if a.focus == paneSettings {
-		f = settingsFields(a.method)[a.setSel]
-	} else {
-		f = programFields(a.method)[a.progSel]
+func (a *App) closeOverlay() {
+	a.overlay = nil
+	if len(a.pending) > 0 {
+		a.overlay, a.pending = a.pending[0], a.pending[1:]
+		a.sizeOverlay()
 	}
-	m, err := f.typed(a.method, text)
-	if err != nil {
-		a.say(msgError, "%v (kept the last valid value)", err)
-		return
+	if _, ok := a.overlay.(*resultDialog); !ok {
+		a.chart.Update(previewMsg{})
 	}
-	a.apply(m, fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
-}
-
-// --- chart pane ---
-
-func (a *App) fullWindow() (float64, float64) {
-	end := a.res.RunTime
-	for _, pk := range a.res.Peaks {
-		if pk.Eluted && pk.RetentionTime+4*pk.Sigma > end {
-			end = pk.RetentionTime + 4*pk.Sigma
-		}
-	}
-	return 0, end
-}
-
-func (a *App) window() (float64, float64) {
-	t0, t1 := a.fullWindow()
-	if a.zoom <= 1 {
-		return t0, t1
-	}
-	w := (t1 - t0) / a.zoom
-	c := a.center
-	lo := math.Max(t0, math.Min(t1-w, c-w/2))
-	return lo, lo + w
-}
-
-func (a *App) chartKey(msg tea.KeyMsg) {
-	k := a.ckeys
-	t0, t1 := a.window()
-	if a.zoom <= 1 {
-		a.center = (t0 + t1) / 2
-	}
-	switch {
-	case key.Matches(msg, k.ZoomIn):
-		a.zoom = math.Min(a.zoom*1.5, 200)
-		a.center = (t0 + t1) / 2
-	case key.Matches(msg, k.ZoomOut):
-		a.zoom = math.Max(1, a.zoom/1.5)
-		a.center = (t0 + t1) / 2
-	case key.Matches(msg, k.Left):
-		a.center = (t0+t1)/2 - (t1-t0)*0.2
-	case key.Matches(msg, k.Right):
-		a.center = (t0+t1)/2 + (t1-t0)*0.2
-	case key.Matches(msg, k.Reset):
-		a.zoom = 1
-	}
-}
-
-// --- peaks pane ---
-
-func (a *App) peaksKey(msg tea.KeyMsg) {
-	k := a.tkeys
-	n := len(a.res.Peaks)
-	switch {
-	case key.Matches(msg, k.Up):
-		a.peakSel = (a.peakSel + n - 1) % n
-	case key.Matches(msg, k.Down):
-		a.peakSel = (a.peakSel + 1) % n
-	case key.Matches(msg, k.Column), key.Matches(msg, k.ColumnBack):
-		a.peakCol = 1 - a.peakCol
-	case key.Matches(msg, k.Toggle):
-		ci := a.res.Peaks[a.peakSel].Compound
-		m := a.method.Clone()
-		m.Compounds[ci].Target = !m.Compounds[ci].Target
-		state := "no longer a target"
-		if m.Compounds[ci].Target {
-			state = "a target"
-		}
-		a.apply(m, fmt.Sprintf("%s is %s", m.Compounds[ci].Name, state))
-	case key.Matches(msg, k.Type):
-		ci := a.res.Peaks[a.peakSel].Compound
-		c := a.method.Compounds[ci]
-		if a.peakCol == 0 {
-			a.startInput(inputCompound, fmt.Sprintf("%s ΔH (kJ/mol): ", c.Name), trimNum(c.DHkJ))
-		} else {
-			a.startInput(inputCompound, fmt.Sprintf("%s ΔS (J/(mol·K)): ", c.Name), trimNum(c.DS))
-		}
-	}
-}
-
-func (a *App) typeCompound(text string) {
-	ci := a.res.Peaks[a.peakSel].Compound
-	var v float64
-	if _, err := fmt.Sscanf(strings.TrimSpace(text), "%g", &v); err != nil {
-		a.say(msgError, "%q is not a number (kept the last valid value)", text)
-		return
-	}
-	m := a.method.Clone()
-	c := &m.Compounds[ci]
-	what := "ΔH"
-	if a.peakCol == 0 {
-		c.DHkJ = v
-	} else {
-		c.DS = v
-		what = "ΔS"
-	}
-	c.FromIndex = false
-	a.apply(m, fmt.Sprintf("%s %s = %g", c.Name, what, v))
-}
-
-// --- settings pane ---
-
-func (a *App) settingsKey(msg tea.KeyMsg) {
-	a.fieldKey(settingsFields(a.method), &a.setSel, msg, a.skeys)
-	if n := len(settingsFields(a.method)); a.setSel >= n {
-		a.setSel = n - 1
-	}
-}
-
-// fillPressureOrFlow gives a method switched between constant flow and
-// constant pressure the value the other mode needs, from the current
-// conditions at the initial temperature.
-func fillPressureOrFlow(m *methodfile.Method, sys *model.System) {
-	t0 := m.Oven.InitialC + model.ZeroCelsius
-	if m.Carrier.Mode == "constant-pressure" && m.Carrier.InletKPa <= 0 {
-		m.Carrier.InletKPa = math.Round(sys.Cond.InletGauge(t0)/100) / 10
-	}
-	if m.Carrier.Mode == "constant-flow" && m.Carrier.FlowMLMin <= 0 {
-		m.Carrier.FlowMLMin = 1.0
-	}
-}
-
-// --- optimizer ---
-
-func (a *App) startOptimize() tea.Cmd {
-	prob := optimizer.FromMethod(a.method, a.sys)
-	ctx, cancel := context.WithCancel(context.Background())
-	id := 1
-	if a.opt != nil {
-		id = a.opt.id + 1
-	}
-	run := &optRun{id: id, cancel: cancel, ch: make(chan tea.Msg, 4), running: true}
-	a.opt = run
-	settings := a.optSettings
-	settings.Progress = func(p optimizer.Progress) {
-		select {
-		case run.ch <- optProgressMsg{id: id, p: p}:
-		default: // the UI is behind: drop this report, a newer one follows
-		}
-	}
-	go func() {
-		res, err := optimizer.Optimize(ctx, prob, settings)
-		run.ch <- optDoneMsg{id: id, res: res, err: err}
-	}()
-	a.say(msgInfo, "optimizing… esc stops and keeps the best so far")
-	return waitFor(run.ch)
-}
-
-func waitFor(ch chan tea.Msg) tea.Cmd {
-	return func() tea.Msg { return <-ch }
-}
-
-func (a *App) onProgress(msg optProgressMsg) tea.Cmd {
-	if a.opt == nil || msg.id != a.opt.id {
-		return nil
-	}
-	a.opt.last = msg.p
-	if err := a.sys.Simulate(msg.p.Program, &a.opt.preview); err == nil {
-		a.opt.hasPrev = true
-	}
-	return waitFor(a.opt.ch)
-}
-
-func (a *App) onDone(msg optDoneMsg) {
-	if a.opt == nil || msg.id != a.opt.id {
-		return
-	}
-	o := a.opt
-	o.running = false
-	o.cancel()
-	if msg.err != nil {
-		a.say(msgError, "optimizer: %v", msg.err)
-		a.opt = nil
-		return
-	}
-	o.result = msg.res
-	if msg.res.Canceled && !msg.res.Offer {
-		// an early stop offers only a better program that meets the target
-		a.say(msgInfo, "%s; kept the current program", msg.res.Explanation)
-		a.opt = nil
-		return
-	}
-	o.after, o.afterR = optimizer.Apply(a.method, msg.res), msg.res.Sim
-	if msg.res.Feasible() {
-		a.say(msgGood, "target met: enter or y takes the new program, n or esc keeps the old one")
-	} else {
-		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", msg.res.Explanation)
-	}
-}
-
-func (a *App) onCompare(msg tea.KeyMsg) tea.Cmd {
-	switch msg.String() {
-	case "y", "enter":
-		after := a.opt.after
-		a.opt = nil
-		a.apply(after, "took the optimized program (u undoes)")
-	case "n", "esc":
-		a.opt = nil
-		a.say(msgInfo, "kept the old program")
-	case "q", "ctrl+c":
-		a.opt = nil
-		return a.onKey(msg)
-	}
-	return nil
 }
 
 // View implements tea.Model; it only joins strings computed in Update.
@@ -899,9 +519,113 @@ func (a *App) View() string {
 		return fmt.Sprintf("rampwise needs a terminal of at least %d×%d; this one is %d×%d.\nEnlarge the window (q quits).", MinWidth, MinHeight, a.width, a.height)
 	}
 	v := &a.view
-	parts := []string{v.title, v.method, v.program}
-	parts = append(parts, v.chart...)
-	parts = append(parts, v.lower...)
-	parts = append(parts, v.summary, v.message, v.help)
+	parts := []string{v.title, v.method, a.program.View()}
+	tall := false
+	if t, ok := a.overlay.(interface{ tall() bool }); ok && t.tall() {
+		tall = true
+	}
+	switch {
+	case tall:
+		parts = append(parts, a.overlay.View())
+	case a.overlay != nil:
+		parts = append(parts, a.chart.View(), a.overlay.View())
+	default:
+		parts = append(parts, a.chart.View(), a.pane(a.lower).View())
+	}
+	parts = append(parts, v.summary, v.message, v.footer)
 	return strings.Join(parts, "\n")
+}
+
+// The fixed rows: title, method line, two program lines, summary, two
+// message lines and the footer.
+const fixedRows = 8
+
+// layout gives every child its size (the resize fan-out).
+func (a *App) layout() {
+	a.help.Width = a.width
+	if a.width < MinWidth || a.height < MinHeight {
+		return
+	}
+	rest := a.height - fixedRows
+	chartH := rest * 11 / 20
+	if chartH < 7 {
+		chartH = 7
+	}
+	lowerH := rest - chartH
+	a.program.SetSize(a.width, 2)
+	a.chart.SetSize(a.width, chartH)
+	a.peaks.SetSize(a.width, lowerH)
+	a.settings.SetSize(a.width, lowerH)
+	for _, d := range a.pending {
+		a.sizeDialog(d)
+	}
+	a.sizeOverlay()
+}
+
+func (a *App) sizeOverlay() {
+	if a.overlay != nil {
+		a.sizeDialog(a.overlay)
+	}
+}
+
+func (a *App) sizeDialog(d component) {
+	if !a.ready || a.width < MinWidth || a.height < MinHeight {
+		return
+	}
+	rest := a.height - fixedRows
+	chartH := rest * 11 / 20
+	if chartH < 7 {
+		chartH = 7
+	}
+	h := rest - chartH
+	if t, ok := d.(interface{ tall() bool }); ok && t.tall() {
+		h = rest
+	}
+	d.SetSize(a.width, h)
+}
+
+// refresh tells every child that the state may have changed, then
+// recomputes the root's own lines.
+func (a *App) refresh() {
+	if !a.ready || a.width < MinWidth || a.height < MinHeight {
+		return
+	}
+	for p := 0; p < paneCount; p++ {
+		a.toPane(p, refreshMsg{})
+	}
+	if a.overlay != nil {
+		a.overlay, _ = a.overlay.Update(refreshMsg{})
+	}
+	w := a.width
+	v := &a.view
+	v.title = a.titleLine(w)
+	v.method = a.methodLine(w)
+	v.summary = a.summaryLine(w)
+	v.message = strings.Join(a.messageLines(w), "\n")
+	v.footer = a.footerLine(w)
+}
+
+// footerLine is the active component's short key help, "? all keys" first
+// so that it is never cut off.
+func (a *App) footerLine(w int) string {
+	var b []key.Binding
+	if a.overlay != nil {
+		b = a.overlay.ShortHelp()
+	} else {
+		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
+		b = append(b, a.keys.ShortHelp()...)
+	}
+	// bubbles/help adds the last item when even its ellipsis does not fit
+	return ansi.Truncate(a.help.ShortHelpView(b), w, "…")
+}
+
+// cancelMsg asks the root to stop the background work.
+type cancelMsg struct{}
+
+// job is background work (optimize, fit, sweep, compare, export, save).
+type job struct {
+	id     int
+	what   string
+	cancel context.CancelFunc
+	ch     chan tea.Msg // optimizer progress, or nil
 }

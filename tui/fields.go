@@ -14,7 +14,8 @@ type field struct {
 	key     string // the method file's key, for messages
 	label   string
 	unit    string
-	digits  int
+	digits  int // decimals always shown
+	save    int // decimals kept (what the file and the oven take); 0 = digits
 	step    float64
 	big     float64
 	choices []string                            // a choice field cycles through these
@@ -36,7 +37,29 @@ func (f field) text(m *methodfile.Method) string {
 	if f.integer {
 		return strconv.Itoa(int(v))
 	}
-	return strconv.FormatFloat(v, 'f', f.digits, 64)
+	return fmtNum(v, f.digits, f.saved())
+}
+
+// saved is how many decimals the field keeps.
+func (f field) saved() int {
+	if f.save > f.digits {
+		return f.save
+	}
+	return f.digits
+}
+
+// fmtNum shows v with at least lo and at most hi decimals: what is kept is
+// what is shown, without trailing zeros beyond lo.
+func fmtNum(v float64, lo, hi int) string {
+	s := strconv.FormatFloat(v, 'f', hi, 64)
+	if hi > lo {
+		cut := len(s) - (hi - lo)
+		for len(s) > cut && s[len(s)-1] == '0' {
+			s = s[:len(s)-1]
+		}
+		s = strings.TrimSuffix(s, ".")
+	}
+	return s
 }
 
 func (f field) value(m *methodfile.Method) float64 {
@@ -81,7 +104,7 @@ func (f field) stepped(m *methodfile.Method, n float64, big bool) *methodfile.Me
 	if f.integer {
 		v = float64(int(v))
 	}
-	f.setValue(c, round(v, f.digits+2))
+	f.setValue(c, round(v, f.saved()))
 	return c
 }
 
@@ -112,7 +135,8 @@ func (f field) typed(m *methodfile.Method, text string) (*methodfile.Method, err
 	if f.integer && v != float64(int(v)) {
 		return nil, fmt.Errorf("%s: %q is not a whole number", f.key, text)
 	}
-	f.setValue(c, v)
+	// keep (and so show) only the decimals the file and the oven take
+	f.setValue(c, round(v, f.saved()))
 	return c, nil
 }
 
@@ -120,20 +144,20 @@ func (f field) typed(m *methodfile.Method, text string) (*methodfile.Method, err
 // then rate, final temperature and hold of each ramp.
 func programFields(m *methodfile.Method) []field {
 	fs := []field{
-		{key: "oven.initial_c", label: "start", unit: "°C", digits: 1, step: 1, big: 10, ramp: 0, kind: "initial_c",
+		{key: "oven.initial_c", label: "start", unit: "°C", digits: 1, save: 2, step: 1, big: 10, ramp: 0, kind: "initial_c",
 			num: func(m *methodfile.Method) *float64 { return &m.Oven.InitialC }},
-		{key: "oven.initial_hold_min", label: "hold", unit: "min", digits: 2, step: 0.1, big: 1, ramp: 0, kind: "initial_hold_min",
+		{key: "oven.initial_hold_min", label: "hold", unit: "min", digits: 2, save: 3, step: 0.1, big: 1, ramp: 0, kind: "initial_hold_min",
 			num: func(m *methodfile.Method) *float64 { return &m.Oven.InitialHoldMin }},
 	}
 	for i := range m.Oven.Ramps {
 		i := i
 		base := fmt.Sprintf("oven.ramp[%d]", i+1)
 		fs = append(fs,
-			field{key: base + ".rate_c_min", label: "rate", unit: "°C/min", digits: 1, step: 0.5, big: 5, ramp: i + 1, kind: "rate",
+			field{key: base + ".rate_c_min", label: "rate", unit: "°C/min", digits: 1, save: 2, step: 0.5, big: 5, ramp: i + 1, kind: "rate",
 				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].RateCMin }},
-			field{key: base + ".final_c", label: "to", unit: "°C", digits: 1, step: 1, big: 10, ramp: i + 1, kind: "final",
+			field{key: base + ".final_c", label: "to", unit: "°C", digits: 1, save: 2, step: 1, big: 10, ramp: i + 1, kind: "final",
 				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].FinalC }},
-			field{key: base + ".hold_min", label: "hold", unit: "min", digits: 2, step: 0.1, big: 1, ramp: i + 1, kind: "hold",
+			field{key: base + ".hold_min", label: "hold", unit: "min", digits: 2, save: 3, step: 0.1, big: 1, ramp: i + 1, kind: "hold",
 				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].HoldMin }},
 		)
 	}
@@ -171,7 +195,18 @@ func settingsFields(m *methodfile.Method) []field {
 		n("limits.max_hold_min", "longest hold", "min", 1, 0.5, 5, func(m *methodfile.Method) *float64 { return &m.Limits.MaxHoldMin }),
 		n("limits.max_inlet_kpa", "highest inlet pressure", "kPa", 0, 10, 100, func(m *methodfile.Method) *float64 { return &m.Limits.MaxInletKPa }),
 	)
+	for i := range fs {
+		fs[i].save = settingsSaved[fs[i].key]
+	}
 	return fs
+}
+
+// settingsSaved is how many decimals each setting keeps: what a typed or
+// derived value is rounded to, so what is shown is what is saved.
+var settingsSaved = map[string]int{
+	"column.length_m": 2, "column.diameter_mm": 4, "column.film_um": 3, "column.max_temp_c": 1,
+	"carrier.inlet_kpa": 1, "carrier.flow_ml_min": 2, "goal.min_resolution": 2, "goal.tail_min": 3,
+	"limits.oven_min_c": 1, "limits.max_rate_c_min": 2, "limits.max_hold_min": 3, "limits.max_inlet_kpa": 1,
 }
 
 // validate checks an edited method with the method file's own rules (so the

@@ -2,29 +2,50 @@ package tui
 
 import "github.com/charmbracelet/bubbles/key"
 
-// GlobalKeys work in every pane.
+func bind(keys []string, k, desc string) key.Binding {
+	return key.NewBinding(key.WithKeys(keys...), key.WithHelp(k, desc))
+}
+
+// GlobalKeys work whenever no dialog is open (ctrl+c also with one open).
 type GlobalKeys struct {
-	Quit, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Help, Cancel, Export, Fit, Compare key.Binding
+	Help, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
 func DefaultGlobalKeys() GlobalKeys {
 	return GlobalKeys{
-		Quit:      key.NewBinding(key.WithKeys("q", "ctrl+c"), key.WithHelp("q", "quit")),
-		Save:      key.NewBinding(key.WithKeys("ctrl+s"), key.WithHelp("ctrl+s", "save")),
-		SaveAs:    key.NewBinding(key.WithKeys("W"), key.WithHelp("W", "save as")),
-		Undo:      key.NewBinding(key.WithKeys("u", "ctrl+z"), key.WithHelp("u", "undo")),
-		Redo:      key.NewBinding(key.WithKeys("U", "ctrl+y"), key.WithHelp("U", "redo")),
-		Optimize:  key.NewBinding(key.WithKeys("o"), key.WithHelp("o", "optimize")),
-		Focus:     key.NewBinding(key.WithKeys("tab"), key.WithHelp("tab", "next pane")),
-		FocusBack: key.NewBinding(key.WithKeys("shift+tab"), key.WithHelp("shift+tab", "previous pane")),
-		Help:      key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
-		Cancel:    key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
-		Export:    key.NewBinding(key.WithKeys("e"), key.WithHelp("e", "export figure+sheet")),
-		Fit:       key.NewBinding(key.WithKeys("F"), key.WithHelp("F", "fit from scouting runs")),
-		Compare:   key.NewBinding(key.WithKeys("C"), key.WithHelp("C", "compare columns")),
+		Help:      bind([]string{"?"}, "?", "all keys"),
+		Quit:      bind([]string{"q"}, "q", "quit"),
+		Interrupt: bind([]string{"ctrl+c"}, "ctrl+c", "quit (asks when unsaved)"),
+		Save:      bind([]string{"ctrl+s"}, "ctrl+s", "save"),
+		SaveAs:    bind([]string{"W"}, "W", "save as"),
+		Undo:      bind([]string{"u", "ctrl+z"}, "u", "undo"),
+		Redo:      bind([]string{"U", "ctrl+y"}, "U", "redo"),
+		Optimize:  bind([]string{"o"}, "o", "optimize"),
+		Focus:     bind([]string{"tab"}, "tab", "next pane"),
+		FocusBack: bind([]string{"shift+tab"}, "shift+tab", "previous pane"),
+		Export:    bind([]string{"e"}, "e", "export figure+sheet"),
+		Fit:       bind([]string{"F"}, "F", "fit from scouting runs"),
+		Compare:   bind([]string{"C"}, "C", "compare columns"),
 	}
 }
+
+// ShortHelp is the part of the footer every pane shares.
+func (k GlobalKeys) ShortHelp() []key.Binding {
+	return []key.Binding{k.Optimize, k.Save, k.Undo, k.Focus, k.Quit}
+}
+
+// FullHelp groups the global keys for the key list.
+func (k GlobalKeys) FullHelp() [][]key.Binding {
+	return [][]key.Binding{
+		{k.Help, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
+		{k.Optimize, k.Fit, k.Compare, k.Export},
+		{k.Save, k.SaveAs, k.Undo, k.Redo},
+	}
+}
+
+// globalTitles name the groups of GlobalKeys.FullHelp.
+var globalTitles = []string{"everywhere", "work", "file and history"}
 
 // FieldKeys edit a list of values (the program and the settings).
 type FieldKeys struct {
@@ -34,30 +55,52 @@ type FieldKeys struct {
 // DefaultProgramKeys are the program pane's bindings.
 func DefaultProgramKeys() FieldKeys {
 	return FieldKeys{
-		Prev:    key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/→", "value")),
-		Next:    key.NewBinding(key.WithKeys("right", "l")),
-		Up:      key.NewBinding(key.WithKeys("+", "=", "up", "k"), key.WithHelp("+/-", "step")),
-		Down:    key.NewBinding(key.WithKeys("-", "_", "down", "j")),
-		BigUp:   key.NewBinding(key.WithKeys("]", "pgup"), key.WithHelp("]/[", "big step")),
-		BigDown: key.NewBinding(key.WithKeys("[", "pgdown")),
-		Type:    key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "type value")),
-		AddRamp: key.NewBinding(key.WithKeys("a"), key.WithHelp("a", "add ramp")),
-		DelRamp: key.NewBinding(key.WithKeys("x", "delete"), key.WithHelp("x", "remove ramp")),
-		Sweep:   key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "sweep this value")),
+		Prev:    bind([]string{"left", "h"}, "←/→", "choose value"),
+		Next:    bind([]string{"right", "l"}, "→", "next value"),
+		Up:      bind([]string{"+", "=", "up", "k"}, "+/-", "step"),
+		Down:    bind([]string{"-", "_", "down", "j"}, "-", "step down"),
+		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
+		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
+		Type:    bind([]string{"enter"}, "enter", "type value"),
+		AddRamp: bind([]string{"a"}, "a", "add ramp"),
+		DelRamp: bind([]string{"x", "delete"}, "x", "remove ramp"),
+		Sweep:   bind([]string{"s"}, "s", "window diagram"),
 	}
 }
 
 // DefaultSettingsKeys are the settings pane's bindings (up/down choose).
 func DefaultSettingsKeys() FieldKeys {
 	return FieldKeys{
-		Prev:    key.NewBinding(key.WithKeys("up", "k"), key.WithHelp("↑/↓", "setting")),
-		Next:    key.NewBinding(key.WithKeys("down", "j")),
-		Up:      key.NewBinding(key.WithKeys("+", "=", "right", "l"), key.WithHelp("+/-", "step or choice")),
-		Down:    key.NewBinding(key.WithKeys("-", "_", "left", "h")),
-		BigUp:   key.NewBinding(key.WithKeys("]", "pgup"), key.WithHelp("]/[", "big step")),
-		BigDown: key.NewBinding(key.WithKeys("[", "pgdown")),
-		Type:    key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "type value")),
+		Prev:    bind([]string{"up", "k"}, "↑/↓", "choose setting"),
+		Next:    bind([]string{"down", "j"}, "↓", "next setting"),
+		Up:      bind([]string{"+", "=", "right", "l"}, "+/-", "step or choice"),
+		Down:    bind([]string{"-", "_", "left", "h"}, "-", "step down"),
+		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
+		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
+		Type:    bind([]string{"enter"}, "enter", "type value"),
+		Sweep:   bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
 	}
+}
+
+// ShortHelp is the footer of a field list.
+func (k FieldKeys) ShortHelp() []key.Binding {
+	b := []key.Binding{k.Prev, k.Up, k.Type}
+	if k.AddRamp.Enabled() && len(k.AddRamp.Keys()) > 0 {
+		b = append(b, k.AddRamp)
+	}
+	return b
+}
+
+// FullHelp is every key of a field list.
+func (k FieldKeys) FullHelp() [][]key.Binding {
+	// the second key of each pair (→, -, [) is named with the first
+	b := []key.Binding{k.Prev, k.Up, k.BigUp, k.Type}
+	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep} {
+		if len(x.Keys()) > 0 {
+			b = append(b, x)
+		}
+	}
+	return [][]key.Binding{b}
 }
 
 // ChartKeys zoom and pan the chromatogram.
@@ -68,12 +111,17 @@ type ChartKeys struct {
 // DefaultChartKeys are the chart pane's bindings.
 func DefaultChartKeys() ChartKeys {
 	return ChartKeys{
-		ZoomIn:  key.NewBinding(key.WithKeys("+", "="), key.WithHelp("+/-", "zoom time")),
-		ZoomOut: key.NewBinding(key.WithKeys("-", "_")),
-		Left:    key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/→", "pan")),
-		Right:   key.NewBinding(key.WithKeys("right", "l")),
-		Reset:   key.NewBinding(key.WithKeys("0"), key.WithHelp("0", "whole run")),
+		ZoomIn:  bind([]string{"+", "="}, "+/-", "zoom time"),
+		ZoomOut: bind([]string{"-", "_"}, "-", "zoom out"),
+		Left:    bind([]string{"left", "h"}, "←/→", "pan"),
+		Right:   bind([]string{"right", "l"}, "→", "pan right"),
+		Reset:   bind([]string{"0"}, "0", "whole run"),
 	}
+}
+
+func (k ChartKeys) ShortHelp() []key.Binding { return []key.Binding{k.ZoomIn, k.Left, k.Reset} }
+func (k ChartKeys) FullHelp() [][]key.Binding {
+	return [][]key.Binding{{k.ZoomIn, k.Left, k.Reset}}
 }
 
 // PeakKeys move in the peak table and edit compounds.
@@ -84,16 +132,49 @@ type PeakKeys struct {
 // DefaultPeakKeys are the peak table's bindings.
 func DefaultPeakKeys() PeakKeys {
 	return PeakKeys{
-		Up:         key.NewBinding(key.WithKeys("up", "k"), key.WithHelp("↑/↓", "compound")),
-		Down:       key.NewBinding(key.WithKeys("down", "j")),
-		Column:     key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("←/→", "ΔH/ΔS")),
-		ColumnBack: key.NewBinding(key.WithKeys("left", "h")),
-		Toggle:     key.NewBinding(key.WithKeys(" ", "t"), key.WithHelp("t", "target on/off")),
-		Type:       key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "edit ΔH/ΔS")),
+		Up:         bind([]string{"up", "k"}, "↑/↓", "compound"),
+		Down:       bind([]string{"down", "j"}, "↓", "next compound"),
+		Column:     bind([]string{"right", "l"}, "←/→", "ΔH/ΔS/ΔCp"),
+		ColumnBack: bind([]string{"left", "h"}, "←", "previous column"),
+		Toggle:     bind([]string{" ", "t"}, "t", "target on/off"),
+		Type:       bind([]string{"enter"}, "enter", "edit value"),
 	}
 }
 
-// DecisionKeys answer a question.
-type DecisionKeys struct {
-	Yes, No, Other key.Binding
+func (k PeakKeys) ShortHelp() []key.Binding { return []key.Binding{k.Up, k.Column, k.Toggle, k.Type} }
+func (k PeakKeys) FullHelp() [][]key.Binding {
+	return [][]key.Binding{{k.Up, k.Column, k.Toggle, k.Type}}
+}
+
+// ListKeys scroll a dialog's list and answer it.
+type ListKeys struct {
+	Up, Down, PageUp, PageDown, Accept, Reject, Toggle key.Binding
+}
+
+func (k ListKeys) ShortHelp() []key.Binding {
+	var b []key.Binding
+	for _, x := range []key.Binding{k.Accept, k.Reject, k.Toggle, k.Up, k.PageDown} {
+		if len(x.Keys()) > 0 {
+			b = append(b, x)
+		}
+	}
+	return b
+}
+
+func (k ListKeys) FullHelp() [][]key.Binding {
+	var b []key.Binding
+	for _, x := range []key.Binding{k.Accept, k.Reject, k.Toggle, k.Up, k.PageDown} {
+		if len(x.Keys()) > 0 {
+			b = append(b, x)
+		}
+	}
+	return [][]key.Binding{b}
+}
+
+func scrollKeys(k ListKeys) ListKeys {
+	k.Up = bind([]string{"up", "k"}, "↑/↓", "scroll")
+	k.Down = bind([]string{"down", "j"}, "↓", "scroll down")
+	k.PageUp = bind([]string{"pgup"}, "pgup", "page up")
+	k.PageDown = bind([]string{"pgdown", " "}, "pgdn/pgup", "page")
+	return k
 }

@@ -18,7 +18,7 @@ type Styles struct {
 	Critical                      lipgloss.Style
 	Good, Bad, Warn, Error, Info  lipgloss.Style
 	TableHead, TableRow, TableSel lipgloss.Style
-	Help                          lipgloss.Style
+	Help, HelpKey                 lipgloss.Style
 }
 
 // colour pairs (light background, dark background): our own palette.
@@ -45,7 +45,7 @@ func DefaultStyles(noColor bool) Styles {
 			Peak: b, Temp: b, Axis: b, PeakLabel: b, Critical: b.Bold(true),
 			Good: b, Bad: b.Bold(true), Warn: b.Bold(true), Error: b.Bold(true), Info: b,
 			TableHead: b.Underline(true), TableRow: b, TableSel: b.Reverse(true),
-			Help: b,
+			Help: b, HelpKey: b.Bold(true),
 		}
 	}
 	b := lipgloss.NewStyle()
@@ -73,5 +73,6 @@ func DefaultStyles(noColor bool) Styles {
 		TableRow:  b.Foreground(ink),
 		TableSel:  b.Foreground(ink).Background(selectBg),
 		Help:      b.Foreground(faint),
+		HelpKey:   b.Bold(true).Foreground(teal),
 	}
 }

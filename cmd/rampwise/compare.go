@@ -32,12 +32,19 @@ those that reach the target first, fastest first, with the inlet pressure the
 program needs at its start and end and the highest oven temperature it uses;
 then those that cannot reach it, with their limiting pair. "-" is the demo.
 
+The column kind is part of a candidate: methods on wall-coated, packed and
+porous-layer columns are ranked together (a packed column with the same
+liquid phase as a wall-coated one has the same distribution constants). A
+length, diameter or film from the lists that is outside a kind's ranges
+(packed: 0.3-10 m, 1-6 mm) is skipped for that method, with a note.
+
 Flags:
 `
 
 type candidateJSON struct {
 	Method        string      `json:"method"`
 	Phase         string      `json:"phase"`
+	Kind          string      `json:"kind"`
 	Length        float64     `json:"length_m"`
 	Diameter      float64     `json:"diameter_mm"`
 	Film          float64     `json:"film_um"`
@@ -129,6 +136,8 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		if gv == nil {
 			gv = []string{m.Carrier.Gas}
 		}
+		before := len(cands)
+		var lastSkip error
 		for _, l := range lv {
 			for _, d := range dv {
 				for _, df := range fv {
@@ -138,12 +147,20 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 						c.Carrier.Gas = g
 						data, _ := methodfile.Marshal(c)
 						if _, err := methodfile.Parse(name, data); err != nil {
+							if kindName(m.Column.Kind) != kindOfLists {
+								fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
+								lastSkip = err
+								continue
+							}
 							return badf("%s at %g m × %g mm × %g µm, %s: %v", name, l, d, df, g, err)
 						}
 						cands = append(cands, optimizer.Candidate{Source: name, Method: c})
 					}
 				}
 			}
+		}
+		if len(cands) == before {
+			return badf("%s: no length, diameter and film of the lists suits its %s column: %v", name, m.Column.Kind, lastSkip)
 		}
 	}
 	if len(cands) > 200 {
@@ -157,7 +174,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Gas: m.Carrier.Gas, Objective: m.Goal.Objective, Carrier: carrierToJSON(m.Carrier)}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Gas: m.Carrier.Gas, Objective: m.Goal.Objective, Carrier: carrierToJSON(m.Carrier)}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
@@ -197,7 +214,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		rows = append(rows, j)
 	}
 	if *csvF != "" {
-		recs := [][]string{{"rank", "method", "phase", "length_m", "diameter_mm", "film_um", "gas", "carrier_setting", "feasible", "objective", "time_min", "min_resolution", "critical_first", "critical_second", "inlet_kpa_start", "inlet_kpa_end", "max_temp_c", "explanation"}}
+		recs := [][]string{{"rank", "method", "phase", "kind", "length_m", "diameter_mm", "film_um", "gas", "carrier_setting", "feasible", "objective", "time_min", "min_resolution", "critical_first", "critical_second", "inlet_kpa_start", "inlet_kpa_end", "max_temp_c", "explanation"}}
 		for i, j := range rows {
 			rs, c1, c2 := "", "", ""
 			if j.MinResolution != nil {
@@ -206,7 +223,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			if len(j.CriticalPair) == 2 {
 				c1, c2 = j.CriticalPair[0], j.CriticalPair[1]
 			}
-			recs = append(recs, []string{strconv.Itoa(i + 1), j.Method, j.Phase, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), j.Gas, carrierText(j.Carrier), fmt.Sprint(j.Feasible), j.Objective,
+			recs = append(recs, []string{strconv.Itoa(i + 1), j.Method, j.Phase, j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), j.Gas, carrierText(j.Carrier), fmt.Sprint(j.Feasible), j.Objective,
 				fmtNum(j.Time), rs, c1, c2, fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), j.Explanation + j.Error})
 		}
 		if err := writeCSVFile(*csvF, recs, stderr); err != nil {
@@ -232,6 +249,9 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintln(tw, "#\tphase\tcolumn\tcarrier\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
 	for i, j := range rows {
 		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
+		if j.Kind != "wall-coated" {
+			col = j.Kind + " " + col
+		}
 		phase := j.Phase
 		if phase == "" {
 			phase = j.Method
@@ -273,4 +293,16 @@ func carrierText(c carrierJSON) string {
 		return fmtNum(*c.FlowMLM) + " mL/min"
 	}
 	return ""
+}
+
+// kindOfLists is the kind the dimension lists are written for: a list
+// value outside another kind's ranges skips that candidate instead of
+// failing the comparison.
+const kindOfLists = "wall-coated"
+
+func kindName(k string) string {
+	if k == "" {
+		return "wall-coated"
+	}
+	return k
 }

@@ -19,7 +19,10 @@ Calibrates the method's compounds from scouting runs: for each compound seen
 in at least two runs, ΔH and ΔS (and with --with-dcp ΔCp, from three runs or
 more) by least squares on the measured retention times through the same
 retention model simulate uses. With measured holdup times in the runs, the
-column's effective internal diameter is calibrated first; with measured
+column's effective internal diameter is calibrated first (on a packed
+column its particle size, which sets the bed's permeability; the phase ratio
+then follows from the diameter of an open tube and is the given one of a
+packed column, since it cannot be told apart from ΔS); with measured
 half-height widths, the plate-height factor. Reports standard errors and the
 residual of every run, and warns about compounds seen once, runs too similar
 to separate ΔH from ΔS, and residuals that suggest a misassigned peak.
@@ -45,8 +48,10 @@ type fitCompoundJSON struct {
 type fitJSON struct {
 	Compounds []fitCompoundJSON `json:"compounds"`
 	Column    struct {
-		Diameter    float64 `json:"diameter_mm"`
-		PlateHeight float64 `json:"plate_height_factor"`
+		Diameter    float64  `json:"diameter_mm"`
+		PlateHeight float64  `json:"plate_height_factor"`
+		Particle    *float64 `json:"particle_um,omitempty"`
+		PhaseRatio  float64  `json:"phase_ratio"`
 	} `json:"column"`
 	Warnings []string `json:"warnings"`
 }
@@ -86,7 +91,10 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 				Runs: c.Runs, RMS: c.RMS, Max: c.Max, Residuals: c.Residuals, Added: c.Added,
 			})
 		}
-		j.Column.Diameter, j.Column.PlateHeight = rep.DiameterMM, rep.PlateHeightFactor
+		j.Column.Diameter, j.Column.PlateHeight, j.Column.PhaseRatio = rep.DiameterMM, rep.PlateHeightFactor, rep.PhaseRatio
+		if m.Column.Kind == "packed" {
+			j.Column.Particle = &rep.ParticleUM
+		}
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
 		return enc.Encode(j)
@@ -97,7 +105,11 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", c.Name, c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
 	}
 	tw.Flush()
-	fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PlateHeightFactor, fitted(rep.PlateFitted))
+	if m.Column.Kind == "packed" {
+		fmt.Fprintf(stdout, "\nparticle size %.2f µm%s · phase ratio %.4g (given) · plate-height factor %.3f%s\n", rep.ParticleUM, fitted(rep.ParticleFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
+	} else {
+		fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · phase ratio %.4g · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
+	}
 	for _, w := range rep.Warnings {
 		fmt.Fprintf(stdout, "warning: %s\n", w)
 	}

@@ -88,6 +88,9 @@ func (s *simulation) warnings(prog model.Program) []string {
 	if s.sys.Cond.Carrier.Gas.Flammable() {
 		w = append(w, model.HydrogenCaution)
 	}
+	if note := checks.CoolantNote(s.method); note != "" {
+		w = append(w, note, model.CryogenCaution)
+	}
 	return w
 }
 
@@ -212,8 +215,8 @@ func describeColumn(m *methodfile.Method) string {
 	if g.Mode == "constant-pressure" {
 		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
 	}
-	return fmt.Sprintf("%s m × %s mm × %s µm %s (max %s °C) · %s %s · %s outlet",
-		fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM), phase, fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
+	return fmt.Sprintf("%s %s (max %s °C) · %s %s · %s outlet",
+		c.Describe(), phase, fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
 }
 
 func describeProgram(o methodfile.Oven) string { return report.Program(o) }

@@ -1,7 +1,9 @@
 // Package calibrate turns scouting runs into model parameters: each
 // compound's ΔH and ΔS (and optionally ΔCp) by least squares on retention
 // times through the forward model, the column's effective diameter from
-// measured holdup times, and the plate-height factor from measured widths.
+// measured holdup times (for a packed column, its particle size: the
+// permeability of the bed), and the plate-height factor from measured
+// widths.
 package calibrate
 
 import (
@@ -19,6 +21,13 @@ import (
 // Options tune a fit. The zero value fits ΔH and ΔS only.
 type Options struct {
 	WithDCp bool // also fit ΔCp (needs ≥ 3 runs)
+	// AddUnknown adds compounds the method lacks even when their name is
+	// close to a method name (a likely misspelling); they are added as
+	// non-targets either way, never as targets.
+	AddUnknown bool
+	// OutlierT is the externally studentized residual beyond which a
+	// measurement is flagged and left out of the fit (default 4).
+	OutlierT float64
 }
 
 // CompoundFit is one compound's result. Energies in kJ/mol, entropies and
@@ -26,27 +35,70 @@ type Options struct {
 type CompoundFit struct {
 	Name               string
 	DHkJ, DS, DCp      float64
-	StdErrDH, StdErrDS float64 // NaN when the fit has no degrees of freedom
+	StdErrDH, StdErrDS float64 // NaN when no residual variance is known
 	StdErrDCp          float64
+	CorrDHDS           float64 // correlation of the ΔH and ΔS estimates
 	Runs               int
 	RMS, Max           float64 // residuals, min
 	Residuals          map[string]float64
 	Fitted             bool
-	Added              bool // was in the runs, not in the method
+	Added              bool // was in the runs, not in the method (added as a non-target)
 	ElutionSpreadC     float64
 	Condition          float64 // condition number of the scaled normal matrix
 	withDCp            bool
 }
 
+// Assignment is an unnamed peak given a compound's name.
+type Assignment struct {
+	Run          string
+	Compound     string
+	MeasuredMin  float64
+	PredictedMin float64 // by the final fit (before it, by the start values)
+	// Confidence is the weight of this peak among the compound's
+	// candidates (the other peaks and "not in this run") under a Gaussian
+	// of the prediction's spread: near 1 when no other peak is close.
+	Confidence float64
+}
+
+// Outlier is a measurement the fit distrusts.
+type Outlier struct {
+	Run, Compound string
+	MeasuredMin   float64
+	PredictedMin  float64 // from the other runs
+	Studentized   float64 // externally studentized residual
+	Excluded      bool    // left out of the final fit
+}
+
 // Report is a whole calibration.
 type Report struct {
-	Compounds         []CompoundFit
-	DiameterMM        float64 // effective internal diameter used
-	DiameterFitted    bool
+	Compounds      []CompoundFit
+	DiameterMM     float64 // effective internal diameter used
+	DiameterFitted bool
+	// ParticleUM is the packed column's effective particle size used, fitted
+	// from the holdup times in place of the diameter (MODEL.md §10).
+	ParticleUM     float64
+	ParticleFitted bool
+	// PhaseRatio is β of the calibrated column: for an open tube it follows
+	// from the fitted diameter (exact annulus), for a packed column it is
+	// the given one (holdup times do not tell it; it and ΔS are one
+	// parameter, ΔS − R ln β).
+	PhaseRatio        float64
 	PlateHeightFactor float64
 	PlateFitted       bool
 	Warnings          []string
+	Notes             []string // information that needs no action (order changes, peaks left over)
 	Method            *methodfile.Method // the method with the fitted values
+	Assignments       []Assignment
+	Outliers          []Outlier
+	// ResidualSDMin is the pooled residual standard deviation of the
+	// retention times, DOF its degrees of freedom (Σ runs − parameters over
+	// the fitted compounds). With DOF 0 the method's
+	// goal.robust.retention_time_sd_min is used instead (SDAssumed).
+	ResidualSDMin float64
+	DOF           int
+	SDAssumed     bool
+	// Runs holds the runs as fitted: with the assigned names filled in.
+	Runs *methodfile.Runs
 }
 
 type runSetup struct {
@@ -75,12 +127,21 @@ func setups(m *methodfile.Method, runs *methodfile.Runs) ([]runSetup, error) {
 	return out, nil
 }
 
-// Fit calibrates the method against the runs.
-func Fit(m *methodfile.Method, runs *methodfile.Runs, opt Options) (*Report, error) {
-	if opt.WithDCp && len(runs.Runs) < 3 {
-		return nil, fmt.Errorf("--with-dcp needs at least 3 scouting runs to fit ΔCp besides ΔH and ΔS; the runs file has %d", len(runs.Runs))
+// Fit calibrates the method against the runs: names are checked against
+// the method (an unknown name never becomes a target), unnamed peaks are
+// assigned to compounds (alternating with the fit until the assignment is
+// stable), each compound is fitted by least squares, a measurement with a
+// large studentized residual is flagged and left out, and the standard
+// errors use the residual variance pooled over all compounds.
+func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, error) {
+	if opt.WithDCp && len(runsIn.Runs) < 3 {
+		return nil, fmt.Errorf("--with-dcp needs at least 3 scouting runs to fit ΔCp besides ΔH and ΔS; the runs file has %d", len(runsIn.Runs))
 	}
-	rep := &Report{DiameterMM: m.Column.DiameterMM, PlateHeightFactor: m.Column.PlateHeight}
+	if opt.OutlierT <= 0 {
+		opt.OutlierT = 4
+	}
+	runs := runsIn.CloneRuns()
+	rep := &Report{DiameterMM: m.Column.DiameterMM, PlateHeightFactor: m.Column.PlateHeight, Runs: runs}
 	out := m.Clone()
 
 	// 1. effective diameter from holdup times
@@ -90,7 +151,15 @@ func Fit(m *methodfile.Method, runs *methodfile.Runs, opt Options) (*Report, err
 			withHoldup = append(withHoldup, i)
 		}
 	}
-	if len(withHoldup) > 0 {
+	rep.ParticleUM = m.Column.ParticleUM
+	if len(withHoldup) > 0 && out.Column.Kind == "packed" {
+		dp, err := fitParticle(out, runs, withHoldup)
+		if err != nil {
+			return nil, err
+		}
+		out.Column.ParticleUM = dp
+		rep.ParticleUM, rep.ParticleFitted = dp, true
+	} else if len(withHoldup) > 0 {
 		d, err := fitDiameter(out, runs, withHoldup)
 		if err != nil {
 			return nil, err
@@ -98,15 +167,121 @@ func Fit(m *methodfile.Method, runs *methodfile.Runs, opt Options) (*Report, err
 		out.Column.DiameterMM = d
 		rep.DiameterMM, rep.DiameterFitted = d, true
 	}
+	rep.PhaseRatio = out.ModelColumn().PhaseRatio()
 	st, err := setups(out, runs)
 	if err != nil {
 		return nil, err
 	}
 
-	// 2. compounds
-	index := map[string]int{}
-	for i, c := range out.Compounds {
-		index[c.Name] = i
+	// 2. names the method lacks
+	rep.Warnings = append(rep.Warnings, checkNames(out, runs, opt)...)
+
+	// 3. assignment of unnamed peaks, alternating with the fit
+	start := out.Clone()
+	if hasUnnamed(runs) {
+		if err := assignLoop(out, st, runs, opt, rep); err != nil {
+			return nil, err
+		}
+	}
+
+	// 4. the fit, outliers left out, pooled errors
+	fits, err := fitAll(out, st, runs, opt, nil, &rep.Warnings)
+	if err != nil {
+		return nil, err
+	}
+	pool(fits, out, rep)
+	excluded := map[obsKey]bool{}
+	for round := 0; round < 3; round++ {
+		o := findOutliers(fits, st, start, rep, opt)
+		if len(o) == 0 {
+			break
+		}
+		any := false
+		for _, x := range o {
+			k := obsKey{x.Run, x.Compound}
+			if !excluded[k] && x.Excluded {
+				excluded[k] = true
+				any = true
+			}
+			rep.Outliers = append(rep.Outliers, x)
+		}
+		if !any {
+			break
+		}
+		var w []string
+		if fits, err = fitAll(out, st, runs, opt, excluded, &w); err != nil {
+			return nil, err
+		}
+		pool(fits, out, rep)
+	}
+	for _, x := range rep.Outliers {
+		left := "kept in the fit (too few other runs to leave it out)"
+		if x.Excluded {
+			left = "left out of the fit"
+		}
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: run %q measured %.3f min but the other runs predict %.3f min (studentized residual %.1f): likely a misassigned or mistyped peak; %s", x.Compound, x.Run, x.MeasuredMin, x.PredictedMin, x.Studentized, left))
+	}
+	for _, f := range fits {
+		cf := f.CompoundFit
+		if f.onlyDS {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: elutes too close to the holdup time to tell ΔH from ΔS; ΔS fitted with ΔH from the homologous rule (ΔH = −(9 + 4.9 n) kJ/mol)", cf.Name))
+		}
+		if !f.onlyDS && (cf.ElutionSpreadC < 3 || cf.Condition > 1e10) {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the runs elute it at nearly the same temperature (spread %.1f °C): too similar to separate ΔH from ΔS reliably (ill-conditioned); add a run with a clearly different ramp rate", cf.Name, cf.ElutionSpreadC))
+		}
+		ci := compoundIndex(out, cf.Name)
+		if ci < 0 {
+			cf.Added = true
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: in the runs but not in the method; added as a non-target with the fitted parameters (make it a target in the method if it is one)", cf.Name))
+			out.Compounds = append(out.Compounds, methodfile.Compound{Name: cf.Name, RefTempC: 100, Amount: 1, Target: false})
+			ci = len(out.Compounds) - 1
+		}
+		c := &out.Compounds[ci]
+		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
+		c.FromFormula = false
+		c.HasSE = false
+		if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
+			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true
+		}
+		rep.Compounds = append(rep.Compounds, cf)
+	}
+	if !opt.WithDCp {
+		if w := dcpTrend(fits, st, rep); w != "" {
+			rep.Warnings = append(rep.Warnings, w)
+		}
+	}
+	orderChecks(out, st, runs, rep)
+
+	// 5. plate-height factor from widths
+	if phi, ok, err := fitPlateHeight(out, runs); err != nil {
+		return nil, err
+	} else if ok {
+		out.Column.PlateHeight = phi
+		rep.PlateHeightFactor, rep.PlateFitted = phi, true
+	}
+	rep.Method = out
+	return rep, nil
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+// roundSig rounds to d significant digits (the file keeps what matters).
+func roundSig(x float64, d int) float64 {
+	if x == 0 || !finite(x) {
+		return x
+	}
+	p := math.Pow(10, float64(d)-math.Ceil(math.Log10(math.Abs(x))))
+	return math.Round(x*p) / p
+}
+
+type obsKey struct{ run, compound string }
+
+// fitAll fits every compound seen in at least two runs (excluded
+// measurements left out), in name order.
+func fitAll(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, opt Options, excluded map[obsKey]bool, warn *[]string) ([]fitResult, error) {
+	mcs, err := out.ModelCompounds()
+	if err != nil {
+		return nil, err
 	}
 	var names []string
 	seen := map[string]bool{}
@@ -119,74 +294,46 @@ func Fit(m *methodfile.Method, runs *methodfile.Runs, opt Options) (*Report, err
 		}
 	}
 	sort.Strings(names)
+	var fits []fitResult
 	for _, name := range names {
 		var obs []obsPoint
 		for i, s := range st {
-			if t, ok := s.run.Retention[name]; ok {
+			if t, ok := s.run.Retention[name]; ok && !excluded[obsKey{s.name, name}] {
 				obs = append(obs, obsPoint{run: i, t: t * 60})
 			}
 		}
-		ci, inMethod := index[name]
+		ci := compoundIndex(out, name)
 		if len(obs) < 2 {
-			if inMethod {
-				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: seen in one run only; parameters not fitted", name))
+			if ci >= 0 {
+				*warn = append(*warn, fmt.Sprintf("%s: seen in one run only; parameters not fitted", name))
 			} else {
-				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: in the runs but not in the method, and seen in one run only; not added", name))
+				*warn = append(*warn, fmt.Sprintf("%s: in the runs but not in the method, and seen in one run only; not added", name))
 			}
 			continue
 		}
-		var base model.Compound
-		if inMethod {
-			mcs, err := out.ModelCompounds()
-			if err != nil {
-				return nil, err
-			}
+		base := model.Compound{Name: name, Target: false}
+		if ci >= 0 {
 			base = mcs[ci]
-		} else {
-			base = model.Compound{Name: name, Target: true}
 		}
 		withDCp := opt.WithDCp && len(obs) >= 3
 		if opt.WithDCp && !withDCp {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: seen in %d runs; ΔCp needs 3, fitted ΔH and ΔS only", name, len(obs)))
+			*warn = append(*warn, fmt.Sprintf("%s: seen in %d runs; ΔCp needs 3, fitted ΔH and ΔS only", name, len(obs)))
 		}
 		cf, err := fitCompound(st, obs, base, withDCp)
 		if err != nil {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: %v; parameters not fitted", name, err))
+			*warn = append(*warn, fmt.Sprintf("%s: %v; parameters not fitted", name, err))
 			continue
 		}
 		cf.Name = name
-		if cf.onlyDS {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: elutes too close to the holdup time to tell ΔH from ΔS; ΔS fitted with ΔH from the homologous rule (ΔH = −(9 + 4.9 n) kJ/mol)", name))
-		}
+		cf.obs = obs
+		cf.base = base
 		cf.Residuals = map[string]float64{}
 		for i, o := range obs {
 			cf.Residuals[st[o.run].name] = cf.resid[i] / 60
 		}
-		if !inMethod {
-			cf.Added = true
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: in the runs but not in the method; added as a target with the fitted parameters", name))
-			out.Compounds = append(out.Compounds, methodfile.Compound{Name: name, RefTempC: 100, Amount: 1, Target: true})
-			ci = len(out.Compounds) - 1
-			index[name] = ci
-		}
-		c := &out.Compounds[ci]
-		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
-		rep.Compounds = append(rep.Compounds, cf.CompoundFit)
-		if !cf.onlyDS && (cf.ElutionSpreadC < 3 || cf.Condition > 1e10) {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the runs elute it at nearly the same temperature (spread %.1f °C): too similar to separate ΔH from ΔS reliably (ill-conditioned); add a run with a clearly different ramp rate", name, cf.ElutionSpreadC))
-		}
+		fits = append(fits, cf)
 	}
-	rep.Warnings = append(rep.Warnings, outliers(rep.Compounds)...)
-
-	// 3. plate-height factor from widths
-	if phi, ok, err := fitPlateHeight(out, runs); err != nil {
-		return nil, err
-	} else if ok {
-		out.Column.PlateHeight = phi
-		rep.PlateHeightFactor, rep.PlateFitted = phi, true
-	}
-	rep.Method = out
-	return rep, nil
+	return fits, nil
 }
 
 type obsPoint struct {
@@ -198,6 +345,13 @@ type fitResult struct {
 	CompoundFit
 	resid  []float64 // s
 	onlyDS bool
+	obs    []obsPoint
+	base   model.Compound
+	th     []float64  // ΔH J/mol, ΔS, (ΔCp)
+	free   []int      // fitted entries of th
+	jac    *mat.Dense // ∂t/∂θ_free at the solution, s per unit
+	cov    *mat.Dense // (JᵀJ)⁻¹, nil when singular
+	ssr    float64    // s²
 }
 
 // paramCompound builds the compound for parameter vector θ = (ΔH J/mol, ΔS, ΔCp).
@@ -374,22 +528,11 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 	var sjtj mat.Dense
 	sjtj.Mul(scaled.T(), scaled)
 	res.Condition = mat.Cond(&sjtj, 2)
-	if n > p {
-		var cov mat.Dense
-		if err := cov.Inverse(&jtj); err == nil {
-			s2 := ssr / float64(n-p)
-			for j, f := range free {
-				e := math.Sqrt(math.Abs(cov.At(j, j) * s2))
-				switch f {
-				case 0:
-					res.StdErrDH = e / 1000
-				case 1:
-					res.StdErrDS = e
-				case 2:
-					res.StdErrDCp = e
-				}
-			}
-		}
+	res.th, res.free, res.ssr = append([]float64(nil), th...), append([]int(nil), free...), ssr
+	res.jac = mat.DenseCopyOf(J)
+	var cov mat.Dense
+	if err := cov.Inverse(&jtj); err == nil {
+		res.cov = &cov
 	}
 	// spread of elution temperatures across the runs
 	c := paramCompound(base, th)
@@ -405,43 +548,42 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 	return res, nil
 }
 
-// outliers flags compounds whose residual stands far above the others': a
-// likely misassigned peak.
-func outliers(fits []CompoundFit) []string {
-	var rms []float64
-	for _, f := range fits {
-		if f.Runs > 2 {
-			rms = append(rms, f.RMS)
-		}
-	}
-	if len(rms) == 0 {
-		return nil
-	}
-	sort.Float64s(rms)
-	med := rms[len(rms)/2]
-	limit := math.Max(5*med, 0.01)
-	var w []string
-	for _, f := range fits {
-		if f.Runs > 2 && f.RMS > limit {
-			worst, wr := "", 0.0
-			for run, r := range f.Residuals {
-				if math.Abs(r) > math.Abs(wr) || (math.Abs(r) == math.Abs(wr) && run < worst) {
-					worst, wr = run, r
-				}
-			}
-			w = append(w, fmt.Sprintf("%s: residual %.3f min in run %q is far above the others (rms %.4f min vs typical %.4f): likely a misassigned peak; check that run's peak identities", f.Name, wr, worst, f.RMS, med))
-		}
-	}
-	return w
-}
-
 // fitDiameter finds the internal diameter (mm) whose holdup times best match
 // the measured ones (golden-section search between 0.5 and 1.5 times the
 // nominal diameter).
 func fitDiameter(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float64, error) {
-	ssr := func(d float64) float64 {
+	d0 := m.Column.DiameterMM
+	a, b := 0.5*d0, 1.5*d0
+	if min := 2 * m.Column.FilmUM * 1e-3 * 1.01; a < min {
+		a = min
+	}
+	d, err := fitHoldup(m, runs, idx, func(c *methodfile.Method, x float64) { c.Column.DiameterMM = x }, a, b)
+	if err != nil {
+		return 0, errors.New("holdup calibration failed: no diameter reproduces the measured holdup times")
+	}
+	return d, nil
+}
+
+// fitParticle finds a packed column's particle size (µm) whose
+// Kozeny–Carman permeability best reproduces the measured holdup times
+// (golden section between 0.5 and 1.5 times the nominal size, within the
+// file's 50-400 µm).
+func fitParticle(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float64, error) {
+	p0 := m.Column.ParticleUM
+	a, b := math.Max(0.5*p0, 50), math.Min(1.5*p0, 400)
+	dp, err := fitHoldup(m, runs, idx, func(c *methodfile.Method, x float64) { c.Column.ParticleUM = x }, a, b)
+	if err != nil {
+		return 0, errors.New("holdup calibration failed: no particle size in 50-400 µm reproduces the measured holdup times")
+	}
+	return dp, nil
+}
+
+// fitHoldup is the golden-section search on [a, b] for the column value
+// that set writes, minimising the squared holdup-time residuals of runs idx.
+func fitHoldup(m *methodfile.Method, runs *methodfile.Runs, idx []int, set func(*methodfile.Method, float64), a, b float64) (float64, error) {
+	ssr := func(x float64) float64 {
 		c := m.Clone()
-		c.Column.DiameterMM = d
+		set(c, x)
 		s := 0.0
 		for _, i := range idx {
 			r := &runs.Runs[i]
@@ -460,11 +602,6 @@ func fitDiameter(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float6
 		}
 		return s
 	}
-	d0 := m.Column.DiameterMM
-	a, b := 0.5*d0, 1.5*d0
-	if min := 2 * m.Column.FilmUM * 1e-3 * 1.01; a < min {
-		a = min
-	}
 	gr := (math.Sqrt(5) - 1) / 2
 	for i := 0; i < 100; i++ {
 		c, d := b-gr*(b-a), a+gr*(b-a)
@@ -474,11 +611,11 @@ func fitDiameter(m *methodfile.Method, runs *methodfile.Runs, idx []int) (float6
 			a = c
 		}
 	}
-	d := (a + b) / 2
-	if math.IsInf(ssr(d), 0) {
-		return 0, errors.New("holdup calibration failed: no diameter reproduces the measured holdup times")
+	x := (a + b) / 2
+	if math.IsInf(ssr(x), 0) {
+		return 0, errors.New("no value reproduces the holdup times")
 	}
-	return d, nil
+	return x, nil
 }
 
 // fitPlateHeight fits φ from measured half-height widths: σ² = φ a + σ0²,
@@ -522,4 +659,13 @@ func fitPlateHeight(m *methodfile.Method, runs *methodfile.Runs) (float64, bool,
 		return 0, false, errors.New("the measured widths are narrower than the injection band alone; check initial_band_s")
 	}
 	return phi, true, nil
+}
+
+func compoundIndex(m *methodfile.Method, name string) int {
+	for i, c := range m.Compounds {
+		if c.Name == name {
+			return i
+		}
+	}
+	return -1
 }

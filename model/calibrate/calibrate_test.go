@@ -291,3 +291,45 @@ func TestAddedAndSingleRunCompounds(t *testing.T) {
 		t.Errorf("fitted method does not build: %v", err)
 	}
 }
+
+// On a packed column the holdup times calibrate the particle size (the
+// bed's Kozeny–Carman permeability, MODEL.md §10), not the tube diameter:
+// runs simulated with 150 µm particles give back 150 µm from a nominal
+// 165 µm, and the compounds' parameters are recovered with it.
+func TestPackedParticleFromHoldup(t *testing.T) {
+	truth, err := methodfile.ReadFile("../../testdata/demo-packed.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	truth.Column.ParticleUM = 150
+	scouts := []scout{linear("p-5", 40, 1, 5, 190), linear("p-10", 40, 1, 10, 190), linear("p-20", 40, 1, 20, 190)}
+	for i := range scouts {
+		scouts[i].holdup = true
+	}
+	text := runsText(t, truth, scouts, 0, 1, nil)
+	start, _ := methodfile.ReadFile("../../testdata/demo-packed.toml")
+	rep := fitText(t, start, text, Options{})
+	if !rep.ParticleFitted || rep.DiameterFitted {
+		t.Fatalf("fitted particle %v, diameter %v: want the particle size only", rep.ParticleFitted, rep.DiameterFitted)
+	}
+	// the holdup times are written to 1e-5 min, so the size to about 0.1 %
+	if math.Abs(rep.ParticleUM-150) > 0.3 {
+		t.Errorf("particle size %.3f µm, want 150", rep.ParticleUM)
+	}
+	if rep.Method.Column.ParticleUM != rep.ParticleUM || rep.Method.Column.DiameterMM != 2 {
+		t.Errorf("fitted method column %+v", rep.Method.Column)
+	}
+	if n := len(rep.Compounds); n < 8 {
+		t.Errorf("%d compounds fitted", n)
+	}
+	if rep.PhaseRatio != 6 {
+		t.Errorf("phase ratio %v, want the given 6", rep.PhaseRatio)
+	}
+	for _, c := range rep.Compounds {
+		for _, tc := range truth.Compounds {
+			if tc.Name == c.Name && c.ElutionSpreadC > 3 && math.Abs(c.DHkJ-tc.DHkJ) > 0.5 {
+				t.Errorf("%s: ΔH %.2f, true %.2f", c.Name, c.DHkJ, tc.DHkJ)
+			}
+		}
+	}
+}

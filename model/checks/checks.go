@@ -18,6 +18,10 @@ import (
 // overrides it with capacity_ng in [column]).
 const ReferenceCapacity = 100.0
 
+// PackedCapacity is the sample capacity assumed per compound on a packed
+// column, in ng: 10 µg (MODEL.md §10, from memory); capacity_ng overrides it.
+const PackedCapacity = 10000.0
+
 // DetectorMargin is how far (°C) the detector should be above the highest
 // oven temperature so that the effluent does not condense (common practice).
 const DetectorMargin = 20.0
@@ -39,6 +43,20 @@ func Capacity(diameterMM, filmUM, override float64) float64 {
 	return ReferenceCapacity * (diameterMM / 0.25) * (filmUM / 0.25)
 }
 
+// ColumnCapacity is the capacity per compound (ng) of the method's column:
+// capacity_ng when given, PackedCapacity for a packed column, else the
+// film-volume estimate of Capacity (for a porous layer, with the layer's
+// thickness).
+func ColumnCapacity(c methodfile.Column) float64 {
+	if c.HasCapacity && c.CapacityNG > 0 {
+		return c.CapacityNG
+	}
+	if c.Kind == "packed" {
+		return PackedCapacity
+	}
+	return Capacity(c.DiameterMM, c.FilmUM, 0)
+}
+
 // Overload is one compound over the column's capacity.
 type Overload struct {
 	Name     string
@@ -55,7 +73,7 @@ func Overloads(m *methodfile.Method) []Overload {
 	if !m.Injection.Present {
 		return nil
 	}
-	capNG := Capacity(m.Column.DiameterMM, m.Column.FilmUM, m.Column.CapacityNG)
+	capNG := ColumnCapacity(m.Column)
 	var out []Overload
 	for _, c := range m.Compounds {
 		if !c.HasConc {
@@ -67,6 +85,32 @@ func Overloads(m *methodfile.Method) []Overload {
 		}
 	}
 	return out
+}
+
+// remedy is the column change that raises capacity, by kind.
+func remedy(kind string) string {
+	switch kind {
+	case "packed":
+		return "higher loading or a wider tube"
+	case "porous-layer":
+		return "thicker layer or a wider bore"
+	}
+	return "thicker film"
+}
+
+// CoolantNote says that the method needs the oven's coolant, and why, or
+// is "" when it has none: with coolant_c the oven cools toward the coolant
+// after every run and may start below ambient (MODEL.md §12). The safety
+// note model.CryogenCaution goes with it.
+func CoolantNote(m *methodfile.Method) string {
+	if !m.Limits.HasCoolant {
+		return ""
+	}
+	if m.Oven.InitialC <= m.Limits.AmbientC {
+		return fmt.Sprintf("a coolant is needed: the program starts at %g °C, below the ambient %g °C, and the oven cools toward the coolant (%g °C, limits.coolant_c) after every run",
+			m.Oven.InitialC, m.Limits.AmbientC, m.Limits.CoolantC)
+	}
+	return fmt.Sprintf("the oven cools toward its coolant (%g °C, limits.coolant_c) after every run, so the cycle time assumes the coolant is on", m.Limits.CoolantC)
 }
 
 // Warnings are the cautions for method m whose program simulated to res.
@@ -93,8 +137,8 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 		}
 	}
 	for _, o := range Overloads(m) {
-		w = append(w, fmt.Sprintf("%s: about %.0f ng on the column, %.1f× its estimated capacity of %.0f ng per compound: an overloaded peak fronts or tails and its retention shifts, so the predicted resolution is optimistic (raise the split ratio, dilute, or use a thicker film)",
-			o.Name, o.MassNG, o.Factor(), o.Capacity))
+		w = append(w, fmt.Sprintf("%s: about %.0f ng on the column, %.1f× its estimated capacity of %.0f ng per compound: an overloaded peak fronts or tails and its retention shifts, so the predicted resolution is optimistic (raise the split ratio, dilute, or use a %s)",
+			o.Name, o.MassNG, o.Factor(), o.Capacity, remedy(m.Column.Kind)))
 	}
 	if m.Injection.HasDetector {
 		top := prog.MaxTemp() - model.ZeroCelsius

@@ -95,3 +95,37 @@ func TestDetectorMargin(t *testing.T) {
 		}
 	}
 }
+
+// The capacity per compound follows the kind: 10 µg on a packed column
+// (MODEL.md §10, from memory) unless capacity_ng is given; a method with a
+// coolant says so, and one starting below ambient says a coolant is needed.
+func TestKindCapacityAndCoolant(t *testing.T) {
+	p, err := methodfile.ReadFile("../../testdata/demo-packed.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := ColumnCapacity(p.Column); got != 10000 {
+		t.Errorf("packed capacity %v ng, want 10000", got)
+	}
+	p.Column.CapacityNG, p.Column.HasCapacity = 2500, true
+	if got := ColumnCapacity(p.Column); got != 2500 {
+		t.Errorf("packed capacity with capacity_ng %v, want 2500", got)
+	}
+	if CoolantNote(p) != "" {
+		t.Error("coolant note without a coolant")
+	}
+	l, err := methodfile.ReadFile("../../testdata/demo-porous-layer.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, want := ColumnCapacity(l.Column), Capacity(0.32, 10, 0); got != want {
+		t.Errorf("porous-layer capacity %v, want the layer estimate %v", got, want)
+	}
+	if n := CoolantNote(l); !strings.Contains(n, "a coolant is needed") || !strings.Contains(n, "-70") {
+		t.Errorf("coolant note %q", n)
+	}
+	l.Oven.InitialC = 40
+	if n := CoolantNote(l); strings.Contains(n, "needed") || !strings.Contains(n, "cools toward its coolant") {
+		t.Errorf("coolant note above ambient %q", n)
+	}
+}

@@ -4,9 +4,8 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"io"
+	"io/fs"
 	"math"
-	"os"
 	"regexp"
 	"sort"
 	"strconv"
@@ -16,6 +15,7 @@ import (
 	"github.com/pelletier/go-toml/v2/unstable"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/fsafe"
 )
 
 // MaxFileSize is the largest method or runs file read (4 MiB): a method is
@@ -61,17 +61,18 @@ func ReadFile(path string) (*Method, error) {
 }
 
 func readLimited(path string) ([]byte, error) {
-	f, err := os.Open(path)
+	// A FIFO, device or folder is refused at once rather than read (a FIFO
+	// with no writer would block for good).
+	data, err := fsafe.ReadRegular(path, MaxFileSize)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read: " + errors.Unwrap(err).Error()}
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
+		var pe *fs.PathError
+		switch {
+		case errors.As(err, &pe) && pe.Op == "read" && !errors.Is(err, fsafe.ErrNotRegular):
+			return nil, &Error{File: path, Msg: fmt.Sprintf("file is larger than %d MiB; not a method file", MaxFileSize>>20)}
+		case errors.As(err, &pe):
+			return nil, &Error{File: path, Msg: "cannot read: " + pe.Err.Error()}
+		}
 		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
-	}
-	if len(data) > MaxFileSize {
-		return nil, &Error{File: path, Msg: fmt.Sprintf("file is larger than %d MiB; not a method file", MaxFileSize>>20)}
 	}
 	return data, nil
 }
@@ -182,6 +183,12 @@ func Parse(name string, data []byte) (*Method, error) {
 // decodeStrict decodes TOML into target, refusing unknown keys, and turns
 // the decoder's errors into *Error with file, line and key.
 func decodeStrict(name string, data []byte, target any) (Locations, error) {
+	// A UTF-8 byte order mark (older Windows editors write one) is not
+	// part of the text; UTF-16 is a text file in the wrong encoding.
+	data = bytes.TrimPrefix(data, utf8BOM)
+	if isUTF16(data) {
+		return nil, &Error{File: name, Msg: "the file is UTF-16 text; save it as UTF-8 (in Notepad: Save As, Encoding UTF-8)"}
+	}
 	if bytes.IndexByte(data, 0) >= 0 {
 		return nil, &Error{File: name, Msg: "binary data (a NUL byte); not a TOML file"}
 	}
@@ -209,6 +216,29 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 		return nil, &Error{File: name, Line: line, Key: strings.Join(de.Key(), "."), Msg: msg}
 	}
 	return nil, &Error{File: name, Msg: strings.TrimPrefix(err.Error(), "toml: ")}
+}
+
+// isUTF16 spots UTF-16 text: a UTF-16 byte order mark, or (without one)
+// mostly-ASCII text where every other byte is NUL.
+func isUTF16(data []byte) bool {
+	if bytes.HasPrefix(data, []byte{0xFF, 0xFE}) || bytes.HasPrefix(data, []byte{0xFE, 0xFF}) {
+		return true
+	}
+	n := min(len(data), 512) &^ 1
+	if n < 8 {
+		return false
+	}
+	even, odd := 0, 0
+	for i := 0; i < n; i += 2 {
+		if data[i] == 0 {
+			even++
+		}
+		if data[i+1] == 0 {
+			odd++
+		}
+	}
+	half := n / 2
+	return (odd > half*3/4 && even == 0) || (even > half*3/4 && odd == 0)
 }
 
 var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into .* of type (\S+)`)
@@ -350,21 +380,22 @@ func (v *validator) column(r *rawMethod, m *Method) {
 		return
 	}
 	c := r.Column
-	m.Column.LengthM = v.num("column.length_m", c.LengthM, true, 30, bound{lo: 0, hi: 300, loOpen: true}, "m")
-	m.Column.DiameterMM = v.num("column.diameter_mm", c.DiameterMM, true, 0.25, bound{lo: 0, hi: 1.0, loOpen: true}, "mm")
-	m.Column.FilmUM = v.num("column.film_um", c.FilmUM, true, 0.25, bound{lo: 0, hi: 50, loOpen: true}, "µm")
-	if v.err == nil && m.Column.FilmUM*1e-3 >= m.Column.DiameterMM/2 {
-		v.fail("column.film_um", "film %s µm is thicker than the column radius (%s mm diameter)", fmtNum(m.Column.FilmUM), fmtNum(m.Column.DiameterMM))
+	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
+	kr := rulesFor(m.Column.Kind)
+	m.Column.LengthM = v.num("column.length_m", c.LengthM, true, 30, kr.length, "m")
+	m.Column.DiameterMM = v.num("column.diameter_mm", c.DiameterMM, true, 0.25, kr.diameter, "mm")
+	m.Column.FilmUM = v.num("column.film_um", c.FilmUM, kr.filmRequired, kr.filmDefault, kr.film, "µm")
+	if v.err == nil && m.Column.Kind != "packed" && m.Column.FilmUM*1e-3 >= m.Column.DiameterMM/2 {
+		v.fail("column.film_um", "%s %s µm is thicker than the column radius (%s mm diameter)", kr.filmWord, fmtNum(m.Column.FilmUM), fmtNum(m.Column.DiameterMM))
 	}
 	m.Column.Phase = v.str("column.phase", c.Phase, false, "")
 	m.Column.MaxTempC = v.num("column.max_temp_c", c.MaxTempC, true, 300, bound{lo: -50, hi: 500}, "°C")
-	m.Column.Diffusivity = v.num("column.stationary_diffusivity_m2_s", c.Diffusivity, false, model.DefaultDs, bound{lo: 0, hi: 1e-3, loOpen: true}, "m²/s")
+	m.Column.Diffusivity = v.num("column.stationary_diffusivity_m2_s", c.Diffusivity, false, kr.diffusivity, bound{lo: 0, hi: 1e-3, loOpen: true}, "m²/s")
 	m.Column.PlateHeight = v.num("column.plate_height_factor", c.PlateHeight, false, 1, bound{lo: 0, hi: 100, loOpen: true}, "")
 	if c.CapacityNG != nil {
 		m.Column.CapacityNG = v.num("column.capacity_ng", c.CapacityNG, false, 0, positive(1e9), "ng")
 		m.Column.HasCapacity = true
 	}
-	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
 	if c.MaxIsoC != nil {
 		m.Column.MaxIsothermalC = v.num("column.max_isothermal_c", c.MaxIsoC, false, m.Column.MaxTempC, tempRange, "°C")
 		m.Column.HasMaxIsothermal = true
@@ -372,19 +403,7 @@ func (v *validator) column(r *rawMethod, m *Method) {
 			v.fail("column.max_isothermal_c", "%s °C is above the column maximum %s °C", fmtNum(m.Column.MaxIsothermalC), fmtNum(m.Column.MaxTempC))
 		}
 	}
-	if c.ParticleUM != nil {
-		m.Column.ParticleUM = v.num("column.particle_um", c.ParticleUM, false, 0, positive(1000), "µm")
-		m.Column.HasParticle = true
-	}
-	m.Column.Porosity = v.num("column.porosity", c.Porosity, false, 0.40, bound{lo: 0, hi: 1, loOpen: true, hiOpen: true}, "")
-	m.Column.HasPorosity = c.Porosity != nil
-	if c.PhaseRatio != nil {
-		m.Column.PhaseRatio = v.num("column.phase_ratio", c.PhaseRatio, false, 0, positive(1e5), "")
-		m.Column.HasPhaseRatio = true
-	}
-	m.Column.EddyLambda = v.num("column.eddy_lambda", c.EddyLambda, false, 0.8, nonNegative(10), "")
-	m.Column.ObstructionGamma = v.num("column.obstruction_gamma", c.ObstrGamma, false, 0.7, bound{lo: 0, hi: 2, loOpen: true}, "")
-	m.Column.MobileOmega = v.num("column.mobile_omega", c.MobileOmega, false, 0.1, nonNegative(10), "")
+	v.packedKeys(c, m)
 }
 
 func (v *validator) carrier(r *rawMethod, m *Method) {
@@ -408,15 +427,6 @@ func (v *validator) limits(r *rawMethod, m *Method) {
 		l = &rawLimits{}
 	}
 	m.Limits.AmbientC = v.num("limits.ambient_c", l.AmbientC, false, 25, bound{lo: -60, hi: 60}, "°C")
-	m.Limits.OvenMinC = v.num("limits.oven_min_c", l.OvenMinC, false, m.Limits.AmbientC+10, tempRange, "°C")
-	if v.err == nil && m.Limits.OvenMinC <= m.Limits.AmbientC {
-		v.fail("limits.oven_min_c", "%s °C is not above the ambient %s °C (the oven cannot cool to it)", fmtNum(m.Limits.OvenMinC), fmtNum(m.Limits.AmbientC))
-	}
-	m.Limits.MaxRateCMin = v.num("limits.max_rate_c_min", l.MaxRateCMin, false, 100, positive(2000), "°C/min")
-	m.Limits.MaxHoldMin = v.num("limits.max_hold_min", l.MaxHoldMin, false, 10, nonNegative(10000), "min")
-	m.Limits.CooldownTauMin = v.num("limits.cooldown_tau_min", l.CooldownTauMin, false, 2.0, positive(600), "min")
-	m.Limits.EquilibrationMin = v.num("limits.equilibration_min", l.EquilibrationMin, false, 0.5, nonNegative(600), "min")
-	m.Limits.MaxInletKPa = v.num("limits.max_inlet_kpa", l.MaxInletKPa, false, 690, positive(100000), "kPa")
 	if l.CoolantC != nil {
 		m.Limits.CoolantC = v.num("limits.coolant_c", l.CoolantC, false, 0, tempRange, "°C")
 		m.Limits.HasCoolant = true
@@ -424,6 +434,21 @@ func (v *validator) limits(r *rawMethod, m *Method) {
 			v.fail("limits.coolant_c", "%s °C is not below the ambient %s °C (a coolant only helps below ambient)", fmtNum(m.Limits.CoolantC), fmtNum(m.Limits.AmbientC))
 		}
 	}
+	// with a coolant the oven cools toward it and may start below ambient
+	// (MODEL.md §12); oven_min_c then defaults to coolant_c + 10
+	sink, sinkWords := m.Limits.AmbientC, "the ambient"
+	if m.Limits.HasCoolant {
+		sink, sinkWords = m.Limits.CoolantC, "the coolant_c"
+	}
+	m.Limits.OvenMinC = v.num("limits.oven_min_c", l.OvenMinC, false, sink+10, tempRange, "°C")
+	if v.err == nil && m.Limits.OvenMinC <= sink {
+		v.fail("limits.oven_min_c", "%s °C is not above %s %s °C (the oven cannot cool to it)", fmtNum(m.Limits.OvenMinC), sinkWords, fmtNum(sink))
+	}
+	m.Limits.MaxRateCMin = v.num("limits.max_rate_c_min", l.MaxRateCMin, false, 100, positive(2000), "°C/min")
+	m.Limits.MaxHoldMin = v.num("limits.max_hold_min", l.MaxHoldMin, false, 10, nonNegative(10000), "min")
+	m.Limits.CooldownTauMin = v.num("limits.cooldown_tau_min", l.CooldownTauMin, false, 2.0, positive(600), "min")
+	m.Limits.EquilibrationMin = v.num("limits.equilibration_min", l.EquilibrationMin, false, 0.5, nonNegative(600), "min")
+	m.Limits.MaxInletKPa = v.num("limits.max_inlet_kpa", l.MaxInletKPa, false, 690, positive(100000), "kPa")
 	m.Limits.MinInletKPa = v.num("limits.min_inlet_kpa", l.MinInletKPa, false, 0, nonNegative(100000), "kPa")
 	if v.err == nil && m.Limits.MinInletKPa >= m.Limits.MaxInletKPa {
 		v.fail("limits.min_inlet_kpa", "%s kPa is not below max_inlet_kpa %s kPa", fmtNum(m.Limits.MinInletKPa), fmtNum(m.Limits.MaxInletKPa))
@@ -481,8 +506,11 @@ func (v *validator) oven(r *rawMethod, m *Method) {
 	if v.err == nil && m.Oven.InitialC > tmax {
 		v.fail("oven.initial_c", "%s °C is above the column maximum %s °C", fmtNum(m.Oven.InitialC), fmtNum(tmax))
 	}
-	if v.err == nil && m.Oven.InitialC <= m.Limits.AmbientC {
-		v.fail("oven.initial_c", "%s °C is not above the ambient %s °C in [limits] (the oven cannot cool back to it)", fmtNum(m.Oven.InitialC), fmtNum(m.Limits.AmbientC))
+	if v.err == nil && m.Limits.HasCoolant && m.Oven.InitialC <= m.Limits.CoolantC {
+		v.fail("oven.initial_c", "%s °C is not above the coolant_c %s °C in [limits] (the oven cannot cool to it)", fmtNum(m.Oven.InitialC), fmtNum(m.Limits.CoolantC))
+	}
+	if v.err == nil && !m.Limits.HasCoolant && m.Oven.InitialC <= m.Limits.AmbientC {
+		v.fail("oven.initial_c", "%s °C is not above the ambient %s °C in [limits] (the oven cannot cool back to it without a coolant: set limits.coolant_c for a sub-ambient start)", fmtNum(m.Oven.InitialC), fmtNum(m.Limits.AmbientC))
 	}
 	m.Oven.InitialHoldMin = v.num("oven.initial_hold_min", o.InitialHoldMin, false, 0, nonNegative(10000), "min")
 	if len(o.Ramp) > MaxRamps {
@@ -648,11 +676,14 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 			c.DHDSCorr = v.num(base+".dH_dS_corr", rc.DHDSCorr, false, 0, bound{lo: -1, hi: 1}, "")
 		}
 		hasThermo := rc.DHkJ != nil || rc.DS != nil
-		if hasThermo || rc.RetentionIndex == nil {
+		switch {
+		case hasThermo || (rc.RetentionIndex == nil && rc.Formula == nil):
 			c.DHkJ = v.num(base+".dH_kJ_mol", rc.DHkJ, true, -40, bound{lo: -500, hi: 0, hiOpen: true}, "kJ/mol")
 			c.DS = v.num(base+".dS_J_mol_K", rc.DS, true, -80, bound{lo: -1000, hi: 200}, "J/(mol·K)")
-		} else {
+		case rc.RetentionIndex != nil:
 			c.FromIndex = true
+		default:
+			fromFormula(&c) // only a formula: a rough estimate (formulaestimate.go)
 		}
 		m.Compounds = append(m.Compounds, c)
 	}

@@ -3,12 +3,9 @@ package methodfile
 import (
 	"bytes"
 	"fmt"
-	"io"
-	"os"
-	"path/filepath"
 
-	"github.com/google/renameio/v2"
 	toml "github.com/pelletier/go-toml/v2"
+	"github.com/rampwise/rampwise/model/fsafe"
 )
 
 func ptr[T any](x T) *T { return &x }
@@ -112,7 +109,7 @@ func Marshal(m *Method) ([]byte, error) {
 		if c.AromaticRings != 0 {
 			rc.AromaticRings = ptr(int64(c.AromaticRings))
 		}
-		if !c.FromIndex {
+		if !c.FromIndex && !c.FromFormula {
 			rc.DHkJ = ptr(c.DHkJ)
 			rc.DS = ptr(c.DS)
 			if c.DCp != 0 {
@@ -217,44 +214,41 @@ func marshalGoal(m *Method, r *rawGoal) {
 	}
 }
 
-// WriteFile saves the method atomically: a temporary file in the same
-// folder, flushed to disk, then renamed over path. A failure leaves any
-// existing file untouched.
+// WriteFile saves the method at path. When path already holds a valid
+// method, the save changes only what differs, in place in its text
+// (comments, layout and quoting kept; see Update); otherwise the method is
+// written fresh. The write itself is fsafe.WriteFile: atomic, through
+// symlinks, owner and mode kept.
 func WriteFile(path string, m *Method) error {
-	data, err := Marshal(m)
+	_, err := Save(path, nil, m)
+	return err
+}
+
+// Save writes m at path over base: the text m was derived from (an input
+// file for optimize --out, the loaded text for the UI). A nil base means the
+// current content of path, if it is a regular file. It reports whether the
+// base's text was kept (false: written fresh, comments not kept).
+func Save(path string, base []byte, m *Method) (kept bool, err error) {
+	if base == nil {
+		if cur, err := fsafe.ReadRegular(path, MaxFileSize); err == nil {
+			base = cur
+		}
+	}
+	data, kept, err := Update(path, base, m)
 	if err != nil {
-		return fmt.Errorf("%s: %v", path, err)
+		return false, fmt.Errorf("%s: %v", path, err)
 	}
 	// Check what we write reads back before it replaces anything.
 	if _, err := Parse(path, data); err != nil {
-		return fmt.Errorf("refusing to save an invalid method: %v", err)
+		return false, fmt.Errorf("refusing to save an invalid method: %v", err)
 	}
-	return WriteAtomic(path, data)
+	return kept, WriteAtomic(path, data)
 }
 
-// WriteAtomic writes data to path through a flushed temporary file in the
-// same folder and a rename. A failure at any step removes the temporary file
-// and leaves any existing file at path untouched.
+// WriteAtomic writes data to path without ever leaving a half-written
+// file: see fsafe.WriteFile (atomic replace of a regular file, write-through
+// of a symlink's target, a device or a hard-linked file; owner, group and
+// mode kept). A failure leaves any existing file at path untouched.
 func WriteAtomic(path string, data []byte) error {
-	perm := os.FileMode(0o644)
-	if st, err := os.Stat(path); err == nil {
-		perm = st.Mode().Perm()
-	}
-	dir := filepath.Dir(path)
-	t, err := renameio.NewPendingFile(path, renameio.WithTempDir(dir), renameio.WithPermissions(perm))
-	if err != nil {
-		return fmt.Errorf("%s: cannot save: %v", path, err)
-	}
-	defer t.Cleanup()
-	if _, err := wrapWriter(t).Write(data); err != nil {
-		return fmt.Errorf("%s: cannot save (nothing was changed): %v", path, err)
-	}
-	if err := t.CloseAtomicallyReplace(); err != nil {
-		return fmt.Errorf("%s: cannot save (nothing was changed): %v", path, err)
-	}
-	return nil
+	return fsafe.WriteFile(path, data)
 }
-
-// wrapWriter lets tests put a failing writer (a full disk) between the
-// method and its temporary file.
-var wrapWriter = func(w io.Writer) io.Writer { return w }

@@ -163,6 +163,10 @@ type Compound struct {
 	// FromIndex is true when dH and dS were not in the file and were derived
 	// from the retention index and the ladder (the virtual-alkane rule).
 	FromIndex bool
+	// FromFormula is true when the file gave neither dH and dS nor a
+	// retention index, only a formula: dH and dS are then a rough estimate
+	// (FormulaEstimate) with a large uncertainty.
+	FromFormula bool
 	// Standard errors of dH (kJ/mol) and dS (J/(mol·K)) and their
 	// correlation, written by fit; HasSE is false when the file has none.
 	DHSE     float64
@@ -198,7 +202,8 @@ const kPa = 1000.0
 
 // ModelColumn is the column in SI units.
 func (m *Method) ModelColumn() model.Column {
-	return model.Column{
+	c := model.Column{
+		Kind:                  modelKind(m.Column.Kind),
 		Length:                m.Column.LengthM,
 		Diameter:              m.Column.DiameterMM * 1e-3,
 		Film:                  m.Column.FilmUM * 1e-6,
@@ -206,6 +211,15 @@ func (m *Method) ModelColumn() model.Column {
 		StationaryDiffusivity: m.Column.Diffusivity,
 		PlateHeightFactor:     m.Column.PlateHeight,
 	}
+	if c.Kind == model.Packed {
+		c.Particle = m.Column.ParticleUM * 1e-6
+		c.Porosity = m.Column.Porosity
+		c.GivenPhaseRatio = m.Column.PhaseRatio
+		c.EddyFactor = m.Column.EddyLambda
+		c.ObstructionFactor = m.Column.ObstructionGamma
+		c.MobileFactor = m.Column.MobileOmega
+	}
+	return c
 }
 
 // ModelCarrier is the carrier in SI units.
@@ -251,13 +265,18 @@ func ProgramFromModel(p model.Program) Oven {
 	return o
 }
 
-// ModelOven is the cool-down behaviour in SI units.
+// ModelOven is the cool-down behaviour in SI units; with a coolant the oven
+// cools toward it (MODEL.md §12).
 func (m *Method) ModelOven() model.Oven {
-	return model.Oven{
+	o := model.Oven{
 		Ambient:       m.Limits.AmbientC + model.ZeroCelsius,
 		CooldownTau:   m.Limits.CooldownTauMin * 60,
 		Equilibration: m.Limits.EquilibrationMin * 60,
 	}
+	if m.Limits.HasCoolant {
+		o.Coolant = m.Limits.CoolantC + model.ZeroCelsius
+	}
+	return o
 }
 
 // ModelCompounds converts the compounds to SI units. Every compound must

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/fsafe"
 )
 
 const demoPath = "../../testdata/demo.toml"
@@ -233,8 +234,8 @@ func TestSaveFullDiskKeepsOriginal(t *testing.T) {
 		t.Fatal(err)
 	}
 	orig, _ := os.ReadFile(path)
-	wrapWriter = func(w io.Writer) io.Writer { return &fullDisk{w: w, left: 200} }
-	defer func() { wrapWriter = func(w io.Writer) io.Writer { return w } }()
+	fsafe.WrapWriter = func(w io.Writer) io.Writer { return &fullDisk{w: w, left: 200} }
+	defer func() { fsafe.WrapWriter = func(w io.Writer) io.Writer { return w } }()
 	changed := m.Clone()
 	changed.Oven.InitialC = 45
 	err := WriteFile(path, changed)

@@ -2,8 +2,14 @@ package methodfile
 
 import (
 	"fmt"
+	"math"
+	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
+
+	"github.com/rampwise/rampwise/model/andi"
+	"github.com/rampwise/rampwise/model/peaktable"
 )
 
 // Run is one scouting injection: its oven program, any carrier settings
@@ -20,6 +26,94 @@ type Run struct {
 	Line       int      // where the run starts in its file
 	names      []string // retention keys in name order
 	hasCarrier bool
+
+	// From a data-system export (peaks = … or chromatogram = …): Source is
+	// "peaks" or "chromatogram", SourceFile the path as resolved against the
+	// runs file's folder. Peaks holds every peak of the run in time order,
+	// named or not; the named ones are also in Retention (and Widths).
+	// Trace is the detector signal of a chromatogram file.
+	Source     string
+	SourceFile string
+	Peaks      []Peak
+	Trace      *andi.Chromatogram
+	// Found is true when the peaks were found in the trace (the file had
+	// no peak table).
+	Found bool
+}
+
+// Peak is one measured peak of a run from a data-system export. Times and
+// widths in minutes (width at half height, 0 when not given).
+type Peak struct {
+	Name     string
+	TimeMin  float64
+	WidthMin float64
+	Area     float64
+	Height   float64
+	Line     int // line in a peak table, 0 otherwise
+}
+
+// Unnamed are the indices in Peaks of the peaks without a name.
+func (r *Run) Unnamed() []int {
+	var out []int
+	for i, p := range r.Peaks {
+		if p.Name == "" {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+// SetRetention records a measured retention time (and half-height width
+// when > 0) under a compound name, as an assignment does.
+func (r *Run) SetRetention(name string, tMin, wMin float64) {
+	if _, ok := r.Retention[name]; !ok {
+		r.names = append(r.names, name)
+		sort.Strings(r.names)
+	}
+	r.Retention[name] = tMin
+	if wMin > 0 {
+		r.Widths[name] = wMin
+	} else {
+		delete(r.Widths, name)
+	}
+}
+
+// DeleteRetention removes a compound's measured time and width.
+func (r *Run) DeleteRetention(name string) {
+	if _, ok := r.Retention[name]; !ok {
+		return
+	}
+	delete(r.Retention, name)
+	delete(r.Widths, name)
+	for i, n := range r.names {
+		if n == name {
+			r.names = append(r.names[:i:i], r.names[i+1:]...)
+			break
+		}
+	}
+}
+
+// CloneRuns copies a runs file deeply enough that assignments to the copy
+// leave the original alone (traces are shared, they are never changed).
+func (r *Runs) CloneRuns() *Runs {
+	c := *r
+	c.Runs = make([]Run, len(r.Runs))
+	for i, x := range r.Runs {
+		y := x
+		y.Retention = map[string]float64{}
+		for k, v := range x.Retention {
+			y.Retention[k] = v
+		}
+		y.Widths = map[string]float64{}
+		for k, v := range x.Widths {
+			y.Widths[k] = v
+		}
+		y.names = append([]string(nil), x.names...)
+		y.Peaks = append([]Peak(nil), x.Peaks...)
+		y.Oven.Ramps = append([]Ramp(nil), x.Oven.Ramps...)
+		c.Runs[i] = y
+	}
+	return &c
 }
 
 // Names are the compounds measured in the run, sorted.
@@ -42,6 +136,23 @@ type rawRun struct {
 	Carrier   *rawCarrier        `toml:"carrier"`
 	Retention map[string]float64 `toml:"retention_min"`
 	Width     map[string]float64 `toml:"width_min"`
+	Peaks     *string            `toml:"peaks"`
+	Chrom     *string            `toml:"chromatogram"`
+	Columns   *rawColumns        `toml:"columns"`
+}
+
+// rawColumns is [run.columns]: which peak-table columns hold what, by
+// header text or 1-based number, and what the reader must not guess.
+type rawColumns struct {
+	Time      any     `toml:"time"`
+	Name      any     `toml:"name"`
+	Area      any     `toml:"area"`
+	Height    any     `toml:"height"`
+	Width     any     `toml:"width"`
+	TimeUnit  *string `toml:"time_unit"`
+	WidthKind *string `toml:"width_kind"`
+	Separator *string `toml:"separator"`
+	Decimal   *string `toml:"decimal"`
 }
 
 type rawRuns struct {
@@ -106,7 +217,10 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 				v.err = rebase(csub.err, base+".")
 			}
 		}
-		if len(rr.Retention) == 0 && v.err == nil {
+		if v.err == nil {
+			v.exportedPeaks(name, base, &rr, &r)
+		}
+		if len(rr.Retention) == 0 && r.Source == "" && v.err == nil {
 			v.fail(base+".retention_min", "no measured retention times")
 		}
 		for cname, t := range rr.Retention {
@@ -202,4 +316,151 @@ func rebase(err error, prefix string) error {
 		return &c
 	}
 	return err
+}
+
+// columnRef reads one [run.columns] role: a header text or a 1-based
+// column number.
+func (v *validator) columnRef(path string, x any) string {
+	switch c := x.(type) {
+	case nil:
+		return ""
+	case string:
+		if strings.TrimSpace(c) == "" {
+			v.fail(path, "empty column name")
+		}
+		return c
+	case int64:
+		if c < 1 || c > 1000 {
+			v.fail(path, "column number %d is out of range [1, 1000]", c)
+		}
+		return strconv.FormatInt(c, 10)
+	}
+	v.fail(path, "wrong type: expected a header in quotes or a column number, got %T", x)
+	return ""
+}
+
+// exportedPeaks reads a run's peak table or chromatogram file, named
+// relative to the runs file's folder.
+func (v *validator) exportedPeaks(file, base string, rr *rawRun, r *Run) {
+	if rr.Peaks != nil && rr.Chrom != nil {
+		v.fail(base+".chromatogram", "give peaks or chromatogram, not both")
+		return
+	}
+	if (rr.Peaks != nil || rr.Chrom != nil) && len(rr.Retention) > 0 {
+		key := base + ".peaks"
+		if rr.Chrom != nil {
+			key = base + ".chromatogram"
+		}
+		v.fail(key, "give [run.retention_min] or a data-system export, not both")
+		return
+	}
+	if rr.Columns != nil && rr.Peaks == nil {
+		v.fail(base+".columns", "[run.columns] describes a peak table, but the run has no peaks = file")
+		return
+	}
+	resolve := func(p string) string {
+		if filepath.IsAbs(p) {
+			return p
+		}
+		return filepath.Join(filepath.Dir(file), p)
+	}
+	var peaks []Peak
+	var key string
+	switch {
+	case rr.Peaks != nil:
+		key = base + ".peaks"
+		if strings.TrimSpace(*rr.Peaks) == "" {
+			v.fail(key, "empty file name")
+			return
+		}
+		var cols peaktable.Columns
+		if c := rr.Columns; c != nil {
+			cb := base + ".columns."
+			cols.Time = v.columnRef(cb+"time", c.Time)
+			cols.Name = v.columnRef(cb+"name", c.Name)
+			cols.Area = v.columnRef(cb+"area", c.Area)
+			cols.Height = v.columnRef(cb+"height", c.Height)
+			cols.Width = v.columnRef(cb+"width", c.Width)
+			cols.TimeUnit = v.str(cb+"time_unit", c.TimeUnit, false, "", "min", "s")
+			cols.WidthKind = v.str(cb+"width_kind", c.WidthKind, false, "", "half-height", "base", "sigma")
+			cols.Separator = v.str(cb+"separator", c.Separator, false, "", ",", ";", "tab")
+			cols.Decimal = v.str(cb+"decimal", c.Decimal, false, "", ".", ",")
+			if v.err != nil {
+				return
+			}
+		}
+		r.Source, r.SourceFile = "peaks", resolve(*rr.Peaks)
+		tab, err := peaktable.Read(r.SourceFile, cols)
+		if err != nil {
+			v.fail(key, "%v", err)
+			return
+		}
+		for _, p := range tab.Peaks {
+			peaks = append(peaks, Peak{Name: p.Name, TimeMin: p.TimeMin, WidthMin: p.WidthMin, Area: p.Area, Height: p.Height, Line: p.Line})
+		}
+	default:
+		if rr.Chrom == nil {
+			return
+		}
+		key = base + ".chromatogram"
+		if strings.TrimSpace(*rr.Chrom) == "" {
+			v.fail(key, "empty file name")
+			return
+		}
+		r.Source, r.SourceFile = "chromatogram", resolve(*rr.Chrom)
+		c, err := andi.Read(r.SourceFile)
+		if err != nil {
+			v.fail(key, "%v", err)
+			return
+		}
+		r.Trace = c
+		src := c.Peaks
+		if src == nil {
+			src = c.FindPeaks(andi.FindOptions{})
+			r.Found = true
+		}
+		for _, p := range src {
+			peaks = append(peaks, Peak{Name: p.Name, TimeMin: p.TimeMin, WidthMin: p.WidthMin, Area: p.Area, Height: p.Height})
+		}
+	}
+	if len(peaks) == 0 {
+		v.fail(key, "%s: no peaks", r.SourceFile)
+		return
+	}
+	if len(peaks) > MaxCompounds*5 {
+		v.fail(key, "%s: %d peaks, more than %d", r.SourceFile, len(peaks), MaxCompounds*5)
+		return
+	}
+	sort.SliceStable(peaks, func(a, b int) bool { return peaks[a].TimeMin < peaks[b].TimeMin })
+	at := func(p Peak) string {
+		if p.Line > 0 {
+			return fmt.Sprintf("%s:%d", r.SourceFile, p.Line)
+		}
+		return r.SourceFile
+	}
+	seen := map[string]Peak{}
+	for _, p := range peaks {
+		if !(p.TimeMin > 0) || p.TimeMin > 10000 || math.IsInf(p.TimeMin, 0) {
+			v.fail(key, "%s: retention time %g min is out of range (0, 10000]", at(p), p.TimeMin)
+			return
+		}
+		if p.Name == "" {
+			continue
+		}
+		if q, dup := seen[p.Name]; dup {
+			v.fail(key, "%s: %q named twice (also at %.4f min)", at(p), p.Name, q.TimeMin)
+			return
+		}
+		seen[p.Name] = p
+		if r.HasHoldup && p.TimeMin <= r.HoldupMin {
+			v.fail(key, "%s: %q at %s min is not after the run's holdup time %s min", at(p), p.Name, fmtNum(p.TimeMin), fmtNum(r.HoldupMin))
+			return
+		}
+		r.Retention[p.Name] = p.TimeMin
+		r.names = append(r.names, p.Name)
+		if p.WidthMin > 0 && p.WidthMin <= 100 {
+			r.Widths[p.Name] = p.WidthMin
+		}
+	}
+	r.Peaks = peaks
 }

@@ -77,7 +77,7 @@ func Describe(m *methodfile.Method) string {
 	if g.Mode == "constant-pressure" {
 		flow = fmt.Sprintf("%s kPa const. pressure", num(g.InletKPa))
 	}
-	return fmt.Sprintf("%s m × %s mm × %s µm · %s %s · %s", num(c.LengthM), num(c.DiameterMM), num(c.FilmUM), g.Gas, flow, Program(m.Oven))
+	return fmt.Sprintf("%s · %s %s · %s", c.Describe(), g.Gas, flow, Program(m.Oven))
 }
 
 // Program is the oven program in one line.

@@ -163,3 +163,35 @@ func stripNaN(p []sweep.Point) []sweep.Point {
 	}
 	return out
 }
+
+// The sheets of the packed and porous-layer demos name the kind and its
+// phase ratio; the porous-layer demo starts below ambient, so its sheet says
+// that a coolant is needed and gives the cryogen cautions (MODEL.md §12).
+func TestSheetKindsAndCoolant(t *testing.T) {
+	for _, c := range []struct {
+		file    string
+		want    []string
+		coolant bool
+	}{
+		{"../../testdata/demo-packed.toml", []string{"packed 3 m × 2 mm (165 µm particles", "| phase ratio | 6.0 |"}, false},
+		{"../../testdata/demo-porous-layer.toml", []string{"porous-layer 30 m × 0.32 mm × 10 µm layer", "| phase ratio | 7.3 |", "a coolant is needed", "cold burns", "asphyxiate"}, true},
+	} {
+		m, err := methodfile.ReadFile(c.file)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s, err := Simulate(m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sheet := string(s.Sheet())
+		for _, w := range c.want {
+			if !strings.Contains(sheet, w) {
+				t.Errorf("%s: sheet lacks %q", c.file, w)
+			}
+		}
+		if got := strings.Contains(sheet, "cold burns"); got != c.coolant {
+			t.Errorf("%s: cryogen caution %v, want %v", c.file, got, c.coolant)
+		}
+	}
+}

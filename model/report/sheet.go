@@ -34,7 +34,12 @@ func (s *Sim) Sheet() []byte {
 		phase = "(not named)"
 	}
 	fmt.Fprintf(&b, "| stationary phase | %s |\n", phase)
-	fmt.Fprintf(&b, "| column | %s m × %s mm i.d. × %s µm film, maximum %s °C |\n", num(m.Column.LengthM), num(m.Column.DiameterMM), num(m.Column.FilmUM), num(m.Column.MaxTempC))
+	if m.Column.Kind == "packed" || m.Column.Kind == "porous-layer" {
+		fmt.Fprintf(&b, "| column | %s, maximum %s °C |\n", m.Column.Describe(), num(m.Column.MaxTempC))
+		fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
+	} else {
+		fmt.Fprintf(&b, "| column | %s m × %s mm i.d. × %s µm film, maximum %s °C |\n", num(m.Column.LengthM), num(m.Column.DiameterMM), num(m.Column.FilmUM), num(m.Column.MaxTempC))
+	}
 	fmt.Fprintf(&b, "| carrier gas | %s |\n", m.Carrier.Gas)
 	if m.Carrier.Mode == "constant-pressure" {
 		fmt.Fprintf(&b, "| pressure mode | constant pressure, %s kPa (gauge) |\n", num(m.Carrier.InletKPa))
@@ -122,6 +127,9 @@ func (s *Sim) Sheet() []byte {
 	fmt.Fprintf(&b, "- The oven, inlet and detector are hot; let them cool before touching the column or fittings.\n")
 	if m.Carrier.Gas == "hydrogen" {
 		fmt.Fprintf(&b, "- %s\n", model.HydrogenCaution)
+	}
+	if note := checks.CoolantNote(m); note != "" {
+		fmt.Fprintf(&b, "- Coolant: %s.\n- %s\n", note, model.CryogenCaution)
 	}
 	fmt.Fprintf(&b, "- Follow your local codes and the instrument maker's guidance for gases, pressurised cylinders and heated zones.\n")
 	for _, w := range checks.Warnings(m, s.System, &s.Result) {

@@ -1,0 +1,107 @@
+package methodfile
+
+import (
+	"fmt"
+
+	"github.com/rampwise/rampwise/model"
+)
+
+// kindRules are the [column] ranges of one column kind (MODEL.md §10-11).
+type kindRules struct {
+	length, diameter, film bound
+	filmRequired           bool
+	filmDefault            float64 // µm, when not required
+	filmWord               string  // what film_um is for this kind
+	diffusivity            float64 // default stationary_diffusivity_m2_s
+}
+
+// rulesFor gives the ranges of a kind: a wall-coated tube up to 1 mm with a
+// film up to 50 µm; a porous-layer tube with a 1-60 µm layer and a layer
+// diffusivity of 1e-7 m²/s (MODEL.md §11); a packed tube of 1-6 mm and
+// 0.3-10 m with an effective liquid film of 1 µm by default (§10).
+func rulesFor(kind string) kindRules {
+	switch kind {
+	case "packed":
+		return kindRules{
+			length:      bound{lo: 0.3, hi: 10},
+			diameter:    bound{lo: 1, hi: 6},
+			film:        bound{lo: 0, hi: 20, loOpen: true},
+			filmDefault: model.DefaultPackedFilm * 1e6,
+			filmWord:    "liquid film",
+			diffusivity: model.DefaultDs,
+		}
+	case "porous-layer":
+		return kindRules{
+			length:       bound{lo: 0, hi: 300, loOpen: true},
+			diameter:     bound{lo: 0, hi: 1.0, loOpen: true},
+			film:         bound{lo: 1, hi: 60},
+			filmRequired: true,
+			filmWord:     "layer",
+			diffusivity:  model.DefaultLayerDs,
+		}
+	}
+	return kindRules{
+		length:       bound{lo: 0, hi: 300, loOpen: true},
+		diameter:     bound{lo: 0, hi: 1.0, loOpen: true},
+		film:         bound{lo: 0, hi: 50, loOpen: true},
+		filmRequired: true,
+		filmWord:     "film",
+		diffusivity:  model.DefaultDs,
+	}
+}
+
+// packedKeys reads the packed-column keys of [column] (MODEL.md §10): on a
+// packed column particle_um (50-400 µm) and phase_ratio (2-200) are
+// required, porosity (0.30-0.50, default 0.40) and the van Deemter factors
+// eddy_lambda (default 0.8), obstruction_gamma (0.7) and mobile_omega (0.1)
+// optional; on an open tube each of them is an error naming the key.
+func (v *validator) packedKeys(c *rawColumn, m *Method) {
+	if m.Column.Kind != "packed" {
+		for _, k := range []struct {
+			key   string
+			given bool
+		}{
+			{"particle_um", c.ParticleUM != nil}, {"porosity", c.Porosity != nil}, {"phase_ratio", c.PhaseRatio != nil},
+			{"eddy_lambda", c.EddyLambda != nil}, {"obstruction_gamma", c.ObstrGamma != nil}, {"mobile_omega", c.MobileOmega != nil},
+		} {
+			if k.given {
+				v.fail("column."+k.key, "does not belong to a %s column (it is a packed column's key: set kind = \"packed\" or remove it)", m.Column.Kind)
+			}
+		}
+		return
+	}
+	col := &m.Column
+	col.ParticleUM = v.num("column.particle_um", c.ParticleUM, true, 165, bound{lo: 50, hi: 400}, "µm")
+	col.HasParticle = c.ParticleUM != nil
+	col.PhaseRatio = v.num("column.phase_ratio", c.PhaseRatio, true, 15, bound{lo: 2, hi: 200}, "")
+	col.HasPhaseRatio = c.PhaseRatio != nil
+	col.Porosity = v.num("column.porosity", c.Porosity, false, model.DefaultPorosity, bound{lo: 0.30, hi: 0.50}, "")
+	col.HasPorosity = c.Porosity != nil
+	// zero would mean "default" in the model, so the factors are positive
+	col.EddyLambda = v.num("column.eddy_lambda", c.EddyLambda, false, model.DefaultEddyFactor, positive(10), "")
+	col.ObstructionGamma = v.num("column.obstruction_gamma", c.ObstrGamma, false, model.DefaultObstructionFactor, positive(2), "")
+	col.MobileOmega = v.num("column.mobile_omega", c.MobileOmega, false, model.DefaultMobileFactor, positive(10), "")
+}
+
+// modelKind is the model's column kind of the file's kind name.
+func modelKind(kind string) model.ColumnKind {
+	k, err := model.ParseColumnKind(kind)
+	if err != nil {
+		return model.WallCoated // "" is the default; the decoder refuses others
+	}
+	return k
+}
+
+// Describe is a short description of the column for screens and sheets,
+// e.g. "packed 2 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 15)";
+// a wall-coated column is "30 m × 0.25 mm × 0.25 µm".
+func (c Column) Describe() string {
+	switch c.Kind {
+	case "packed":
+		return fmt.Sprintf("packed %s m × %s mm (%s µm particles, porosity %s, phase ratio %s)",
+			fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.ParticleUM), fmtNum(c.Porosity), fmtNum(c.PhaseRatio))
+	case "porous-layer":
+		return fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
+	}
+	return fmt.Sprintf("%s m × %s mm × %s µm", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
+}

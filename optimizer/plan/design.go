@@ -1,0 +1,231 @@
+package plan
+
+import (
+	"math"
+	"sort"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// designChoice is the chosen scouting run.
+type designChoice struct {
+	oven    methodfile.Oven
+	score   float64 // summed posterior variance of the weighed pairs
+	sdAfter float64 // SD of the critical pair's Rs after the run
+	pairs   int
+}
+
+// pairSens is one pair's resolution gradients at the optimized program.
+type pairSens struct {
+	a, b     int
+	ga, gb   [2]float64
+	critical bool
+}
+
+// scoutLimits are the bounds every scouting program keeps: the lowest
+// start, the highest temperature (column maximum, detector − 20 °C, the
+// highest hold and the inlet-pressure limit), the rates and holds.
+type scoutLimits struct {
+	lowC, highC float64
+	maxRate     float64
+	maxHoldMin  float64
+	bands       []methodfile.RateBand
+}
+
+func (st *state) scoutLimits() scoutLimits {
+	l := st.m.Limits
+	sl := scoutLimits{lowC: l.OvenMinC, highC: st.m.Column.MaxTempC, maxRate: l.MaxRateCMin, maxHoldMin: l.MaxHoldMin, bands: l.RateBands}
+	if st.m.Injection.HasDetector {
+		sl.highC = math.Min(sl.highC, st.m.Injection.DetectorTempC-20) // common practice
+	}
+	if st.m.Column.HasMaxIsothermal {
+		sl.highC = math.Min(sl.highC, st.m.Column.MaxIsothermalC)
+	}
+	if l.MaxInletKPa > 0 {
+		cond := st.sys.Cond
+		if t, over := cond.OverPressure(l.MaxInletKPa*1000, sl.lowC+model.ZeroCelsius, sl.highC+model.ZeroCelsius); over {
+			sl.highC = t - model.ZeroCelsius - 1
+		}
+	}
+	if sl.maxHoldMin <= 0 {
+		sl.maxHoldMin = 10
+	}
+	sl.highC = math.Floor(sl.highC/stepOr(l.TempStepC, 0.1)) * stepOr(l.TempStepC, 0.1)
+	return sl
+}
+
+// rateTo is the highest rate allowed for a ramp that ends at finalC: the
+// oven's limit lowered by every rate band the ramp reaches into.
+func (sl scoutLimits) rateTo(finalC float64) float64 {
+	r := sl.maxRate
+	for _, b := range sl.bands {
+		if finalC > b.AboveC {
+			r = math.Min(r, b.MaxRateCMin)
+		}
+	}
+	return r
+}
+
+// design picks, among scouting programs within the limits, the one after
+// which the summed variance of the resolutions of the pairs that are or
+// could become critical at the optimized program is least.
+func (st *state) design(opt methodfile.Oven, target, z float64) (*designChoice, error) {
+	// pairs at the optimized program
+	if err := st.sens.eval(methodfile.ProgramToModel(opt)); err != nil {
+		return nil, err
+	}
+	s := st.sens
+	var pairs []pairSens
+	critRs := math.Inf(1)
+	crit := -1
+	var order []int
+	for i := 0; i < s.n; i++ {
+		if s.eluted[i] {
+			order = append(order, i)
+		}
+	}
+	sort.Slice(order, func(a, b int) bool { return s.t[order[a]] < s.t[order[b]] })
+	for x := 0; x < len(order); x++ {
+		for y := x + 1; y < len(order); y++ {
+			a, b := order[x], order[y]
+			if !st.sys.Compounds[a].Target && !st.sys.Compounds[b].Target {
+				continue
+			}
+			rs, ga, gb := s.resolution(a, b)
+			sd := rsSD(ga, gb, st.cov[a], st.cov[b])
+			// could it become critical: within three SDs of the target
+			// plus half a unit of resolution
+			if rs-3*sd > target+0.5 {
+				continue
+			}
+			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb})
+			if y == x+1 && rs < critRs {
+				critRs, crit = rs, len(pairs)-1
+			}
+		}
+	}
+	if crit >= 0 {
+		pairs[crit].critical = true
+	}
+	if len(pairs) == 0 {
+		return nil, nil
+	}
+	s2 := st.sigmaT * st.sigmaT
+	type scored struct {
+		designChoice
+		dur float64
+	}
+	var all []scored
+	post := make([]cov2, s.n)
+	for _, cand := range st.candidates(opt) {
+		prog := methodfile.ProgramToModel(cand)
+		if err := s.eval(prog); err != nil {
+			continue
+		}
+		for i := 0; i < s.n; i++ {
+			post[i] = st.cov[i]
+			if s.eluted[i] {
+				post[i] = st.cov[i].update(s.dt[i], s2)
+			}
+		}
+		score, critSD := 0.0, 0.0
+		for _, p := range pairs {
+			v := post[p.a].quad(p.ga) + post[p.b].quad(p.gb)
+			score += v
+			if p.critical {
+				critSD = math.Sqrt(math.Max(v, 0))
+			}
+		}
+		all = append(all, scored{designChoice{oven: cand, score: score, sdAfter: critSD, pairs: len(pairs)}, prog.RunTime()})
+	}
+	if len(all) == 0 {
+		return nil, nil
+	}
+	least := math.Inf(1)
+	for _, c := range all {
+		least = math.Min(least, c.score)
+	}
+	// the shortest run among those within 2 % of the least variance
+	var bestC *designChoice
+	bestTime := math.Inf(1)
+	for i := range all {
+		if all[i].score <= 1.02*least && all[i].dur < bestTime {
+			bestC, bestTime = &all[i].designChoice, all[i].dur
+		}
+	}
+	return bestC, nil
+}
+
+// candidates are the scouting programs considered: linear ramps from a few
+// starts at rates across the oven's range to the highest allowed
+// temperature, and the optimized program itself continued to that
+// temperature; each ends with a hold long enough for every compound to
+// elute, with room for its retention uncertainty.
+func (st *state) candidates(opt methodfile.Oven) []methodfile.Oven {
+	sl := st.scoutLimits()
+	var out []methodfile.Oven
+	starts := []float64{sl.lowC, sl.lowC + 20, sl.lowC + 40}
+	if opt.InitialC >= sl.lowC && opt.InitialC < sl.highC {
+		starts = append(starts, opt.InitialC)
+	}
+	rates := []float64{2, 3, 4, 5, 7, 10, 15, 20, 25, 30, 40, 50, 60, 80, 100}
+	for _, t0 := range starts {
+		if t0 >= sl.highC {
+			continue
+		}
+		for _, r := range rates {
+			r = math.Min(r, sl.rateTo(sl.highC))
+			o := methodfile.Oven{InitialC: t0, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: r, FinalC: sl.highC}}}
+			out = append(out, st.finish(o, sl))
+			if r >= sl.rateTo(sl.highC) {
+				break
+			}
+		}
+	}
+	// the optimized program, continued
+	if len(opt.Ramps) > 0 || opt.InitialC < sl.highC {
+		o := opt
+		o.Ramps = append([]methodfile.Ramp(nil), opt.Ramps...)
+		last := o.InitialC
+		rate := 10.0
+		if n := len(o.Ramps); n > 0 {
+			last, rate = o.Ramps[n-1].FinalC, o.Ramps[n-1].RateCMin
+		}
+		if last < sl.highC {
+			o.Ramps = append(o.Ramps, methodfile.Ramp{RateCMin: math.Min(rate, sl.rateTo(sl.highC)), FinalC: sl.highC})
+		}
+		out = append(out, st.finish(o, sl))
+	}
+	return out
+}
+
+// finish sets the last hold so that every compound elutes before the end
+// (predicted time plus three SDs of its retention time plus half a minute,
+// at most the longest hold) and puts the program on the keypad steps.
+func (st *state) finish(o methodfile.Oven, sl scoutLimits) methodfile.Oven {
+	o = onSteps(o, st.m.Limits)
+	if len(o.Ramps) == 0 {
+		return o
+	}
+	last := &o.Ramps[len(o.Ramps)-1]
+	last.HoldMin = sl.maxHoldMin
+	prog := methodfile.ProgramToModel(o)
+	if err := st.sens.eval(prog); err != nil {
+		return o
+	}
+	s := st.sens
+	end := 0.0
+	for i := 0; i < s.n; i++ {
+		if math.IsInf(s.t[i], 0) || s.t[i] > s.end {
+			continue
+		}
+		// the SD of a retention time along the ΔH, ΔS directions
+		sd := math.Sqrt(math.Max(0, st.cov[i].quad(s.dt[i])))
+		end = math.Max(end, s.t[i]+3*sd+30)
+	}
+	rampEnd := prog.RunTime() - last.HoldMin*60
+	hold := math.Max(0, end-rampEnd) / 60
+	last.HoldMin = math.Min(sl.maxHoldMin, hold)
+	return onSteps(o, st.m.Limits)
+}

@@ -1,0 +1,233 @@
+package plan
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"sort"
+	"strconv"
+	"testing"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
+)
+
+// the optimizer's effort in the loop tests: smaller than the command's, so
+// that the study stays affordable; the plan's decisions do not depend on
+// the last fraction of a percent of run time.
+var testOptimizer = optimizer.Settings{Starts: 8, Evaluations: 1200, Restarts: 1, Workers: 1}
+
+// outcome of one sample.
+type outcome struct {
+	injections   int  // until a verification run met the target
+	verified     bool // ended with a verification run that met the target
+	failedChecks int  // verification runs that did not meet it
+	runTime      float64
+	trueRs       float64 // noise-free resolution of the verified program
+	done         bool    // the plan after the verification said done
+}
+
+// playPlan plays plan → inject → fit → plan (the fit is inside Next) until
+// a verification run meets the target, for at most maxInjections.
+func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool) outcome {
+	truth, rough := newSample(t, seed)
+	l := &lab{truth: truth, rng: rand.New(rand.NewPCG(seed, 99))}
+	var out outcome
+	ctx := context.Background()
+	for k := 1; k <= maxInjections; k++ {
+		runs, err := l.runsFile(rough)
+		if err != nil {
+			t.Fatalf("seed %d: runs file: %v\n%s", seed, err, l.runs.String())
+		}
+		p, err := Next(ctx, rough, runs, Settings{Optimizer: testOptimizer})
+		if err != nil {
+			t.Fatalf("seed %d: plan: %v", seed, err)
+		}
+		if p.Action == Done {
+			t.Logf("seed %d: done before a verification: %s", seed, p.Reason)
+			return out
+		}
+		ms, err := l.inject(fmt.Sprintf("run-%d", k), p.Oven)
+		if err != nil {
+			t.Fatalf("seed %d: inject: %v", seed, err)
+		}
+		out.injections = k
+		if p.Action != Verify {
+			continue
+		}
+		rs, all := ms.minRs()
+		if !all || rs < truth.Goal.MinResolution {
+			out.failedChecks++
+			t.Logf("seed %d: verification %d failed: measured Rs %.3f (predicted %.3f ± %.3f)", seed, k, rs, p.ExpectedMinResolution, p.ExpectedSD)
+			continue
+		}
+		out.verified = true
+		out.runTime = methodfile.ProgramToModel(p.Oven).RunTime() / 60
+		out.trueRs = rampRsOf(t, truth, p.Oven)
+		if confirm {
+			runs, err := l.runsFile(rough)
+			if err != nil {
+				t.Fatal(err)
+			}
+			q, err := Next(ctx, rough, runs, Settings{Optimizer: testOptimizer})
+			if err != nil {
+				t.Fatal(err)
+			}
+			out.done = q.Action == Done
+			if !out.done {
+				t.Logf("seed %d: after a passing verification the plan says %s: %s", seed, q.Action, q.Reason)
+			}
+		}
+		return out
+	}
+	return out
+}
+
+// playHabit is the usual habit on the same sample: three linear ramps (5,
+// 10 and 20 °C/min from 40 °C to 300 °C), fit, optimize at the target,
+// verify; a failed verification is added to the runs and the loop refits
+// and verifies again.
+func playHabit(t testing.TB, seed uint64, maxInjections int) outcome {
+	truth, rough := newSample(t, seed)
+	l := &lab{truth: truth, rng: rand.New(rand.NewPCG(seed, 99))}
+	var out outcome
+	for i, r := range []float64{5, 10, 20} {
+		o := methodfile.Oven{InitialC: 40, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: r, FinalC: 300, HoldMin: 10}}}
+		if _, err := l.inject(fmt.Sprintf("ramp-%d", i+1), o); err != nil {
+			t.Fatal(err)
+		}
+	}
+	out.injections = 3
+	for out.injections < maxInjections {
+		runs, err := l.runsFile(rough)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rep, err := calibrate.Fit(rough, runs, calibrate.Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := rep.Method
+		sys, err := m.System()
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := optimizer.Optimize(context.Background(), optimizer.FromMethod(m, sys), testOptimizer)
+		if err != nil {
+			t.Fatal(err)
+		}
+		oven, _, err := optimizer.KeypadProgram(m, sys, res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ms, err := l.inject(fmt.Sprintf("verify-%d", out.injections+1), oven)
+		if err != nil {
+			t.Fatal(err)
+		}
+		out.injections++
+		if rs, all := ms.minRs(); all && rs >= truth.Goal.MinResolution {
+			out.verified = true
+			out.runTime = methodfile.ProgramToModel(oven).RunTime() / 60
+			return out
+		}
+		out.failedChecks++
+	}
+	return out
+}
+
+// rampRsOf is the noise-free minimum resolution of a program on the truth.
+func rampRsOf(t testing.TB, m *methodfile.Method, o methodfile.Oven) float64 {
+	mm := m.Clone()
+	mm.Oven = o
+	sys, err := mm.System()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var res model.Result
+	if err := sys.Simulate(mm.ModelProgram(), &res); err != nil {
+		t.Fatal(err)
+	}
+	if res.TargetsNotEluted > 0 {
+		return 0
+	}
+	return res.MinResolution
+}
+
+// TestLoopFewestInjections plays the planning loop on random samples whose
+// parameters the planner never sees and compares it with the three-ramps
+// habit on the same samples. The sample count is small by default; set
+// RAMPWISE_PLAN_STUDY=N for the full study (N samples).
+func TestLoopFewestInjections(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plays the whole loop")
+	}
+	n := 2
+	if s := os.Getenv("RAMPWISE_PLAN_STUDY"); s != "" {
+		v, err := strconv.Atoi(s)
+		if err != nil || v < 1 {
+			t.Fatalf("RAMPWISE_PLAN_STUDY=%q: want a sample count", s)
+		}
+		n = v
+	}
+	const maxInjections = 6
+	var planInj, habitInj []float64
+	planFail, habitFail, planUnverified, habitUnverified, notDone := 0, 0, 0, 0, 0
+	var ratio []float64
+	for i := 0; i < n; i++ {
+		seed := uint64(1000 + i)
+		p := playPlan(t, seed, maxInjections, true)
+		h := playHabit(t, seed, maxInjections)
+		t.Logf("sample %d: plan %d injections (verified %v, failed checks %d, run %.2f min, true Rs %.3f, done %v); habit %d (verified %v, failed checks %d, run %.2f min)",
+			seed, p.injections, p.verified, p.failedChecks, p.runTime, p.trueRs, p.done, h.injections, h.verified, h.failedChecks, h.runTime)
+		planFail += p.failedChecks
+		habitFail += h.failedChecks
+		if !p.verified {
+			planUnverified++
+		} else {
+			planInj = append(planInj, float64(p.injections))
+			if !p.done {
+				notDone++
+			}
+		}
+		if !h.verified {
+			habitUnverified++
+		} else {
+			habitInj = append(habitInj, float64(h.injections))
+		}
+		if p.verified && h.verified {
+			ratio = append(ratio, p.runTime/h.runTime)
+		}
+		if p.verified && p.injections > 3 {
+			t.Errorf("sample %d: the plan took %d injections (done-when: at most 3)", seed, p.injections)
+		}
+		if p.failedChecks > 0 {
+			t.Errorf("sample %d: %d failed verification runs", seed, p.failedChecks)
+		}
+		if !p.verified {
+			t.Errorf("sample %d: no verified method within %d injections", seed, maxInjections)
+		}
+	}
+	t.Logf("plan:  %d samples, injections median %.0f, 90th percentile %.0f, max %.0f; failed verification runs %d; unverified %d; not 'done' after passing %d",
+		n, quantile(planInj, 0.5), quantile(planInj, 0.9), quantile(planInj, 1), planFail, planUnverified, notDone)
+	t.Logf("habit: %d samples, injections median %.0f, 90th percentile %.0f, max %.0f; failed verification runs %d; unverified %d",
+		n, quantile(habitInj, 0.5), quantile(habitInj, 0.9), quantile(habitInj, 1), habitFail, habitUnverified)
+	t.Logf("run time of the verified program, plan / habit: median %.3f", quantile(ratio, 0.5))
+}
+
+// quantile is the q-quantile (nearest rank) of xs; NaN when empty.
+func quantile(xs []float64, q float64) float64 {
+	if len(xs) == 0 {
+		return math.NaN()
+	}
+	s := append([]float64(nil), xs...)
+	sort.Float64s(s)
+	i := int(math.Ceil(q*float64(len(s)))) - 1
+	if i < 0 {
+		i = 0
+	}
+	return s[i]
+}

@@ -1,0 +1,7 @@
+package tui
+
+import "github.com/rampwise/rampwise/model/textsafe"
+
+// inert is how every string from a file (names, title, phase, paths)
+// reaches the screen: control characters escaped, never raw.
+func inert(s string) string { return textsafe.Inert(s) }
