@@ -397,9 +397,11 @@ func (d *rankingDialog) render() {
 			if !o.Result.Feasible() {
 				t = "not met"
 			}
-			car := fmt.Sprintf("%s mL/min", fmtNum(o.Method.Carrier.FlowMLMin, 2, 2))
-			if o.Method.Carrier.Mode == "constant-pressure" {
-				car = fmt.Sprintf("%s kPa const", fmtNum(o.Method.Carrier.InletKPa, 1, 1))
+			// the carrier setting the optimizer chose with the program
+			c := optimizer.Apply(o.Method, o.Result).Carrier
+			car := fmt.Sprintf("%s mL/min", fmtNum(c.FlowMLMin, 2, 2))
+			if c.Mode == "constant-pressure" {
+				car = fmt.Sprintf("%s kPa const", fmtNum(c.InletKPa, 1, 1))
 			}
 			text += fmt.Sprintf("%8s %5.2f %-13s %-9s %6.0f", t, o.Result.Sim.MinResolution, car,
 				fmt.Sprintf("%.0f→%.0f", o.InletStart/1000, o.InletEnd/1000), o.MaxTemp-model.ZeroCelsius)
