@@ -13,7 +13,7 @@ const (
 	// searchMargin is kept above the target (and robust margin) during the
 	// continuous search, so that the keypad polish starts from a program
 	// that is still feasible after rounding to the steps.
-	searchMargin = 0.003
+	searchMargin = 0.0005
 )
 
 // evaluator scores programs on one rig; one per goroutine (it owns its
