@@ -66,7 +66,7 @@ func (sh *shared) rigFor(value float64) (*rig, error) {
 			return nil, err
 		}
 	}
-	rg := &rig{value: value, sys: sys}
+	rg := newRig(value, sys, sh.p.Robust)
 	sh.rigs[value] = rg
 	return rg, nil
 }

@@ -164,7 +164,7 @@ func (e *evaluator) limitMiss(q model.Program, end float64, res *model.Result) f
 		if h <= 1e-9 {
 			return
 		}
-		if over := h - l.MaxHold; over > 1e-6 && !(p.Bakeout.On && temp == p.Bakeout.Temp) {
+		if over := h - l.MaxHold; over > 1e-6 && !p.isBakeout(temp, h) {
 			miss += 1 + over/60
 		}
 		if over := temp - l.MaxIsothermal; over > 1e-9 {
@@ -328,4 +328,10 @@ func (p *Problem) bakeoutOven(o Oven) Oven {
 	rate := floorGrid(p.maxRateTo(b.Temp)*60, p.Steps.RateCMin)
 	o.Ramps = append(o.Ramps, Ramp{RateCMin: rate, FinalC: tc, HoldMin: hm})
 	return o
+}
+
+// isBakeout reports whether a hold of h s at temp is (at most) the
+// bake-out step, which the hold limit does not bound.
+func (p *Problem) isBakeout(temp, h float64) bool {
+	return p.Bakeout.On && math.Abs(temp-p.Bakeout.Temp) < 1e-9 && h <= p.Bakeout.Hold+1e-6
 }

@@ -3,6 +3,7 @@ package optimizer
 import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/robust"
 )
 
 // FromMethod builds the problem a method file describes: its goal, its
@@ -49,23 +50,7 @@ func FromMethod(m *methodfile.Method, sys *model.System) Problem {
 	if m.Goal.HasBakeout {
 		p.Bakeout = Bakeout{On: true, Temp: m.Goal.BakeoutC + model.ZeroCelsius, Hold: m.Goal.BakeoutMin * 60}
 	}
-	rb := m.Goal.Robust
-	p.Robust = Robust{
-		OvenOffset:    rb.OvenOffsetC,
-		FlowPct:       rb.FlowPct,
-		EfficiencyPct: rb.EfficiencyPct,
-		Z:             rb.RetentionSigma,
-		PriorDH:       rb.PriorDHkJ * 1000,
-		PriorDS:       rb.PriorDS,
-	}
-	if rb.RetentionSigma > 0 {
-		p.Robust.Retention = make([]RetentionSE, len(m.Compounds))
-		for i, c := range m.Compounds {
-			if c.HasSE {
-				p.Robust.Retention[i] = RetentionSE{DH: c.DHSE * 1000, DS: c.DSSE, Corr: c.DHDSCorr}
-			}
-		}
-	}
+	p.Robust = robust.FromMethod(m)
 	return p
 }
 
@@ -108,19 +93,8 @@ func KeypadProgram(m *methodfile.Method, sys *model.System, r *Result) (methodfi
 }
 
 // Robustness is how the method's own program fares under its
-// [goal.robust] tolerances: nominal Rs, the worst corner and which, and
-// Rs ± σ of the critical pair (for the UI and the method sheet).
+// [goal.robust] tolerances (robust.Check): nominal Rs, the worst corner and
+// which, and Rs ± σ of the critical pair, for the UI and the method sheet.
 func Robustness(m *methodfile.Method, sys *model.System) (RobustReport, error) {
-	p := FromMethod(m, sys)
-	if err := p.check(); err != nil {
-		return RobustReport{}, err
-	}
-	var res model.Result
-	if err := sys.Simulate(p.Start, &res); err != nil {
-		return RobustReport{}, err
-	}
-	var rep RobustReport
-	rg := &rig{value: 0, sys: sys}
-	err := p.robust(rg, p.Start, &res, &robustScratch{}, -1, &rep)
-	return rep, err
+	return robust.Check(m, sys)
 }

@@ -87,7 +87,7 @@ func checkResult(t *testing.T, p Problem, r *Result) {
 		t.Errorf("initial %v below oven minimum %v", prog.Initial, l.OvenMin)
 	}
 	hold := func(what string, temp, h float64) {
-		if h > l.MaxHold+1e-6 && !(p.Bakeout.On && temp == p.Bakeout.Temp) {
+		if h > l.MaxHold+1e-6 && !p.isBakeout(temp, h) {
 			t.Errorf("%s %v s over the hold limit", what, h)
 		}
 		if h > 0 && temp > l.MaxIsothermal+1e-9 {

@@ -106,34 +106,6 @@ type Bakeout struct {
 	Hold float64 // s
 }
 
-// RetentionSE is the standard error of one compound's ΔH (J/mol) and ΔS
-// (J/(mol·K)) and their correlation.
-type RetentionSE struct{ DH, DS, Corr float64 }
-
-// Robust are the tolerances the target must survive (zero turns each off):
-// the oven hotter or colder by OvenOffset (K) throughout, the flow (or the
-// inlet gauge pressure) × (1 ± FlowPct/100), the plate-height factor ×
-// (1 + EfficiencyPct/100), and, for each pair, Rs − Z·σ_Rs ≥ target with
-// σ_Rs from first-order propagation of the retention parameters' standard
-// errors with their covariance.
-type Robust struct {
-	OvenOffset    float64
-	FlowPct       float64
-	EfficiencyPct float64
-	Z             float64
-	// Retention holds one entry per compound; nil means Prior for all.
-	Retention []RetentionSE
-	// Prior is used for compounds without standard errors (zero: ±2 kJ/mol
-	// and ±4 J/(mol·K), uncorrelated; from memory, a typical estimate from
-	// retention indices or an older column).
-	PriorDH, PriorDS float64
-}
-
-func (r Robust) instrument() bool { return r.OvenOffset > 0 || r.FlowPct > 0 || r.EfficiencyPct > 0 }
-
-// On reports whether any tolerance is set.
-func (r Robust) On() bool { return r.instrument() || r.Z > 0 }
-
 // Problem is one optimization.
 type Problem struct {
 	System *model.System

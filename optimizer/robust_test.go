@@ -26,7 +26,7 @@ func TestSigmaMatchesMonteCarlo(t *testing.T) {
 	if err := p.System.Simulate(prog, &nom); err != nil {
 		t.Fatal(err)
 	}
-	rg := &rig{sys: p.System}
+	rg := newRig(0, p.System, p.Robust)
 	var rep RobustReport
 	if err := p.robust(rg, prog, &nom, &robustScratch{}, math.Inf(-1), &rep); err != nil {
 		t.Fatal(err)
@@ -83,7 +83,7 @@ func TestSigmaMatchesMonteCarlo(t *testing.T) {
 		p.Robust.Retention[i].Corr = 0
 	}
 	var rep0 RobustReport
-	p.robust(&rig{sys: p.System}, prog, &nom, &robustScratch{}, math.Inf(-1), &rep0)
+	p.robust(newRig(0, p.System, p.Robust), prog, &nom, &robustScratch{}, math.Inf(-1), &rep0)
 	if !(rep0.Sigma > 3*rep.Sigma) {
 		t.Errorf("ignoring the correlation gives σ %.4f, with it %.4f: expected several times larger", rep0.Sigma, rep.Sigma)
 	}

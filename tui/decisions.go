@@ -154,7 +154,7 @@ func (d *resultDialog) render() {
 		return fmt.Sprintf("%.2f ✓", r.MinResolution)
 	}
 	right := []string{
-		st.TableHead.Render(fmt.Sprintf("%-11s", "")+cell("now", half)+" "+cell("optimized", half)),
+		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
 		row("run time", fmt.Sprintf("%.2f min", now.RunTime/60), fmt.Sprintf("%.2f min", d.afterR.RunTime/60)),
 		row("cycle time", fmt.Sprintf("%.2f min", now.CycleTime/60), fmt.Sprintf("%.2f min", d.afterR.CycleTime/60)),
 		row("min Rs", rs(now), rs(&d.afterR)),

@@ -338,7 +338,7 @@ func (a *App) optDone(v optOutcome) {
 	}
 	if v.res.Canceled && !v.res.Offer {
 		// an early stop offers only a better program that meets the target
-		a.say(msgInfo, "%s; kept the current program", v.res.Explanation)
+		a.say(msgInfo, "stopped early, nothing better to offer (%s); kept the current program", v.res.Explanation)
 		a.chart.Update(previewMsg{})
 		return
 	}

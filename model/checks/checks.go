@@ -140,11 +140,48 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 		w = append(w, fmt.Sprintf("%s: about %.0f ng on the column, %.1f× its estimated capacity of %.0f ng per compound: an overloaded peak fronts or tails and its retention shifts, so the predicted resolution is optimistic (raise the split ratio, dilute, or use a %s)",
 			o.Name, o.MassNG, o.Factor(), o.Capacity, remedy(m.Column.Kind)))
 	}
+	w = append(w, ProgramLimits(m, sys)...)
 	if m.Injection.HasDetector {
 		top := prog.MaxTemp() - model.ZeroCelsius
 		if m.Injection.DetectorTempC < top+DetectorMargin {
 			w = append(w, fmt.Sprintf("the detector at %g °C is not at least %g °C above the highest oven temperature %.1f °C: the effluent may condense in it",
 				m.Injection.DetectorTempC, DetectorMargin, top))
+		}
+	}
+	return w
+}
+
+// ProgramLimits names where the method's program breaks an instrument limit
+// that the optimizer treats as a hard constraint besides the column maximum
+// and the inlet maximum: a hold above the column's max_isothermal_c, a ramp
+// faster than a [[limits.rate_band]] it reaches into, an inlet pressure
+// below limits.min_inlet_kpa. Each message names the step and the key.
+func ProgramLimits(m *methodfile.Method, sys *model.System) []string {
+	var w []string
+	o := m.Oven
+	if m.Column.HasMaxIsothermal {
+		iso := m.Column.MaxIsothermalC
+		if o.InitialHoldMin > 0 && o.InitialC > iso {
+			w = append(w, fmt.Sprintf("the initial hold at %g °C is above the column's isothermal limit %g °C (column.max_isothermal_c)", o.InitialC, iso))
+		}
+		for i, r := range o.Ramps {
+			if r.HoldMin > 0 && r.FinalC > iso {
+				w = append(w, fmt.Sprintf("ramp %d holds at %g °C, above the column's isothermal limit %g °C (column.max_isothermal_c)", i+1, r.FinalC, iso))
+			}
+		}
+	}
+	for i, r := range o.Ramps {
+		for _, b := range m.Limits.RateBands {
+			if r.FinalC > b.AboveC && r.RateCMin > b.MaxRateCMin {
+				w = append(w, fmt.Sprintf("ramp %d heats at %g °C/min into the band above %g °C, where the oven heats at most %g °C/min (limits.rate_band)", i+1, r.RateCMin, b.AboveC, b.MaxRateCMin))
+				break
+			}
+		}
+	}
+	if min := m.Limits.MinInletKPa * 1000; min > 0 && sys != nil {
+		t0 := m.ModelProgram().Initial
+		if g := sys.Cond.InletGauge(t0); g < min {
+			w = append(w, fmt.Sprintf("the inlet needs %.1f kPa at the start, below the lowest it regulates, %g kPa (limits.min_inlet_kpa)", g/1000, m.Limits.MinInletKPa))
 		}
 	}
 	return w
