@@ -92,3 +92,35 @@ func TestOptimizeJSONCarrierAndRobust(t *testing.T) {
 		t.Error("saved method has no flow")
 	}
 }
+
+// compare --gas tries each carrier gas with its own optimized flow and
+// cautions about hydrogen whenever it appears.
+func TestCompareGasAxis(t *testing.T) {
+	code, out, errs := runCmd(t, "compare", "--json", "--gas", "helium,hydrogen", "-")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var j struct {
+		Candidates []candidateJSON `json:"candidates"`
+		Cautions   []string        `json:"cautions"`
+	}
+	if err := json.Unmarshal([]byte(out), &j); err != nil {
+		t.Fatal(err)
+	}
+	gases := map[string]bool{}
+	for _, c := range j.Candidates {
+		gases[c.Gas] = true
+		if c.Carrier.FlowMLM == nil {
+			t.Errorf("%s: no optimized flow", c.Gas)
+		}
+	}
+	if !gases["helium"] || !gases["hydrogen"] || len(j.Candidates) != 2 {
+		t.Errorf("candidates %+v", j.Candidates)
+	}
+	if len(j.Cautions) == 0 || !strings.Contains(j.Cautions[0], "flammable") {
+		t.Errorf("no hydrogen caution: %v", j.Cautions)
+	}
+	if code, _, _ := runCmd(t, "compare", "--gas", "argon", "-"); code != 2 {
+		t.Errorf("unknown gas: exit %d, want 2", code)
+	}
+}
