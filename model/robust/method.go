@@ -1,6 +1,8 @@
 package robust
 
 import (
+	"math"
+
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
@@ -42,6 +44,6 @@ func Check(m *methodfile.Method, sys *model.System) (Report, error) {
 		return Report{}, err
 	}
 	var rep Report
-	err := NewSet(sys, tol).Evaluate(prog, &res, &Scratch{}, -1e300, &rep)
+	err := NewSet(sys, tol).Evaluate(prog, &res, &Scratch{}, math.Inf(-1), &rep)
 	return rep, err
 }

@@ -220,8 +220,9 @@ func positions(res *model.Result, dst []int) []int {
 // Evaluate evaluates program q (nom must be the simulation of q on the
 // set's Base, with the run ending at the end of q) under the tolerances.
 // With stopBelow finite it returns as soon as a check falls below it (the
-// report is then partial); rep.Margin is the figure to compare with the
-// target.
+// report is then partial, and the worst corner is not named); with
+// stopBelow = −Inf the report is complete. rep.Margin is the figure to
+// compare with the target.
 func (rg *Set) Evaluate(q model.Program, nom *model.Result, sc *Scratch, stopBelow float64, rep *Report) error {
 	rb := rg.Tol
 	comps := rg.Base.Compounds
@@ -245,6 +246,13 @@ func (rg *Set) Evaluate(q model.Program, nom *model.Result, sc *Scratch, stopBel
 			return err
 		}
 		rep.Worst = math.Inf(1)
+		var worst [3]float64
+		// the corner is named only for a full report (no allocation while searching)
+		defer func() {
+			if math.IsInf(stopBelow, -1) && !math.IsInf(rep.Worst, 1) {
+				rep.Corner = cornerName(rb, worst[0], worst[1], worst[2])
+			}
+		}()
 		for _, oven := range []float64{1, -1} {
 			if rb.OvenOffset == 0 && oven < 0 {
 				continue
@@ -264,7 +272,7 @@ func (rg *Set) Evaluate(q model.Program, nom *model.Result, sc *Scratch, stopBel
 					}
 					if rs < rep.Worst {
 						rep.Worst = rs
-						rep.Corner = cornerName(rb, oven, flow, e)
+						worst = [3]float64{oven, flow, e}
 					}
 					if rb.EfficiencyPct == 0 {
 						break
