@@ -261,6 +261,7 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 		}
 	}
 	start := best
+	from := best // the candidate each probe is seeded from
 	tried := map[float64]candidate{best.rg.value: best}
 	probe := func(v float64) candidate {
 		v = roundGrid(math.Min(math.Max(v, lo), hi), st)
@@ -273,8 +274,11 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 			tried[v] = c
 			return c
 		}
-		sp := newSpace(sh.p, best.sp.n)
-		seeds := [][]float64{sp.invert(rescaled(best.prog, best.rg.sys, rg.sys, &sh.p)), append([]float64(nil), best.x...)}
+		if best.sp != nil && best.f < from.f {
+			from = best
+		}
+		sp := newSpace(sh.p, from.sp.n)
+		seeds := [][]float64{sp.invert(rescaled(from.prog, from.rg.sys, rg.sys, &sh.p)), append([]float64(nil), from.x...)}
 		x, f := sh.stage(ctx, rg, sp, seeds, 1, sh.s.Evaluations/2, 1, uint64(100+len(tried)))
 		c := candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
 		tried[v] = c
@@ -283,7 +287,7 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 		}
 		return c
 	}
-	// probes: evenly spaced in log between lo and hi
+	// coarse probes, evenly spaced in log between lo and hi (robust screen)
 	n := sh.s.CarrierProbes / 2
 	if n < 2 {
 		n = 2
@@ -292,10 +296,17 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 	for i := 0; i <= n && ctx.Err() == nil; i++ {
 		probe(math.Exp(la + (lb-la)*float64(i)/float64(n)))
 	}
-	// golden-section refinement in the bracket around the best
+	// golden-section refinement in the bracket around the best, with the
+	// exact robust checks (their scores are not comparable with the screen's)
 	h := (lb - la) / float64(n)
-	a, b := math.Log(best.rg.value)-h, math.Log(best.rg.value)+h
-	a, b = math.Max(a, la), math.Min(b, lb)
+	a, b := math.Max(math.Log(best.rg.value)-h, la), math.Min(math.Log(best.rg.value)+h, lb)
+	if sh.approx >= 0 {
+		sh.approx = -1
+		from = best
+		tried = map[float64]candidate{start.rg.value: start}
+		best = start
+		probe(from.rg.value)
+	}
 	g := (math.Sqrt(5) - 1) / 2
 	for i := 0; i < sh.s.CarrierProbes-n && ctx.Err() == nil; i++ {
 		c, d := b-g*(b-a), a+g*(b-a)

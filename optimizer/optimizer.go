@@ -35,12 +35,12 @@ type Progress struct {
 // Settings tune the search. The zero value means the defaults.
 type Settings struct {
 	Seed        uint64 // default 1
-	Starts      int    // seeded starting points per stage; default 16
+	Starts      int    // random starting points per stage (besides the seeds); default 10
 	Evaluations int    // budget per start; default 2000
 	Restarts    int    // Nelder–Mead restarts from the best point; default 2
 	Workers     int    // parallel starts; default runtime.GOMAXPROCS(0)
 	// CarrierProbes is how many flow (or pressure) settings the carrier
-	// search tries besides the method's own; default 6.
+	// search tries besides the method's own; default 10.
 	CarrierProbes int
 	// PolishEvaluations bounds the keypad-grid search at the end; default 800.
 	PolishEvaluations int
@@ -123,13 +123,24 @@ func Optimize(ctx context.Context, p Problem, s Settings) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	best := sh.programStages(ctx, start)
+	best, stages := sh.programStages(ctx, start)
 	if p.varyCarrier() && ctx.Err() == nil {
 		best = sh.carrierSearch(ctx, best)
 	}
-	oven := sh.polish(ctx, best)
+	// end on the keypad grid from the best program and from each ramp
+	// stage's best, so that more ramps are never worse on the grid either
+	oven, f := sh.polish(ctx, best)
+	rg := best.rg
+	for _, c := range stages {
+		if c.f >= infeasibleBase && f < infeasibleBase {
+			continue
+		}
+		if o2, f2 := sh.polish(ctx, c); f2 < f {
+			oven, f, rg = o2, f2, c.rg
+		}
+	}
 	stopProgress()
-	return sh.finish(ctx, best.rg, oven)
+	return sh.finish(ctx, rg, oven)
 }
 
 // candidate is the best point of a search on one rig.
@@ -143,9 +154,10 @@ type candidate struct {
 
 // programStages: with no ramp-specific locks, 1..Ramps ramps, each seeded
 // with the previous stage's optimum, so more ramps are never worse.
-func (sh *shared) programStages(ctx context.Context, rg *rig) candidate {
+func (sh *shared) programStages(ctx context.Context, rg *rig) (candidate, []candidate) {
 	p := &sh.p
 	best := candidate{f: math.Inf(1)}
+	var stages []candidate
 	first := p.Ramps
 	if !p.rampLocks() {
 		first = 1
@@ -159,15 +171,20 @@ func (sh *shared) programStages(ctx context.Context, rg *rig) candidate {
 		if x, ok := sp.fromProgram(p.Start); ok {
 			seeds = append(seeds, x)
 		}
+		if n >= 2 {
+			seeds = append(seeds, sp.plateauSeeds()...)
+		}
 		x, f := sh.stage(ctx, rg, sp, seeds, sh.s.Starts, sh.s.Evaluations, sh.s.Restarts, uint64(n))
+		c := candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
+		stages = append(stages, c)
 		if f < best.f || best.sp == nil {
-			best = candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
+			best = c
 		}
 		if ctx.Err() != nil {
 			break
 		}
 	}
-	return best
+	return best, stages
 }
 
 func (s Settings) withDefaults() Settings {
@@ -175,7 +192,7 @@ func (s Settings) withDefaults() Settings {
 		s.Seed = 1
 	}
 	if s.Starts <= 0 {
-		s.Starts = 16
+		s.Starts = 10
 	}
 	if s.Evaluations <= 0 {
 		s.Evaluations = 2000
@@ -187,7 +204,7 @@ func (s Settings) withDefaults() Settings {
 		s.Workers = runtime.GOMAXPROCS(0)
 	}
 	if s.CarrierProbes <= 0 {
-		s.CarrierProbes = 6
+		s.CarrierProbes = 10
 	}
 	if s.PolishEvaluations <= 0 {
 		s.PolishEvaluations = 800

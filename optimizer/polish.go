@@ -117,7 +117,7 @@ func (p *Problem) validGrid(o Oven, lk *locks, gb gridBounds) bool {
 // by ±1, 2, 5, 20 steps, first improvement kept) on the objective of the
 // program exactly as saved, with the target and the robust margin checked
 // without any margin.
-func (sh *shared) polish(ctx context.Context, best candidate) Oven {
+func (sh *shared) polish(ctx context.Context, best candidate) (Oven, float64) {
 	p := &sh.p
 	ev := newEvaluator(sh, best.rg, nil)
 	lk := p.lockFlags()
@@ -173,7 +173,7 @@ func (sh *shared) polish(ctx context.Context, best candidate) Oven {
 			}
 		}
 	}
-	return cur
+	return cur, curF
 }
 
 // explainMiss says why the saved program misses: a limit, the robust

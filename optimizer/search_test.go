@@ -94,6 +94,7 @@ func TestMoreRampsNeverWorse(t *testing.T) {
 	prev := math.Inf(1)
 	for n := 1; n <= 3; n++ {
 		p := smallProblem(t, smallCompounds(), n)
+		p.Lock = []string{FlowLock} // the ramp stages are what is tested
 		r, err := Optimize(context.Background(), p, Settings{Starts: 6})
 		if err != nil {
 			t.Fatal(err)

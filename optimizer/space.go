@@ -249,3 +249,39 @@ func (sp *space) fromProgram(q model.Program) ([]float64, bool) {
 	}
 	return sp.embed(q), true
 }
+
+// plateauSeeds are starting points of the shape a chromatographer tries
+// for a hard pair: start at a fraction c0 of the start range, jump at the
+// fastest rate to a plateau (fraction f of the first final's range), hold
+// there (fraction h of the hold limit), then heat at the fastest rate to the
+// top. Values the space does not vary are left to the mapping.
+func (sp *space) plateauSeeds() [][]float64 {
+	if sp.n < 1 {
+		return nil
+	}
+	var out [][]float64
+	for _, c0 := range []float64{0, 0.1} {
+		for _, f := range []float64{0.05, 0.12, 0.2, 0.3} {
+			for _, h := range []float64{0.2, 0.6} {
+				x := make([]float64, sp.dim)
+				set := func(kind, ramp int, v float64) {
+					if i := sp.at[slot(kind, ramp)]; i >= 0 {
+						x[i] = v
+					}
+				}
+				set(varInitial, 0, c0)
+				set(varInitialHold, 0, 0.1)
+				set(varRate, 0, 1)
+				set(varFinal, 0, f)
+				set(varHold, 0, h)
+				for r := 1; r < sp.n; r++ {
+					set(varRate, r, 1)
+					set(varFinal, r, 1)
+					set(varHold, r, 0)
+				}
+				out = append(out, x)
+			}
+		}
+	}
+	return out
+}
