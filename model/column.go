@@ -51,10 +51,6 @@ func ParseColumnKind(s string) (ColumnKind, error) {
 	return 0, fmt.Errorf("unknown column kind %q (want wall-coated, packed or porous-layer)", s)
 }
 
-// OpenTube reports whether the gas flows through an open channel (a
-// wall-coated or porous-layer column) rather than a packed bed.
-func (k ColumnKind) OpenTube() bool { return k != Packed }
-
 // Defaults of the packed-column model (MODEL.md §10) and of the porous layer
 // (§11). All from memory or common practice, all settable.
 const (
@@ -228,12 +224,25 @@ const (
 	ConstantPressure
 )
 
+// PressureModes lists every pressure mode, in the order a choice cycles.
+var PressureModes = []PressureMode{ConstantFlow, ConstantPressure}
+
 // String is the mode as written in a method file.
 func (m PressureMode) String() string {
 	if m == ConstantPressure {
 		return "constant-pressure"
 	}
 	return "constant-flow"
+}
+
+// ParsePressureMode reads a pressure mode as written in a method file.
+func ParsePressureMode(s string) (PressureMode, error) {
+	for _, m := range PressureModes {
+		if s == m.String() {
+			return m, nil
+		}
+	}
+	return ConstantFlow, fmt.Errorf("%q is not one of constant-flow, constant-pressure", s)
 }
 
 // Carrier is the carrier gas and its control. Pressures are in Pa, flows in

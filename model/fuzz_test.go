@@ -38,6 +38,8 @@ func FuzzSimulate(f *testing.F) {
 	f.Add(0.3, 0.2, 0.1, 0.4, 0.2, 0.5, 0.6, 0.3, 0.5, 0.5, uint8(0), uint8(3))
 	f.Add(0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, uint8(1), uint8(7))
 	f.Add(0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, uint8(2), uint8(0))
+	f.Add(0.3, 0.2, 0.1, 0.4, 0.2, 0.5, 0.6, 0.3, 0.5, 0.5, uint8(2), uint8(8+3))  // packed
+	f.Add(0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, 0.9, uint8(0), uint8(16+5)) // porous layer
 	f.Fuzz(func(t *testing.T, a, b, c, d, e, g, h, i, j, k float64, gas, mode uint8) {
 		col := Column{
 			Length:   1 + 99*unit(a),
@@ -48,6 +50,19 @@ func FuzzSimulate(f *testing.F) {
 		car := Carrier{Gas: Gas(gas % 3), Mode: PressureMode(mode % 2), Vacuum: mode&4 != 0}
 		car.Flow = (0.1 + 49.9*unit(d)) * 1e-6 / 60
 		car.InletGauge = (5 + 600*unit(d)) * 1e3
+		switch (mode >> 3) % 3 { // the column kinds of MODEL.md §10-11
+		case 1:
+			col.Kind = Packed
+			col.Diameter = (1 + 5*unit(b)) * 1e-3
+			col.Length = 0.3 + 9.7*unit(a)
+			col.Particle = (50 + 350*unit(c*7)) * 1e-6
+			col.Porosity = 0.3 + 0.2*unit(e*3)
+			col.GivenPhaseRatio = 2 + 198*unit(k*5)
+			car.Flow *= 20
+		case 2:
+			col.Kind = PorousLayer
+			col.Film = math.Min((1+59*unit(c))*1e-6, col.Diameter*0.4)
+		}
 		cond, err := NewConditions(col, car)
 		if err != nil {
 			t.Fatal(err)

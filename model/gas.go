@@ -3,7 +3,6 @@ package model
 import (
 	"fmt"
 	"math"
-	"strings"
 )
 
 // Gas is a carrier gas.
@@ -34,14 +33,17 @@ var gases = [...]gasData{
 	Nitrogen: {"nitrogen", 16.62e-6, 0.7665, 28.013, 18.5, false},
 }
 
-// ParseGas reads a gas name as written in a method file.
+// Gases lists every carrier gas, in the order a choice cycles.
+var Gases = []Gas{Helium, Hydrogen, Nitrogen}
+
+// ParseGas reads a gas name as written in a method file (exactly, lower case).
 func ParseGas(s string) (Gas, error) {
 	for i, g := range gases {
-		if strings.EqualFold(s, g.name) {
+		if s == g.name {
 			return Gas(i), nil
 		}
 	}
-	return 0, fmt.Errorf("unknown carrier gas %q (want helium, hydrogen or nitrogen)", s)
+	return 0, fmt.Errorf("%q is not one of helium, hydrogen, nitrogen", s)
 }
 
 func (g Gas) valid() bool { return g >= 0 && int(g) < len(gases) }

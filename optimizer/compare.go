@@ -5,20 +5,21 @@ import (
 	"runtime"
 	"sort"
 	"sync"
-
-	"github.com/rampwise/rampwise/model/methodfile"
 )
 
-// Candidate is one column to try: a method (its phase's compounds, its
-// goal and limits) with the dimensions to use.
+// Candidate is one search to rank: a column (its system) with the goal and
+// limits to use.
 type Candidate struct {
-	Source string // where the method came from
-	Method *methodfile.Method
+	Source string // where it came from, for the caller
+	// Problem builds the search; it is called on a worker, so building the
+	// system's tables runs in parallel.
+	Problem func() (Problem, error)
 }
 
 // Outcome is a candidate optimized.
 type Outcome struct {
-	Candidate
+	Source string
+	Index  int // the candidate's position in the list given to Compare
 	Result *Result
 	Err    error
 	// Time is the objective the result achieved, in s (run or cycle time).
@@ -52,6 +53,7 @@ func Compare(ctx context.Context, cands []Candidate, s Settings, progress func(d
 			defer wg.Done()
 			for i := range jobs {
 				out[i] = runCandidate(ctx, cands[i], s)
+				out[i].Index = i
 				mu.Lock()
 				done++
 				if progress != nil {
@@ -88,20 +90,20 @@ func better(a, b Outcome) bool {
 }
 
 func runCandidate(ctx context.Context, c Candidate, s Settings) Outcome {
-	o := Outcome{Candidate: c}
-	sys, err := c.Method.System()
+	o := Outcome{Source: c.Source}
+	p, err := c.Problem()
 	if err != nil {
 		o.Err = err
 		return o
 	}
-	r, err := Optimize(ctx, FromMethod(c.Method, sys), s)
+	r, err := Optimize(ctx, p, s)
 	if err != nil {
 		o.Err = err
 		return o
 	}
 	o.Result = r
 	o.Time = r.Sim.RunTime
-	if c.Method.Goal.Objective == "cycle-time" {
+	if p.Objective == CycleTime {
 		o.Time = r.Sim.CycleTime
 	}
 	o.MaxTemp = r.Program.MaxTemp()

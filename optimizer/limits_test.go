@@ -13,7 +13,7 @@ import (
 // honoured by the trim (checkResult compares every locked value).
 func TestDemoLocksHonoured(t *testing.T) {
 	p := demoProblem(t)
-	p.Lock = []string{"final_1", "hold_1"}
+	p.Lock = []model.ProgramValue{{Kind: model.RampFinal, Ramp: 1}, {Kind: model.RampHold, Ramp: 1}}
 	p.Robust = Robust{}
 	r, err := Optimize(context.Background(), p, Settings{Starts: 6})
 	if err != nil {
@@ -53,7 +53,7 @@ func TestLimitsAreHard(t *testing.T) {
 // min_first_k: a first target too close to the void fails with the reason.
 func TestMinFirstK(t *testing.T) {
 	p := smallProblem(t, smallCompounds(), 1)
-	p.Lock = []string{FlowLock}
+	p.Lock = []model.ProgramValue{FlowLock}
 	p.MinFirstK = 50
 	r, err := Optimize(context.Background(), p, Settings{Starts: 4})
 	if err != nil {
@@ -79,7 +79,7 @@ func TestEarlyStopOffersOnlyBetter(t *testing.T) {
 	}
 	// against a start program that already meets the target
 	p.Robust = Robust{}
-	p.Lock = []string{FlowLock}
+	p.Lock = []model.ProgramValue{FlowLock}
 	full, err := Optimize(context.Background(), p, Settings{Starts: 4})
 	if err != nil || !full.Feasible() {
 		t.Fatalf("%v %v", err, full.Explanation)

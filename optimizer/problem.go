@@ -8,37 +8,25 @@ import (
 	"github.com/rampwise/rampwise/model"
 )
 
-// Objective is what the optimizer minimises among programs that meet the target.
-type Objective int
+// Objective is what the optimizer minimises among programs that meet the
+// target: the run time (the end of the saved program: the last peak plus
+// the tail, or later where a lock, a keypad step or a bake-out ends it
+// later) or the cycle time (run plus cool-down and equilibration).
+type Objective = model.Objective
 
 // The objectives.
 const (
-	// RunTime is the end of the saved program: the last peak plus the tail,
-	// or later where a lock, a keypad step or a bake-out ends it later.
-	RunTime Objective = iota
-	// CycleTime is the run time plus cool-down and equilibration.
-	CycleTime
+	RunTime   = model.RunTime
+	CycleTime = model.CycleTime
 )
 
-// String is the objective as written in a method file.
-func (o Objective) String() string {
-	if o == CycleTime {
-		return "cycle-time"
-	}
-	return "run-time"
-}
+// FlowLock in Problem.Lock keeps the carrier flow (or, at constant
+// pressure, the inlet pressure) as the method has it (goal.lock "flow").
+var FlowLock = model.ProgramValue{Kind: model.CarrierFlow}
 
-// Variable names a program value, as in a method file's goal.lock.
-func Variable(kind string, ramp int) string {
-	if ramp == 0 {
-		return kind
-	}
-	return fmt.Sprintf("%s_%d", kind, ramp)
+func isCarrierLock(v model.ProgramValue) bool {
+	return v.Kind == model.CarrierFlow || v.Kind == model.InletPressure
 }
-
-// FlowLock is the goal.lock name that keeps the carrier flow (or, at
-// constant pressure, the inlet pressure) as the method has it.
-const FlowLock = "flow"
 
 // RateBand lowers the ramp-rate limit above a temperature: a ramp whose
 // final temperature is above Above (K) heats at most at MaxRate (K/s).
@@ -116,7 +104,7 @@ type Problem struct {
 	// (locked values are returned exactly so); zero means derived from Start.
 	StartOven Oven
 	Ramps     int // ramps the optimizer may use, 1..5
-	Lock      []string
+	Lock      []model.ProgramValue
 	Limits    Limits
 	Steps     Steps
 	// MinResolution is the target of every counted pair, in (0, 100].
@@ -172,12 +160,12 @@ func (p *Problem) check() error {
 		return errors.New("optimizer: retention standard errors must be given for every compound")
 	}
 	for _, name := range p.Lock {
-		if name == FlowLock {
+		if isCarrierLock(name) {
 			continue
 		}
-		_, n, ok := parseVariable(name)
-		if !ok {
-			return fmt.Errorf("optimizer: unknown program value %q to lock", name)
+		n := name.Ramp
+		if !name.Valid(model.MaxRampNumber) {
+			return fmt.Errorf("optimizer: %s is not a program value to lock", name)
 		}
 		if n > 0 && n > len(p.Start.Ramps) {
 			return fmt.Errorf("optimizer: %s is locked but the method's program has only %d ramps", name, len(p.Start.Ramps))
@@ -215,18 +203,17 @@ func (p *Problem) maxRateTo(final float64) float64 {
 }
 
 func (p *Problem) rampLocks() bool {
-	for _, name := range p.Lock {
-		if _, n, _ := parseVariable(name); n > 0 {
+	for _, v := range p.Lock {
+		if v.Kind.PerRamp() {
 			return true
 		}
 	}
 	return false
 }
 
-func (p *Problem) locked(kind string, ramp int) bool {
-	name := Variable(kind, ramp)
+func (p *Problem) locked(v model.ProgramValue) bool {
 	for _, l := range p.Lock {
-		if l == name {
+		if l == v {
 			return true
 		}
 	}
@@ -236,25 +223,11 @@ func (p *Problem) locked(kind string, ramp int) bool {
 // varyCarrier reports whether the optimizer varies the flow (or pressure).
 func (p *Problem) varyCarrier() bool {
 	for _, l := range p.Lock {
-		if l == FlowLock {
+		if isCarrierLock(l) {
 			return false
 		}
 	}
 	return true
-}
-
-func parseVariable(s string) (kind string, ramp int, ok bool) {
-	switch s {
-	case "initial_c", "initial_hold_min":
-		return s, 0, true
-	}
-	for _, k := range []string{"rate", "final", "hold"} {
-		var n int
-		if _, err := fmt.Sscanf(s, k+"_%d", &n); err == nil && fmt.Sprintf("%s_%d", k, n) == s && n >= 1 && n <= 5 {
-			return k, n, true
-		}
-	}
-	return "", 0, false
 }
 
 // locks is the lock list as flags, for the hot path.
@@ -265,21 +238,21 @@ type locks struct {
 
 func (p *Problem) lockFlags() locks {
 	var l locks
-	for _, name := range p.Lock {
-		k, n, ok := parseVariable(name)
-		if !ok {
+	for _, v := range p.Lock {
+		n := v.Ramp
+		if v.Kind.PerRamp() && (n < 1 || n > 5) {
 			continue
 		}
-		switch k {
-		case "initial_c":
+		switch v.Kind {
+		case model.InitialTemp:
 			l.initial = true
-		case "initial_hold_min":
+		case model.InitialHold:
 			l.initialHold = true
-		case "rate":
+		case model.RampRate:
 			l.rate[n] = true
-		case "final":
+		case model.RampFinal:
 			l.final[n] = true
-		case "hold":
+		case model.RampHold:
 			l.hold[n] = true
 		}
 	}

@@ -146,7 +146,7 @@ func TestAgainstGlobalReference(t *testing.T) {
 	} else {
 		for _, c := range []struct{ nc, ramps int }{{10, 1}, {12, 2}} {
 			p := generated(t, c.nc, c.ramps, uint64(c.nc))
-			p.Lock = []string{FlowLock}
+			p.Lock = []model.ProgramValue{FlowLock}
 			cases = append(cases, tc{fmt.Sprintf("%d compounds %d ramps, flow locked", c.nc, c.ramps), p})
 		}
 	}

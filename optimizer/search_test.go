@@ -94,7 +94,7 @@ func TestMoreRampsNeverWorse(t *testing.T) {
 	prev := math.Inf(1)
 	for n := 1; n <= 3; n++ {
 		p := smallProblem(t, smallCompounds(), n)
-		p.Lock = []string{FlowLock} // the ramp stages are what is tested
+		p.Lock = []model.ProgramValue{FlowLock} // the ramp stages are what is tested
 		r, err := Optimize(context.Background(), p, Settings{Starts: 6})
 		if err != nil {
 			t.Fatal(err)
@@ -144,7 +144,7 @@ func TestIdenticalPairUnreachable(t *testing.T) {
 func TestLockedValuesStay(t *testing.T) {
 	p := smallProblem(t, smallCompounds(), 2)
 	p.Start = model.Program{Initial: 318.15, InitialHold: 45, Ramps: []model.Ramp{{Rate: 7 * perMin, Final: 400}, {Rate: 20 * perMin, Final: 560, Hold: 30}}}
-	p.Lock = []string{"initial_c", "rate_1"}
+	p.Lock = []model.ProgramValue{{Kind: model.InitialTemp}, {Kind: model.RampRate, Ramp: 1}}
 	r, err := Optimize(context.Background(), p, Settings{Starts: 6})
 	if err != nil {
 		t.Fatal(err)
@@ -219,7 +219,7 @@ func BenchmarkOptimizeDemo(b *testing.B) {
 func TestLateNonTargetElutes(t *testing.T) {
 	late := model.Compound{Name: "late matrix", DH: -(9 + 4.9*22) * 1000, DS: -(44 + 6*22), Target: false}
 	p := smallProblem(t, append(smallCompounds(), late), 1)
-	p.Lock = []string{FlowLock}
+	p.Lock = []model.ProgramValue{FlowLock}
 	r, err := Optimize(context.Background(), p, Settings{Starts: 8})
 	if err != nil || !r.Feasible() {
 		t.Fatalf("%v %v", err, r.Explanation)
@@ -235,7 +235,7 @@ func TestLateNonTargetElutes(t *testing.T) {
 		t.Errorf("run %.3f min ends before the late non-target %.3f min plus the tail", r.Sim.RunTime/60, lastTR/60)
 	}
 	pb := smallProblem(t, append(smallCompounds(), late), 1)
-	pb.Lock = []string{FlowLock}
+	pb.Lock = []model.ProgramValue{FlowLock}
 	pb.Bakeout = Bakeout{On: true, Temp: 295 + model.ZeroCelsius, Hold: 120}
 	rb, err := Optimize(context.Background(), pb, Settings{Starts: 8})
 	if err != nil || !rb.Feasible() {
@@ -250,7 +250,7 @@ func TestLateNonTargetElutes(t *testing.T) {
 	// covered faster by a bake-out step with its own hold
 	heavy := model.Compound{Name: "heavy matrix", DH: -(9 + 4.9*34) * 1000, DS: -(44 + 6*34), Target: false}
 	ph := smallProblem(t, append(smallCompounds(), heavy), 1)
-	ph.Lock = []string{FlowLock}
+	ph.Lock = []model.ProgramValue{FlowLock}
 	ph.Limits.MaxHold = 60
 	rh, err := Optimize(context.Background(), ph, Settings{Starts: 8})
 	if err != nil {

@@ -8,14 +8,17 @@ import (
 
 // The kinds of program value a search variable can stand for.
 const (
-	varInitial = iota
-	varInitialHold
-	varRate
-	varFinal
-	varHold
+	varInitial     = model.InitialTemp
+	varInitialHold = model.InitialHold
+	varRate        = model.RampRate
+	varFinal       = model.RampFinal
+	varHold        = model.RampHold
 )
 
-type varRef struct{ kind, ramp int }
+type varRef struct {
+	kind model.ValueKind
+	ramp int
+}
 
 // space maps points x ∈ ℝ^dim to valid programs with n ramps. Each unlocked
 // value is a fraction c = clamp(x, 0, 1) of its allowed range: the initial
@@ -34,14 +37,14 @@ type space struct {
 	prog model.Program // scratch
 }
 
-func slot(kind, ramp int) int {
+func slot(kind model.ValueKind, ramp int) int {
 	switch kind {
 	case varInitial:
 		return 0
 	case varInitialHold:
 		return 1
 	}
-	return 2 + 3*ramp + (kind - varRate)
+	return 2 + 3*ramp + int(kind-varRate)
 }
 
 func newSpace(p Problem, n int) *space {
@@ -49,26 +52,26 @@ func newSpace(p Problem, n int) *space {
 	for i := range sp.at {
 		sp.at[i] = -1
 	}
-	add := func(kind, ramp int, name string) {
-		if p.locked(name, rampNumber(kind, ramp)) {
+	add := func(kind model.ValueKind, ramp int) {
+		if p.locked(model.ProgramValue{Kind: kind, Ramp: rampNumber(kind, ramp)}) {
 			return
 		}
 		sp.at[slot(kind, ramp)] = len(sp.vars)
 		sp.vars = append(sp.vars, varRef{kind, ramp})
 	}
-	add(varInitial, 0, "initial_c")
-	add(varInitialHold, 0, "initial_hold_min")
+	add(varInitial, 0)
+	add(varInitialHold, 0)
 	for r := 0; r < n; r++ {
-		add(varRate, r, "rate")
-		add(varFinal, r, "final")
-		add(varHold, r, "hold")
+		add(varRate, r)
+		add(varFinal, r)
+		add(varHold, r)
 	}
 	sp.dim = len(sp.vars)
 	sp.prog.Ramps = make([]model.Ramp, n)
 	return sp
 }
 
-func rampNumber(kind, ramp int) int {
+func rampNumber(kind model.ValueKind, ramp int) int {
 	if kind == varInitial || kind == varInitialHold {
 		return 0
 	}
@@ -93,7 +96,7 @@ func clamp01(x float64) float64 {
 }
 
 // value gives the fraction for a slot, or ok=false when it is locked.
-func (sp *space) frac(x []float64, kind, ramp int) (float64, bool) {
+func (sp *space) frac(x []float64, kind model.ValueKind, ramp int) (float64, bool) {
 	i := sp.at[slot(kind, ramp)]
 	if i < 0 {
 		return 0, false
@@ -184,7 +187,7 @@ func (sp *space) program(x []float64) model.Program {
 func (sp *space) invert(q model.Program) []float64 {
 	l := sp.p.Limits
 	x := make([]float64, sp.dim)
-	set := func(kind, ramp int, c float64) {
+	set := func(kind model.ValueKind, ramp int, c float64) {
 		if i := sp.at[slot(kind, ramp)]; i >= 0 {
 			x[i] = clamp01(c)
 		}
@@ -264,7 +267,7 @@ func (sp *space) plateauSeeds() [][]float64 {
 		for _, f := range []float64{0.05, 0.12, 0.2, 0.3} {
 			for _, h := range []float64{0.2, 0.6} {
 				x := make([]float64, sp.dim)
-				set := func(kind, ramp int, v float64) {
+				set := func(kind model.ValueKind, ramp int, v float64) {
 					if i := sp.at[slot(kind, ramp)]; i >= 0 {
 						x[i] = v
 					}

@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"os"
-	"reflect"
 	"strings"
 
 	"github.com/charmbracelet/bubbles/help"
@@ -77,6 +76,7 @@ type App struct {
 	sysk       string // systemKey of the method the tables were built for
 	guard      *Guard
 	wrote      map[string]bool // files this session wrote or opened: replaced without asking
+	files      fileWatch       // the file on disk and the recovery file (filesafety.go)
 
 	width, height int
 	ready         bool
@@ -94,6 +94,7 @@ type App struct {
 
 	optSettings optimizer.Settings
 	job         *job
+	jobSeq      int // the last job's id
 
 	view cachedView
 }
@@ -136,14 +137,8 @@ func New(m *methodfile.Method, opt Options) (*App, error) {
 	a.chart = newChartPane(&a.sh)
 	a.peaks = newPeaksPane(&a.sh)
 	a.settings = newSettingsPane(&a.sh)
-	if rm, rp, ok := recoveryAvailable(opt.Path); ok {
-		a.open(newConfirm(&a.sh, "unsaved changes from an earlier session", "are in "+inert(rp)+": restore them?", []choice{
-			{keys: []string{"r"}, label: "restore them", msgs: []tea.Msg{restoreMsg{m: rm}}},
-			{keys: []string{"d"}, label: "discard the file", msgs: []tea.Msg{discardRecoveryMsg{}}},
-			{keys: []string{"esc", "n"}, label: "keep it and go on", msgs: []tea.Msg{sayMsg{msgInfo, "kept the recovery file " + inert(rp)}}},
-		}))
-		a.say(msgWarn, "unsaved changes from an earlier session are in %s: r restore them · d discard the file · esc keep it and go on", inert(rp))
-	}
+	a.files.record(opt.Path)
+	a.offerRecovery(opt.Path)
 	a.guard.update(a.path, a.sh.method, false)
 	return a, nil
 }
@@ -164,7 +159,7 @@ func (a *App) Method() *methodfile.Method { return a.sh.method }
 func (a *App) Result() *model.Result { return &a.res }
 
 // Dirty reports unsaved changes.
-func (a *App) Dirty() bool { return !reflect.DeepEqual(a.sh.method, a.saved) }
+func (a *App) Dirty() bool { return !a.sh.method.Equal(a.saved) }
 
 // Path is the file the method saves to.
 func (a *App) Path() string { return a.path }
@@ -199,7 +194,7 @@ func (a *App) resimulate() error {
 // It is the only place an edit becomes the method.
 func (a *App) apply(m *methodfile.Method, what string) bool {
 	if err := validate(m); err != nil {
-		a.say(msgError, "%v (kept the last valid value)", err)
+		a.say(msgError, "%v (kept the last valid value)", inertErr(err))
 		return false
 	}
 	prev, prevSys, prevKey := a.sh.method, a.sh.sys, a.sysk
@@ -208,7 +203,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 		a.sh.method, a.sh.sys = prev, prevSys
 		a.sysk = prevKey
 		a.resimulate()
-		a.say(msgError, "%s (kept the last valid value)", strings.TrimPrefix(err.Error(), "model: "))
+		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
 	caution := a.newCaution(prev, prevSys)
@@ -221,7 +216,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 	if caution != "" {
 		a.say(msgWarn, "%s · %s", what, caution)
 	}
-	if m.Carrier.Gas == "hydrogen" && prev.Carrier.Gas != "hydrogen" {
+	if m.Carrier.Gas.Flammable() && !prev.Carrier.Gas.Flammable() {
 		a.say(msgWarn, "%s · %s", what, model.HydrogenCaution)
 	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
@@ -233,7 +228,7 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 func (a *App) restore(m *methodfile.Method) {
 	a.sh.method = m
 	if err := a.resimulate(); err != nil {
-		a.say(msgError, "%v", err)
+		a.say(msgError, "%v", inertErr(err))
 	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 }
@@ -309,6 +304,9 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 			return a.interrupt()
 		}
 		if a.overlay != nil {
+			if key.Matches(msg, a.keys.Help) && a.dialogHelp() {
+				return nil
+			}
 			return a.toOverlay(msg)
 		}
 		if cmd, ok := a.globalKey(msg); ok {
@@ -324,6 +322,21 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 		return a.toOverlay(msg)
 	}
 	return nil
+}
+
+// dialogHelp opens the key list of the open dialog over it (? in a
+// dialog); closing the list goes back to the dialog. A prompt takes ? as
+// text, and the key list closes itself.
+func (a *App) dialogHelp() bool {
+	switch a.overlay.(type) {
+	case *promptDialog, *helpDialog, *progressDialog:
+		return false
+	}
+	d := a.overlay
+	a.pending = append([]component{d}, a.pending...)
+	a.overlay = newDialogHelp(&a.sh, &a.help, d, dialogName(d), a.keys)
+	a.sizeOverlay()
+	return true
 }
 
 func (a *App) toOverlay(msg tea.Msg) tea.Cmd {
@@ -462,11 +475,13 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 	case restoreMsg:
 		a.undo = append(a.undo, a.sh.method)
 		a.restore(msg.m)
-		os.Remove(RecoveryPath(a.path))
-		a.say(msgGood, "restored the unsaved changes (u undoes); save with ctrl+s")
+		// The recovery file stays until the method is saved.
+		a.say(msgGood, "restored the unsaved changes (u undoes; the recovery file stays until you save); save with ctrl+s")
 	case discardRecoveryMsg:
-		os.Remove(RecoveryPath(a.path))
+		os.Remove(a.files.recover)
 		a.say(msgInfo, "discarded the recovery file")
+	case fileIntent:
+		return msg.apply(a)
 	case saveMsg:
 		return a.startSave(msg.path, msg.quit)
 	case saveAsMsg:
@@ -611,6 +626,11 @@ func (a *App) footerLine(w int) string {
 	var b []key.Binding
 	if a.overlay != nil {
 		b = a.overlay.ShortHelp()
+		switch a.overlay.(type) {
+		case *promptDialog, *helpDialog, *progressDialog:
+		default:
+			b = append([]key.Binding{bind([]string{"?"}, "?", "keys")}, b...)
+		}
 	} else {
 		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
 		b = append(b, a.keys.ShortHelp()...)

@@ -1,17 +1,19 @@
 package tui
 
 import (
+	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"reflect"
 	"strings"
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/ansi"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
 )
 
 func demoMethod(t testing.TB) *methodfile.Method {
@@ -113,7 +115,7 @@ func TestInvalidValueRefused(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
 	orig := a.Method().Clone()
 	press(a, "right", "right", "right", "enter", "ctrl+u", "400", "enter")
-	if !reflect.DeepEqual(a.Method(), orig) {
+	if !a.Method().Equal(orig) {
 		t.Error("invalid final temperature changed the method")
 	}
 	if s := screen(a); !strings.Contains(s, "above the column maximum") {
@@ -138,15 +140,15 @@ func TestUndoRedoExact(t *testing.T) {
 	orig := a.Method().Clone()
 	press(a, "right", "right", "]", "]", "right", "-", "a")
 	edited := a.Method().Clone()
-	if reflect.DeepEqual(edited, orig) {
+	if edited.Equal(orig) {
 		t.Fatal("edits did nothing")
 	}
 	press(a, "u", "u", "u", "u")
-	if !reflect.DeepEqual(a.Method(), orig) {
+	if !a.Method().Equal(orig) {
 		t.Errorf("undo did not restore the program exactly:\n%+v\n%+v", a.Method().Oven, orig.Oven)
 	}
 	press(a, "U", "U", "U", "U")
-	if !reflect.DeepEqual(a.Method(), edited) {
+	if !a.Method().Equal(edited) {
 		t.Error("redo did not restore the edits")
 	}
 }
@@ -173,7 +175,7 @@ func TestHydrogenCaution(t *testing.T) {
 		press(a, "down")
 	}
 	press(a, "+")
-	if a.Method().Carrier.Gas != "hydrogen" {
+	if a.Method().Carrier.Gas != model.Hydrogen {
 		t.Fatalf("gas %q", a.Method().Carrier.Gas)
 	}
 	if s := screen(a); !strings.Contains(s, "flammable") || !strings.Contains(s, "leak") {
@@ -206,7 +208,7 @@ func TestSaveWritesLoadableMethod(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(back, a.Method()) {
+	if !back.Equal(a.Method()) {
 		t.Error("saved file loads back different")
 	}
 }
@@ -238,7 +240,7 @@ func TestRecoveryFile(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(back, a.Method()) {
+	if !back.Equal(a.Method()) {
 		t.Error("recovery file differs from the unsaved method")
 	}
 	orig, _ := methodfile.ReadFile(path)
@@ -251,11 +253,19 @@ func TestRecoveryFile(t *testing.T) {
 		t.Error("no restore offer")
 	}
 	press(b, "r")
-	if !reflect.DeepEqual(b.Method(), back) {
+	if !b.Method().Equal(back) {
 		t.Error("restore did not bring the unsaved method back")
 	}
+	// The recovery stays until the method is saved, then goes.
+	if _, err := os.Stat(rp); err != nil {
+		t.Error("recovery file removed before the method was saved")
+	}
+	press(b, "ctrl+s")
 	if _, err := os.Stat(rp); err == nil {
-		t.Error("recovery file left after restore")
+		t.Error("recovery file left after the save")
+	}
+	if FindRecovery(path) != nil {
+		t.Error("a recovery is offered again after the save")
 	}
 }
 
@@ -263,7 +273,7 @@ func TestSweepViewAndExport(t *testing.T) {
 	a, path := newApp(t, 100, 32)
 	press(a, "right", "right", "s")
 	sv, ok := a.overlay.(*sweepDialog)
-	if !ok || sv.spec.name != "rate_1" {
+	if !ok || sv.spec.value.String() != "rate_1" {
 		t.Fatalf("no sweep view: %q", a.message)
 	}
 	if s := screen(a); !strings.Contains(s, "window diagram") || !strings.Contains(s, "now 12") || !strings.Contains(s, "ramp 1 rate (°C/min)") {
@@ -347,24 +357,59 @@ func TestSelectionSurvivesShorterProgram(t *testing.T) {
 	}
 }
 
-// Random keystrokes never panic and never leave an invalid method.
+// Random keystrokes, dialogs included (the key list, prompts, questions,
+// the window diagram, the optimizer's result, the ranking), never panic,
+// always draw exactly the terminal's size, and never leave an invalid
+// method.
 func TestRandomKeysNeverPanic(t *testing.T) {
 	a, _ := newApp(t, 90, 28)
+	a.optSettings = optimizer.Settings{Workers: 1, Starts: 1, Evaluations: 200}
 	rng := rand.New(rand.NewPCG(42, 1))
-	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "backspace"}
-	runes := []rune("+-[]ax0123456789.-uUtsh jkl?")
-	for i := 0; i < 2000; i++ {
+	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "shift+tab", "backspace", "pgdown", "pgup"}
+	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCo")
+	w, h := 90, 28
+	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	dialogs := map[string]bool{}
+	for i := 0; i < 3000; i++ {
 		if rng.IntN(3) == 0 {
 			press(a, names[rng.IntN(len(names))])
 		} else {
-			a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{runes[rng.IntN(len(runes))]}})
+			r := runes[rng.IntN(len(runes))]
+			if r == 'C' && rng.IntN(4) != 0 {
+				continue // ranking columns is slow: now and then
+			}
+			send(a, tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{r}})
+		}
+		switch i % 1000 {
+		case 300: // open the dialogs random keys rarely reach
+			a.overlay, a.pending = nil, nil
+			press(a, "F", runs, "enter")
+		case 700:
+			a.overlay, a.pending = nil, nil
+			press(a, "C", "ctrl+u", "20,30", "enter")
 		}
 		if i%500 == 0 {
-			a.Update(tea.WindowSizeMsg{Width: 80 + rng.IntN(60), Height: 24 + rng.IntN(30)})
+			w, h = 80+rng.IntN(60), 24+rng.IntN(30)
+			a.Update(tea.WindowSizeMsg{Width: w, Height: h})
 		}
-		_ = a.View()
+		if a.overlay != nil {
+			dialogs[fmt.Sprintf("%T", a.overlay)] = true
+		}
+		v := a.View()
+		if n := strings.Count(v, "\n") + 1; n != h {
+			t.Fatalf("key %d: %d lines on a %d-line terminal (%T)", i, n, h, a.overlay)
+		}
+		for _, l := range strings.Split(v, "\n") {
+			if lw := ansi.StringWidth(l); lw > w {
+				t.Fatalf("key %d: a line %d wide on a %d-wide terminal (%T): %q", i, lw, w, a.overlay, l)
+			}
+		}
 	}
 	if err := validate(a.Method()); err != nil {
 		t.Errorf("method became invalid: %v", err)
 	}
+	if len(dialogs) < 5 {
+		t.Errorf("the keys reached only %v", dialogs)
+	}
+	t.Logf("dialogs reached: %v", dialogs)
 }

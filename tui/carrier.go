@@ -29,7 +29,7 @@ func holdupAt(m *methodfile.Method) (float64, error) {
 // a log scale finds it. The value is rounded to what the file keeps
 // (0.01 mL/min, 0.1 kPa). It returns what it set, for the status line.
 func keepHoldup(m *methodfile.Method, tm float64) (string, error) {
-	pressure := m.Carrier.Mode == "constant-pressure"
+	pressure := m.Carrier.Mode == model.ConstantPressure
 	was := m.Carrier
 	set := func(v float64) {
 		if pressure {

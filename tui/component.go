@@ -84,3 +84,19 @@ func fill(lines []string, h int) []string {
 	}
 	return lines
 }
+
+// Every pane and dialog keeps the contract.
+var (
+	_ component = (*programPane)(nil)
+	_ component = (*chartPane)(nil)
+	_ component = (*peaksPane)(nil)
+	_ component = (*settingsPane)(nil)
+	_ component = (*resultDialog)(nil)
+	_ component = (*fitDialog)(nil)
+	_ component = (*rankingDialog)(nil)
+	_ component = (*sweepDialog)(nil)
+	_ component = (*confirmDialog)(nil)
+	_ component = (*promptDialog)(nil)
+	_ component = (*helpDialog)(nil)
+	_ component = (*progressDialog)(nil)
+)

@@ -12,9 +12,11 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/sweep"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 	"github.com/rampwise/rampwise/tui/canvas"
 )
 
@@ -51,7 +53,7 @@ func rsText(sh *shared, sys *model.System, r *model.Result) string {
 		return "no counted pair"
 	}
 	cp := r.Pairs[r.Critical]
-	return fmt.Sprintf("%.2f %s / %s", r.MinResolution, inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
+	return format.Rs(r.MinResolution, sh.method.Goal.MinResolution) + " " + format.CriticalPair(inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
 }
 
 // --- the optimizer's result ---
@@ -148,10 +150,7 @@ func (d *resultDialog) render() {
 		if r.Critical < 0 {
 			return "no counted pair"
 		}
-		if r.MinResolution < target {
-			return fmt.Sprintf("%.2f ✗", r.MinResolution)
-		}
-		return fmt.Sprintf("%.2f ✓", r.MinResolution)
+		return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
 	}
 	right := []string{
 		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
@@ -175,7 +174,7 @@ func (d *resultDialog) render() {
 		body = append(body, st.Info.Render(l))
 	}
 	if !res.Feasible() {
-		for _, l := range wrap(" why: "+res.Explanation, d.w) {
+		for _, l := range wrap(" why: "+inert(res.Explanation), d.w) {
 			body = append(body, st.Warn.Render(l))
 		}
 	}
@@ -287,7 +286,7 @@ func (d *fitDialog) render() {
 	title := dialogTitle(st, "calibration", fmt.Sprintf("  in elution order · diameter %s mm · plate-height factor %s · ⚠ large ± (over %g kJ/mol or %g J/(mol·K))",
 		fmtNum(m.Column.DiameterMM, 3, 4), fmtNum(m.Column.PlateHeight, 2, 3), largeErrDH, largeErrDS), d.w)
 	rsLine := st.Info.Render(ansi.Truncate(fmt.Sprintf(" min Rs now %s → %s with the fitted values (target %.2f)", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim), m.Goal.MinResolution), d.w, "…"))
-	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH kJ/mol", "±", "ΔS J/molK", "±", "runs", "rms min"), d.w, "…"))
+	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH "+format.UnitDH, "±", "ΔS "+format.UnitDS, "±", "runs", "rms min"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
@@ -317,14 +316,14 @@ func errText(x float64) string {
 
 type rankingDialog struct {
 	sh    *shared
-	out   []optimizer.Outcome
+	out   []methodsearch.Outcome
 	sel   int
 	keys  ListKeys
 	w, h  int
 	lines []string
 }
 
-func newRankingDialog(sh *shared, out []optimizer.Outcome) *rankingDialog {
+func newRankingDialog(sh *shared, out []methodsearch.Outcome) *rankingDialog {
 	k := ListKeys{
 		Up:     bind([]string{"up", "k"}, "↑/↓", "choose"),
 		Down:   bind([]string{"down", "j"}, "↓", "next"),
@@ -365,11 +364,11 @@ func (d *rankingDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 }
 
 // choose is the edit that switches to candidate o with its program.
-func (d *rankingDialog) choose(o optimizer.Outcome) tea.Msg {
+func (d *rankingDialog) choose(o methodsearch.Outcome) tea.Msg {
 	if o.Err != nil || o.Result == nil {
 		return sayMsg{msgError, "that candidate has no program"}
 	}
-	m := optimizer.Apply(o.Method, o.Result)
+	m := methodsearch.Apply(o.Method, o.Result)
 	return editMsg{m: m, what: "switched to " + o.Source + " with its optimized program (u undoes)"}
 }
 
@@ -391,16 +390,16 @@ func (d *rankingDialog) render() {
 		text := fmt.Sprintf("%s%2d %-24s ", mark, i+1, ansi.Truncate(o.Source, 24, "…"))
 		switch {
 		case o.Err != nil:
-			text += "error: " + o.Err.Error()
+			text += "error: " + inertErr(o.Err)
 		default:
 			t := fmt.Sprintf("%.2f", o.Time/60)
 			if !o.Result.Feasible() {
 				t = "not met"
 			}
 			// the carrier setting the optimizer chose with the program
-			c := optimizer.Apply(o.Method, o.Result).Carrier
+			c := methodsearch.Apply(o.Method, o.Result).Carrier
 			car := fmt.Sprintf("%s mL/min", fmtNum(c.FlowMLMin, 2, 2))
-			if c.Mode == "constant-pressure" {
+			if c.Mode == model.ConstantPressure {
 				car = fmt.Sprintf("%s kPa const", fmtNum(c.InletKPa, 1, 1))
 			}
 			text += fmt.Sprintf("%8s %5.2f %-13s %-9s %6.0f", t, o.Result.Sim.MinResolution, car,
@@ -584,16 +583,6 @@ func niceCeil(x float64) float64 {
 		}
 	}
 	return 10 * p
-}
-
-func fmtTick(v float64) string {
-	switch {
-	case v >= 100:
-		return fmt.Sprintf("%.0f", v)
-	case v >= 10:
-		return fmt.Sprintf("%.1f", v)
-	}
-	return fmt.Sprintf("%.2f", v)
 }
 
 // valueAxis is a row of ticks for [lo, hi] over w columns, with the unit.

@@ -145,7 +145,8 @@ func (d *promptDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 // all of it wrapped below, so that a long path is never cut.
 func (d *promptDialog) render() {
 	st := d.sh.st
-	lines := []string{dialogTitle(st, "type a value", "  enter sets · esc leaves it", d.w), ansi.Truncate(d.ti.View(), d.w, "…")}
+	title := strings.TrimSuffix(strings.TrimSpace(d.ti.Prompt), ":")
+	lines := []string{dialogTitle(st, title, "  enter sets · esc leaves it", d.w), ansi.Truncate(d.ti.View(), d.w, "…")}
 	v := inert(d.ti.Value())
 	if lipgloss.Width(v) > d.ti.Width {
 		lines = append(lines, st.Dim.Render(" in full:"))
@@ -230,15 +231,49 @@ type helpGroup struct {
 
 func (d *helpDialog) tall() bool { return true }
 
-// newHelpDialog lists the focused pane's keys first, then the global
-// ones, then the other panes' and the dialogs'.
-func newHelpDialog(sh *shared, hm *help.Model, focused component, name string, g GlobalKeys) *helpDialog {
-	d := &helpDialog{sh: sh}
-	d.keys = ListKeys{
+func helpKeys() ListKeys {
+	return ListKeys{
 		PageDown: bind([]string{"pgdown", " ", "down", "j"}, "pgdn/pgup", "page"),
 		PageUp:   bind([]string{"pgup", "up", "k"}, "pgup", "page up"),
 		Reject:   bind([]string{"esc", "?", "q"}, "esc/?", "close"),
 	}
+}
+
+// newDialogHelp lists the keys of an open dialog; closing it goes back to
+// the dialog.
+func newDialogHelp(sh *shared, hm *help.Model, open component, name string, g GlobalKeys) *helpDialog {
+	d := &helpDialog{sh: sh, keys: helpKeys()}
+	for _, grp := range open.FullHelp() {
+		d.groups = append(d.groups, helpGroup{name, grp})
+	}
+	d.groups = append(d.groups, helpGroup{"everywhere", []key.Binding{g.Interrupt}})
+	d.build(hm)
+	return d
+}
+
+// dialogName is how the key list titles an open dialog.
+func dialogName(d component) string {
+	switch d.(type) {
+	case *resultDialog:
+		return "optimizer result"
+	case *fitDialog:
+		return "fit review"
+	case *rankingDialog:
+		return "column ranking"
+	case *sweepDialog:
+		return "window diagram"
+	case *confirmDialog:
+		return "question"
+	case *progressDialog:
+		return "background work"
+	}
+	return "dialog"
+}
+
+// newHelpDialog lists the focused pane's keys first, then the global
+// ones, then the other panes' and the dialogs'.
+func newHelpDialog(sh *shared, hm *help.Model, focused component, name string, g GlobalKeys) *helpDialog {
+	d := &helpDialog{sh: sh, keys: helpKeys()}
 	for _, grp := range focused.FullHelp() {
 		d.groups = append(d.groups, helpGroup{name + " (focused)", grp})
 	}
@@ -266,6 +301,7 @@ func newHelpDialog(sh *shared, hm *help.Model, focused component, name string, g
 		bind([]string{"v"}, "v", "old/new run in the chart"),
 		bind([]string{"up"}, "↑/↓ pgdn", "scroll"),
 		bind([]string{"esc"}, "esc", "stop work, close"),
+		bind([]string{"?"}, "?", "the open dialog's keys"),
 	}})
 	d.build(hm)
 	return d

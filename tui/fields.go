@@ -1,11 +1,11 @@
 package tui
 
 import (
-	"errors"
 	"fmt"
 	"strconv"
 	"strings"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -22,16 +22,57 @@ type field struct {
 	num     func(m *methodfile.Method) *float64 // the value, or nil with get/set
 	get     func(m *methodfile.Method) float64
 	set     func(m *methodfile.Method, v float64)
-	str     func(m *methodfile.Method) *string
+	str     func(m *methodfile.Method) string // a choice field's current choice
+	setStr  func(m *methodfile.Method, s string)
 	integer bool
-	// program fields: which ramp (0 = initial) and kind
+	// program fields: which ramp (0 = initial) and value
 	ramp int
-	kind string
+	pv   model.ProgramValue
 }
+
+// name is how the field is called on screen: what it is in the trade's
+// words, not its file key.
+func (f field) name() string {
+	if !strings.HasPrefix(f.key, "oven.") {
+		return f.label
+	}
+	switch f.pv.Kind {
+	case model.InitialTemp:
+		return "start temperature"
+	case model.InitialHold:
+		return "start hold"
+	case model.RampRate:
+		return fmt.Sprintf("ramp %d rate", f.ramp)
+	case model.RampFinal:
+		return fmt.Sprintf("ramp %d final temperature", f.ramp)
+	}
+	return fmt.Sprintf("ramp %d hold", f.ramp)
+}
+
+// choiceField is a field that cycles through every value in all.
+func choiceField[T fmt.Stringer](key, label string, all []T, p func(m *methodfile.Method) *T) field {
+	names := make([]string, len(all))
+	for i, x := range all {
+		names[i] = x.String()
+	}
+	return field{key: key, label: label, choices: names,
+		str: func(m *methodfile.Method) string { return (*p(m)).String() },
+		setStr: func(m *methodfile.Method, s string) {
+			for i, n := range names {
+				if n == s {
+					*p(m) = all[i]
+				}
+			}
+		}}
+}
+
+type outlet string
+
+func (o outlet) String() string { return string(o) }
 
 func (f field) text(m *methodfile.Method) string {
 	if f.str != nil {
-		return *f.str(m)
+		return f.str(m)
 	}
 	v := f.value(m)
 	if f.integer {
@@ -85,13 +126,13 @@ func (f field) stepped(m *methodfile.Method, n float64, big bool) *methodfile.Me
 		s := f.str(c)
 		i := 0
 		for j, ch := range f.choices {
-			if ch == *s {
+			if ch == s {
 				i = j
 			}
 		}
 		k := len(f.choices)
 		i = ((i+int(n))%k + k) % k
-		*s = f.choices[i]
+		f.setStr(c, f.choices[i])
 		return c
 	}
 	st := f.step
@@ -122,7 +163,7 @@ func (f field) typed(m *methodfile.Method, text string) (*methodfile.Method, err
 	if f.str != nil {
 		for _, ch := range f.choices {
 			if strings.EqualFold(ch, text) {
-				*f.str(c) = ch
+				f.setStr(c, ch)
 				return c, nil
 			}
 		}
@@ -144,20 +185,20 @@ func (f field) typed(m *methodfile.Method, text string) (*methodfile.Method, err
 // then rate, final temperature and hold of each ramp.
 func programFields(m *methodfile.Method) []field {
 	fs := []field{
-		{key: "oven.initial_c", label: "start", unit: "°C", digits: 1, save: 2, step: 1, big: 10, ramp: 0, kind: "initial_c",
+		{key: "oven.initial_c", label: "start", unit: "°C", digits: 1, save: 2, step: 1, big: 10, ramp: 0, pv: model.ProgramValue{Kind: model.InitialTemp},
 			num: func(m *methodfile.Method) *float64 { return &m.Oven.InitialC }},
-		{key: "oven.initial_hold_min", label: "hold", unit: "min", digits: 2, save: 3, step: 0.1, big: 1, ramp: 0, kind: "initial_hold_min",
+		{key: "oven.initial_hold_min", label: "hold", unit: "min", digits: 2, save: 3, step: 0.1, big: 1, ramp: 0, pv: model.ProgramValue{Kind: model.InitialHold},
 			num: func(m *methodfile.Method) *float64 { return &m.Oven.InitialHoldMin }},
 	}
 	for i := range m.Oven.Ramps {
 		i := i
 		base := fmt.Sprintf("oven.ramp[%d]", i+1)
 		fs = append(fs,
-			field{key: base + ".rate_c_min", label: "rate", unit: "°C/min", digits: 1, save: 2, step: 0.5, big: 5, ramp: i + 1, kind: "rate",
+			field{key: base + ".rate_c_min", label: "rate", unit: "°C/min", digits: 1, save: 2, step: 0.5, big: 5, ramp: i + 1, pv: model.ProgramValue{Kind: model.RampRate, Ramp: i + 1},
 				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].RateCMin }},
-			field{key: base + ".final_c", label: "to", unit: "°C", digits: 1, save: 2, step: 1, big: 10, ramp: i + 1, kind: "final",
+			field{key: base + ".final_c", label: "to", unit: "°C", digits: 1, save: 2, step: 1, big: 10, ramp: i + 1, pv: model.ProgramValue{Kind: model.RampFinal, Ramp: i + 1},
 				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].FinalC }},
-			field{key: base + ".hold_min", label: "hold", unit: "min", digits: 2, save: 3, step: 0.1, big: 1, ramp: i + 1, kind: "hold",
+			field{key: base + ".hold_min", label: "hold", unit: "min", digits: 2, save: 3, step: 0.1, big: 1, ramp: i + 1, pv: model.ProgramValue{Kind: model.RampHold, Ramp: i + 1},
 				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].HoldMin }},
 		)
 	}
@@ -174,18 +215,18 @@ func settingsFields(m *methodfile.Method) []field {
 		n("column.diameter_mm", "column diameter", "mm", 3, 0.01, 0.05, func(m *methodfile.Method) *float64 { return &m.Column.DiameterMM }),
 		n("column.film_um", "film thickness", "µm", 2, 0.05, 0.25, func(m *methodfile.Method) *float64 { return &m.Column.FilmUM }),
 		n("column.max_temp_c", "column max temperature", "°C", 0, 1, 10, func(m *methodfile.Method) *float64 { return &m.Column.MaxTempC }),
-		{key: "carrier.gas", label: "carrier gas", choices: []string{"helium", "hydrogen", "nitrogen"}, str: func(m *methodfile.Method) *string { return &m.Carrier.Gas }},
-		{key: "carrier.mode", label: "pressure mode", choices: []string{"constant-flow", "constant-pressure"}, str: func(m *methodfile.Method) *string { return &m.Carrier.Mode }},
+		choiceField("carrier.gas", "carrier gas", model.Gases, func(m *methodfile.Method) *model.Gas { return &m.Carrier.Gas }),
+		choiceField("carrier.mode", "pressure mode", model.PressureModes, func(m *methodfile.Method) *model.PressureMode { return &m.Carrier.Mode }),
 	}
-	if m.Carrier.Mode == "constant-pressure" {
+	if m.Carrier.Mode == model.ConstantPressure {
 		fs = append(fs, n("carrier.inlet_kpa", "inlet pressure (gauge)", "kPa", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Carrier.InletKPa }))
 	} else {
 		fs = append(fs, n("carrier.flow_ml_min", "column flow", "mL/min", 2, 0.05, 0.5, func(m *methodfile.Method) *float64 { return &m.Carrier.FlowMLMin }))
 	}
 	fs = append(fs,
-		field{key: "carrier.outlet", label: "outlet", choices: []string{"atmospheric", "vacuum"}, str: func(m *methodfile.Method) *string { return &m.Carrier.Outlet }},
+		choiceField("carrier.outlet", "outlet", []outlet{"atmospheric", "vacuum"}, func(m *methodfile.Method) *outlet { return (*outlet)(&m.Carrier.Outlet) }),
 		n("goal.min_resolution", "target resolution", "", 2, 0.05, 0.5, func(m *methodfile.Method) *float64 { return &m.Goal.MinResolution }),
-		field{key: "goal.objective", label: "objective", choices: []string{"run-time", "cycle-time"}, str: func(m *methodfile.Method) *string { return &m.Goal.Objective }},
+		choiceField("goal.objective", "objective", model.Objectives, func(m *methodfile.Method) *model.Objective { return &m.Goal.Objective }),
 		field{key: "goal.ramps", label: "ramps the optimizer may use", digits: 0, step: 1, big: 1, integer: true,
 			get: func(m *methodfile.Method) float64 { return float64(m.Goal.Ramps) },
 			set: func(m *methodfile.Method, v float64) { m.Goal.Ramps = int(v) }},
@@ -209,27 +250,9 @@ var settingsSaved = map[string]int{
 	"limits.oven_min_c": 1, "limits.max_rate_c_min": 2, "limits.max_hold_min": 3, "limits.max_inlet_kpa": 1,
 }
 
-// validate checks an edited method with the method file's own rules (so the
-// messages are the ones a file would get) and the oven's rate limit.
-func validate(m *methodfile.Method) error {
-	data, err := methodfile.Marshal(m)
-	if err != nil {
-		return err
-	}
-	if _, err := methodfile.Parse("edit", data); err != nil {
-		var fe *methodfile.Error
-		if errors.As(err, &fe) {
-			return fmt.Errorf("%s: %s", fe.Key, fe.Msg)
-		}
-		return err
-	}
-	for i, r := range m.Oven.Ramps {
-		if r.RateCMin > m.Limits.MaxRateCMin {
-			return fmt.Errorf("oven.ramp[%d].rate_c_min: %s °C/min is faster than the oven's limit %s °C/min (limits.max_rate_c_min)", i+1, trimNum(r.RateCMin), trimNum(m.Limits.MaxRateCMin))
-		}
-	}
-	return nil
-}
+// validate checks an edited method with the method file's own rules, the
+// instrument limits included (so the messages are the ones a file gets).
+func validate(m *methodfile.Method) error { return m.Validate() }
 
 func trimNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 

@@ -2,6 +2,7 @@ package tui
 
 import (
 	"bytes"
+	"path/filepath"
 	"reflect"
 	"testing"
 	"time"
@@ -65,7 +66,7 @@ func TestFlowOptimizeAccept(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(back, final.Method()) {
+	if !back.Equal(final.Method()) {
 		t.Error("saved method differs")
 	}
 }
@@ -83,4 +84,41 @@ func TestFlowOptimizeCancel(t *testing.T) {
 	tm.Send(tea.KeyMsg{Type: tea.KeyEsc})
 	tm.Send(keyRune('q'))
 	tm.WaitFinished(t, teatest.WithFinalTimeout(10*time.Second))
+}
+
+// fit in the background → review → take it, end to end
+func TestFlowFitInBackground(t *testing.T) {
+	a, _ := newApp(t, 100, 30)
+	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	tm := teatest.NewTestModel(t, a, teatest.WithInitialTermSize(100, 30))
+	tm.Send(keyRune('F'))
+	waitScreen(t, tm, "scouting runs file")
+	tm.Send(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune(runs)})
+	tm.Send(tea.KeyMsg{Type: tea.KeyEnter})
+	waitScreen(t, tm, "with the fitted values")
+	tm.Send(keyRune('y'))
+	waitScreen(t, tm, "took the fitted parameters")
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
+	waitScreen(t, tm, "save them before quitting")
+	tm.Send(keyRune('y'))
+	tm.WaitFinished(t, teatest.WithFinalTimeout(10*time.Second))
+}
+
+// ctrl+c while the optimizer runs with unsaved changes stops the search
+// and asks, like q
+func TestFlowInterruptDuringOptimize(t *testing.T) {
+	a, _ := newApp(t, 100, 30)
+	a.optSettings.Starts = 400
+	a.optSettings.Evaluations = 50000
+	tm := teatest.NewTestModel(t, a, teatest.WithInitialTermSize(100, 30))
+	tm.Send(keyRune('-'))
+	tm.Send(keyRune('o'))
+	waitScreen(t, tm, "evaluations")
+	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
+	waitScreen(t, tm, "save them before quitting")
+	tm.Send(keyRune('y'))
+	final := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*App)
+	if final.job != nil {
+		t.Error("the search was not stopped")
+	}
 }

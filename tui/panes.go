@@ -11,6 +11,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -68,7 +69,7 @@ func (l *fieldList) key(msg tea.KeyMsg) bool {
 	case key.Matches(msg, k.Type):
 		f := fs[l.sel]
 		sh := l.sh
-		l.sh.send(openMsg{newPrompt(sh, fmt.Sprintf("%s (%s): ", f.key, f.unit), f.text(sh.method), func(text string) tea.Msg {
+		l.sh.send(openMsg{newPrompt(sh, fieldPrompt(f), f.text(sh.method), func(text string) tea.Msg {
 			m, err := f.typed(sh.method, text)
 			if err != nil {
 				return sayMsg{msgError, err.Error() + " (kept the last valid value)"}
@@ -79,6 +80,17 @@ func (l *fieldList) key(msg tea.KeyMsg) bool {
 		return false
 	}
 	return true
+}
+
+// fieldPrompt asks for field f by name, with its unit or its choices.
+func fieldPrompt(f field) string {
+	switch {
+	case f.choices != nil:
+		return fmt.Sprintf("%s (%s): ", f.name(), strings.Join(f.choices, ", "))
+	case f.unit != "":
+		return fmt.Sprintf("%s (%s): ", f.name(), f.unit)
+	}
+	return f.name() + ": "
 }
 
 // fieldEdit is the edit that sets field f as m has it. A gas or pressure
@@ -390,7 +402,7 @@ func (c *chartPane) render() {
 // --- peaks pane ---
 
 // The compound values the peak table edits.
-var peakColumns = []struct{ name, unit string }{{"ΔH", "kJ/mol"}, {"ΔS", "J/(mol·K)"}, {"ΔCp", "J/(mol·K)"}}
+var peakColumns = []struct{ name, unit string }{{"ΔH", format.UnitDH}, {"ΔS", format.UnitDS}, {"ΔCp", format.UnitDCp}}
 
 type peaksPane struct {
 	sh    *shared
@@ -491,7 +503,8 @@ func (p *peaksPane) render() {
 	r := sh.res
 	focused := sh.focus == panePeaks
 	lines := []string{heading(st, focused, "peaks", p.w, "  t target · enter edits "+peakColumns[p.col].name+" · ΔH kJ/mol, ΔS and ΔCp J/(mol·K)")}
-	head := fmt.Sprintf(" %2s %-16s %7s %5s %5s %6s %3s %8s  %8s  %7s", "#", "compound", "tR min", "Te °C", "w½ s", "Rs nxt", "tgt", "ΔH", "ΔS", "ΔCp")
+	nw := min(32, max(16, 16+p.w-80)) // the name column takes what a wide terminal gives
+	head := fmt.Sprintf(" %2s %s %7s %5s %5s %6s %3s %8s  %8s  %7s", "#", padRight("compound", nw), "tR min", "Te °C", "w½ s", "Rs nxt", "tgt", "ΔH", "ΔS", "ΔCp")
 	lines = append(lines, st.TableHead.Render(ansi.Truncate(head, p.w, "…")))
 	rows := p.h - 2
 	first := 0
@@ -503,9 +516,9 @@ func (p *peaksPane) render() {
 		c := &sh.method.Compounds[pk.Compound]
 		rs := ""
 		if i < len(r.Pairs) {
-			rs = fmt.Sprintf("%.2f", r.Pairs[i].Resolution)
+			rs = format.Pair(r.Pairs[i].Resolution, sh.method.Goal.MinResolution)
 			if i == r.Critical {
-				rs = "◆" + rs
+				rs = format.CriticalMark + rs
 			}
 		}
 		tgt := ""
@@ -531,7 +544,7 @@ func (p *peaksPane) render() {
 		if sel {
 			mark = "›"
 		}
-		row := fmt.Sprintf("%s%2d %-16s %7s %5.1f %5.2f %6s %3s", mark, i+1, ansi.Truncate(inert(c.Name), 16, "…"), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
+		row := fmt.Sprintf("%s%2d %s %7s %5.1f %5.2f %6s %3s", mark, i+1, padRight(ansi.Truncate(inert(c.Name), nw, "…"), nw), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
 		rowSt := st.TableRow
 		if sel {
 			rowSt = st.TableSel
@@ -584,10 +597,10 @@ func (p *settingsPane) render() {
 	fs := settingsFields(m)
 	focused := sh.focus == paneSettings
 	lines := []string{heading(st, focused, "settings", p.w, "  ↑/↓ choose · +/- change · enter types · s sweeps the flow or pressure")}
-	if m.Carrier.Gas == "hydrogen" {
+	if m.Carrier.Gas.Flammable() {
 		lines = append(lines, ansi.Truncate(st.Warn.Render(" ⚠ "+model.HydrogenCaution), p.w, "…"))
 	}
-	if m.Carrier.Mode == "constant-flow" && sh.sys != nil {
+	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil {
 		prog := m.ModelProgram()
 		lo, hi := sh.sys.Cond.InletGauge(prog.Initial)/1000, sh.sys.Cond.InletGauge(prog.MaxTemp())/1000
 		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("  %-30s ", "inlet pressure (gauge), derived"))+
@@ -607,7 +620,7 @@ func (p *settingsPane) render() {
 		} else {
 			v = " " + st.Value.Render(strings.TrimSpace(v)) + " "
 		}
-		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("%s %-30s ", mark, f.label))+v+st.Dim.Render("  "+f.key), p.w, "…"))
+		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("%s %-30s ", mark, f.label))+padRight(v, 18)+st.Dim.Render(" "+f.key), p.w, "…"))
 	}
 	p.lines = fill(lines, p.h)
 }

@@ -7,6 +7,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 )
 
 // The root's own lines: title, method, summary and messages. Every string
@@ -39,9 +40,11 @@ func (a *App) methodLine(w int) string {
 		fs[f.key] = f
 	}
 	v := func(key string) string { return fs[key].text(m) }
-	flow := fmt.Sprintf("%s mL/min constant flow", v("carrier.flow_ml_min"))
-	if g.Mode == "constant-pressure" {
+	var flow string
+	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa constant pressure", v("carrier.inlet_kpa"))
+	} else {
+		flow = fmt.Sprintf("%s mL/min constant flow", v("carrier.flow_ml_min"))
 	}
 	if g.Outlet == "vacuum" {
 		flow += ", vacuum outlet"
@@ -53,7 +56,7 @@ func (a *App) methodLine(w int) string {
 	s := fmt.Sprintf(" %s m × %s mm × %s µm, max %s °C · %s %s · goal Rs %.2f, %s, %d ramps · %s",
 		v("column.length_m"), v("column.diameter_mm"), v("column.film_um"), v("column.max_temp_c"), g.Gas, flow,
 		m.Goal.MinResolution, m.Goal.Objective, m.Goal.Ramps, phase)
-	if g.Gas == "hydrogen" {
+	if g.Gas.Flammable() {
 		return a.st.Warn.Render(" ⚠ H₂ flammable ") + a.st.Dim.Render(ansi.Truncate(s, w-16, "…"))
 	}
 	return a.st.Dim.Render(ansi.Truncate(s, w, "…"))
@@ -66,12 +69,14 @@ func (a *App) summaryLine(w int) string {
 	style := a.st.Good
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		ok := "✓"
-		if r.MinResolution < a.sh.method.Goal.MinResolution {
-			ok, style = "✗", a.st.Bad
+		target := a.sh.method.Goal.MinResolution
+		if !format.Met(r.MinResolution, target) {
+			style = a.st.Bad
 		}
-		rs = fmt.Sprintf("Rs %.2f %s %s / %s (target %.2f)", r.MinResolution, ok,
-			inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name), a.sh.method.Goal.MinResolution)
+		// the pair before the target, so that a narrow screen still names it
+		rs = "Rs " + format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target) + " " +
+			format.CriticalPair(inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name)) +
+			" (target " + format.Target(target) + ")"
 	}
 	late := 0
 	for _, pk := range r.Peaks {

@@ -14,10 +14,12 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/fsafe"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/model/sweep"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // Anything slower than a keystroke runs here, as a tea.Cmd that returns a
@@ -53,10 +55,11 @@ type (
 		err error
 	}
 	saveOutcome struct {
-		path string
-		m    *methodfile.Method
-		err  error
-		quit bool
+		path  string
+		m     *methodfile.Method
+		err   error
+		quit  bool
+		fresh bool // an existing method's text could not be kept: written anew
 	}
 	exportOutcome struct {
 		base string
@@ -69,7 +72,7 @@ type (
 		sys  *model.System
 		err  error
 	}
-	compareOutcome struct{ out []optimizer.Outcome }
+	compareOutcome struct{ out []methodsearch.Outcome }
 	sweepOutcome   struct {
 		spec sweepSpec
 		pts  []sweep.Point
@@ -85,16 +88,14 @@ type optProgressMsg struct {
 // progressTextMsg updates the progress dialog.
 type progressTextMsg struct{ text string }
 
-var jobSeq int
-
 // startJob opens the progress dialog and returns the Cmd that runs work.
 func (a *App) startJob(what string, work func(ctx context.Context) any) (*job, tea.Cmd) {
 	if a.job != nil {
 		a.job.cancel()
 	}
-	jobSeq++
+	a.jobSeq++
 	ctx, cancel := context.WithCancel(context.Background())
-	j := &job{id: jobSeq, what: what, cancel: cancel}
+	j := &job{id: a.jobSeq, what: what, cancel: cancel}
 	a.job = j
 	a.open(newProgressDialog(&a.sh, what))
 	id := j.id
@@ -112,10 +113,23 @@ func (a *App) cancelJob() {
 		return
 	}
 	a.job = nil
+	a.dropProgress()
+	a.say(msgInfo, "stopped %s", j.what)
+}
+
+// dropProgress removes the progress display of finished work, from the
+// slot or from the dialogs waiting for it.
+func (a *App) dropProgress() {
+	keep := a.pending[:0]
+	for _, d := range a.pending {
+		if _, ok := d.(*progressDialog); !ok {
+			keep = append(keep, d)
+		}
+	}
+	a.pending = keep
 	if _, ok := a.overlay.(*progressDialog); ok {
 		a.closeOverlay()
 	}
-	a.say(msgInfo, "stopped %s", j.what)
 }
 
 // onDone takes a job's outcome.
@@ -124,9 +138,7 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		return nil // cancelled
 	}
 	a.job = nil
-	if _, ok := a.overlay.(*progressDialog); ok {
-		a.closeOverlay()
-	}
+	a.dropProgress()
 	switch v := msg.v.(type) {
 	case optOutcome:
 		a.optDone(v)
@@ -134,14 +146,14 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		return a.saveDone(v)
 	case exportOutcome:
 		if v.err != nil {
-			a.say(msgError, "export: %v", v.err)
+			a.say(msgError, "export: %v", inertErr(v.err))
 			return nil
 		}
 		a.wrote[v.base+".png"], a.wrote[v.base+".md"] = true, true
 		a.say(msgGood, "exported %s.png (figure) and %s.md (method sheet)", inert(v.base), inert(v.base))
 	case fitOutcome:
 		if v.err != nil {
-			a.say(msgError, "%v", v.err)
+			a.say(msgError, "%v", inertErr(v.err))
 			return nil
 		}
 		a.open(newFitDialog(&a.sh, v))
@@ -151,7 +163,7 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 		a.say(msgGood, "ranked %d columns: enter switches the method to the chosen one", len(v.out))
 	case sweepOutcome:
 		if v.err != nil {
-			a.say(msgError, "sweep: %v", v.err)
+			a.say(msgError, "sweep: %v", inertErr(v.err))
 			return nil
 		}
 		a.open(newSweepDialog(&a.sh, v.spec, v.pts))
@@ -195,22 +207,34 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 		a.open(a.saveAsPrompt(quit))
 		return nil
 	}
+	if !a.mayWrite(path, quit) {
+		return nil
+	}
 	m := a.sh.method
 	_, cmd := a.startJob("saving "+inert(path), func(ctx context.Context) any {
-		return saveOutcome{path: path, m: m, err: methodfile.WriteFile(path, m), quit: quit}
+		existed := false
+		if fp, err := fsafe.Take(path); err == nil && fp.Exists {
+			existed = true
+		}
+		kept, err := methodfile.Save(path, nil, m)
+		return saveOutcome{path: path, m: m, err: err, quit: quit, fresh: existed && !kept}
 	})
 	return cmd
 }
 
 func (a *App) saveDone(v saveOutcome) tea.Cmd {
 	if v.err != nil {
-		a.say(msgError, "not saved: %v", v.err)
+		a.say(msgError, "not saved: %v", inertErr(v.err))
 		return nil
 	}
 	a.path, a.name, a.saved = v.path, v.path, v.m
 	a.wrote[v.path] = true
+	a.savedFile(v.path)
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 	a.say(msgGood, "saved to %s", inert(v.path))
+	if v.fresh {
+		a.say(msgWarn, "saved to %s, written anew: its layout could not be kept (comments lost)", inert(v.path))
+	}
 	if v.quit {
 		return tea.Quit
 	}
@@ -273,7 +297,7 @@ func export(m *methodfile.Method, base string) error {
 
 func (a *App) startOptimize() tea.Cmd {
 	m, sys := a.sh.method, a.sh.sys
-	prob := optimizer.FromMethod(m, sys)
+	prob := methodsearch.Problem(m, sys)
 	settings := a.optSettings
 	ch := make(chan tea.Msg, 4)
 	j, run := a.startJob("optimizing", func(ctx context.Context) any {
@@ -332,24 +356,24 @@ func (a *App) onOptProgress(msg progressWith) tea.Cmd {
 
 func (a *App) optDone(v optOutcome) {
 	if v.err != nil {
-		a.say(msgError, "optimizer: %v", v.err)
+		a.say(msgError, "optimizer: %v", inertErr(v.err))
 		a.chart.Update(previewMsg{})
 		return
 	}
 	if v.res.Canceled && !v.res.Offer {
 		// an early stop offers only a better program that meets the target
-		a.say(msgInfo, "stopped early, nothing better to offer (%s); kept the current program", v.res.Explanation)
+		a.say(msgInfo, "stopped early, nothing better to offer (%s); kept the current program", inert(v.res.Explanation))
 		a.chart.Update(previewMsg{})
 		return
 	}
-	after := optimizer.Apply(a.sh.method, v.res)
+	after := methodsearch.Apply(a.sh.method, v.res)
 	d := newResultDialog(&a.sh, v.res, after, v.res.Sim)
 	a.open(d)
 	a.chart.Update(d.preview())
 	if v.res.Feasible() {
 		a.say(msgGood, "target met: enter or y takes the new program, n or esc keeps the old one; v shows the old run")
 	} else {
-		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", v.res.Explanation)
+		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", inert(v.res.Explanation))
 	}
 }
 
@@ -443,33 +467,34 @@ func parseDims(text string, m *methodfile.Method) ([][3]float64, error) {
 func (a *App) startCompare(text string) tea.Cmd {
 	dims, err := parseDims(text, a.sh.method)
 	if err != nil {
-		a.say(msgError, "compare: %v", err)
+		a.say(msgError, "compare: %v", inertErr(err))
 		return nil
 	}
-	var cands []optimizer.Candidate
+	var cands []methodsearch.Candidate
 	for _, d := range dims {
 		c := a.sh.method.Clone()
 		c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = d[0], d[1], d[2]
 		if err := validate(c); err != nil {
-			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], err)
+			a.say(msgError, "compare: %g m × %g mm × %g µm: %v", d[0], d[1], d[2], inertErr(err))
 			return nil
 		}
-		cands = append(cands, optimizer.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
+		cands = append(cands, methodsearch.Candidate{Source: fmt.Sprintf("%g m × %g mm × %g µm", d[0], d[1], d[2]), Method: c})
 	}
 	settings := a.optSettings
 	_, cmd := a.startJob(fmt.Sprintf("optimizing %d candidate columns", len(cands)), func(ctx context.Context) any {
-		return compareOutcome{out: optimizer.Compare(ctx, cands, settings, nil)}
+		return compareOutcome{out: methodsearch.Compare(ctx, cands, settings, nil)}
 	})
 	return cmd
 }
 
 // --- window diagram (s) ---
 
-// sweepSpec is one value to vary: its sweep name, how to call it on
-// screen, its unit, its current value and the allowed range.
+// sweepSpec is one value to vary: which, how to call it on screen, its
+// unit, its current value and the allowed range.
 type sweepSpec struct {
-	name, label, unit string
-	current, lo, hi   float64
+	value           model.ProgramValue
+	label, unit     string
+	current, lo, hi float64
 }
 
 // sweepPoints is how many steps a window diagram takes.
@@ -477,8 +502,8 @@ const sweepPoints = 60
 
 func (a *App) startSweep(spec sweepSpec) tea.Cmd {
 	m := a.sh.method
-	if err := sweep.Check(m, spec.name); err != nil {
-		a.say(msgError, "sweep: %v", err)
+	if err := sweep.Check(m, spec.value); err != nil {
+		a.say(msgError, "sweep: %v", inertErr(err))
 		return nil
 	}
 	if !(spec.hi > spec.lo) {
@@ -493,7 +518,7 @@ func (a *App) startSweep(spec sweepSpec) tea.Cmd {
 			if ctx.Err() != nil {
 				return sweepOutcome{spec: spec, err: ctx.Err()}
 			}
-			p, err := sweep.One(m, spec.name, values[i:min(i+8, len(values))], nil)
+			p, err := sweep.One(m, spec.value, values[i:min(i+8, len(values))], nil)
 			if err != nil {
 				return sweepOutcome{spec: spec, err: err}
 			}
@@ -520,30 +545,22 @@ func sortedUnique(v []float64) []float64 {
 // the method's limits allow.
 func programSweep(f field, m *methodfile.Method) sweepSpec {
 	v := f.value(m)
-	s := sweepSpec{name: f.kind, unit: f.unit, current: v}
-	if f.ramp > 0 {
-		s.name = fmt.Sprintf("%s_%d", f.kind, f.ramp)
-	}
+	s := sweepSpec{value: f.pv, label: f.name(), unit: f.unit, current: v}
 	maxHold := m.Limits.MaxHoldMin
-	switch f.kind {
-	case "initial_c":
-		s.label = "start temperature"
+	switch f.pv.Kind {
+	case model.InitialTemp:
 		s.lo, s.hi = math.Max(m.Limits.OvenMinC, v-40), math.Min(m.Column.MaxTempC-1, v+40)
-	case "initial_hold_min":
-		s.label = "start hold"
+	case model.InitialHold:
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
-	case "final":
-		s.label = fmt.Sprintf("ramp %d final temperature", f.ramp)
+	case model.RampFinal:
 		prev := m.Oven.InitialC
 		if f.ramp > 1 {
 			prev = m.Oven.Ramps[f.ramp-2].FinalC
 		}
 		s.lo, s.hi = math.Max(prev+1, v-60), math.Min(m.Column.MaxTempC, v+60)
-	case "rate":
-		s.label = fmt.Sprintf("ramp %d rate", f.ramp)
+	case model.RampRate:
 		s.lo, s.hi = math.Max(0.5, v/4), math.Min(m.Limits.MaxRateCMin, math.Max(v*3, 1))
-	case "hold":
-		s.label = fmt.Sprintf("ramp %d hold", f.ramp)
+	case model.RampHold:
 		s.lo, s.hi = 0, math.Min(maxHold, math.Max(2, v*3))
 	}
 	s.lo, s.hi = math.Min(s.lo, v), math.Max(s.hi, v)
@@ -553,11 +570,11 @@ func programSweep(f field, m *methodfile.Method) sweepSpec {
 // carrierSweep is the window diagram of the column flow (constant flow)
 // or the inlet pressure (constant pressure), within the method's limits.
 func carrierSweep(m *methodfile.Method) sweepSpec {
-	if m.Carrier.Mode == "constant-pressure" {
+	if m.Carrier.Mode == model.ConstantPressure {
 		v := m.Carrier.InletKPa
 		lo := math.Max(m.Limits.MinInletKPa, math.Max(1, v/3))
 		hi := math.Min(m.Limits.MaxInletKPa, v*2.5)
-		return sweepSpec{name: "inlet_kpa", label: "inlet pressure", unit: "kPa", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
+		return sweepSpec{value: model.ProgramValue{Kind: model.InletPressure}, label: "inlet pressure", unit: "kPa", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
 	}
 	v := m.Carrier.FlowMLMin
 	lo, hi := math.Max(0.1, v/3), v*3
@@ -567,5 +584,5 @@ func carrierSweep(m *methodfile.Method) sweepSpec {
 	if m.Limits.MaxFlowMLMin > 0 {
 		hi = math.Min(hi, m.Limits.MaxFlowMLMin)
 	}
-	return sweepSpec{name: "flow_ml_min", label: "column flow", unit: "mL/min", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
+	return sweepSpec{value: model.ProgramValue{Kind: model.CarrierFlow}, label: "column flow", unit: "mL/min", current: v, lo: math.Min(lo, v), hi: math.Max(hi, v)}
 }

@@ -14,8 +14,11 @@ import (
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 const compareHelp = `Usage: rampwise compare METHOD... [--length L,...] [--diameter D,...] [--film F,...]
@@ -53,6 +56,7 @@ type candidateJSON struct {
 	Robust        *robustJSON `json:"robust,omitempty"`
 	Feasible      bool        `json:"feasible"`
 	Objective     string      `json:"objective"`
+	target        float64     // the candidate's goal.min_resolution, for the table
 	Time          float64     `json:"time_min"`
 	RunTime       float64     `json:"run_time_min"`
 	CycleTime     float64     `json:"cycle_time_min"`
@@ -106,17 +110,17 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return bad(err)
 	}
-	var gases []string
+	var gases []model.Gas
 	if *gasList != "" {
 		for _, g := range strings.Split(*gasList, ",") {
-			g = strings.ToLower(strings.TrimSpace(g))
-			if _, err := model.ParseGas(g); err != nil {
+			gas, err := model.ParseGas(strings.TrimSpace(g))
+			if err != nil {
 				return badf("--gas: %v", err)
 			}
-			gases = append(gases, g)
+			gases = append(gases, gas)
 		}
 	}
-	var cands []optimizer.Candidate
+	var cands []methodsearch.Candidate
 	for _, file := range files {
 		m, name, err := loadMethod(file)
 		if err != nil {
@@ -134,7 +138,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		}
 		gv := gases
 		if gv == nil {
-			gv = []string{m.Carrier.Gas}
+			gv = []model.Gas{m.Carrier.Gas}
 		}
 		before := len(cands)
 		var lastSkip error
@@ -145,8 +149,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 						c := m.Clone()
 						c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
 						c.Carrier.Gas = g
-						data, _ := methodfile.Marshal(c)
-						if _, err := methodfile.Parse(name, data); err != nil {
+						if err := c.Validate(); err != nil {
 							if kindName(m.Column.Kind) != kindOfLists {
 								fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
 								lastSkip = err
@@ -154,7 +157,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 							}
 							return badf("%s at %g m × %g mm × %g µm, %s: %v", name, l, d, df, g, err)
 						}
-						cands = append(cands, optimizer.Candidate{Source: name, Method: c})
+						cands = append(cands, methodsearch.Candidate{Source: name, Method: c})
 					}
 				}
 			}
@@ -168,13 +171,13 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	out := optimizer.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
+	out := methodsearch.Compare(ctx, cands, optimizer.Settings{Seed: *seed}, func(done, total int) {
 		fmt.Fprintf(stderr, "compare: %d of %d candidates optimized\n", done, total)
 	})
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Gas: m.Carrier.Gas, Objective: m.Goal.Objective, Carrier: carrierToJSON(m.Carrier)}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Gas: m.Carrier.Gas.String(), Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution, Carrier: carrierToJSON(m.Carrier)}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
@@ -182,7 +185,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		}
 		r := o.Result
 		// report what optimize reports: the program and carrier as saved
-		after := optimizer.Apply(m, r)
+		after := methodsearch.Apply(m, r)
 		sys, err := after.System()
 		if err != nil {
 			return err
@@ -197,7 +200,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
 		j.RunTime, j.CycleTime = sim.RunTime/60, sim.CycleTime/60
 		j.Time = j.RunTime
-		if m.Goal.Objective == "cycle-time" {
+		if m.Goal.Objective == model.CycleTime {
 			j.Time = j.CycleTime
 		}
 		if sim.Critical >= 0 {
@@ -223,8 +226,8 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			if len(j.CriticalPair) == 2 {
 				c1, c2 = j.CriticalPair[0], j.CriticalPair[1]
 			}
-			recs = append(recs, []string{strconv.Itoa(i + 1), j.Method, j.Phase, j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), j.Gas, carrierText(j.Carrier), fmt.Sprint(j.Feasible), j.Objective,
-				fmtNum(j.Time), rs, c1, c2, fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), j.Explanation + j.Error})
+			recs = append(recs, []string{strconv.Itoa(i + 1), textsafe.CSVCell(j.Method), textsafe.CSVCell(j.Phase), j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), j.Gas, carrierText(j.Carrier), fmt.Sprint(j.Feasible), j.Objective,
+				fmtNum(j.Time), rs, textsafe.CSVCell(c1), textsafe.CSVCell(c2), fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), textsafe.CSVCell(j.Explanation + j.Error)})
 		}
 		if err := writeCSVFile(*csvF, recs, stderr); err != nil {
 			return err
@@ -252,20 +255,20 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		if j.Kind != "wall-coated" {
 			col = j.Kind + " " + col
 		}
-		phase := j.Phase
+		phase := textsafe.Inert(j.Phase)
 		if phase == "" {
-			phase = j.Method
+			phase = textsafe.Inert(j.Method)
 		}
 		if j.Error != "" {
-			fmt.Fprintf(tw, "%d\t%s\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, j.Gas, j.Error)
+			fmt.Fprintf(tw, "%d\t%s\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, j.Gas, textsafe.Inert(j.Error))
 			continue
 		}
 		rs, cp := "-", "-"
 		if j.MinResolution != nil {
-			rs = fmt.Sprintf("%.2f", *j.MinResolution)
+			rs = format.RsNumber(*j.MinResolution, j.target) + " " + format.Verdict(*j.MinResolution, j.target)
 		}
 		if len(j.CriticalPair) == 2 {
-			cp = j.CriticalPair[0] + " / " + j.CriticalPair[1]
+			cp = format.CriticalPair(textsafe.Inert(j.CriticalPair[0]), textsafe.Inert(j.CriticalPair[1]))
 		}
 		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
 		if !j.Feasible {
@@ -276,7 +279,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	tw.Flush()
 	for i, j := range rows {
 		if !j.Feasible && j.Explanation != "" {
-			fmt.Fprintf(stdout, "%d: %s\n", i+1, j.Explanation)
+			fmt.Fprintf(stdout, "%d: %s\n", i+1, textsafe.Inert(j.Explanation))
 		}
 	}
 	if hydrogen {
@@ -289,8 +292,8 @@ func carrierText(c carrierJSON) string {
 	if c.InletKPa != nil {
 		return fmtNum(*c.InletKPa) + " kPa"
 	}
-	if c.FlowMLM != nil {
-		return fmtNum(*c.FlowMLM) + " mL/min"
+	if c.FlowMLMin != nil {
+		return fmtNum(*c.FlowMLMin) + " mL/min"
 	}
 	return ""
 }

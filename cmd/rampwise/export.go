@@ -9,9 +9,12 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/model/sweep"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 const exportHelp = `Usage: rampwise export METHOD [--png F] [--svg F] [--pdf F] [--csv F] [--sheet F]
@@ -60,7 +63,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		if err := methodfile.WriteAtomic(path, data); err != nil {
 			return err
 		}
-		fmt.Fprintf(stdout, "wrote %s\n", path)
+		fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(path))
 		return nil
 	}
 	for _, f := range []struct{ path, format string }{{*pngF, "png"}, {*svgF, "svg"}, {*pdfF, "pdf"}} {
@@ -101,7 +104,9 @@ reports the minimum resolution, the critical pair and the run time at each: a
 window diagram (Laub & Purnell 1975). With --vary2, a map of the minimum
 resolution over two values (a text heat map here, an image with --png).
 Steps where the program is not valid are listed with the reason. "-" as
-METHOD uses the built-in demo.
+METHOD uses the built-in demo. A sweep is at most 100000 points (steps ×
+steps2) unless --max-points raises it; after a second, progress and an
+estimate of the time left are shown on stderr.
 
 Flags:
 `
@@ -118,6 +123,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	steps2 := fs.Int("steps2", 11, "number of steps of the second, 2..500")
 	csvF := fs.String("csv", "", "write the steps as CSV to this `file`")
 	pngF := fs.String("png", "", "write the window diagram or map as PNG to this `file`")
+	maxPoints := fs.Int("max-points", defaultMaxPoints, "refuse a sweep of more points than this (steps × steps2)")
 	files, err := parseArgsN(fs, args, 1, 1, "METHOD")
 	if err != nil {
 		return err
@@ -128,28 +134,40 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	if *steps < 2 || *steps > 2000 {
 		return badf("sweep: --steps must be 2..2000")
 	}
+	if *maxPoints < 1 {
+		return badf("sweep: --max-points must be at least 1")
+	}
+	if *vary2 == "" && *steps > *maxPoints {
+		return badf("sweep: %d points is more than --max-points %d; use fewer steps or raise --max-points", *steps, *maxPoints)
+	}
 	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
-	if err := sweep.Check(m, *vary); err != nil {
-		return badf("sweep: %v", err)
+	pv, err := sweepValue(m, *vary)
+	if err != nil {
+		return err
 	}
-	current := currentValue(m, *vary)
+	current, _ := m.Value(pv)
 	start := time.Now()
 	progress := func(done, total int) {
-		if time.Since(start) > time.Second && (done%50 == 0 || done == total) {
-			fmt.Fprintf(stderr, "sweep: %d of %d steps\n", done, total)
+		if el := time.Since(start); el > time.Second && (done%50 == 0 || done == total) {
+			left := time.Duration(float64(el) / float64(done) * float64(total-done))
+			fmt.Fprintf(stderr, "sweep: %d of %d steps, about %s left\n", done, total, left.Round(time.Second))
 		}
 	}
 	if *vary2 != "" {
 		if math.IsNaN(*from2) || math.IsNaN(*to2) || *steps2 < 2 || *steps2 > 500 {
 			return badf("sweep: --vary2 needs --from2, --to2 and --steps2 (2..500)")
 		}
-		if err := sweep.Check(m, *vary2); err != nil {
-			return badf("sweep: %v", err)
+		if n := *steps * *steps2; n > *maxPoints {
+			return badf("sweep: %d × %d = %d points is more than --max-points %d (each point is one simulation); use fewer steps or raise --max-points", *steps, *steps2, n, *maxPoints)
 		}
-		grid, err := sweep.Two(m, *vary, sweep.Steps(*from, *to, *steps), *vary2, sweep.Steps(*from2, *to2, *steps2), progress)
+		pv2, err := sweepValue(m, *vary2)
+		if err != nil {
+			return err
+		}
+		grid, err := sweep.Two(m, pv, sweep.Steps(*from, *to, *steps), pv2, sweep.Steps(*from2, *to2, *steps2), progress)
 		if err != nil {
 			return badf("sweep: %v", err)
 		}
@@ -174,27 +192,28 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 			if err := methodfile.WriteAtomic(*pngF, data); err != nil {
 				return err
 			}
-			fmt.Fprintf(stdout, "wrote %s\n", *pngF)
+			fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 		}
 		return nil
 	}
-	pts, err := sweep.One(m, *vary, sweep.Steps(*from, *to, *steps), progress)
+	pts, err := sweep.One(m, pv, sweep.Steps(*from, *to, *steps), progress)
 	if err != nil {
 		return badf("sweep: %v", err)
 	}
-	fmt.Fprintf(stdout, "%s: sweep of %s (now %g)\n\n", name, *vary, current)
+	fmt.Fprintf(stdout, "%s: sweep of %s (now %g)\n\n", textsafe.Inert(name), *vary, current)
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "%s\tmin Rs\tcritical pair\trun (min)\t\n", *vary)
 	for _, p := range pts {
 		if !p.Valid {
-			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, p.Reason)
+			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, textsafe.Inert(p.Reason))
 			continue
 		}
-		mark := ""
-		if !math.IsNaN(p.MinRs) && p.MinRs >= m.Goal.MinResolution {
-			mark = " ✓"
+		rs, pair := "–", "no counted pair"
+		if !math.IsNaN(p.MinRs) {
+			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.Verdict(p.MinRs, m.Goal.MinResolution)
+			pair = format.CriticalPair(textsafe.Inert(p.Critical[0]), textsafe.Inert(p.Critical[1]))
 		}
-		fmt.Fprintf(tw, "%g\t%.3f%s\t%s / %s\t%.2f\t\n", p.Value, p.MinRs, mark, p.Critical[0], p.Critical[1], p.RunTime)
+		fmt.Fprintf(tw, "%g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
 	}
 	tw.Flush()
 	if *csvF != "" {
@@ -214,19 +233,25 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		if err := methodfile.WriteAtomic(*pngF, data); err != nil {
 			return err
 		}
-		fmt.Fprintf(stdout, "wrote %s\n", *pngF)
+		fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 	}
 	return nil
 }
 
-func currentValue(m *methodfile.Method, name string) float64 {
-	fs := map[string]float64{"initial_c": m.Oven.InitialC, "initial_hold_min": m.Oven.InitialHoldMin, "flow_ml_min": m.Carrier.FlowMLMin, "inlet_kpa": m.Carrier.InletKPa}
-	for i, r := range m.Oven.Ramps {
-		fs[fmt.Sprintf("rate_%d", i+1)] = r.RateCMin
-		fs[fmt.Sprintf("final_%d", i+1)] = r.FinalC
-		fs[fmt.Sprintf("hold_%d", i+1)] = r.HoldMin
+// defaultMaxPoints bounds a sweep's size unless --max-points raises it: a
+// map of 10⁵ points is already far finer than a plot shows.
+const defaultMaxPoints = 100000
+
+// sweepValue reads the name of a value to vary and checks m has it.
+func sweepValue(m *methodfile.Method, name string) (model.ProgramValue, error) {
+	pv, err := model.ParseProgramValue(name)
+	if err == nil {
+		err = sweep.Check(m, pv)
 	}
-	return fs[name]
+	if err != nil {
+		return pv, badf("sweep: %v (this method has %s)", err, model.ValueNames(m.Values()))
+	}
+	return pv, nil
 }
 
 func pointRow(p sweep.Point, two bool) []string {
@@ -242,7 +267,7 @@ func pointRow(p sweep.Point, two bool) []string {
 	if p.Valid {
 		run = fmtNum(p.RunTime)
 	}
-	return append(row, fmt.Sprint(p.Valid), rs, p.Critical[0], p.Critical[1], run, p.Reason)
+	return append(row, fmt.Sprint(p.Valid), rs, textsafe.CSVCell(p.Critical[0]), textsafe.CSVCell(p.Critical[1]), run, textsafe.CSVCell(p.Reason))
 }
 
 func writeCSVFile(path string, rows [][]string, stdout io.Writer) error {
@@ -252,7 +277,7 @@ func writeCSVFile(path string, rows [][]string, stdout io.Writer) error {
 	if err := methodfile.WriteAtomic(path, []byte(b.String())); err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "wrote %s\n", path)
+	fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(path))
 	return nil
 }
 

@@ -10,7 +10,9 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 const fitHelp = `Usage: rampwise fit METHOD RUNS [--out FILE] [--json] [--with-dcp]
@@ -65,7 +67,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, _, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
@@ -78,7 +80,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		return badf("%s: %v", files[1], err)
 	}
 	if *out != "" {
-		if err := methodfile.WriteFile(*out, rep.Method); err != nil {
+		if err := saveMethodOut(*out, files[0], rep.Method); err != nil {
 			return err
 		}
 	}
@@ -100,9 +102,9 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		return enc.Encode(j)
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "compound\tΔH kJ/mol\t±\tΔS J/(mol·K)\t±\tΔCp\truns\trms min\tmax min\t")
+	fmt.Fprintf(tw, "compound\tΔH %s\t±\tΔS %s\t±\tΔCp\truns\trms min\tmax min\t\n", format.UnitDH, format.UnitDS)
 	for _, c := range rep.Compounds {
-		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", c.Name, c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
+		fmt.Fprintf(tw, "%s\t%.2f\t%s\t%.2f\t%s\t%.1f\t%d\t%.4f\t%.4f\t\n", textsafe.Inert(c.Name), c.DHkJ, fmtErr(c.StdErrDH), c.DS, fmtErr(c.StdErrDS), c.DCp, c.Runs, c.RMS, c.Max)
 	}
 	tw.Flush()
 	if m.Column.Kind == "packed" {
@@ -111,10 +113,10 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(stdout, "\ncolumn diameter %.4f mm%s · phase ratio %.4g · plate-height factor %.3f%s\n", rep.DiameterMM, fitted(rep.DiameterFitted), rep.PhaseRatio, rep.PlateHeightFactor, fitted(rep.PlateFitted))
 	}
 	for _, w := range rep.Warnings {
-		fmt.Fprintf(stdout, "warning: %s\n", w)
+		fmt.Fprintf(stdout, "warning: %s\n", textsafe.Inert(w))
 	}
 	if *out != "" {
-		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", *out)
+		fmt.Fprintf(stdout, "saved the method with the fitted values to %s\n", textsafe.Inert(*out))
 	}
 	return nil
 }
@@ -166,11 +168,11 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
 	}
-	s, err := simulateMethod(m, files[0])
+	s, err := simulateMethod(m, name)
 	if err != nil {
 		return err
 	}
@@ -238,7 +240,7 @@ func runIndex(args []string, stdout, stderr io.Writer) error {
 		if e.Given != nil {
 			given = fmt.Sprintf("%.1f", *e.Given)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", e.Name, idx, given, e.From)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", textsafe.Inert(e.Name), idx, given, textsafe.Inert(e.From))
 	}
 	tw.Flush()
 	fmt.Fprintln(stdout, "\nCompounds given by retention index are modelled as the virtual n-alkane of that carbon number: an assumption, refine them with fit when runs exist.")

@@ -65,8 +65,8 @@ func TestHelpAndBadFlags(t *testing.T) {
 	if code, out, _ := runCmd(t, "--help"); code != 0 || !strings.Contains(out, "simulate") {
 		t.Errorf("--help: %d", code)
 	}
-	if code, _, errs := runCmd(t, "simulate", "--help"); code != 0 || !strings.Contains(errs, "holdup") {
-		t.Errorf("simulate --help: %d %q", code, errs)
+	if code, out, _ := runCmd(t, "simulate", "--help"); code != 0 || !strings.Contains(out, "holdup") {
+		t.Errorf("simulate --help: %d %q", code, out)
 	}
 	if code, _, _ := runCmd(t, "simulate", "--bogus"); code != 2 {
 		t.Errorf("bad flag: exit %d", code)
@@ -241,17 +241,22 @@ func TestFitOutAndIndex(t *testing.T) {
 	}
 }
 
-// An inlet pressure above [limits] max_inlet_kpa in constant flow is flagged
-// with the temperature where it happens.
-func TestPressureLimitFlagged(t *testing.T) {
+// An inlet pressure above [limits] max_inlet_kpa in constant flow is an
+// instrument limit: refused (exit 2) with file, line and key, naming the
+// temperature where the flow needs more.
+func TestPressureLimitRefused(t *testing.T) {
 	demo, _ := os.ReadFile("../../testdata/demo.toml")
 	text := strings.Replace(string(demo), "max_inlet_kpa = 690.0", "max_inlet_kpa = 120.0", 1)
 	text = strings.Replace(text, "flow_ml_min = 1.2", "flow_ml_min = 2.0", 1)
 	path := filepath.Join(t.TempDir(), "p.toml")
 	os.WriteFile(path, []byte(text), 0o644)
-	code, out, _ := runCmd(t, "simulate", path)
-	if code != 0 || !strings.Contains(out, "more inlet pressure than the instrument limit 120 kPa from") {
-		t.Errorf("exit %d:\n%s", code, out)
+	for _, args := range [][]string{{"simulate", path}, {"export", "--csv", filepath.Join(t.TempDir(), "x.csv"), path}, {"optimize", path},
+		{"sweep", "--vary", "rate_1", "--from", "5", "--to", "20", path}, {"compare", path}} {
+		cmd := args[0]
+		code, _, errs := runCmd(t, args...)
+		if code != 2 || !strings.Contains(errs, "p.toml:16: carrier.flow_ml_min: constant flow of 2 mL/min needs") || !strings.Contains(errs, "above the instrument's inlet limit 120 kPa") {
+			t.Errorf("%s: exit %d:\n%s", cmd, code, errs)
+		}
 	}
 }
 

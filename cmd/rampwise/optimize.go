@@ -3,7 +3,6 @@ package main
 import (
 	"context"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -14,8 +13,12 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 const optimizeHelp = `Usage: rampwise optimize [FILE] [flags]
@@ -61,12 +64,6 @@ type programJSON struct {
 	Ramps       []rampJSON `json:"ramps"`
 }
 
-type carrierJSON struct {
-	Mode     string   `json:"mode"`
-	FlowMLM  *float64 `json:"flow_ml_min,omitempty"`
-	InletKPa *float64 `json:"inlet_kpa,omitempty"`
-}
-
 // robustJSON is how the saved program fares under [goal.robust].
 type robustJSON struct {
 	Nominal     float64  `json:"nominal_resolution"`
@@ -102,18 +99,6 @@ func programToJSON(o methodfile.Oven) programJSON {
 		p.Ramps = append(p.Ramps, rampJSON{r.RateCMin, r.FinalC, r.HoldMin})
 	}
 	return p
-}
-
-func carrierToJSON(c methodfile.Carrier) carrierJSON {
-	j := carrierJSON{Mode: c.Mode}
-	if c.Mode == "constant-pressure" {
-		v := c.InletKPa
-		j.InletKPa = &v
-	} else {
-		v := c.FlowMLMin
-		j.FlowMLM = &v
-	}
-	return j
 }
 
 func robustToJSON(r optimizer.RobustReport) *robustJSON {
@@ -154,44 +139,37 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	minRsSet := false
-	fs.Visit(func(f *flag.Flag) {
-		if f.Name == "min-resolution" {
-			minRsSet = true
-		}
-	})
 	m, name, err := loadMethod(file)
 	if err != nil {
 		return err
 	}
-	if *ramps != 0 {
-		if *ramps < 1 || *ramps > 5 {
-			return badf("optimize: --ramps must be 1..5, got %d", *ramps)
-		}
+	if given(fs, "ramps") {
 		m.Goal.Ramps = *ramps
+		if err := override(m, "ramps", "goal.ramps"); err != nil {
+			return err
+		}
 	}
 	if *objective != "" {
-		if *objective != "run-time" && *objective != "cycle-time" {
-			return badf("optimize: --objective must be run-time or cycle-time, got %q", *objective)
+		o, err := model.ParseObjective(*objective)
+		if err != nil {
+			return badf("optimize: --objective: %v", err)
 		}
-		m.Goal.Objective = *objective
+		m.Goal.Objective = o
 	}
-	if minRsSet {
+	if given(fs, "min-resolution") {
 		if !(*minRs > 0 && *minRs <= 100) {
 			return badf("optimize: --min-resolution must be in (0, 100], got %v", *minRs)
 		}
 		m.Goal.MinResolution = *minRs
-	}
-	for _, l := range m.Goal.Lock {
-		if !methodfile.ValidLockName(l, m.Goal.Ramps) {
-			return badf("optimize: goal.lock names %s, which does not exist with %d ramps", l, m.Goal.Ramps)
+		if err := override(m, "min-resolution", "goal.min_resolution"); err != nil {
+			return err
 		}
 	}
 	before, err := simulateMethod(m, name)
 	if err != nil {
 		return err
 	}
-	prob := optimizer.FromMethod(m, before.sys)
+	prob := methodsearch.Problem(m, before.sys)
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
@@ -202,7 +180,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		return bad(fmt.Errorf("%s: %v", name, strings.TrimPrefix(err.Error(), "optimizer: ")))
 	}
 
-	after := optimizer.Apply(m, res)
+	after := methodsearch.Apply(m, res)
 	afterSim, err := simulateMethod(after, name)
 	if err != nil {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
@@ -214,7 +192,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 
 	wrote := false
 	if *out != "" && (met || *writeBest) {
-		if err := methodfile.WriteFile(*out, after); err != nil {
+		if err := saveMethodOut(*out, file, after); err != nil {
 			return err
 		}
 		wrote = true
@@ -222,7 +200,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if *asJSON {
 		j := optimizeJSON{
 			Feasible:    met,
-			Objective:   m.Goal.Objective,
+			Objective:   m.Goal.Objective.String(),
 			Program:     programToJSON(after.Oven),
 			Carrier:     carrierToJSON(after.Carrier),
 			Robust:      robustToJSON(res.Robust),
@@ -249,9 +227,9 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	} else {
 		writeComparison(stdout, m, before, after, afterSim, res, met)
 		if wrote {
-			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", *out)
+			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", textsafe.Inert(*out))
 		} else if *out != "" {
-			fmt.Fprintf(stdout, "\nnothing was written to %s: the target is not met (--write-best writes the best program anyway)\n", *out)
+			fmt.Fprintf(stdout, "\nnothing was written to %s: the target is not met (--write-best writes the best program anyway)\n", textsafe.Inert(*out))
 		}
 	}
 	if !met {
@@ -265,42 +243,35 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	if title == "" {
 		title = "method"
 	}
-	fmt.Fprintf(w, "%s\n%s\n\n", title, describeColumn(m))
+	fmt.Fprintf(w, "%s\n%s\n\n", textsafe.Inert(title), describeColumn(m))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "\tbefore\tafter\t")
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
 	fmt.Fprintf(tw, "carrier\t%s\t%s\t\n", describeCarrier(m.Carrier), describeCarrier(after.Carrier))
 	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.res.RunTime/60, afterSim.res.RunTime/60)
 	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.res.CycleTime/60, afterSim.res.CycleTime/60)
-	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before), fmtRs(afterSim))
+	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before, m.Goal.MinResolution), fmtRs(afterSim, m.Goal.MinResolution))
 	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
 	tw.Flush()
-	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %.2f)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, m.Goal.MinResolution)
+	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %s)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, format.Target(m.Goal.MinResolution))
 	if line := describeRobust(res.Robust); line != "" {
 		fmt.Fprintln(w, line)
 	}
 	if met {
 		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
 	} else {
-		fmt.Fprintf(w, "target NOT met within the limits: %s\n", res.Explanation)
+		fmt.Fprintf(w, "target NOT met within the limits: %s\n", textsafe.Inert(res.Explanation))
 	}
 	for _, warn := range afterSim.warnings(after.ModelProgram()) {
-		fmt.Fprintf(w, "warning: %s\n", warn)
+		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
 }
 
-func describeCarrier(c methodfile.Carrier) string {
-	if c.Mode == "constant-pressure" {
-		return fmt.Sprintf("%s %s kPa", c.Gas, fmtNum(c.InletKPa))
-	}
-	return fmt.Sprintf("%s %s mL/min", c.Gas, fmtNum(c.FlowMLMin))
-}
-
-func fmtRs(s *simulation) string {
+func fmtRs(s *simulation, target float64) string {
 	if s.res.Critical < 0 {
 		return "-"
 	}
-	return fmt.Sprintf("%.2f", s.res.MinResolution)
+	return format.RsNumber(s.res.MinResolution, target) + " " + format.Verdict(s.res.MinResolution, target)
 }
 
 func critName(s *simulation) string {
@@ -308,7 +279,7 @@ func critName(s *simulation) string {
 		return "-"
 	}
 	cp := s.res.Pairs[s.res.Critical]
-	return s.sys.Compounds[cp.First].Name + " / " + s.sys.Compounds[cp.Second].Name
+	return format.CriticalPair(textsafe.Inert(s.sys.Compounds[cp.First].Name), textsafe.Inert(s.sys.Compounds[cp.Second].Name))
 }
 
 // progressPrinter reports progress on stderr: a bar redrawn in place on a

@@ -56,7 +56,7 @@ func TestOptimizeJSONCarrierAndRobust(t *testing.T) {
 	if err := json.Unmarshal([]byte(stdout), &oj); err != nil {
 		t.Fatal(err)
 	}
-	if oj.Carrier.Mode != "constant-flow" || oj.Carrier.FlowMLM == nil {
+	if oj.Carrier.Mode != "constant-flow" || oj.Carrier.FlowMLMin == nil {
 		t.Fatalf("no carrier flow in %s", stdout)
 	}
 	if oj.Robust == nil || oj.Robust.WorstCorner == nil || oj.Robust.Corner == "" || oj.Robust.LowZ == nil {
@@ -110,7 +110,7 @@ func TestCompareGasAxis(t *testing.T) {
 	gases := map[string]bool{}
 	for _, c := range j.Candidates {
 		gases[c.Gas] = true
-		if c.Carrier.FlowMLM == nil {
+		if c.Carrier.FlowMLMin == nil {
 			t.Errorf("%s: no optimized flow", c.Gas)
 		}
 	}

@@ -78,7 +78,7 @@ func TestSighupWritesRecovery(t *testing.T) {
 	waitOutput(t, &out, "modified")
 	cmd.Process.Signal(syscall.SIGHUP)
 	cmd.Wait()
-	rp := filepath.Join(dir, "m.rampwise-recovery.toml")
+	rp := filepath.Join(dir, "m.toml.rampwise-recovery.toml")
 	m, err := methodfile.ReadFile(rp)
 	if err != nil {
 		t.Fatalf("recovery file: %v (stderr %s)", err, errb.String())

@@ -11,8 +11,10 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 const simulateHelp = `Usage: rampwise simulate [FILE] [--json | --csv]
@@ -22,7 +24,9 @@ retention time, elution temperature, peak width at half height and the
 resolution to the next peak; then the holdup (dead) time, run time, oven cycle
 time (run + cool-down + equilibration), the minimum resolution over the pairs
 that involve a target compound, and the critical pair. Without FILE the
-built-in demo method is used.
+built-in demo method is used. The column may be wall-coated, packed or
+porous-layer ([column] kind); with [limits] coolant_c the oven may start
+below ambient, and the cautions for the cryogenic coolant are printed.
 
 Flags:
 `
@@ -162,18 +166,18 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 	if title == "" {
 		title = name
 	}
-	fmt.Fprintf(w, "%s\n", title)
+	fmt.Fprintf(w, "%s\n", textsafe.Inert(title))
 	fmt.Fprintf(w, "%s\n%s\n\n", describeColumn(m), describeProgram(m.Oven))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\tRs next\ttarget\t")
+	fmt.Fprintf(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\t%s\t%s\t\n", format.HeadRsNext, format.HeadTarget)
 	rs := resolutionAfter(r)
 	for i, pk := range r.Peaks {
 		c := &s.sys.Compounds[pk.Compound]
 		rsText := ""
 		if !math.IsNaN(rs[i]) {
-			rsText = fmt.Sprintf("%.2f", rs[i])
+			rsText = format.Pair(rs[i], m.Goal.MinResolution)
 			if r.Critical == i {
-				rsText += " ◄"
+				rsText = format.CriticalMark + " " + rsText
 			}
 		}
 		tgt := ""
@@ -184,13 +188,13 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 		if !pk.Eluted {
 			tr += "*"
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%.1f\t%.2f\t%.2f\t%s\t%s\t\n", c.Name, tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), pk.RetentionFactor, rsText, tgt)
+		fmt.Fprintf(tw, "%s\t%s\t%.1f\t%.2f\t%.2f\t%s\t%s\t\n", textsafe.Inert(c.Name), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), pk.RetentionFactor, rsText, tgt)
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, s.summary())
 	for _, warn := range s.warnings(m.ModelProgram()) {
-		fmt.Fprintf(w, "warning: %s\n", warn)
+		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
 }
 
@@ -199,8 +203,8 @@ func (s *simulation) summary() string {
 	crit := "no counted pair"
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		crit = fmt.Sprintf("min Rs %.2f (critical pair %s / %s; target %.2f)", r.MinResolution,
-			s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name, s.method.Goal.MinResolution)
+		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.method.Goal.MinResolution),
+			format.CriticalPair(textsafe.Inert(s.sys.Compounds[cp.First].Name), textsafe.Inert(s.sys.Compounds[cp.Second].Name)))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }
@@ -212,11 +216,11 @@ func describeColumn(m *methodfile.Method) string {
 		phase = "phase not named"
 	}
 	flow := fmt.Sprintf("%s mL/min constant flow", fmtNum(g.FlowMLMin))
-	if g.Mode == "constant-pressure" {
+	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
 	}
 	return fmt.Sprintf("%s %s (max %s °C) · %s %s · %s outlet",
-		c.Describe(), phase, fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
+		c.Describe(), textsafe.Inert(phase), fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
 }
 
 func describeProgram(o methodfile.Oven) string { return report.Program(o) }

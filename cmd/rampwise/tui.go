@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
-	"syscall"
 
 	tea "github.com/charmbracelet/bubbletea"
 
@@ -17,9 +15,22 @@ const tuiHelp = `Usage: rampwise tui [FILE]
 Opens the interactive program editor: the oven program, a live simulated
 chromatogram with the oven temperature, the peak table and the method
 settings; o runs the optimizer in the background, ctrl+s saves, ? lists every
-key. Without FILE it opens the built-in demo. If the terminal or the SSH
-connection goes away with unsaved changes, they are written to
-NAME.rampwise-recovery.toml beside the file, and the next start offers them.
+key. Without FILE it opens the built-in demo. Keys may also come from a pipe
+or a file (rampwise tui m.toml < keys.txt).
+
+If the terminal or the SSH connection goes away, or the program gets SIGHUP,
+SIGTERM, SIGINT or SIGQUIT (on Windows: the console window closed, logoff,
+shutdown), unsaved changes are written to NAME.rampwise-recovery.toml beside
+the file, NAME being the whole file name (blend.toml.rampwise-recovery.toml);
+when that folder cannot be written, to rampwise/recovery in the user's cache
+folder (the message says where). The next start offers them with their age;
+the recovery file is kept until the method is saved. The ctrl+c key is like
+q: it asks first when there are unsaved changes.
+
+A save changes only what changed, in the file's own text (comments and
+layout kept), and writes through a symlink to its target. If the file was
+changed on disk since it was loaded, a save asks: overwrite, save as, or
+reload.
 `
 
 func runTUI(args []string, stdout, stderr io.Writer) error {
@@ -41,47 +52,48 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return bad(fmt.Errorf("%s: %v", name, err))
 	}
-	opts := []tea.ProgramOption{tea.WithAltScreen(), tea.WithOutput(stdout)}
-	if !isTerminal(os.Stdin) {
-		// keys come from a pipe (scripts, tests): read them as they are
-		opts = append(opts, tea.WithInput(os.Stdin))
+	// The UI library's own SIGINT/SIGTERM handling is off: it would quit
+	// the program while the recovery file is being written. CatchSignals
+	// writes it first, then ends the UI; stop waits for that write.
+	opts := []tea.ProgramOption{tea.WithAltScreen(), tea.WithOutput(stdout), tea.WithoutSignalHandler()}
+	if in := keyInput(os.Stdin); in != nil {
+		// keys come from a pipe or a file (scripts, tests): read them as
+		// they are
+		opts = append(opts, tea.WithInput(in))
 	}
 	p := tea.NewProgram(app, opts...)
-	sigs := make(chan os.Signal, 1)
-	signal.Notify(sigs, syscall.SIGHUP, syscall.SIGTERM)
-	defer signal.Stop(sigs)
-	lost := make(chan string, 1)
-	go func() {
-		s, ok := <-sigs
-		if !ok {
-			return
-		}
-		path, err := guard.WriteRecovery()
-		switch {
-		case err != nil:
-			lost <- fmt.Sprintf("%v: could not write the recovery file: %v", s, err)
-		case path != "":
-			lost <- fmt.Sprintf("%v: unsaved changes written to %s", s, path)
-		default:
-			lost <- ""
-		}
-		p.Kill()
-	}()
+	stop := guard.CatchSignals(p.Kill)
 	if !isTerminal(stdout) {
 		// no terminal to ask for its size (a pipe, a test): draw at 80×24
 		go p.Send(tea.WindowSizeMsg{Width: 80, Height: 24})
 	}
 	_, runErr := p.Run()
-	select {
-	case msg := <-lost:
+	if msg, caught := stop(); caught {
 		if msg != "" {
 			fmt.Fprintln(stderr, "rampwise:", msg)
 		}
 		return exitError{exitFailure}
-	default:
 	}
 	if runErr != nil {
 		return runErr
 	}
 	return nil
+}
+
+// keyInput is where the UI reads keys when stdin is not a terminal: a pipe
+// as it is; a regular file or a device such as /dev/null hidden behind a
+// plain reader, because the UI library's cancellable reader cannot poll
+// those and would fail to start. nil for a terminal (the library's own).
+func keyInput(f *os.File) io.Reader {
+	st, err := f.Stat()
+	if err != nil {
+		return f
+	}
+	switch m := st.Mode(); {
+	case m&os.ModeNamedPipe != 0, m&os.ModeSocket != 0:
+		return f
+	case m&os.ModeCharDevice != 0 && isTerminal(f):
+		return nil
+	}
+	return struct{ io.Reader }{f}
 }

@@ -86,7 +86,7 @@ type Report struct {
 	PlateHeightFactor float64
 	PlateFitted       bool
 	Warnings          []string
-	Notes             []string // information that needs no action (order changes, peaks left over)
+	Notes             []string           // information that needs no action (order changes, peaks left over)
 	Method            *methodfile.Method // the method with the fitted values
 	Assignments       []Assignment
 	Outliers          []Outlier

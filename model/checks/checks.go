@@ -1,7 +1,8 @@
 // Package checks holds the cautions a simulated method raises beyond its
-// resolution: peaks after the run, an inlet pressure above the instrument's
-// limit, sample overload of the column, and a detector too cool for the
-// oven. simulate, the UI and the method sheet all use these, so they say
+// resolution: peaks after the run, sample overload of the column, and the
+// method's advice (methodfile.Method.Advice: search bounds the program
+// breaks, a detector too cool for the oven). Instrument limits are not
+// cautions: Validate refuses a method that breaks one. simulate, the UI and the method sheet all use these, so they say
 // the same thing.
 package checks
 
@@ -24,7 +25,7 @@ const PackedCapacity = 10000.0
 
 // DetectorMargin is how far (°C) the detector should be above the highest
 // oven temperature so that the effluent does not condense (common practice).
-const DetectorMargin = 20.0
+const DetectorMargin = methodfile.DetectorMargin
 
 // MassOnColumn is the mass of a compound reaching the column in ng: volume
 // (µL) × concentration (mg/mL, i.e. µg/µL) / (split ratio + 1); a split
@@ -116,7 +117,6 @@ func CoolantNote(m *methodfile.Method) string {
 // Warnings are the cautions for method m whose program simulated to res.
 func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []string {
 	var w []string
-	prog := m.ModelProgram()
 	for _, pk := range res.Peaks {
 		if !pk.Eluted {
 			at := "never at this final temperature"
@@ -127,62 +127,26 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 				sys.Compounds[pk.Compound].Name, at))
 		}
 	}
-	limit := m.Limits.MaxInletKPa * 1000
-	if at, over := sys.Cond.OverPressure(limit, prog.Initial, prog.MaxTemp()); over {
-		if sys.Cond.Carrier.Mode == model.ConstantPressure {
-			w = append(w, fmt.Sprintf("inlet pressure %.0f kPa is above the instrument limit %.0f kPa (limits.max_inlet_kpa)", sys.Cond.Carrier.InletGauge/1000, limit/1000))
-		} else {
-			w = append(w, fmt.Sprintf("constant flow needs more inlet pressure than the instrument limit %.0f kPa from %.1f °C on (%.0f kPa at %.0f °C; limits.max_inlet_kpa)",
-				limit/1000, at-model.ZeroCelsius, sys.Cond.InletGauge(prog.MaxTemp())/1000, prog.MaxTemp()-model.ZeroCelsius))
-		}
-	}
 	for _, o := range Overloads(m) {
 		w = append(w, fmt.Sprintf("%s: about %.0f ng on the column, %.1f× its estimated capacity of %.0f ng per compound: an overloaded peak fronts or tails and its retention shifts, so the predicted resolution is optimistic (raise the split ratio, dilute, or use a %s)",
 			o.Name, o.MassNG, o.Factor(), o.Capacity, remedy(m.Column.Kind)))
 	}
-	w = append(w, ProgramLimits(m, sys)...)
-	if m.Injection.HasDetector {
-		top := prog.MaxTemp() - model.ZeroCelsius
-		if m.Injection.DetectorTempC < top+DetectorMargin {
-			w = append(w, fmt.Sprintf("the detector at %g °C is not at least %g °C above the highest oven temperature %.1f °C: the effluent may condense in it",
-				m.Injection.DetectorTempC, DetectorMargin, top))
+	// the first target must be retained enough to stand clear of the
+	// unretained peak and the solvent (goal.min_first_k, a search bound)
+	first := -1
+	for i, pk := range res.Peaks {
+		if pk.Eluted && sys.Compounds[pk.Compound].Target && (first < 0 || pk.RetentionTime < res.Peaks[first].RetentionTime) {
+			first = i
 		}
 	}
-	return w
-}
-
-// ProgramLimits names where the method's program breaks an instrument limit
-// that the optimizer treats as a hard constraint besides the column maximum
-// and the inlet maximum: a hold above the column's max_isothermal_c, a ramp
-// faster than a [[limits.rate_band]] it reaches into, an inlet pressure
-// below limits.min_inlet_kpa. Each message names the step and the key.
-func ProgramLimits(m *methodfile.Method, sys *model.System) []string {
-	var w []string
-	o := m.Oven
-	if m.Column.HasMaxIsothermal {
-		iso := m.Column.MaxIsothermalC
-		if o.InitialHoldMin > 0 && o.InitialC > iso {
-			w = append(w, fmt.Sprintf("the initial hold at %g °C is above the column's isothermal limit %g °C (column.max_isothermal_c)", o.InitialC, iso))
-		}
-		for i, r := range o.Ramps {
-			if r.HoldMin > 0 && r.FinalC > iso {
-				w = append(w, fmt.Sprintf("ramp %d holds at %g °C, above the column's isothermal limit %g °C (column.max_isothermal_c)", i+1, r.FinalC, iso))
-			}
-		}
+	if first >= 0 && res.Peaks[first].RetentionFactor < m.Goal.MinFirstK {
+		pk := res.Peaks[first]
+		w = append(w, fmt.Sprintf("goal.min_first_k: the first target, %s, elutes with k = %.2f, below %g: it may not stand clear of the unretained peak and the solvent (start cooler or slower)",
+			sys.Compounds[pk.Compound].Name, pk.RetentionFactor, m.Goal.MinFirstK))
 	}
-	for i, r := range o.Ramps {
-		for _, b := range m.Limits.RateBands {
-			if r.FinalC > b.AboveC && r.RateCMin > b.MaxRateCMin {
-				w = append(w, fmt.Sprintf("ramp %d heats at %g °C/min into the band above %g °C, where the oven heats at most %g °C/min (limits.rate_band)", i+1, r.RateCMin, b.AboveC, b.MaxRateCMin))
-				break
-			}
-		}
-	}
-	if min := m.Limits.MinInletKPa * 1000; min > 0 && sys != nil {
-		t0 := m.ModelProgram().Initial
-		if g := sys.Cond.InletGauge(t0); g < min {
-			w = append(w, fmt.Sprintf("the inlet needs %.1f kPa at the start, below the lowest it regulates, %g kPa (limits.min_inlet_kpa)", g/1000, m.Limits.MinInletKPa))
-		}
+	// search bounds and rules of thumb the program breaks (never refused)
+	for _, n := range m.Advice() {
+		w = append(w, n.String())
 	}
 	return w
 }

@@ -129,29 +129,3 @@ func TestKindCapacityAndCoolant(t *testing.T) {
 		t.Errorf("coolant note above ambient %q", n)
 	}
 }
-
-func TestProgramLimits(t *testing.T) {
-	m, err := methodfile.ReadFile("../../testdata/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	sys, err := m.System()
-	if err != nil {
-		t.Fatal(err)
-	}
-	if w := ProgramLimits(m, sys); len(w) != 0 {
-		t.Errorf("demo breaks no such limit, got %q", w)
-	}
-	m.Column.MaxIsothermalC, m.Column.HasMaxIsothermal = 230, true
-	m.Limits.RateBands = []methodfile.RateBand{{AboveC: 200, MaxRateCMin: 8}}
-	m.Limits.MinInletKPa = 500
-	w := ProgramLimits(m, sys)
-	if len(w) != 3 {
-		t.Fatalf("want the hold, band and inlet notes, got %q", w)
-	}
-	for i, key := range []string{"max_isothermal_c", "rate_band", "min_inlet_kpa"} {
-		if !strings.Contains(w[i], key) {
-			t.Errorf("note %d does not name %s: %s", i, key, w[i])
-		}
-	}
-}

@@ -124,7 +124,15 @@ func replace(path, target string, data []byte, old fs.FileInfo) error {
 	dir := filepath.Dir(target)
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(target)+".tmp-*")
 	if err != nil {
-		return &Error{Path: path, Unchanged: true, Err: cleanErr(err)}
+		switch {
+		case errors.Is(err, fs.ErrNotExist):
+			err = fmt.Errorf("the folder %s does not exist", dir)
+		case errors.Is(err, fs.ErrPermission):
+			err = fmt.Errorf("no permission to write in the folder %s", dir)
+		default:
+			err = cleanErr(err)
+		}
+		return &Error{Path: path, Unchanged: true, Err: err}
 	}
 	tmpName := tmp.Name()
 	ok := false

@@ -5,6 +5,8 @@ import (
 	"fmt"
 
 	toml "github.com/pelletier/go-toml/v2"
+
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/fsafe"
 )
 
@@ -24,8 +26,8 @@ func Marshal(m *Method) ([]byte, error) {
 			PlateHeight: ptr(m.Column.PlateHeight),
 		},
 		Carrier: &rawCarrier{
-			Gas:         ptr(m.Carrier.Gas),
-			Mode:        ptr(m.Carrier.Mode),
+			Gas:         ptr(m.Carrier.Gas.String()),
+			Mode:        ptr(m.Carrier.Mode.String()),
 			Outlet:      ptr(m.Carrier.Outlet),
 			AmbientKPa:  ptr(m.Carrier.AmbientKPa),
 			InitialBand: ptr(m.Carrier.InitialBand),
@@ -42,10 +44,10 @@ func Marshal(m *Method) ([]byte, error) {
 		},
 		Goal: &rawGoal{
 			MinResolution: ptr(m.Goal.MinResolution),
-			Objective:     ptr(m.Goal.Objective),
+			Objective:     ptr(m.Goal.Objective.String()),
 			Ramps:         ptr(int64(m.Goal.Ramps)),
 			TailMin:       ptr(m.Goal.TailMin),
-			Lock:          append([]string{}, m.Goal.Lock...),
+			Lock:          lockNames(m.Goal.Lock),
 		},
 	}
 	if m.Title != "" {
@@ -238,9 +240,12 @@ func Save(path string, base []byte, m *Method) (kept bool, err error) {
 	if err != nil {
 		return false, fmt.Errorf("%s: %v", path, err)
 	}
-	// Check what we write reads back before it replaces anything.
-	if _, err := Parse(path, data); err != nil {
-		return false, fmt.Errorf("refusing to save an invalid method: %v", err)
+	// Check what we write reads back before it replaces anything (Update
+	// has already checked a text it kept).
+	if !kept {
+		if _, err := Parse(path, data); err != nil {
+			return false, fmt.Errorf("refusing to save an invalid method: %v", err)
+		}
 	}
 	return kept, WriteAtomic(path, data)
 }
@@ -251,4 +256,19 @@ func Save(path string, base []byte, m *Method) (kept bool, err error) {
 // mode kept). A failure leaves any existing file at path untouched.
 func WriteAtomic(path string, data []byte) error {
 	return fsafe.WriteFile(path, data)
+}
+
+// FlowLockName is the goal.lock name that keeps the carrier flow (or, at
+// constant pressure, the inlet pressure) as the method has it.
+const FlowLockName = "flow"
+
+func lockNames(vs []model.ProgramValue) []string {
+	out := make([]string, len(vs))
+	for i, v := range vs {
+		out[i] = v.String()
+		if v.Kind == model.CarrierFlow || v.Kind == model.InletPressure {
+			out[i] = FlowLockName
+		}
+	}
+	return out
 }

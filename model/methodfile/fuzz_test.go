@@ -3,7 +3,6 @@ package methodfile
 import (
 	"os"
 	"path/filepath"
-	"reflect"
 	"testing"
 )
 
@@ -38,7 +37,7 @@ func FuzzParse(f *testing.F) {
 		if err != nil {
 			t.Fatalf("accepted method does not read back: %v\n%s", err, out)
 		}
-		if !reflect.DeepEqual(m, back) {
+		if !m.Equal(back) {
 			t.Fatalf("round trip differs")
 		}
 		if _, err := m.System(); err != nil {

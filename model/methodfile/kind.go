@@ -25,15 +25,15 @@ func rulesFor(kind string) kindRules {
 		return kindRules{
 			length:      bound{lo: 0.3, hi: 10},
 			diameter:    bound{lo: 1, hi: 6},
-			film:        bound{lo: 0, hi: 20, loOpen: true},
+			film:        bound{lo: 0.01, hi: 20},
 			filmDefault: model.DefaultPackedFilm * 1e6,
 			filmWord:    "liquid film",
 			diffusivity: model.DefaultDs,
 		}
 	case "porous-layer":
 		return kindRules{
-			length:       bound{lo: 0, hi: 300, loOpen: true},
-			diameter:     bound{lo: 0, hi: 1.0, loOpen: true},
+			length:       bound{lo: 0.1, hi: 300},
+			diameter:     bound{lo: 0.01, hi: 1.0},
 			film:         bound{lo: 1, hi: 60},
 			filmRequired: true,
 			filmWord:     "layer",
@@ -41,9 +41,9 @@ func rulesFor(kind string) kindRules {
 		}
 	}
 	return kindRules{
-		length:       bound{lo: 0, hi: 300, loOpen: true},
-		diameter:     bound{lo: 0, hi: 1.0, loOpen: true},
-		film:         bound{lo: 0, hi: 50, loOpen: true},
+		length:       bound{lo: 0.1, hi: 300},
+		diameter:     bound{lo: 0.01, hi: 1.0},
+		film:         bound{lo: 0.01, hi: 50},
 		filmRequired: true,
 		filmWord:     "film",
 		diffusivity:  model.DefaultDs,
@@ -71,16 +71,56 @@ func (v *validator) packedKeys(c *rawColumn, m *Method) {
 		return
 	}
 	col := &m.Column
-	col.ParticleUM = v.num("column.particle_um", c.ParticleUM, true, 165, bound{lo: 50, hi: 400}, "µm")
+	col.ParticleUM = v.opt("column.particle_um", c.ParticleUM, true, 165)
 	col.HasParticle = c.ParticleUM != nil
-	col.PhaseRatio = v.num("column.phase_ratio", c.PhaseRatio, true, 15, bound{lo: 2, hi: 200}, "")
+	col.PhaseRatio = v.opt("column.phase_ratio", c.PhaseRatio, true, 15)
 	col.HasPhaseRatio = c.PhaseRatio != nil
-	col.Porosity = v.num("column.porosity", c.Porosity, false, model.DefaultPorosity, bound{lo: 0.30, hi: 0.50}, "")
+	col.Porosity = v.opt("column.porosity", c.Porosity, false, model.DefaultPorosity)
 	col.HasPorosity = c.Porosity != nil
+	col.EddyLambda = v.opt("column.eddy_lambda", c.EddyLambda, false, model.DefaultEddyFactor)
+	col.ObstructionGamma = v.opt("column.obstruction_gamma", c.ObstrGamma, false, model.DefaultObstructionFactor)
+	col.MobileOmega = v.opt("column.mobile_omega", c.MobileOmega, false, model.DefaultMobileFactor)
+}
+
+// checkKind checks the [column] values against the ranges of its kind
+// (Validate's part of the kind rules; packedKeys refuses a key that does
+// not belong to the kind when the file is read).
+func (v *validator) checkKind(m *Method) {
+	c := &m.Column
+	if v.err == nil && c.Kind != "wall-coated" && c.Kind != "packed" && c.Kind != "porous-layer" {
+		v.fail("column.kind", "%q is not one of wall-coated, packed, porous-layer", c.Kind)
+		return
+	}
+	kr := rulesFor(c.Kind)
+	v.in("column.length_m", c.LengthM, kr.length.rng("m"), "")
+	v.in("column.diameter_mm", c.DiameterMM, kr.diameter.rng("mm"), "")
+	v.in("column.film_um", c.FilmUM, kr.film.rng("µm"), "")
+	if v.err == nil && c.Kind != "packed" && c.FilmUM*1e-3 >= c.DiameterMM/2 {
+		v.fail("column.film_um", "%s %s µm is thicker than the column radius (%s mm diameter)", kr.filmWord, fmtNum(c.FilmUM), fmtNum(c.DiameterMM))
+	}
+	if c.Kind != "packed" {
+		for _, k := range []struct {
+			key   string
+			given bool
+		}{{"particle_um", c.HasParticle}, {"porosity", c.HasPorosity}, {"phase_ratio", c.HasPhaseRatio}} {
+			if v.err == nil && k.given {
+				v.fail("column."+k.key, "does not belong to a %s column (it is a packed column's key: set kind = \"packed\" or remove it)", c.Kind)
+			}
+		}
+		return
+	}
+	v.in("column.particle_um", c.ParticleUM, closed(50, 400, "µm"), "")
+	v.in("column.phase_ratio", c.PhaseRatio, closed(2, 200, ""), "")
+	v.in("column.porosity", c.Porosity, closed(0.30, 0.50, ""), "")
 	// zero would mean "default" in the model, so the factors are positive
-	col.EddyLambda = v.num("column.eddy_lambda", c.EddyLambda, false, model.DefaultEddyFactor, positive(10), "")
-	col.ObstructionGamma = v.num("column.obstruction_gamma", c.ObstrGamma, false, model.DefaultObstructionFactor, positive(2), "")
-	col.MobileOmega = v.num("column.mobile_omega", c.MobileOmega, false, model.DefaultMobileFactor, positive(10), "")
+	v.in("column.eddy_lambda", c.EddyLambda, rng{lo: 0, hi: 10, loOpen: true}, "")
+	v.in("column.obstruction_gamma", c.ObstructionGamma, rng{lo: 0, hi: 2, loOpen: true}, "")
+	v.in("column.mobile_omega", c.MobileOmega, rng{lo: 0, hi: 10, loOpen: true}, "")
+}
+
+// rng is the bound with its unit, for Validate's messages.
+func (b bound) rng(unit string) rng {
+	return rng{lo: b.lo, hi: b.hi, loOpen: b.loOpen, hiOpen: b.hiOpen, unit: unit}
 }
 
 // modelKind is the model's column kind of the file's kind name.

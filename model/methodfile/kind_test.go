@@ -62,20 +62,20 @@ func TestKindRules(t *testing.T) {
 		{"phase ratio on wall-coated", wall, "[column]\n", "[column]\nphase_ratio = 20.0\n", "column.phase_ratio", "does not belong"},
 		{"porosity on porous layer", layer, "[column]\n", "[column]\nporosity = 0.4\n", "column.porosity", "does not belong to a porous-layer column"},
 		{"eddy on porous layer", layer, "[column]\n", "[column]\neddy_lambda = 0.8\n", "column.eddy_lambda", "does not belong"},
-		{"packed tube too narrow", packed, "diameter_mm = 2.0", "diameter_mm = 0.53", "column.diameter_mm", "out of range [1, 6]"},
-		{"packed tube too wide", packed, "diameter_mm = 2.0", "diameter_mm = 6.5", "column.diameter_mm", "out of range [1, 6]"},
-		{"packed too long", packed, "length_m = 3.0", "length_m = 12.0", "column.length_m", "out of range [0.3, 10]"},
+		{"packed tube too narrow", packed, "diameter_mm = 2.0", "diameter_mm = 0.53", "column.diameter_mm", "allowed: from 1 to 6"},
+		{"packed tube too wide", packed, "diameter_mm = 2.0", "diameter_mm = 6.5", "column.diameter_mm", "allowed: from 1 to 6"},
+		{"packed too long", packed, "length_m = 3.0", "length_m = 12.0", "column.length_m", "allowed: from 0.3 to 10"},
 		{"packed too short", packed, "length_m = 3.0", "length_m = 0.2", "column.length_m", "out of range"},
-		{"particles too fine", packed, "particle_um = 165.0", "particle_um = 40.0", "column.particle_um", "out of range [50, 400]"},
+		{"particles too fine", packed, "particle_um = 165.0", "particle_um = 40.0", "column.particle_um", "allowed: from 50 to 400"},
 		{"particles too coarse", packed, "particle_um = 165.0", "particle_um = 450.0", "column.particle_um", "out of range"},
 		{"particle missing", packed, "particle_um = 165.0\n", "", "column.particle_um", "missing (required)"},
-		{"porosity low", packed, "porosity = 0.40", "porosity = 0.25", "column.porosity", "out of range [0.3, 0.5]"},
+		{"porosity low", packed, "porosity = 0.40", "porosity = 0.25", "column.porosity", "allowed: from 0.3 to 0.5"},
 		{"porosity high", packed, "porosity = 0.40", "porosity = 0.55", "column.porosity", "out of range"},
-		{"phase ratio low", packed, "phase_ratio = 6.0", "phase_ratio = 1.5", "column.phase_ratio", "out of range [2, 200]"},
+		{"phase ratio low", packed, "phase_ratio = 6.0", "phase_ratio = 1.5", "column.phase_ratio", "allowed: from 2 to 200"},
 		{"phase ratio high", packed, "phase_ratio = 6.0", "phase_ratio = 250.0", "column.phase_ratio", "out of range"},
 		{"phase ratio missing", packed, "phase_ratio = 6.0\n", "", "column.phase_ratio", "missing (required)"},
 		{"eddy zero", packed, "[column]\n", "[column]\neddy_lambda = 0.0\n", "column.eddy_lambda", "out of range"},
-		{"layer too thin", layer, "film_um = 10.0", "film_um = 0.5", "column.film_um", "out of range [1, 60]"},
+		{"layer too thin", layer, "film_um = 10.0", "film_um = 0.5", "column.film_um", "allowed: from 1 to 60"},
 		{"layer too thick", layer, "film_um = 10.0", "film_um = 65.0", "column.film_um", "out of range"},
 		{"layer fills the tube", layer, "diameter_mm = 0.32\nfilm_um = 10.0", "diameter_mm = 0.1\nfilm_um = 60.0", "column.film_um", "thicker than the column radius"},
 		{"wall-coated over 1 mm", wall, "diameter_mm = 0.25", "diameter_mm = 2.0", "column.diameter_mm", "out of range"},
@@ -125,4 +125,32 @@ func readDemoText(t *testing.T, path string) string {
 		t.Fatal(err)
 	}
 	return string(data)
+}
+
+// A save of a packed or porous-layer method keeps the file: only the
+// changed kind key is rewritten where it stands.
+func TestKindUpdateInPlace(t *testing.T) {
+	orig := readDemoText(t, packedDemoPath)
+	m, err := Parse("p.toml", []byte(orig))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Column.ParticleUM = 150
+	out, inPlace, err := Update("p.toml", []byte(orig), m)
+	if err != nil || !inPlace {
+		t.Fatalf("update: %v, in place %v", err, inPlace)
+	}
+	if want := strings.Replace(orig, "particle_um = 165.0", "particle_um = 150.0", 1); string(out) != want {
+		t.Errorf("update changed more than the particle size:\n%s", out)
+	}
+	lorig := readDemoText(t, layerDemoPath)
+	l, err := Parse("l.toml", []byte(lorig))
+	if err != nil {
+		t.Fatal(err)
+	}
+	l.Limits.CoolantC = -65
+	out, inPlace, err = Update("l.toml", []byte(lorig), l)
+	if want := strings.Replace(lorig, "coolant_c = -70.0", "coolant_c = -65.0", 1); err != nil || !inPlace || string(out) != want {
+		t.Errorf("coolant update: %v, in place %v\n%s", err, inPlace, out)
+	}
 }

@@ -11,8 +11,7 @@ package methodfile
 import (
 	"fmt"
 	"math"
-	"strconv"
-	"strings"
+	"reflect"
 
 	"github.com/rampwise/rampwise/model"
 )
@@ -50,8 +49,8 @@ type Column struct {
 
 // Carrier is the [carrier] table.
 type Carrier struct {
-	Gas         string // helium | hydrogen | nitrogen
-	Mode        string // constant-flow | constant-pressure
+	Gas         model.Gas
+	Mode        model.PressureMode
 	FlowMLMin   float64
 	InletKPa    float64 // gauge
 	Outlet      string  // atmospheric | vacuum
@@ -119,14 +118,14 @@ type Robust struct {
 
 // Goal is the [goal] table, defaults applied.
 type Goal struct {
-	MinResolution float64  // default 1.5
-	Objective     string   // run-time | cycle-time
-	Ramps         int      // default: the oven's ramp count, 1..5
-	TailMin       float64  // default 0.5
-	Lock          []string // initial_c, initial_hold_min, rate_N, final_N, hold_N
-	MinFirstK     float64  // default 0.5: first target's k at elution at least this
-	BakeoutC      float64  // bake-out temperature for late non-targets
-	BakeoutMin    float64  // bake-out hold, default 0
+	MinResolution float64 // default 1.5
+	Objective     model.Objective
+	Ramps         int                  // default: the oven's ramp count, 1..5
+	TailMin       float64              // default 0.5
+	Lock          []model.ProgramValue // program values held fixed
+	MinFirstK     float64              // default 0.5: first target's k at elution at least this
+	BakeoutC      float64              // bake-out temperature for late non-targets
+	BakeoutMin    float64              // bake-out hold, default 0
 	HasBakeout    bool
 	Robust        Robust
 }
@@ -186,13 +185,21 @@ type Method struct {
 	Goal      Goal
 	Injection Injection
 	Compounds []Compound
+
+	// where the method was read from, so that Validate names the file and
+	// line of a key (empty for a method made in code)
+	file string
+	loc  Locations
 }
+
+// Source is the name of the file the method was read from ("" if none).
+func (m *Method) Source() string { return m.file }
 
 // Clone returns a deep copy.
 func (m *Method) Clone() *Method {
 	c := *m
 	c.Oven.Ramps = append([]Ramp(nil), m.Oven.Ramps...)
-	c.Goal.Lock = append([]string(nil), m.Goal.Lock...)
+	c.Goal.Lock = append([]model.ProgramValue(nil), m.Goal.Lock...)
 	c.Limits.RateBands = append([]RateBand(nil), m.Limits.RateBands...)
 	c.Compounds = append([]Compound(nil), m.Compounds...)
 	return &c
@@ -224,20 +231,14 @@ func (m *Method) ModelColumn() model.Column {
 
 // ModelCarrier is the carrier in SI units.
 func (m *Method) ModelCarrier() (model.Carrier, error) {
-	g, err := model.ParseGas(m.Carrier.Gas)
-	if err != nil {
-		return model.Carrier{}, err
-	}
 	c := model.Carrier{
-		Gas:         g,
+		Gas:         m.Carrier.Gas,
+		Mode:        m.Carrier.Mode,
 		Flow:        m.Carrier.FlowMLMin * 1e-6 / 60,
 		InletGauge:  m.Carrier.InletKPa * kPa,
 		Vacuum:      m.Carrier.Outlet == "vacuum",
 		Ambient:     m.Carrier.AmbientKPa * kPa,
 		InitialBand: m.Carrier.InitialBand,
-	}
-	if m.Carrier.Mode == "constant-pressure" {
-		c.Mode = model.ConstantPressure
 	}
 	return c, nil
 }
@@ -322,31 +323,10 @@ func (m *Method) System() (*model.System, error) {
 	return model.NewSystem(cond, comps, m.ModelOven())
 }
 
-// LockNames lists the program values the optimizer may hold fixed, for n ramps.
-func LockNames(n int) []string {
-	names := []string{"initial_c", "initial_hold_min"}
-	for i := 1; i <= n; i++ {
-		s := strconv.Itoa(i)
-		names = append(names, "rate_"+s, "final_"+s, "hold_"+s)
-	}
-	// the carrier flow (or inlet pressure), which the optimizer varies
-	return append(names, "flow")
-}
-
-// ValidLockName reports whether s is a lock name for up to n ramps.
-func ValidLockName(s string, n int) bool {
-	for _, x := range LockNames(n) {
-		if x == s {
-			return true
-		}
-	}
-	return false
-}
-
-// Locked reports whether the goal locks the named program value.
-func (g Goal) Locked(name string) bool {
+// Locked reports whether the goal locks the program value.
+func (g Goal) Locked(v model.ProgramValue) bool {
 	for _, x := range g.Lock {
-		if strings.EqualFold(x, name) {
+		if x == v {
 			return true
 		}
 	}
@@ -369,3 +349,77 @@ func KeypadRound(o Oven) Oven {
 }
 
 func roundTo(x, scale float64) float64 { return math.Round(x*scale) / scale }
+
+// Value is the program or carrier value v of the method, in file units
+// (°C, min, °C/min, mL/min, kPa); ok is false for a ramp the program does
+// not have.
+func (m *Method) Value(v model.ProgramValue) (x float64, ok bool) {
+	p := m.valuePtr(v)
+	if p == nil {
+		return 0, false
+	}
+	return *p, true
+}
+
+// SetValue sets the program or carrier value v of the method (file units).
+// It reports an error for a ramp the program does not have, or a carrier
+// value of the other pressure mode; the value itself is checked by Validate.
+func (m *Method) SetValue(v model.ProgramValue, x float64) error {
+	switch {
+	case v.Kind == model.CarrierFlow && m.Carrier.Mode != model.ConstantFlow:
+		return fmt.Errorf("%s applies only in constant-flow mode", v)
+	case v.Kind == model.InletPressure && m.Carrier.Mode != model.ConstantPressure:
+		return fmt.Errorf("%s applies only in constant-pressure mode", v)
+	}
+	p := m.valuePtr(v)
+	if p == nil {
+		return fmt.Errorf("%s: the program has %d ramps (use %s)", v, len(m.Oven.Ramps), model.ValueNames(m.Values()))
+	}
+	*p = x
+	return nil
+}
+
+// Values lists the values of the method a sweep may vary: the program's,
+// then the carrier's flow or inlet pressure (whichever the mode uses).
+func (m *Method) Values() []model.ProgramValue {
+	vs := model.ProgramValues(len(m.Oven.Ramps))
+	if m.Carrier.Mode == model.ConstantPressure {
+		return append(vs, model.ProgramValue{Kind: model.InletPressure})
+	}
+	return append(vs, model.ProgramValue{Kind: model.CarrierFlow})
+}
+
+func (m *Method) valuePtr(v model.ProgramValue) *float64 {
+	switch v.Kind {
+	case model.InitialTemp:
+		return &m.Oven.InitialC
+	case model.InitialHold:
+		return &m.Oven.InitialHoldMin
+	case model.CarrierFlow:
+		return &m.Carrier.FlowMLMin
+	case model.InletPressure:
+		return &m.Carrier.InletKPa
+	}
+	if !v.Kind.PerRamp() || v.Ramp < 1 || v.Ramp > len(m.Oven.Ramps) {
+		return nil
+	}
+	r := &m.Oven.Ramps[v.Ramp-1]
+	switch v.Kind {
+	case model.RampRate:
+		return &r.RateCMin
+	case model.RampFinal:
+		return &r.FinalC
+	}
+	return &r.HoldMin
+}
+
+// Equal reports whether two methods hold the same values (where each was
+// read from does not count).
+func (m *Method) Equal(o *Method) bool {
+	if m == nil || o == nil {
+		return m == o
+	}
+	a, b := *m, *o
+	a.file, a.loc, b.file, b.loc = "", nil, "", nil
+	return reflect.DeepEqual(&a, &b)
+}

@@ -6,7 +6,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"reflect"
 	"strings"
 	"testing"
 
@@ -64,7 +63,7 @@ func TestRoundTrip(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: re-read: %v\n%s", path, err, data)
 		}
-		if !reflect.DeepEqual(m, m2) {
+		if !m.Equal(m2) {
 			t.Errorf("%s: round trip differs:\n%+v\n%+v", path, m, m2)
 		}
 	}
@@ -82,7 +81,7 @@ func TestSaveAtomicAndReadBack(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(m, back) {
+	if !m.Equal(back) {
 		t.Error("saved method reads back different")
 	}
 	entries, _ := os.ReadDir(dir)

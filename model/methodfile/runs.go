@@ -209,10 +209,12 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 		if rr.Carrier != nil {
 			r.Carrier = *rr.Carrier
 			r.hasCarrier = true
-			merged := mergeCarrier(m.Carrier, rr.Carrier)
 			csub := &validator{file: name, loc: prefixed(loc, base+".")}
 			cm := &Method{}
-			csub.carrier(&rawMethod{Carrier: carrierRaw(merged)}, cm)
+			csub.carrier(&rawMethod{Carrier: overlayCarrier(carrierRaw(m.Carrier), rr.Carrier)}, cm)
+			if csub.err == nil {
+				csub.checkCarrier(cm)
+			}
 			if csub.err != nil && v.err == nil {
 				v.err = rebase(csub.err, base+".")
 			}
@@ -261,34 +263,46 @@ func (m *Method) RunMethod(r *Run) *Method {
 	return c
 }
 
+// mergeCarrier is base with the run's overrides o, checked by the method
+// file's carrier rules (ParseRuns has already reported any error).
 func mergeCarrier(base Carrier, o *rawCarrier) Carrier {
-	c := base
+	v := &validator{loc: Locations{}}
+	cm := &Method{}
+	v.carrier(&rawMethod{Carrier: overlayCarrier(carrierRaw(base), o)}, cm)
+	if v.checkCarrier(cm); v.err != nil {
+		return base
+	}
+	return cm.Carrier
+}
+
+// overlayCarrier sets in r every key o gives.
+func overlayCarrier(r, o *rawCarrier) *rawCarrier {
 	if o.Gas != nil {
-		c.Gas = *o.Gas
+		r.Gas = o.Gas
 	}
 	if o.Mode != nil {
-		c.Mode = *o.Mode
+		r.Mode = o.Mode
 	}
 	if o.FlowMLMin != nil {
-		c.FlowMLMin = *o.FlowMLMin
+		r.FlowMLMin = o.FlowMLMin
 	}
 	if o.InletKPa != nil {
-		c.InletKPa = *o.InletKPa
+		r.InletKPa = o.InletKPa
 	}
 	if o.Outlet != nil {
-		c.Outlet = *o.Outlet
+		r.Outlet = o.Outlet
 	}
 	if o.AmbientKPa != nil {
-		c.AmbientKPa = *o.AmbientKPa
+		r.AmbientKPa = o.AmbientKPa
 	}
 	if o.InitialBand != nil {
-		c.InitialBand = *o.InitialBand
+		r.InitialBand = o.InitialBand
 	}
-	return c
+	return r
 }
 
 func carrierRaw(c Carrier) *rawCarrier {
-	r := &rawCarrier{Gas: ptr(c.Gas), Mode: ptr(c.Mode), Outlet: ptr(c.Outlet), AmbientKPa: ptr(c.AmbientKPa), InitialBand: ptr(c.InitialBand)}
+	r := &rawCarrier{Gas: ptr(c.Gas.String()), Mode: ptr(c.Mode.String()), Outlet: ptr(c.Outlet), AmbientKPa: ptr(c.AmbientKPa), InitialBand: ptr(c.InitialBand)}
 	if c.FlowMLMin > 0 {
 		r.FlowMLMin = ptr(c.FlowMLMin)
 	}

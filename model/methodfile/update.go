@@ -421,6 +421,23 @@ func (p *patcher) table(at, bt, ot *ttable, where *ttable) bool {
 // of the first table after bt (in B's order) that the original has, or at
 // the end.
 func (p *patcher) insertTable(bt *ttable, text string) {
+	// A subtable ([goal.robust], [[limits.rate_band]]) goes right after its
+	// parent's keys when the file has the parent.
+	name := bt.path
+	if bt.base != "" {
+		name = bt.base
+	}
+	if i := strings.LastIndexByte(name, '.'); i > 0 {
+		if op := p.o.byPath[name[:i]]; op != nil && op.headerStart >= 0 {
+			at := op.insertAt()
+			lead := "\n"
+			if at > 0 && p.o.data[at-1] != '\n' {
+				lead = "\n\n"
+			}
+			p.add(at, at, lead+strings.TrimRight(text, "\n")+"\n")
+			return
+		}
+	}
 	for _, next := range p.b.tables[bt.order+1:] {
 		if ot := p.o.byPath[p.origPath(next)]; ot != nil {
 			p.add(ot.regionStart, ot.regionStart, text)

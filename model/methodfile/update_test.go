@@ -29,6 +29,13 @@ func readCommented(t *testing.T) ([]byte, *Method) {
 // diff, enough to count changed lines).
 func lineDiff(a, b string) (removed, added []string) {
 	x, y := strings.Split(a, "\n"), strings.Split(b, "\n")
+	// Equal lines at both ends are no part of the diff.
+	for len(x) > 0 && len(y) > 0 && x[0] == y[0] {
+		x, y = x[1:], y[1:]
+	}
+	for len(x) > 0 && len(y) > 0 && x[len(x)-1] == y[len(y)-1] {
+		x, y = x[:len(x)-1], y[:len(y)-1]
+	}
 	n, m := len(x), len(y)
 	dp := make([][]int, n+1)
 	for i := range dp {
@@ -240,7 +247,17 @@ func TestUpdateRandomEdits(t *testing.T) {
 			t.Fatal(err)
 		}
 		for k := 0; k < 1+rng.Intn(4); k++ {
-			switch rng.Intn(8) {
+			switch rng.Intn(11) {
+			case 8:
+				if len(m.Limits.RateBands) == 0 {
+					m.Limits.RateBands = append(m.Limits.RateBands, RateBand{AboveC: 200, MaxRateCMin: 20})
+				} else {
+					m.Limits.RateBands = nil
+				}
+			case 9:
+				m.Goal.Robust.OvenOffsetC = float64(rng.Intn(3))
+			case 10:
+				m.Limits.MaxRateCMin = float64(40 + rng.Intn(60))
 			case 0:
 				m.Oven.InitialC = 35 + float64(rng.Intn(40))
 			case 1:
@@ -335,6 +352,92 @@ func TestBOMAndUTF16(t *testing.T) {
 			if err == nil || !strings.Contains(err.Error(), "save it as UTF-8") || !strings.Contains(err.Error(), "m.toml") {
 				t.Errorf("bom %v big %v: %v", bom, big, err)
 			}
+		}
+	}
+}
+
+// bigCommented is the commented file with n compounds (copies of its own
+// under new names), and the method it means.
+func bigCommented(b testing.TB, n int) ([]byte, *Method) {
+	orig, err := os.ReadFile(commentedPath)
+	if err != nil {
+		b.Fatal(err)
+	}
+	s := string(orig)
+	i := strings.Index(s, "# solvent, not a target")
+	head, block := s[:i], s[i:strings.Index(s, "# end of the list")]
+	var sb strings.Builder
+	sb.WriteString(head)
+	for k := 0; sb.Len() < 1 || k*5 < n; k++ {
+		sb.WriteString(strings.NewReplacer(`name = "`, fmt.Sprintf(`name = "%d `, k)).Replace(block))
+	}
+	data := []byte(sb.String())
+	m, err := Parse("big.toml", data)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return data, m
+}
+
+// One value changed in a 2000-compound commented file: the whole save
+// text (Update: diff, placement, re-parse check).
+func BenchmarkUpdate2000(b *testing.B) {
+	orig, m := bigCommented(b, 2000)
+	m.Compounds[1000].Amount = 2.5
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, inPlace, err := Update("big.toml", orig, m); err != nil || !inPlace {
+			b.Fatal(err, inPlace)
+		}
+	}
+}
+
+// A compound removed from the middle of 2000, and every compound changed
+// (what a fit does): both placed in the text, not rewritten.
+func TestUpdateBigEdits(t *testing.T) {
+	orig, m := bigCommented(t, 2000)
+	if len(m.Compounds) != 2000 {
+		t.Fatalf("%d compounds", len(m.Compounds))
+	}
+	rm := m.Clone()
+	rm.Compounds = append(rm.Compounds[:700:700], rm.Compounds[701:]...)
+	out := update(t, orig, rm)
+	r, a := lineDiff(string(orig), out)
+	if len(a) != 0 || len(r) > 9 {
+		t.Errorf("removing one compound: -%d +%d lines", len(r), len(a))
+	}
+	all := m.Clone()
+	for i := range all.Compounds {
+		all.Compounds[i].DHkJ -= 0.5
+	}
+	out = update(t, orig, all)
+	ol, nl := strings.Split(string(orig), "\n"), strings.Split(out, "\n")
+	if len(ol) != len(nl) {
+		t.Fatalf("changing every ΔH: %d lines became %d", len(ol), len(nl))
+	}
+	changed := 0
+	for i := range ol {
+		if ol[i] != nl[i] {
+			changed++
+			if !strings.HasPrefix(nl[i], "dH_kJ_mol = ") {
+				t.Fatalf("line %d changed: %q → %q", i+1, ol[i], nl[i])
+			}
+		}
+	}
+	if changed != 2000 {
+		t.Errorf("changing every ΔH changed %d lines, want 2000", changed)
+	}
+}
+
+// Parsing a 2000-compound method (locating every key's line included).
+func BenchmarkParse2000(b *testing.B) {
+	orig, _ := bigCommented(b, 2000)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := Parse("big.toml", orig); err != nil {
+			b.Fatal(err)
 		}
 	}
 }

@@ -24,6 +24,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 // Sim is a method with its system and the result of its program.
@@ -63,7 +64,7 @@ func (s *Sim) CSV() ([]byte, error) {
 		if i < len(r.Pairs) {
 			rs = num(r.Pairs[i].Resolution)
 		}
-		w.Write([]string{c.Name, num(pk.RetentionTime / 60), num(pk.ElutionTemp - model.ZeroCelsius), num(pk.Sigma / 60),
+		w.Write([]string{textsafe.CSVCell(c.Name), num(pk.RetentionTime / 60), num(pk.ElutionTemp - model.ZeroCelsius), num(pk.Sigma / 60),
 			num(pk.HalfWidth() / 60), num(pk.RetentionFactor), rs, strconv.FormatBool(c.Target), strconv.FormatBool(pk.Eluted)})
 	}
 	w.Flush()
@@ -74,7 +75,7 @@ func (s *Sim) CSV() ([]byte, error) {
 func Describe(m *methodfile.Method) string {
 	c, g := m.Column, m.Carrier
 	flow := fmt.Sprintf("%s mL/min const. flow", num(g.FlowMLMin))
-	if g.Mode == "constant-pressure" {
+	if g.Mode == model.ConstantPressure {
 		flow = fmt.Sprintf("%s kPa const. pressure", num(g.InletKPa))
 	}
 	return fmt.Sprintf("%s · %s %s · %s", c.Describe(), g.Gas, flow, Program(m.Oven))

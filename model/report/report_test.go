@@ -12,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/sweep"
 )
@@ -102,7 +103,7 @@ func TestSheetHasStepsAndCautions(t *testing.T) {
 		t.Error("hydrogen caution without hydrogen")
 	}
 	m := s.Method.Clone()
-	m.Carrier.Gas = "hydrogen"
+	m.Carrier.Gas = model.Hydrogen
 	h, err := Simulate(m)
 	if err != nil {
 		t.Fatal(err)
@@ -116,7 +117,7 @@ func TestSheetHasStepsAndCautions(t *testing.T) {
 // reproducible exactly.
 func TestSweepPointEqualsSimulate(t *testing.T) {
 	s := demoSim(t)
-	pts, err := sweep.One(s.Method, "rate_1", sweep.Steps(2, 22, 11), nil)
+	pts, err := sweep.One(s.Method, pv("rate_1"), sweep.Steps(2, 22, 11), nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -132,11 +133,11 @@ func TestSweepPointEqualsSimulate(t *testing.T) {
 	if at.MinRs != s.Result.MinResolution || at.RunTime != s.Result.RunTime/60 {
 		t.Errorf("sweep %v/%v vs simulate %v/%v", at.MinRs, at.RunTime, s.Result.MinResolution, s.Result.RunTime/60)
 	}
-	again, _ := sweep.One(s.Method, "rate_1", sweep.Steps(2, 22, 11), nil)
+	again, _ := sweep.One(s.Method, pv("rate_1"), sweep.Steps(2, 22, 11), nil)
 	if !reflect.DeepEqual(stripNaN(pts), stripNaN(again)) {
 		t.Error("sweep not reproducible")
 	}
-	grid, err := sweep.Two(s.Method, "rate_1", sweep.Steps(5, 20, 4), "initial_c", sweep.Steps(40, 100, 3), nil)
+	grid, err := sweep.Two(s.Method, pv("rate_1"), sweep.Steps(5, 20, 4), pv("initial_c"), sweep.Steps(40, 100, 3), nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -146,7 +147,7 @@ func TestSweepPointEqualsSimulate(t *testing.T) {
 	if _, err := WindowPNG(pts, "rate_1", 12, 1.5, 400, 300); err != nil {
 		t.Error(err)
 	}
-	bad, _ := sweep.One(s.Method, "final_1", []float64{30, 400}, nil)
+	bad, _ := sweep.One(s.Method, pv("final_1"), []float64{30, 400}, nil)
 	for _, p := range bad {
 		if p.Valid {
 			t.Errorf("final %v accepted", p.Value)
@@ -164,6 +165,14 @@ func stripNaN(p []sweep.Point) []sweep.Point {
 	return out
 }
 
+func pv(s string) model.ProgramValue {
+	v, err := model.ParseProgramValue(s)
+	if err != nil {
+		panic(err)
+	}
+	return v
+}
+
 // The sheets of the packed and porous-layer demos name the kind and its
 // phase ratio; the porous-layer demo starts below ambient, so its sheet says
 // that a coolant is needed and gives the cryogen cautions (MODEL.md §12).
@@ -173,8 +182,8 @@ func TestSheetKindsAndCoolant(t *testing.T) {
 		want    []string
 		coolant bool
 	}{
-		{"../../testdata/demo-packed.toml", []string{"packed 3 m × 2 mm (165 µm particles", "| phase ratio | 6.0 |"}, false},
-		{"../../testdata/demo-porous-layer.toml", []string{"porous-layer 30 m × 0.32 mm × 10 µm layer", "| phase ratio | 7.3 |", "a coolant is needed", "cold burns", "asphyxiate"}, true},
+		{"../../testdata/demo-packed.toml", []string{"packed 3 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 6)"}, false},
+		{"../../testdata/demo-porous-layer.toml", []string{"porous-layer 30 m × 0.32 mm × 10 µm layer", "| phase ratio | 7.3 |", "A coolant is needed", "cold burns", "asphyxiate"}, true},
 	} {
 		m, err := methodfile.ReadFile(c.file)
 		if err != nil {

@@ -7,7 +7,9 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
-	"github.com/rampwise/rampwise/model/robust"
+	"github.com/rampwise/rampwise/model/format"
+	"github.com/rampwise/rampwise/model/robust/methodtol"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 // Sheet is the method sheet in Markdown: column, carrier and pressure mode
@@ -23,9 +25,9 @@ func (s *Sim) Sheet() []byte {
 	if title == "" {
 		title = "GC method"
 	}
-	fmt.Fprintf(&b, "# %s\n\n", title)
+	fmt.Fprintf(&b, "# %s\n\n", textsafe.Inert(title))
 	if m.Notes != "" {
-		fmt.Fprintf(&b, "%s\n\n", strings.TrimSpace(m.Notes))
+		fmt.Fprintf(&b, "%s\n\n", inertLines(strings.TrimSpace(m.Notes)))
 	}
 	cond := s.System.Cond
 	t0 := m.ModelProgram().Initial
@@ -35,15 +37,17 @@ func (s *Sim) Sheet() []byte {
 	if phase == "" {
 		phase = "(not named)"
 	}
-	fmt.Fprintf(&b, "| stationary phase | %s |\n", phase)
+	fmt.Fprintf(&b, "| stationary phase | %s |\n", textsafe.Inert(phase))
 	if m.Column.Kind == "packed" || m.Column.Kind == "porous-layer" {
 		fmt.Fprintf(&b, "| column | %s, maximum %s °C |\n", m.Column.Describe(), num(m.Column.MaxTempC))
-		fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
+		if m.Column.Kind == "porous-layer" { // a packed column's is in its description
+			fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
+		}
 	} else {
 		fmt.Fprintf(&b, "| column | %s m × %s mm i.d. × %s µm film, maximum %s °C |\n", num(m.Column.LengthM), num(m.Column.DiameterMM), num(m.Column.FilmUM), num(m.Column.MaxTempC))
 	}
 	fmt.Fprintf(&b, "| carrier gas | %s |\n", m.Carrier.Gas)
-	if m.Carrier.Mode == "constant-pressure" {
+	if m.Carrier.Mode == model.ConstantPressure {
 		fmt.Fprintf(&b, "| pressure mode | constant pressure, %s kPa (gauge) |\n", num(m.Carrier.InletKPa))
 	} else {
 		fmt.Fprintf(&b, "| pressure mode | constant flow, %s mL/min (at 25 °C, 101.325 kPa) |\n", num(m.Carrier.FlowMLMin))
@@ -83,12 +87,15 @@ func (s *Sim) Sheet() []byte {
 	fmt.Fprintf(&b, "\n## Limits\n\nLowest start %s °C · fastest ramp %s °C/min · longest hold %s min · highest inlet pressure %s kPa · column maximum %s °C.\n",
 		num(l.OvenMinC), num(l.MaxRateCMin), num(l.MaxHoldMin), num(l.MaxInletKPa), num(m.Column.MaxTempC))
 
-	fmt.Fprintf(&b, "\n## Expected retention (model prediction)\n\n| # | compound | tR (min) | Te (°C) | w½ (s) | Rs to next | target |\n|---|---|---|---|---|---|---|\n")
+	fmt.Fprintf(&b, "\n## Expected retention (model prediction)\n\n| # | compound | tR (min) | Te (°C) | w½ (s) | %s | %s |\n|---|---|---|---|---|---|---|\n", format.HeadRsNext, format.HeadTarget)
 	for i, pk := range r.Peaks {
 		c := &s.System.Compounds[pk.Compound]
 		rs := ""
 		if i < len(r.Pairs) {
-			rs = fmt.Sprintf("%.2f", r.Pairs[i].Resolution)
+			rs = format.Pair(r.Pairs[i].Resolution, m.Goal.MinResolution)
+			if i == r.Critical {
+				rs = format.CriticalMark + " " + rs
+			}
 		}
 		tr := fmt.Sprintf("%.3f", pk.RetentionTime/60)
 		if !pk.Eluted {
@@ -98,12 +105,12 @@ func (s *Sim) Sheet() []byte {
 		if c.Target {
 			tgt = "yes"
 		}
-		fmt.Fprintf(&b, "| %d | %s | %s | %.1f | %.2f | %s | %s |\n", i+1, c.Name, tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
+		fmt.Fprintf(&b, "| %d | %s | %s | %.1f | %.2f | %s | %s |\n", i+1, textsafe.Inert(c.Name), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
 	}
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		fmt.Fprintf(&b, "\nMinimum resolution %.2f (target %.2f), critical pair %s / %s.\n", r.MinResolution, m.Goal.MinResolution,
-			s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name)
+		fmt.Fprintf(&b, "\nMinimum resolution %s, critical pair %s.\n", format.Rs(r.MinResolution, m.Goal.MinResolution),
+			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 
 	b.WriteString(s.robustSection())
@@ -112,9 +119,9 @@ func (s *Sim) Sheet() []byte {
 	var idx, entered []string
 	for _, c := range m.Compounds {
 		if c.FromIndex {
-			idx = append(idx, fmt.Sprintf("%s (I = %s)", c.Name, num(c.RetentionIndex)))
+			idx = append(idx, fmt.Sprintf("%s (I = %s)", textsafe.Inert(c.Name), num(c.RetentionIndex)))
 		} else {
-			entered = append(entered, c.Name)
+			entered = append(entered, textsafe.Inert(c.Name))
 		}
 	}
 	if len(entered) > 0 {
@@ -123,21 +130,25 @@ func (s *Sim) Sheet() []byte {
 	if len(idx) > 0 {
 		fmt.Fprintf(&b, "- From retention indices on this phase, modelled as virtual n-alkanes (an assumption): %s.\n", strings.Join(idx, ", "))
 	}
-	fmt.Fprintf(&b, "- Plate-height factor %s (1 = ideal Golay column).\n", num(m.Column.PlateHeight))
+	ideal := "ideal Golay column"
+	if m.Column.Kind == "packed" {
+		ideal = "the van Deemter plate height with the column's eddy, obstruction and mobile-phase factors"
+	}
+	fmt.Fprintf(&b, "- Plate-height factor %s (1 = %s).\n", num(m.Column.PlateHeight), ideal)
 
 	fmt.Fprintf(&b, "\n## Cautions\n\n")
 	fmt.Fprintf(&b, "- These are model predictions. Verify the program with a standard injection before using it for samples.\n")
 	fmt.Fprintf(&b, "- Never program the oven above the column's maximum temperature (%s °C).\n", num(m.Column.MaxTempC))
 	fmt.Fprintf(&b, "- The oven, inlet and detector are hot; let them cool before touching the column or fittings.\n")
-	if m.Carrier.Gas == "hydrogen" {
+	if m.Carrier.Gas.Flammable() {
 		fmt.Fprintf(&b, "- %s\n", model.HydrogenCaution)
 	}
 	if note := checks.CoolantNote(m); note != "" {
-		fmt.Fprintf(&b, "- Coolant: %s.\n- %s\n", note, model.CryogenCaution)
+		fmt.Fprintf(&b, "- %s.\n- %s\n", strings.ToUpper(note[:1])+note[1:], model.CryogenCaution)
 	}
 	fmt.Fprintf(&b, "- Follow your local codes and the instrument maker's guidance for gases, pressurised cylinders and heated zones.\n")
 	for _, w := range checks.Warnings(m, s.System, &s.Result) {
-		fmt.Fprintf(&b, "- Warning: %s\n", w)
+		fmt.Fprintf(&b, "- Warning: %s\n", textsafe.Inert(w))
 	}
 	return []byte(b.String())
 }
@@ -148,7 +159,7 @@ func (s *Sim) Sheet() []byte {
 // parameters' standard errors (model/robust, the optimizer's own check).
 func (s *Sim) robustSection() string {
 	m := s.Method
-	rep, err := robust.Check(m, s.System)
+	rep, err := methodtol.Check(m, s.System)
 	if err != nil || !rep.On {
 		return ""
 	}
@@ -172,4 +183,14 @@ func (s *Sim) robustSection() string {
 	}
 	fmt.Fprintf(&b, "\nTarget %.2f %s at every corner and at Rs − z·σ (robust Rs %.3f).\n", m.Goal.MinResolution, word, rep.Margin)
 	return b.String()
+}
+
+// inertLines makes each line of a multi-line text (the notes) inert,
+// keeping the line breaks.
+func inertLines(s string) string {
+	lines := strings.Split(s, "\n")
+	for i, l := range lines {
+		lines[i] = textsafe.Inert(strings.TrimSuffix(l, "\r"))
+	}
+	return strings.Join(lines, "\n")
 }

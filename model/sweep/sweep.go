@@ -7,17 +7,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"strconv"
-	"strings"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
-
-// Names lists the values a sweep can vary for a method with n ramps.
-func Names(n int) []string {
-	return append(methodfile.LockNames(n), "flow_ml_min", "inlet_kpa")
-}
 
 // Point is one step of a sweep.
 type Point struct {
@@ -30,51 +23,18 @@ type Point struct {
 	CycleTime     float64 // min
 }
 
-// set returns a copy of m with the named value set to v.
-func set(m *methodfile.Method, name string, v float64) (*methodfile.Method, error) {
+// set returns a copy of m with the value v set to x.
+func set(m *methodfile.Method, v model.ProgramValue, x float64) (*methodfile.Method, error) {
 	c := m.Clone()
-	switch name {
-	case "initial_c":
-		c.Oven.InitialC = v
-		return c, nil
-	case "initial_hold_min":
-		c.Oven.InitialHoldMin = v
-		return c, nil
-	case "flow_ml_min":
-		if c.Carrier.Mode != "constant-flow" {
-			return nil, errors.New("flow_ml_min can be swept only in constant-flow mode")
-		}
-		c.Carrier.FlowMLMin = v
-		return c, nil
-	case "inlet_kpa":
-		if c.Carrier.Mode != "constant-pressure" {
-			return nil, errors.New("inlet_kpa can be swept only in constant-pressure mode")
-		}
-		c.Carrier.InletKPa = v
-		return c, nil
-	}
-	kind, num, ok := strings.Cut(name, "_")
-	n, err := strconv.Atoi(num)
-	if !ok || err != nil || n < 1 || n > len(c.Oven.Ramps) {
-		return nil, fmt.Errorf("unknown value %q to vary (use %s)", name, strings.Join(Names(len(m.Oven.Ramps)), ", "))
-	}
-	r := &c.Oven.Ramps[n-1]
-	switch kind {
-	case "rate":
-		r.RateCMin = v
-	case "final":
-		r.FinalC = v
-	case "hold":
-		r.HoldMin = v
-	default:
-		return nil, fmt.Errorf("unknown value %q to vary", name)
+	if err := c.SetValue(v, x); err != nil {
+		return nil, err
 	}
 	return c, nil
 }
 
-// Check reports whether name can be varied in m.
-func Check(m *methodfile.Method, name string) error {
-	_, err := set(m, name, 1)
+// Check reports whether v can be varied in m.
+func Check(m *methodfile.Method, v model.ProgramValue) error {
+	_, err := set(m, v, 1)
 	return err
 }
 
@@ -100,11 +60,7 @@ type evaluator struct {
 
 func (e *evaluator) point(c *methodfile.Method) Point {
 	p := Point{MinRs: math.NaN()}
-	data, err := methodfile.Marshal(c)
-	if err == nil {
-		_, err = methodfile.Parse("sweep", data)
-	}
-	if err != nil {
+	if err := c.Validate(); err != nil {
 		var fe *methodfile.Error
 		if errors.As(err, &fe) {
 			p.Reason = fe.Key + ": " + fe.Msg
@@ -137,7 +93,7 @@ func (e *evaluator) point(c *methodfile.Method) Point {
 }
 
 // One varies name over values; progress (may be nil) is told the steps done.
-func One(m *methodfile.Method, name string, values []float64, progress func(done, total int)) ([]Point, error) {
+func One(m *methodfile.Method, name model.ProgramValue, values []float64, progress func(done, total int)) ([]Point, error) {
 	if err := Check(m, name); err != nil {
 		return nil, err
 	}
@@ -157,7 +113,7 @@ func One(m *methodfile.Method, name string, values []float64, progress func(done
 
 // Two varies name over values and name2 over values2: a map of the
 // minimum resolution, row by row of values2.
-func Two(m *methodfile.Method, name string, values []float64, name2 string, values2 []float64, progress func(done, total int)) ([][]Point, error) {
+func Two(m *methodfile.Method, name model.ProgramValue, values []float64, name2 model.ProgramValue, values2 []float64, progress func(done, total int)) ([][]Point, error) {
 	if err := Check(m, name); err != nil {
 		return nil, err
 	}

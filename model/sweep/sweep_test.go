@@ -3,6 +3,7 @@ package sweep
 import (
 	"testing"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -18,20 +19,26 @@ func TestUnknownAndModeChecks(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, bad := range []string{"rate_3", "speed", "inlet_kpa", "final_0"} {
-		if Check(m, bad) == nil {
+	for _, bad := range []string{"rate_3", "inlet_kpa"} {
+		v, err := model.ParseProgramValue(bad)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if Check(m, v) == nil {
 			t.Errorf("%s accepted", bad)
 		}
 	}
-	for _, ok := range Names(len(m.Oven.Ramps)) {
-		if ok == "inlet_kpa" {
-			continue // constant-flow demo
+	for _, bad := range []string{"speed", "final_0"} {
+		if _, err := model.ParseProgramValue(bad); err == nil {
+			t.Errorf("%s parsed", bad)
 		}
+	}
+	for _, ok := range m.Values() {
 		if err := Check(m, ok); err != nil {
 			t.Errorf("%s: %v", ok, err)
 		}
 	}
-	pts, err := One(m, "flow_ml_min", Steps(0.8, 2.0, 4), nil)
+	pts, err := One(m, model.ProgramValue{Kind: model.CarrierFlow}, Steps(0.8, 2.0, 4), nil)
 	if err != nil {
 		t.Fatal(err)
 	}

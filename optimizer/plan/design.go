@@ -8,6 +8,10 @@ import (
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
+// maxScoutMin is the longest scouting run considered, min: an injection
+// is meant to cost 30–60 minutes of instrument time, not hours.
+const maxScoutMin = 90
+
 // designChoice is the chosen scouting run.
 type designChoice struct {
 	oven    methodfile.Oven
@@ -70,47 +74,19 @@ func (sl scoutLimits) rateTo(finalC float64) float64 {
 // design picks, among scouting programs within the limits, the one after
 // which the summed variance of the resolutions of the pairs that are or
 // could become critical at the optimized program is least.
-func (st *state) design(opt methodfile.Oven, target, z float64) (*designChoice, error) {
-	// pairs at the optimized program
-	if err := st.sens.eval(methodfile.ProgramToModel(opt)); err != nil {
-		return nil, err
-	}
-	s := st.sens
+func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoice, error) {
 	var pairs []pairSens
-	critRs := math.Inf(1)
-	crit := -1
-	var order []int
-	for i := 0; i < s.n; i++ {
-		if s.eluted[i] {
-			order = append(order, i)
+	for pi, o := range progs {
+		ps, err := st.criticalPairs(o, target, pi == 0)
+		if err != nil {
+			return nil, err
 		}
-	}
-	sort.Slice(order, func(a, b int) bool { return s.t[order[a]] < s.t[order[b]] })
-	for x := 0; x < len(order); x++ {
-		for y := x + 1; y < len(order); y++ {
-			a, b := order[x], order[y]
-			if !st.sys.Compounds[a].Target && !st.sys.Compounds[b].Target {
-				continue
-			}
-			rs, ga, gb := s.resolution(a, b)
-			sd := rsSD(ga, gb, st.cov[a], st.cov[b])
-			// could it become critical: within three SDs of the target
-			// plus half a unit of resolution
-			if rs-3*sd > target+0.5 {
-				continue
-			}
-			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb})
-			if y == x+1 && rs < critRs {
-				critRs, crit = rs, len(pairs)-1
-			}
-		}
-	}
-	if crit >= 0 {
-		pairs[crit].critical = true
+		pairs = append(pairs, ps...)
 	}
 	if len(pairs) == 0 {
 		return nil, nil
 	}
+	s := st.sens
 	s2 := st.sigmaT * st.sigmaT
 	type scored struct {
 		designChoice
@@ -118,8 +94,20 @@ func (st *state) design(opt methodfile.Oven, target, z float64) (*designChoice, 
 	}
 	var all []scored
 	post := make([]cov2, s.n)
-	for _, cand := range st.candidates(opt) {
+	var starts []float64
+	for _, o := range progs {
+		starts = append(starts, o.InitialC)
+	}
+	cands := st.candidates(starts)
+	sl := st.scoutLimits()
+	for _, o := range progs {
+		cands = append(cands, st.continued(o, sl)...)
+	}
+	for _, cand := range cands {
 		prog := methodfile.ProgramToModel(cand)
+		if prog.RunTime() > maxScoutMin*60 {
+			continue
+		}
 		if err := s.eval(prog); err != nil {
 			continue
 		}
@@ -157,17 +145,60 @@ func (st *state) design(opt methodfile.Oven, target, z float64) (*designChoice, 
 	return bestC, nil
 }
 
-// candidates are the scouting programs considered: linear ramps from a few
-// starts at rates across the oven's range to the highest allowed
-// temperature, and the optimized program itself continued to that
-// temperature; each ends with a hold long enough for every compound to
+// criticalPairs are the pairs with a target that are, or within three
+// standard deviations could become, critical at program o (Rs within
+// 3 SD of the target plus half a unit), with their gradients; the least
+// adjacent one is marked critical when mark is set.
+func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]pairSens, error) {
+	if err := st.sens.eval(methodfile.ProgramToModel(o)); err != nil {
+		return nil, err
+	}
+	s := st.sens
+	var pairs []pairSens
+	critRs := math.Inf(1)
+	crit := -1
+	var order []int
+	for i := 0; i < s.n; i++ {
+		if s.eluted[i] {
+			order = append(order, i)
+		}
+	}
+	sort.Slice(order, func(a, b int) bool { return s.t[order[a]] < s.t[order[b]] })
+	for x := 0; x < len(order); x++ {
+		for y := x + 1; y < len(order); y++ {
+			a, b := order[x], order[y]
+			if !st.sys.Compounds[a].Target && !st.sys.Compounds[b].Target {
+				continue
+			}
+			rs, ga, gb := s.resolution(a, b)
+			sd := rsSD(ga, gb, st.cov[a], st.cov[b])
+			if rs-3*sd > target+0.5 {
+				continue
+			}
+			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb})
+			if y == x+1 && rs < critRs {
+				critRs, crit = rs, len(pairs)-1
+			}
+		}
+	}
+	if crit >= 0 && mark {
+		pairs[crit].critical = true
+	}
+	return pairs, nil
+}
+
+// candidates are linear scouting ramps from a few starts (the lowest oven
+// temperature, 20 and 40 °C above it, and the given starts) at rates across
+// the oven's range to the highest allowed temperature; each ends with a hold long enough for every compound to
 // elute, with room for its retention uncertainty.
-func (st *state) candidates(opt methodfile.Oven) []methodfile.Oven {
+func (st *state) candidates(extra []float64) []methodfile.Oven {
 	sl := st.scoutLimits()
 	var out []methodfile.Oven
 	starts := []float64{sl.lowC, sl.lowC + 20, sl.lowC + 40}
-	if opt.InitialC >= sl.lowC && opt.InitialC < sl.highC {
-		starts = append(starts, opt.InitialC)
+	for _, t := range extra {
+		if t >= sl.lowC && t < sl.highC {
+			starts = append(starts, t)
+		}
 	}
 	rates := []float64{2, 3, 4, 5, 7, 10, 15, 20, 25, 30, 40, 50, 60, 80, 100}
 	for _, t0 := range starts {
@@ -183,7 +214,13 @@ func (st *state) candidates(opt methodfile.Oven) []methodfile.Oven {
 			}
 		}
 	}
-	// the optimized program, continued
+	return out
+}
+
+// continued is the optimized program continued to the highest allowed
+// temperature, so that what elutes after it is measured too.
+func (st *state) continued(opt methodfile.Oven, sl scoutLimits) []methodfile.Oven {
+	var out []methodfile.Oven
 	if len(opt.Ramps) > 0 || opt.InitialC < sl.highC {
 		o := opt
 		o.Ramps = append([]methodfile.Ramp(nil), opt.Ramps...)

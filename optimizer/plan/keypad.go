@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"github.com/rampwise/rampwise/model/methodfile"
 )
@@ -81,7 +82,7 @@ func KeypadLines(o methodfile.Oven, l methodfile.Limits) []string {
 func RunBlock(name string, o methodfile.Oven, l methodfile.Limits, compounds []string) string {
 	ts, rs, hs := stepOr(l.TempStepC, 0.1), stepOr(l.RateStepCMin, 0.1), stepOr(l.HoldStepMin, 0.01)
 	var b strings.Builder
-	fmt.Fprintf(&b, "[[run]]\nname = %s\n[run.oven]\ninitial_c = %s\ninitial_hold_min = %s\n", strconv.Quote(name), Format(o.InitialC, ts), Format(o.InitialHoldMin, hs))
+	fmt.Fprintf(&b, "[[run]]\nname = %s\n[run.oven]\ninitial_c = %s\ninitial_hold_min = %s\n", tomlQuote(name), Format(o.InitialC, ts), Format(o.InitialHoldMin, hs))
 	for _, r := range o.Ramps {
 		fmt.Fprintf(&b, "[[run.oven.ramp]]\nrate_c_min = %s\nfinal_c = %s\nhold_min = %s\n", Format(r.RateCMin, rs), Format(r.FinalC, ts), Format(r.HoldMin, hs))
 	}
@@ -89,8 +90,33 @@ func RunBlock(name string, o methodfile.Oven, l methodfile.Limits, compounds []s
 	names := append([]string(nil), compounds...)
 	sort.Strings(names)
 	for _, n := range names {
-		fmt.Fprintf(&b, "# %s = \n", strconv.Quote(n))
+		fmt.Fprintf(&b, "# %s = \n", tomlQuote(n))
 	}
 	b.WriteString("[run.width_min]       # optional: measured half-height widths (min)\n")
+	return b.String()
+}
+
+// tomlQuote is s as a TOML basic string: quotes and backslashes escaped,
+// and every rune that is not printable (control characters, bidi
+// overrides) as \uXXXX, so that the text stays inert on a terminal.
+func tomlQuote(s string) string {
+	var b strings.Builder
+	b.WriteByte('"')
+	for _, r := range s {
+		switch {
+		case r == '"' || r == '\\':
+			b.WriteByte('\\')
+			b.WriteRune(r)
+		case !unicode.IsPrint(r):
+			if r > 0xFFFF {
+				fmt.Fprintf(&b, "\\U%08X", r)
+			} else {
+				fmt.Fprintf(&b, "\\u%04X", r)
+			}
+		default:
+			b.WriteRune(r)
+		}
+	}
+	b.WriteByte('"')
 	return b.String()
 }

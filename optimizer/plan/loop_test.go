@@ -14,6 +14,7 @@ import (
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // the optimizer's effort in the loop tests: smaller than the command's, so
@@ -33,12 +34,17 @@ type outcome struct {
 
 // playPlan plays plan → inject → fit → plan (the fit is inside Next) until
 // a verification run meets the target, for at most maxInjections.
-func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool) outcome {
+func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool, preset ...methodfile.Oven) outcome {
 	truth, rough := newSample(t, seed)
 	l := &lab{truth: truth, rng: rand.New(rand.NewPCG(seed, 99))}
 	var out outcome
 	ctx := context.Background()
-	for k := 1; k <= maxInjections; k++ {
+	for i, o := range preset {
+		if _, err := l.inject(fmt.Sprintf("ramp-%d", i+1), o); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for k := len(preset) + 1; k <= maxInjections; k++ {
 		runs, err := l.runsFile(rough)
 		if err != nil {
 			t.Fatalf("seed %d: runs file: %v\n%s", seed, err, l.runs.String())
@@ -48,7 +54,12 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool) outcom
 			t.Fatalf("seed %d: plan: %v", seed, err)
 		}
 		if p.Action == Done {
-			t.Logf("seed %d: done before a verification: %s", seed, p.Reason)
+			// a run already made meets the target (as measured) by a
+			// margin the model vouches for: that run is the verification
+			t.Logf("seed %d: done after %d injections, before a planned verification: %s", seed, k-1, p.Reason)
+			out.verified, out.done = p.VerifiedBy != "", true
+			out.runTime = methodfile.ProgramToModel(p.Oven).RunTime() / 60
+			out.trueRs = rampRsOf(t, truth, p.Oven)
 			return out
 		}
 		ms, err := l.inject(fmt.Sprintf("run-%d", k), p.Oven)
@@ -87,6 +98,16 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool) outcom
 	return out
 }
 
+// habitRamps are the habit's three scouting ramps: 5, 10 and 20 °C/min
+// from 40 °C to 300 °C.
+func habitRamps() []methodfile.Oven {
+	var out []methodfile.Oven
+	for _, r := range []float64{5, 10, 20} {
+		out = append(out, methodfile.Oven{InitialC: 40, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: r, FinalC: 300, HoldMin: 10}}})
+	}
+	return out
+}
+
 // playHabit is the usual habit on the same sample: three linear ramps (5,
 // 10 and 20 °C/min from 40 °C to 300 °C), fit, optimize at the target,
 // verify; a failed verification is added to the runs and the loop refits
@@ -95,8 +116,7 @@ func playHabit(t testing.TB, seed uint64, maxInjections int) outcome {
 	truth, rough := newSample(t, seed)
 	l := &lab{truth: truth, rng: rand.New(rand.NewPCG(seed, 99))}
 	var out outcome
-	for i, r := range []float64{5, 10, 20} {
-		o := methodfile.Oven{InitialC: 40, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: r, FinalC: 300, HoldMin: 10}}}
+	for i, o := range habitRamps() {
 		if _, err := l.inject(fmt.Sprintf("ramp-%d", i+1), o); err != nil {
 			t.Fatal(err)
 		}
@@ -116,11 +136,13 @@ func playHabit(t testing.TB, seed uint64, maxInjections int) outcome {
 		if err != nil {
 			t.Fatal(err)
 		}
-		res, err := optimizer.Optimize(context.Background(), optimizer.FromMethod(m, sys), testOptimizer)
+		prob := methodsearch.Problem(m, sys)
+		prob.Lock = append(prob.Lock, optimizer.FlowLock) // the lab injects at the method's carrier setting
+		res, err := optimizer.Optimize(context.Background(), prob, testOptimizer)
 		if err != nil {
 			t.Fatal(err)
 		}
-		oven, _, err := optimizer.KeypadProgram(m, sys, res)
+		oven, _, err := methodsearch.KeypadProgram(m, sys, res)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -160,7 +182,10 @@ func rampRsOf(t testing.TB, m *methodfile.Method, o methodfile.Oven) float64 {
 // TestLoopFewestInjections plays the planning loop on random samples whose
 // parameters the planner never sees and compares it with the three-ramps
 // habit on the same samples. The sample count is small by default; set
-// RAMPWISE_PLAN_STUDY=N for the full study (N samples).
+// RAMPWISE_PLAN_STUDY=N for the full study (N samples) and
+// RAMPWISE_PLAN_SEED for samples other than the default seeds;
+// RAMPWISE_PLAN_RAMPS=1 also plays the habit's three ramps followed by the
+// planner (what the scouting design itself saves).
 func TestLoopFewestInjections(t *testing.T) {
 	if testing.Short() {
 		t.Skip("plays the whole loop")
@@ -173,14 +198,34 @@ func TestLoopFewestInjections(t *testing.T) {
 		}
 		n = v
 	}
+	base := uint64(1000)
+	if s := os.Getenv("RAMPWISE_PLAN_SEED"); s != "" {
+		v, err := strconv.ParseUint(s, 10, 64)
+		if err != nil {
+			t.Fatalf("RAMPWISE_PLAN_SEED=%q: want a number", s)
+		}
+		base = v
+	}
 	const maxInjections = 6
-	var planInj, habitInj []float64
+	withRampsPlan := os.Getenv("RAMPWISE_PLAN_RAMPS") != ""
+	var planInj, habitInj, rampsPlanInj []float64
+	rampsPlanFail := 0
 	planFail, habitFail, planUnverified, habitUnverified, notDone := 0, 0, 0, 0, 0
 	var ratio []float64
 	for i := 0; i < n; i++ {
-		seed := uint64(1000 + i)
+		seed := base + uint64(i)
 		p := playPlan(t, seed, maxInjections, true)
 		h := playHabit(t, seed, maxInjections)
+		var hp outcome
+		if withRampsPlan {
+			// the habit's three ramps, then the planner's verify decision
+			hp = playPlan(t, seed, maxInjections, false, habitRamps()...)
+			rampsPlanFail += hp.failedChecks
+			if hp.verified {
+				rampsPlanInj = append(rampsPlanInj, float64(hp.injections))
+			}
+			t.Logf("sample %d: three ramps then plan: %d injections (verified %v, failed checks %d, run %.2f min)", seed, hp.injections, hp.verified, hp.failedChecks, hp.runTime)
+		}
 		t.Logf("sample %d: plan %d injections (verified %v, failed checks %d, run %.2f min, true Rs %.3f, done %v); habit %d (verified %v, failed checks %d, run %.2f min)",
 			seed, p.injections, p.verified, p.failedChecks, p.runTime, p.trueRs, p.done, h.injections, h.verified, h.failedChecks, h.runTime)
 		planFail += p.failedChecks
@@ -215,6 +260,10 @@ func TestLoopFewestInjections(t *testing.T) {
 		n, quantile(planInj, 0.5), quantile(planInj, 0.9), quantile(planInj, 1), planFail, planUnverified, notDone)
 	t.Logf("habit: %d samples, injections median %.0f, 90th percentile %.0f, max %.0f; failed verification runs %d; unverified %d",
 		n, quantile(habitInj, 0.5), quantile(habitInj, 0.9), quantile(habitInj, 1), habitFail, habitUnverified)
+	if withRampsPlan {
+		t.Logf("three ramps then plan: injections median %.0f, 90th percentile %.0f, max %.0f; failed verification runs %d; verified %d of %d",
+			quantile(rampsPlanInj, 0.5), quantile(rampsPlanInj, 0.9), quantile(rampsPlanInj, 1), rampsPlanFail, len(rampsPlanInj), n)
+	}
 	t.Logf("run time of the verified program, plan / habit: median %.3f", quantile(ratio, 0.5))
 }
 

@@ -33,6 +33,7 @@ import (
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
+	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
 // Action is what to do next.
@@ -55,15 +56,29 @@ type Settings struct {
 	WidthScatter float64
 	// MinZ is the least number of standard deviations the predicted
 	// resolution must clear the target by before a verification run is
-	// advised; [goal.robust] retention_sigma raises it. Default 2.
+	// advised; [goal.robust] retention_sigma raises it. Default 3 (a
+	// failed verification costs an injection: about 1 in 700 per pair).
 	MinZ float64
 	// MaxMargin is how far the planner may raise the optimizer's target
 	// above the goal to make room for the margin, as a fraction of the
-	// target. Default 0.2.
+	// target. Default 1 (a robust program up to twice the target).
 	MaxMargin float64
+	// Slower: a robust program is also advised for verification when it
+	// is at most (1 + Slower) times as long as the program optimized at
+	// the bare target (then a scouting run would save little). Default 0.25.
+	Slower float64
+	// MarginGain: a robust program is advised for verification when
+	// knowing the parameters exactly would lower the resolution its margin
+	// needs by at most this fraction of the target. Default 0.3: the margin
+	// still covers the parameters' uncertainty in full, so a larger value
+	// trades a slower verified program for fewer injections, never a
+	// likelier failed verification.
+	MarginGain float64
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
-	// is at most (1 + Tolerance) times the optimized one's. Default 0.05.
+	// is at most (1 + Tolerance) times that of the program now predicted
+	// to hold the margin. Default 0.5: after a passing verification a
+	// program predicted a little faster is mentioned, not demanded.
 	Tolerance float64
 }
 
@@ -72,13 +87,19 @@ func (s Settings) withDefaults() Settings {
 		s.WidthScatter = 0.03
 	}
 	if s.MinZ <= 0 {
-		s.MinZ = 2
+		s.MinZ = 3
 	}
 	if s.MaxMargin <= 0 {
-		s.MaxMargin = 0.2
+		s.MaxMargin = 1
+	}
+	if s.MarginGain <= 0 {
+		s.MarginGain = 0.3
+	}
+	if s.Slower <= 0 {
+		s.Slower = 0.25
 	}
 	if s.Tolerance <= 0 {
-		s.Tolerance = 0.05
+		s.Tolerance = 0.5
 	}
 	return s
 }
@@ -131,32 +152,87 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	z := math.Max(s.MinZ, m.Goal.Robust.RetentionSigma)
 	target := m.Goal.MinResolution
 
-	// the optimized program: first at the target, then with the target
-	// raised until the margin fits (or the raise would pass MaxMargin)
-	var best *evaluation
-	var bestOven methodfile.Oven
-	extra := 0.0
-	for iter := 0; iter < 5; iter++ {
-		oven, feasible, err := st.optimize(ctx, target+extra, s.Optimizer)
-		if err != nil {
-			return nil, err
+	// the optimized program at the bare target, then with the target
+	// raised until the margin fits: the robust program
+	nomOven, feasible, err := st.optimize(ctx, target, s.Optimizer)
+	if err != nil {
+		return nil, err
+	}
+	nominal, err := st.evaluate(nomOven, z, s.WidthScatter)
+	if err != nil {
+		return nil, err
+	}
+	nominal.feasible = feasible
+	var robust *evaluation
+	var robustOven methodfile.Oven
+	tried := []methodfile.Oven{nomOven} // programs the search went to
+	if nominal.ok {
+		robust, robustOven = nominal, nomOven
+	} else if feasible {
+		// raise by the shortfall; when the raised target cannot be met
+		// within the limits, halve the raise
+		lo, step := 0.0, nominal.deficit+0.01
+		for iter := 0; iter < 8 && ctx.Err() == nil && step >= 0.01; iter++ {
+			extra := lo + step
+			if extra > s.MaxMargin*target {
+				step = s.MaxMargin*target - lo
+				if step < 0.01 {
+					break
+				}
+				continue
+			}
+			oven, ok, err := st.optimize(ctx, target+extra, s.Optimizer)
+			if err != nil {
+				return nil, err
+			}
+			if !ok {
+				step /= 2
+				continue
+			}
+			ev, err := st.evaluate(oven, z, s.WidthScatter)
+			if err != nil {
+				return nil, err
+			}
+			tried = append(tried, oven)
+			if ev.ok {
+				robust, robustOven = ev, oven
+				// the least raise that holds: bisect between the last
+				// raise that did not and this one
+				hi := extra
+				for b := 0; b < 3 && hi-lo > 0.02 && ctx.Err() == nil; b++ {
+					mid := (lo + hi) / 2
+					mo, ok, err := st.optimize(ctx, target+mid, s.Optimizer)
+					if err != nil {
+						return nil, err
+					}
+					if !ok {
+						lo = mid
+						continue
+					}
+					me, err := st.evaluate(mo, z, s.WidthScatter)
+					if err != nil {
+						return nil, err
+					}
+					tried = append(tried, mo)
+					if me.ok {
+						hi = mid
+						if st.duration(mo) < st.duration(robustOven) {
+							robust, robustOven = me, mo
+						}
+					} else {
+						lo = mid
+					}
+				}
+				break
+			}
+			// a raised target may lead where the parameters are less
+			// known: never raise by more than the last step
+			lo, step = extra, math.Min(ev.deficit+0.01, step)
 		}
-		ev, err := st.evaluate(oven, z, s.WidthScatter)
-		if err != nil {
-			return nil, err
-		}
-		ev.feasible = feasible
-		if best == nil || ev.ok || (ev.deficit < best.deficit && !best.ok) {
-			best, bestOven = ev, oven
-		}
-		if ev.ok || !feasible || ctx.Err() != nil {
-			break
-		}
-		next := extra + ev.deficit + 0.01
-		if next > s.MaxMargin*target {
-			break
-		}
-		extra = next
+	}
+	best, bestOven := nominal, nomOven
+	if robust != nil {
+		best, bestOven = robust, robustOven
 	}
 	p := &Plan{
 		Optimized:             bestOven,
@@ -172,36 +248,60 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		p.Compounds = append(p.Compounds, c.Name)
 	}
 
-	// done: a measured run meets the target and is about as fast
-	if runs != nil {
-		optTime := st.duration(bestOven)
-		for i := len(runs.Runs) - 1; i >= 0; i-- {
-			r := &runs.Runs[i]
+	// done: a measured run meets the target, and no robust program is
+	// clearly faster
+	if st.runs != nil {
+		for i := len(st.runs.Runs) - 1; i >= 0; i-- {
+			r := &st.runs.Runs[i]
 			j := st.judge(r)
 			if !j.met {
 				continue
 			}
-			if st.duration(r.Oven) <= (1+s.Tolerance)*optTime {
+			ref := st.duration(bestOven)
+			ev, err := st.evaluate(onSteps(r.Oven, st.m.Limits), z, s.WidthScatter)
+			// measured to meet it; the model, which now knows this run,
+			// must agree within the parameters' uncertainty
+			if err != nil || !(ev.ok || ev.lowestParam >= target) {
+				continue
+			}
+			if dr := st.duration(r.Oven); dr <= (1+s.Tolerance)*ref {
 				p.Action, p.Oven = Done, r.Oven
 				p.VerifiedBy, p.MeasuredMinResolution = r.Name, j.minRs
-				p.Reason = fmt.Sprintf("run %q meets the target as measured (min Rs %.2f ≥ %.2f, %s) with a program within %.0f %% of the optimized one; no further injection is needed",
-					r.Name, j.minRs, target, strings.Join(j.pair[:], " / "), 100*s.Tolerance)
+				p.Reason = fmt.Sprintf("run %q meets the target as measured (min Rs %.2f ≥ %.2f, %s): its program is verified; no further injection is needed",
+					r.Name, j.minRs, target, strings.Join(j.pair[:], " / "))
+				if robust != nil && dr > 1.02*ref {
+					p.Reason += fmt.Sprintf(" (a program predicted to hold the margin in %.2f min instead of %.2f exists; verify it too if the time matters)", ref/60, dr/60)
+				}
 				p.Method = st.withOven(r.Oven)
 				return p, nil
 			}
 		}
 	}
 
-	if best.ok {
-		p.Action, p.Oven = Verify, bestOven
-		p.Reason = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f (%s) clears the target %.2f by %.1f standard deviations%s: inject it once to verify",
-			best.minRs, best.sd, strings.Join(best.pair[:], " / "), target, z, best.cornerText)
-		p.Method = st.withOven(bestOven)
+	// what knowing the parameters exactly would take off the margin
+	gain := func(e *evaluation) float64 {
+		return e.z * (e.sd - math.Sqrt(math.Max(0, e.sd*e.sd-e.sp*e.sp)))
+	}
+	if robust != nil && (gain(robust) <= s.MarginGain*target || st.duration(robustOven) <= (1+s.Slower)*st.duration(nomOven)) {
+		p.Action, p.Oven = Verify, robustOven
+		p.Reason = fmt.Sprintf("the optimized program's predicted min Rs %.2f (%s) clears the target %.2f by %.1f standard deviations (± %.2f, of which the parameters ± %.2f; z = %.1f raised for %d pairs near the target)%s: inject it once to verify",
+			robust.minRs, strings.Join(robust.pair[:], " / "), target, robust.z, robust.sd, robust.sp, z, robust.near, robust.cornerText)
+		if robust != nominal {
+			p.Reason += fmt.Sprintf("; it is %.0f %% longer than the program that only just meets the target, the price of the margin",
+				100*(st.duration(robustOven)/st.duration(nomOven)-1))
+		}
+		p.Method = st.withOven(robustOven)
 		return p, nil
 	}
+	robustNote := ""
+	if robust != nil {
+		robustNote = fmt.Sprintf("; a program that holds the margin exists (%.2f min against %.2f min, min Rs %.2f ± %.2f, the parameters ± %.2f), and knowing the parameters better would shorten it",
+			st.duration(robustOven)/60, st.duration(nomOven)/60, robust.minRs, robust.sd, robust.sp)
+	}
+	bestOven, best = nomOven, nominal
 
 	// inject: the scouting run that shrinks the Rs variance the most
-	d, err := st.design(bestOven, target, z)
+	d, err := st.design(tried, target, z)
 	if err != nil {
 		return nil, err
 	}
@@ -213,16 +313,16 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		return p, nil
 	}
 	p.Action, p.Oven, p.SDAfter = Inject, d.oven, d.sdAfter
-	why := fmt.Sprintf("the predicted min Rs %.2f of the optimized program is uncertain by ± %.2f (%s): it must clear the target %.2f by %.1f standard deviations",
-		best.minRs, best.sd, strings.Join(best.pair[:], " / "), target, z)
+	why := fmt.Sprintf("the predicted min Rs %.2f of the optimized program is uncertain by %s (%s): it must clear the target %.2f by %.1f standard deviations",
+		best.minRs, pm(best.sd), strings.Join(best.pair[:], " / "), target, z)
 	if !best.feasible {
-		why = fmt.Sprintf("with the current parameters no program reaches the target %.2f (best min Rs %.2f ± %.2f, %s), but they are uncertain",
-			target, best.minRs, best.sd, strings.Join(best.pair[:], " / "))
+		why = fmt.Sprintf("with the current parameters no program reaches the target %.2f (best min Rs %.2f %s, %s), but they are uncertain",
+			target, best.minRs, pm(best.sd), strings.Join(best.pair[:], " / "))
 	} else if best.sdOK && best.cornerText != "" {
 		why = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f does not hold at every instrument tolerance%s", best.minRs, best.sd, best.cornerText)
 	}
-	p.Reason = fmt.Sprintf("%s; this scouting run is expected to shrink that to ± %.2f (%d pairs that are or could become critical weighed)",
-		why, d.sdAfter, d.pairs)
+	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink that to ± %.2f (%d pairs that are or could become critical weighed)",
+		why, robustNote, d.sdAfter, d.pairs)
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
 	}
@@ -239,6 +339,7 @@ type state struct {
 	cov       []cov2
 	sigmaT    float64 // s
 	fit       *calibrate.Report
+	runs      *methodfile.Runs // as fitted (assigned names filled in)
 	estimated []string
 	corners   []*model.System
 	cornerTag []string
@@ -271,20 +372,25 @@ func newState(m *methodfile.Method, runs *methodfile.Runs) (*state, error) {
 	st.fit = rep
 	st.m = rep.Method.Clone()
 	st.m.Compounds = st.m.Compounds[:len(m.Compounds)] // compounds only in the runs are not planned for
+	if rep.Runs != nil {
+		runs = rep.Runs // with the assigned names of unnamed peaks
+	}
+	st.runs = runs
 	fitted := map[string]bool{}
-	var ssr, dof float64
 	for _, c := range rep.Compounds {
 		fitted[c.Name] = c.Fitted
-		if c.Fitted && c.Runs > 2 {
-			ssr += c.RMS * c.RMS * float64(c.Runs) * 3600
-			dof += float64(c.Runs - 2)
+	}
+	excluded := map[[2]string]bool{}
+	for _, o := range rep.Outliers {
+		if o.Excluded {
+			excluded[[2]string{o.Run, o.Compound}] = true
 		}
 	}
-	// pooled residual SD (s); with few degrees of freedom never below
-	// the assumed retention-time SD
-	if dof > 0 {
-		pooled := math.Sqrt(ssr / dof)
-		if dof >= 10 || pooled > st.sigmaT {
+	// the fit's pooled residual SD; with few degrees of freedom never
+	// below the assumed retention-time SD
+	if !rep.SDAssumed && rep.DOF > 0 && rep.ResidualSDMin > 0 {
+		pooled := rep.ResidualSDMin * 60
+		if rep.DOF >= 10 || pooled > st.sigmaT {
 			st.sigmaT = pooled
 		}
 	}
@@ -300,7 +406,7 @@ func newState(m *methodfile.Method, runs *methodfile.Runs) (*state, error) {
 	}
 	for ri := range runs.Runs {
 		for name, t := range runs.Runs[ri].Retention {
-			if i, ok := index[name]; ok {
+			if i, ok := index[name]; ok && !excluded[[2]string{runs.Runs[ri].Name, name}] {
 				seen[i] = append(seen[i], obs{ri, t * 60})
 			}
 		}
@@ -310,42 +416,43 @@ func newState(m *methodfile.Method, runs *methodfile.Runs) (*state, error) {
 		if len(seen[i]) == 0 {
 			continue
 		}
+		// The method's value, with its uncertainty, is the prior; the runs
+		// update it (maximum a posteriori by iterated Gauss–Newton, the
+		// iterated extended Kalman step), starting from the fit's values.
+		// With runs that tell ΔH from ΔS this is the fit; with one run, or
+		// runs eluting a compound at nearly one temperature, the prior
+		// keeps the direction the runs cannot see.
 		c := &st.m.Compounds[i]
-		if fitted[c.Name] && len(seen[i]) >= 2 {
-			var info cov2
-			for _, o := range seen[i] {
-				_, j, err := st.retention(&runs.Runs[o.run], *c)
-				if err != nil {
-					return nil, err
-				}
-				info = info.add(outer(j))
-			}
-			if inv, ok := info.scale(1 / s2).inverse(); ok {
-				st.cov[i] = inv
-				continue
-			}
+		orig := m.Compounds[i]
+		th0 := [2]float64{orig.DHkJ * 1000, orig.DS}
+		if orig.RefTempC != c.RefTempC {
+			// the fit refers ΔH and ΔS to 100 °C: refer the prior there too
+			mc := model.Compound{DH: th0[0], DS: th0[1], RefTemp: orig.RefTempC + model.ZeroCelsius}
+			tr := c.RefTempC + model.ZeroCelsius
+			th0 = [2]float64{mc.DH + orig.DCp*(tr-mc.RefTemp), mc.DS + orig.DCp*math.Log(tr/mc.RefTemp)}
 		}
-		// one run (or a degenerate fit): Bayesian update of the prior by
-		// iterated Gauss–Newton (the iterated extended Kalman step)
-		th0 := [2]float64{c.DHkJ * 1000, c.DS}
-		th := th0
+		pinv, ok := prior[i].inverse()
+		if !ok {
+			continue
+		}
+		th := [2]float64{c.DHkJ * 1000, c.DS}
+		if !fitted[c.Name] {
+			th = th0
+		}
 		var post cov2
-		for it := 0; it < 6; it++ {
+		converged := false
+		for it := 0; it < 12; it++ {
 			cc := *c
 			cc.DHkJ, cc.DS = th[0]/1000, th[1]
-			post = prior[i]
-			pinv, ok := prior[i].inverse()
-			if !ok {
-				break
-			}
 			info := pinv
-			var rhs [2]float64
-			pb := pinv.mul([2]float64{th0[0] - th[0], th0[1] - th[1]})
-			rhs = pb
+			rhs := pinv.mul([2]float64{th0[0] - th[0], th0[1] - th[1]})
 			for _, o := range seen[i] {
 				t, j, err := st.retention(&runs.Runs[o.run], cc)
 				if err != nil {
 					return nil, err
+				}
+				if math.IsInf(t, 0) || math.IsNaN(t) {
+					continue
 				}
 				info = info.add(outer(j).scale(1 / s2))
 				r := (o.t - t) / s2
@@ -358,15 +465,34 @@ func newState(m *methodfile.Method, runs *methodfile.Runs) (*state, error) {
 			}
 			post = inv
 			step := inv.mul(rhs)
+			// damp steps far beyond the prior's reach
+			if f := math.Abs(step[0]) / 5000; f > 1 {
+				step[0], step[1] = step[0]/f, step[1]/f
+			}
 			th[0] += step[0]
 			th[1] += step[1]
-			if math.Abs(step[0]) < 1 && math.Abs(step[1]) < 1e-3 {
+			if math.Abs(step[0]) < 0.5 && math.Abs(step[1]) < 1e-3 {
+				converged = true
 				break
 			}
 		}
-		if th[0] < 0 && !math.IsNaN(th[1]) {
+		if converged && th[0] < 0 && !math.IsNaN(th[1]) {
 			c.DHkJ, c.DS = th[0]/1000, th[1]
 			st.cov[i] = post
+			continue
+		}
+		// no convergence: the fit's values (or the method's) with the
+		// fit's information added to the prior
+		var info cov2
+		for _, o := range seen[i] {
+			_, j, err := st.retention(&runs.Runs[o.run], *c)
+			if err != nil {
+				return nil, err
+			}
+			info = info.add(outer(j).scale(1 / s2))
+		}
+		if inv, ok := pinv.add(info).inverse(); ok {
+			st.cov[i] = inv
 		}
 	}
 	return st, st.build()
@@ -475,7 +601,11 @@ func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
 func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
 	m := st.m.Clone()
 	m.Goal.MinResolution = rs
-	prob := optimizer.FromMethod(m, st.sys)
+	prob := methodsearch.Problem(m, st.sys)
+	// the plan weighs the tolerances and the parameters' uncertainty itself
+	// (evaluation) and keeps the method's carrier setting
+	prob.Robust = optimizer.Robust{}
+	prob.Lock = append(prob.Lock, optimizer.FlowLock)
 	res, err := optimizer.Optimize(ctx, prob, s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
@@ -488,7 +618,7 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 // s, as the current model predicts.
 func (st *state) duration(o methodfile.Oven) float64 {
 	p := methodfile.ProgramToModel(o)
-	if st.m.Goal.Objective != "cycle-time" {
+	if st.m.Goal.Objective != model.CycleTime {
 		return p.RunTime()
 	}
 	cool, err := st.sys.Oven.Cooldown(p.FinalTemp(), p.Initial)
@@ -501,7 +631,8 @@ func (st *state) duration(o methodfile.Oven) float64 {
 // evaluation is how sure the current knowledge is that a program meets the
 // target.
 type evaluation struct {
-	minRs, sd  float64 // nominal minimum Rs and the SD of that pair's Rs
+	minRs, sd  float64 // nominal minimum Rs and the SD of the weakest pair's Rs
+	sp         float64 // the parameters' part of sd
 	pair       [2]string
 	deficit    float64 // how far the worst lower bound or corner falls short
 	ok         bool
@@ -509,6 +640,11 @@ type evaluation struct {
 	feasible   bool
 	cornerText string
 	lowest     float64 // lowest Rs − z·SD over the pairs
+	// lowestParam is the lowest Rs − z·SD with the parameters' SD alone
+	// (for a program already measured)
+	lowestParam float64
+	z           float64 // the z used, raised for the number of pairs near the target
+	near        int     // that number
 }
 
 // cannotHelp: the best program misses the target by more than the
@@ -535,7 +671,9 @@ func (st *state) evaluate(o methodfile.Oven, z, widthScatter float64) (*evaluati
 		}
 	}
 	sort.Slice(order, func(a, b int) bool { return s.t[order[a]] < s.t[order[b]] })
-	ev := &evaluation{minRs: math.NaN(), lowest: math.Inf(1)}
+	ev := &evaluation{minRs: math.NaN(), lowest: math.Inf(1), lowestParam: math.Inf(1)}
+	type pairSD struct{ rs, sd, sp float64 }
+	var ps []pairSD
 	for k := 0; k+1 < len(order); k++ {
 		a, b := order[k], order[k+1]
 		if !st.sys.Compounds[a].Target && !st.sys.Compounds[b].Target {
@@ -544,12 +682,32 @@ func (st *state) evaluate(o methodfile.Oven, z, widthScatter float64) (*evaluati
 		rs, ga, gb := s.resolution(a, b)
 		sp := rsSD(ga, gb, st.cov[a], st.cov[b])
 		sd := math.Hypot(sp, st.measurementSD(rs, a, b, widthScatter))
-		if low := rs - z*sd; low < ev.lowest {
-			ev.lowest, ev.sd = low, sd
-		}
+		ps = append(ps, pairSD{rs, sd, sp})
 		if math.IsNaN(ev.minRs) || rs < ev.minRs {
 			ev.minRs = rs
 			ev.pair = [2]string{st.sys.Compounds[a].Name, st.sys.Compounds[b].Name}
+		}
+	}
+	// Several pairs near the target each get a chance to fail: the bound
+	// uses z raised for their number (Šidák: each pair at 1 − (1 − α)^(1/k)
+	// with α = Φ(−z)), counting the pairs within four SDs of the target.
+	k := 0
+	for _, p := range ps {
+		if p.rs-4*p.sd < target {
+			k++
+		}
+	}
+	zk := z
+	if k > 1 {
+		alpha := 0.5 * math.Erfc(z/math.Sqrt2)
+		each := -math.Expm1(math.Log1p(-alpha) / float64(k))
+		zk = math.Sqrt2 * math.Erfinv(1-2*each)
+	}
+	ev.z, ev.near = zk, k
+	for _, p := range ps {
+		ev.lowestParam = math.Min(ev.lowestParam, p.rs-zk*p.sp)
+		if low := p.rs - zk*p.sd; low < ev.lowest {
+			ev.lowest, ev.sd, ev.sp = low, p.sd, p.sp
 		}
 	}
 	if math.IsNaN(ev.minRs) {
@@ -601,4 +759,13 @@ func (st *state) measurementSD(rs float64, a, b int, widthScatter float64) float
 	w := rs * widthScatter * math.Hypot(sa, sb) / (sa + sb)
 	t := math.Sqrt2 * st.sigmaT / (2 * (sa + sb))
 	return math.Hypot(w, t)
+}
+
+// pm is "± x" for a resolution SD, in words when it is so large that the
+// figure means nothing (rough starting parameters).
+func pm(sd float64) string {
+	if sd > 10 {
+		return "± more than 10 (the parameters are only rough)"
+	}
+	return fmt.Sprintf("± %.2f", sd)
 }

@@ -1,4 +1,4 @@
-package optimizer
+package methodsearch
 
 import (
 	"context"
@@ -6,10 +6,11 @@ import (
 	"testing"
 
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
 )
 
 func TestCompareRanksAndMatchesOptimize(t *testing.T) {
-	base, err := methodfile.ReadFile("../testdata/demo.toml")
+	base, err := methodfile.ReadFile("../../testdata/demo.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -18,7 +19,7 @@ func TestCompareRanksAndMatchesOptimize(t *testing.T) {
 	long := base.Clone()
 	long.Column.LengthM = 60
 	cands := []Candidate{{"10", short}, {"30", base}, {"60", long}}
-	s := Settings{Starts: 8}
+	s := optimizer.Settings{Starts: 8}
 	out := Compare(context.Background(), cands, s, nil)
 	again := Compare(context.Background(), cands, s, nil)
 	for i := range out {
@@ -29,7 +30,7 @@ func TestCompareRanksAndMatchesOptimize(t *testing.T) {
 	// each row equals optimize on that candidate alone
 	for _, o := range out {
 		sys, _ := o.Method.System()
-		r, err := Optimize(context.Background(), FromMethod(o.Method, sys), s)
+		r, err := optimizer.Optimize(context.Background(), Problem(o.Method, sys), s)
 		if err != nil {
 			t.Fatal(err)
 		}

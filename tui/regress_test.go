@@ -1,0 +1,539 @@
+package tui
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
+)
+
+// Regression tests, one per problem users met with the earlier UI.
+
+func fastOptimizer(a *App) {
+	a.optSettings = optimizer.Settings{Workers: 1}
+}
+
+// A result that arrives while the key list is open takes the slot; the
+// key list never covers it, and esc then only closes the result.
+func TestResultReplacesHelp(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "?")
+	if _, ok := a.overlay.(*helpDialog); !ok {
+		t.Fatal("? did not open the key list")
+	}
+	m := a.Method().Clone()
+	d := newResultDialog(&a.sh, &optimizer.Result{Status: optimizer.Met}, m, a.res)
+	a.open(d)
+	a.chart.Update(d.preview())
+	a.refresh()
+	if _, ok := a.overlay.(*resultDialog); !ok {
+		t.Fatalf("the result waits behind the key list: %T", a.overlay)
+	}
+	press(a, "?") // the result's own keys, over it
+	if _, ok := a.overlay.(*helpDialog); !ok {
+		t.Fatalf("? in the result did not list its keys: %T", a.overlay)
+	}
+	if s := screen(a); !strings.Contains(s, "optimizer result") || !strings.Contains(s, "take it") {
+		t.Errorf("the key list is not the result's:\n%s", s)
+	}
+	press(a, "esc") // closes the list, not the result
+	if _, ok := a.overlay.(*resultDialog); !ok {
+		t.Fatalf("esc after ? threw the result away: %T", a.overlay)
+	}
+	if res, _ := a.chart.shown(); res == a.Result() {
+		t.Error("the chart went back to the current run while the result waits")
+	}
+}
+
+// q and ctrl+c work while a fit waits for a decision; the footer lists
+// the dialog's keys, not the program's.
+func TestQuitFromFitReview(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	press(a, "F", runs, "enter")
+	if _, ok := a.overlay.(*fitDialog); !ok {
+		t.Fatalf("no fit review: %s", a.message)
+	}
+	foot := a.view.footer
+	if !strings.Contains(foot, "take it") || strings.Contains(foot, "add ramp") {
+		t.Errorf("footer is not the dialog's: %q", foot)
+	}
+	if !press(a, "q") {
+		t.Error("q did nothing in the fit review (nothing unsaved: it should quit)")
+	}
+	press(a, "F", runs, "enter", "y") // now there is something unsaved
+	press(a, "F", runs, "enter")
+	if press(a, "ctrl+c") {
+		t.Fatal("ctrl+c quit without asking about the unsaved fit")
+	}
+	if _, ok := a.overlay.(*confirmDialog); !ok {
+		t.Fatalf("ctrl+c did not ask: %T", a.overlay)
+	}
+	if !press(a, "y") {
+		t.Error("y did not quit")
+	}
+}
+
+// The key list blocks the keys behind it.
+func TestHelpBlocksKeys(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	before := a.Method().Oven.InitialC
+	press(a, "?", "down", "+", "-")
+	if a.Method().Oven.InitialC != before {
+		t.Errorf("a key behind the open key list changed the start temperature to %v", a.Method().Oven.InitialC)
+	}
+}
+
+// Every key is listed on some page of ? at 80×24.
+func TestEveryKeyInHelpAt80x24(t *testing.T) {
+	for p := 0; p < paneCount; p++ {
+		a, _ := newApp(t, 80, 24)
+		a.setFocus(p)
+		press(a, "?")
+		d := a.overlay.(*helpDialog)
+		var all strings.Builder
+		for range d.pages {
+			all.WriteString(screen(a))
+			press(a, "pgdown")
+		}
+		text := all.String()
+		for _, grp := range append(append(append(append(DefaultGlobalKeys().FullHelp(), DefaultProgramKeys().FullHelp()...),
+			DefaultChartKeys().FullHelp()...), DefaultPeakKeys().FullHelp()...), DefaultSettingsKeys().FullHelp()...) {
+			for _, b := range grp {
+				if !strings.Contains(text, b.Help().Key+" ") || !strings.Contains(text, b.Help().Desc) {
+					t.Errorf("pane %s: key %q (%s) not in the key list at 80×24", paneNames[p], b.Help().Key, b.Help().Desc)
+				}
+			}
+		}
+	}
+}
+
+// With NO_COLOR the selected value, compound and setting are still marked.
+func TestSelectionVisibleWithoutColour(t *testing.T) {
+	t.Setenv("NO_COLOR", "1")
+	a, _ := newApp(t, 80, 24)
+	if s := screen(a); !strings.Contains(s, "[50.0 °C]") {
+		t.Errorf("program selection not marked:\n%s", s)
+	}
+	press(a, "tab", "tab")
+	if s := screen(a); !strings.Contains(s, "›") || !strings.Contains(s, "[-21.74]") {
+		t.Errorf("peak selection not marked:\n%s", s)
+	}
+	press(a, "tab")
+	if s := screen(a); !strings.Contains(s, "[30.0 m]") {
+		t.Errorf("setting selection not marked:\n%s", s)
+	}
+}
+
+// The optimized run is on the chart, and the whole new program on the
+// screen, before it is taken.
+func TestSeeBeforeTaking(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	fastOptimizer(a)
+	press(a, "o")
+	d, ok := a.overlay.(*resultDialog)
+	if !ok {
+		t.Fatalf("no result: %s", a.message)
+	}
+	res, _ := a.chart.shown()
+	if res != &d.afterR {
+		t.Error("the chart does not show the optimized run")
+	}
+	s := screen(a)
+	if !strings.Contains(s, "optimized program") {
+		t.Errorf("chart heading does not say which run it shows:\n%s", s)
+	}
+	for _, r := range d.after.Oven.Ramps {
+		if !strings.Contains(s, fmtNum(r.FinalC, 1, 2)) || !strings.Contains(s, fmtNum(r.RateCMin, 1, 2)) {
+			t.Errorf("ramp %+v of the new program is not on the 80×24 screen:\n%s", r, s)
+		}
+	}
+	press(a, "v")
+	if res, _ := a.chart.shown(); res != a.Result() {
+		t.Error("v did not show the current run")
+	}
+	press(a, "n")
+	if res, _ := a.chart.shown(); res != a.Result() || a.chart.prev != nil {
+		t.Error("after keeping the old program the chart still shows the optimized run")
+	}
+}
+
+// A pressure-mode or gas switch keeps the holdup time at the start
+// temperature, and says so.
+func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
+	a, _ := newApp(t, 100, 32)
+	holdup := func() float64 {
+		v, err := holdupAt(a.Method())
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	want := holdup()
+	press(a, "shift+tab") // settings
+	for i := 0; i < 5; i++ {
+		press(a, "down")
+	}
+	press(a, "+") // constant pressure
+	if a.Method().Carrier.Mode != model.ConstantPressure {
+		t.Fatalf("mode %q", a.Method().Carrier.Mode)
+	}
+	if got := holdup(); math.Abs(got-want)/want > 0.002 {
+		t.Errorf("holdup %.4f min after the mode switch, want %.4f", got/60, want/60)
+	}
+	if !strings.Contains(a.message, "keeps the holdup time") {
+		t.Errorf("status line does not say so: %s", a.message)
+	}
+	press(a, "up", "+") // hydrogen
+	press(a, "-")       // back to helium
+	if a.Method().Carrier.Gas != model.Helium {
+		t.Fatalf("gas %q", a.Method().Carrier.Gas)
+	}
+	if got := holdup(); math.Abs(got-want)/want > 0.004 {
+		t.Errorf("holdup %.4f min after a detour through hydrogen, want %.4f", got/60, want/60)
+	}
+	for _, pk := range a.Result().Peaks {
+		if !pk.Eluted {
+			t.Error("a compound no longer elutes after the detour")
+		}
+	}
+}
+
+// What is shown is what is saved.
+func TestValuesAtSavedPrecision(t *testing.T) {
+	a, path := newApp(t, 100, 32)
+	press(a, "shift+tab", "down", "down", "down", "down", "down", "down") // column flow
+	press(a, "enter", "ctrl+u", "1.234567", "enter")
+	if got := a.Method().Carrier.FlowMLMin; got != 1.23 {
+		t.Errorf("flow kept as %v, want 1.23 (what the screen shows)", got)
+	}
+	if !strings.Contains(screen(a), "1.23 mL/min") {
+		t.Errorf("screen:\n%s", screen(a))
+	}
+	press(a, "ctrl+s")
+	back, _ := methodfile.ReadFile(path)
+	if back.Carrier.FlowMLMin != 1.23 {
+		t.Errorf("saved %v", back.Carrier.FlowMLMin)
+	}
+	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	press(a, "F", runs, "enter")
+	d := a.overlay.(*fitDialog)
+	dm := d.fit.rep.Method.Column.DiameterMM
+	if dm != round(dm, 4) {
+		t.Errorf("fitted diameter %v is not at the saved precision", dm)
+	}
+	if s := screen(a); strings.Contains(s, "0.2499") {
+		t.Errorf("unrounded diameter on screen:\n%s", s)
+	}
+}
+
+// The fit review lists compounds in elution order, scrolls to all of
+// them, shows each ± and the minimum Rs that taking it gives.
+func TestFitReview(t *testing.T) {
+	a, _ := newApp(t, 120, 40)
+	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	press(a, "F", runs, "enter")
+	d := a.overlay.(*fitDialog)
+	pos := map[string]int{}
+	for i, pk := range d.fit.sim.Peaks {
+		pos[d.fit.sys.Compounds[pk.Compound].Name] = i
+	}
+	for i := 1; i < len(d.order); i++ {
+		if pos[d.order[i-1].Name] > pos[d.order[i].Name] {
+			t.Errorf("%s before %s: not elution order", d.order[i-1].Name, d.order[i].Name)
+		}
+	}
+	seen := map[string]bool{}
+	for k := 0; k < 10; k++ {
+		s := screen(a)
+		for _, c := range d.order {
+			if strings.Contains(s, c.Name) {
+				seen[c.Name] = true
+			}
+		}
+		press(a, "pgdown")
+	}
+	if len(seen) != len(d.order) {
+		t.Errorf("scrolling showed %d of %d compounds", len(seen), len(d.order))
+	}
+	if !strings.Contains(screen(a), "±") {
+		t.Error("no ± column")
+	}
+	want := rsShort(&d.fit.sim)
+	if !strings.Contains(screen(a), "→ "+want) {
+		t.Errorf("new min Rs %s not shown before taking:\n%s", want, screen(a))
+	}
+	press(a, "y")
+	if got := rsShort(a.Result()); got != want {
+		t.Errorf("took the fit: min Rs %s, the review said %s", got, want)
+	}
+}
+
+// The window diagram of the flow is reachable from settings; it has ticks
+// on both axes, says its units and stays in the allowed range.
+func TestFlowWindowDiagram(t *testing.T) {
+	a, _ := newApp(t, 100, 32)
+	press(a, "shift+tab", "s")
+	d, ok := a.overlay.(*sweepDialog)
+	if !ok {
+		t.Fatalf("s in settings did nothing: %s", a.message)
+	}
+	if d.spec.value.Kind != model.CarrierFlow || d.spec.unit != "mL/min" {
+		t.Errorf("spec %+v", d.spec)
+	}
+	s := screen(a)
+	if !strings.Contains(s, "column flow (mL/min)") || !strings.Contains(s, "run time") {
+		t.Errorf("no names with units or no run time:\n%s", s)
+	}
+	ticks := 0
+	for _, l := range strings.Split(s, "\n") {
+		if i := strings.Index(l, "┤"); i > 0 && strings.TrimSpace(l[:i]) != "" {
+			ticks++
+		}
+	}
+	if ticks < 4 {
+		t.Errorf("%d ticks on the Rs axis", ticks)
+	}
+	for _, p := range d.pts {
+		if p.Value <= 0 {
+			t.Errorf("swept a flow of %v", p.Value)
+		}
+	}
+	// in constant pressure, the inlet pressure, never above the limit
+	press(a, "esc", "down", "down", "down", "down", "down", "+", "s") // pressure mode
+	d, ok = a.overlay.(*sweepDialog)
+	if !ok || d.spec.value.Kind != model.InletPressure || d.spec.unit != "kPa" {
+		t.Fatalf("no inlet-pressure diagram in constant pressure: %T %s", a.overlay, a.message)
+	}
+	for _, p := range d.pts {
+		if p.Value > a.Method().Limits.MaxInletKPa || p.Value < a.Method().Limits.MinInletKPa {
+			t.Errorf("swept %v kPa, outside the inlet limits", p.Value)
+		}
+	}
+}
+
+func TestDCpEditable(t *testing.T) {
+	a, _ := newApp(t, 100, 32)
+	press(a, "tab", "tab", "right", "right", "enter", "ctrl+u", "55.5", "enter")
+	ci := a.Result().Peaks[0].Compound
+	if got := a.Method().Compounds[ci].DCp; got != 55.5 {
+		t.Errorf("ΔCp %v (%s)", got, a.message)
+	}
+}
+
+func TestInletShownInConstantFlow(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "shift+tab")
+	s := screen(a)
+	if !strings.Contains(s, "inlet pressure (gauge), derived") || !strings.Contains(s, "kPa at 50 °C") || !strings.Contains(s, "kPa at 240 °C") {
+		t.Errorf("inlet pressure not shown in constant-flow mode:\n%s", s)
+	}
+}
+
+// A program longer than the line scrolls to the selected value.
+func TestProgramLineScrolls(t *testing.T) {
+	m := demoMethod(t)
+	m.Oven.Ramps = nil
+	for i := 0; i < 8; i++ {
+		m.Oven.Ramps = append(m.Oven.Ramps, methodfile.Ramp{RateCMin: 5 + float64(i), FinalC: 60 + 30*float64(i), HoldMin: 0.5})
+	}
+	path := filepath.Join(t.TempDir(), "long.toml")
+	if err := methodfile.WriteFile(path, m); err != nil {
+		t.Fatal(err)
+	}
+	a, err := New(m, Options{Path: path, NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	if strings.Contains(screen(a), "270.0 °C") {
+		t.Fatal("test needs a program wider than the line")
+	}
+	for i := 0; i < 2+3*7+1; i++ { // the 8th ramp's final temperature
+		press(a, "right")
+	}
+	s := screen(a)
+	if !strings.Contains(s, "[270.0 °C]") {
+		t.Errorf("the selected 8th ramp is off the line:\n%s", s)
+	}
+	if !strings.Contains(s, "‹") {
+		t.Error("no mark of the steps scrolled off to the left")
+	}
+}
+
+// A long save-as path is shown whole.
+func TestLongSaveAsPathShown(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	long := "/" + strings.Repeat("abcdefghi/", 19) + "method.toml" // 202 characters
+	press(a, "W", "ctrl+u", long)
+	var b strings.Builder
+	for _, l := range strings.Split(screen(a), "\n") {
+		b.WriteString(strings.TrimSpace(l))
+	}
+	if !strings.Contains(b.String(), long) {
+		t.Errorf("the %d-character path is cut:\n%s", len(long), screen(a))
+	}
+	if v := a.overlay.(*promptDialog).ti.Value(); v != long {
+		t.Errorf("the prompt holds %d characters of %d", len(v), len(long))
+	}
+}
+
+// Keys that arrive in one read are all applied, in order; a paste into a
+// prompt stays one text.
+func TestBatchedKeys(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "right", "right")
+	send(a, tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune("+++")})
+	if got := a.Method().Oven.Ramps[0].RateCMin; got != 13.5 {
+		t.Errorf("rate %v after +++, want 13.5", got)
+	}
+	press(a, "enter", "ctrl+u")
+	send(a, tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune("7.5")})
+	press(a, "enter")
+	if got := a.Method().Oven.Ramps[0].RateCMin; got != 7.5 {
+		t.Errorf("rate %v after pasting 7.5", got)
+	}
+}
+
+// ctrl+c asks like q when there are unsaved changes, and quits when not.
+func TestCtrlCAsks(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	if !press(a, "ctrl+c") {
+		t.Error("ctrl+c with nothing unsaved did not quit")
+	}
+	press(a, "-")
+	if press(a, "ctrl+c") {
+		t.Error("ctrl+c quit with unsaved changes without asking")
+	}
+	if press(a, "esc"); a.overlay != nil {
+		t.Error("esc did not close the question")
+	}
+}
+
+// W and e ask before replacing a file this session did not write.
+func TestNoSilentOverwrite(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	other := filepath.Join(filepath.Dir(path), "other.toml")
+	os.WriteFile(other, []byte("precious"), 0o644)
+	press(a, "W", "ctrl+u", other, "enter")
+	if _, ok := a.overlay.(*confirmDialog); !ok {
+		t.Fatalf("no question before replacing %s: %T %s", other, a.overlay, a.message)
+	}
+	press(a, "n", "esc")
+	if b, _ := os.ReadFile(other); string(b) != "precious" {
+		t.Error("the file was replaced after n")
+	}
+	base := strings.TrimSuffix(path, ".toml")
+	os.WriteFile(base+".md", []byte("my notes"), 0o644)
+	press(a, "e")
+	if _, ok := a.overlay.(*confirmDialog); !ok {
+		t.Fatalf("no question before replacing the sheet: %T", a.overlay)
+	}
+	press(a, "n")
+	if b, _ := os.ReadFile(base + ".md"); string(b) != "my notes" {
+		t.Error("the sheet was replaced after n")
+	}
+	press(a, "e", "y")
+	if b, _ := os.ReadFile(base + ".md"); string(b) == "my notes" {
+		t.Errorf("y did not export: %s", a.message)
+	}
+	press(a, "e") // written by this session now: no question
+	if a.overlay != nil {
+		t.Errorf("asked again about a file this session wrote: %T", a.overlay)
+	}
+}
+
+// Long work runs in the background; esc stops it and its late result is
+// dropped.
+func TestEscCancelsBackgroundWork(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	_, cmd := a.Update(tea.KeyMsg{Type: tea.KeyRight})
+	runCmd(a, cmd)
+	_, cmd = a.Update(tea.KeyMsg{Type: tea.KeyRight})
+	runCmd(a, cmd)
+	_, cmd = a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{'s'}})
+	if _, ok := a.overlay.(*progressDialog); !ok || cmd == nil {
+		t.Fatalf("the sweep did not start in the background: %T", a.overlay)
+	}
+	press(a, "esc")
+	if a.overlay != nil || a.job != nil {
+		t.Fatalf("esc did not stop the sweep: %T", a.overlay)
+	}
+	runCmd(a, cmd) // the work's result arrives late
+	if a.overlay != nil {
+		t.Errorf("a stopped sweep still opened %T", a.overlay)
+	}
+}
+
+// Text from a file reaches the screen inert.
+func TestFileTextInert(t *testing.T) {
+	m := demoMethod(t)
+	m.Title = "evil \x1b]0;owned\x07 title"
+	m.Compounds[0].Name = "x\x1b[2Jy"
+	a, err := New(m, Options{NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.Update(tea.WindowSizeMsg{Width: 120, Height: 40})
+	press(a, "tab", "tab")
+	if v := a.View(); strings.ContainsRune(v, 0x1b) || strings.ContainsRune(v, 0x07) {
+		t.Errorf("a raw control character reached the screen: %q", v)
+	}
+}
+
+// Finished work never leaves its progress display behind, whatever was
+// opened over it.
+func TestProgressGoneWhenWorkEnds(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "right", "right")
+	_, cmd := a.Update(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{'s'}})
+	if _, ok := a.overlay.(*progressDialog); !ok {
+		t.Fatalf("%T", a.overlay)
+	}
+	press(a, "?")                            // the progress display has one key, esc: no list over it
+	a.pending = append(a.pending, a.overlay) // as if something had been opened over it
+	a.overlay = newHelpDialog(&a.sh, &a.help, a.program, "program", a.keys)
+	runCmd(a, cmd)
+	if _, ok := a.overlay.(*sweepDialog); !ok {
+		t.Fatalf("the window diagram is not shown: %T", a.overlay)
+	}
+	press(a, "esc")
+	if a.overlay != nil {
+		t.Errorf("a %T was left after the work ended", a.overlay)
+	}
+}
+
+// A five-ramp optimized program is readable whole at 80×24.
+func TestFiveRampResultFits(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	after := a.Method().Clone()
+	after.Oven.Ramps = nil
+	for i := 0; i < 5; i++ {
+		after.Oven.Ramps = append(after.Oven.Ramps, methodfile.Ramp{RateCMin: 3.25 + float64(i), FinalC: 71.5 + 50*float64(i), HoldMin: 0.125})
+	}
+	sys, _ := after.System()
+	var sim model.Result
+	if err := sys.Simulate(after.ModelProgram(), &sim); err != nil {
+		t.Fatal(err)
+	}
+	d := newResultDialog(&a.sh, &optimizer.Result{Status: optimizer.Met}, after, sim)
+	a.open(d)
+	a.chart.Update(d.preview())
+	a.refresh()
+	s := screen(a)
+	for _, r := range after.Oven.Ramps {
+		if !strings.Contains(s, fmtNum(r.RateCMin, 1, 2)) || !strings.Contains(s, fmtNum(r.FinalC, 1, 2)) {
+			t.Errorf("ramp %+v not on the screen:\n%s", r, s)
+		}
+	}
+	if !strings.Contains(s, "0.125") {
+		t.Errorf("holds not shown at the precision saved:\n%s", s)
+	}
+}
