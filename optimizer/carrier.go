@@ -279,7 +279,7 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 		}
 		sp := newSpace(sh.p, from.sp.n)
 		seeds := [][]float64{sp.invert(rescaled(from.prog, from.rg.sys, rg.sys, &sh.p)), append([]float64(nil), from.x...)}
-		x, f := sh.stage(ctx, rg, sp, seeds, 1, sh.s.Evaluations/2, 1, uint64(100+len(tried)))
+		x, f := sh.stage(ctx, rg, sp, seeds, 1, sh.s.Evaluations/3, 1, uint64(100+len(tried)))
 		c := candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
 		tried[v] = c
 		if c.f < best.f {
@@ -316,6 +316,16 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 			a = c
 		}
 	}
+	// hill-climb in small steps from the best setting: the golden-section
+	// bracket assumes one minimum, and each probe's search is short
+	for _, f := range []float64{1.04, 1 / 1.04} {
+		for k := 0; k < 3 && ctx.Err() == nil; k++ {
+			was := best.rg.value
+			if c := probe(was * f); c.rg == nil || c.rg.value == was || best.rg.value == was {
+				break
+			}
+		}
+	}
 	sh.approx = -1
 	if best.rg == start.rg {
 		return start
@@ -323,8 +333,13 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 	if ctx.Err() == nil {
 		// a fuller program search at the chosen setting, from the best point,
 		// with the exact robust checks
-		x, f := sh.stage(ctx, best.rg, best.sp, [][]float64{best.x}, sh.s.Starts/4, sh.s.Evaluations, sh.s.Restarts, 99)
-		best = candidate{rg: best.rg, sp: best.sp, x: x, f: f, prog: best.sp.program(x)}
+		chosen := best
+		seeds := [][]float64{best.x}
+		if best.sp.n >= 2 {
+			seeds = append(seeds, best.sp.plateauSeeds()...)
+		}
+		x, f := sh.stage(ctx, best.rg, best.sp, seeds, sh.s.Starts/2, sh.s.Evaluations, sh.s.Restarts, 99)
+		best = candidate{rg: chosen.rg, sp: chosen.sp, x: x, f: f, prog: chosen.sp.program(x)}
 		if best.f >= start.f && start.f < infeasibleBase {
 			return start
 		}

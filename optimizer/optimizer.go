@@ -40,7 +40,7 @@ type Settings struct {
 	Restarts    int    // Nelder–Mead restarts from the best point; default 2
 	Workers     int    // parallel starts; default runtime.GOMAXPROCS(0)
 	// CarrierProbes is how many flow (or pressure) settings the carrier
-	// search tries besides the method's own; default 10.
+	// search tries besides the method's own; default 8.
 	CarrierProbes int
 	// PolishEvaluations bounds the keypad-grid search at the end; default 800.
 	PolishEvaluations int
@@ -204,7 +204,7 @@ func (s Settings) withDefaults() Settings {
 		s.Workers = runtime.GOMAXPROCS(0)
 	}
 	if s.CarrierProbes <= 0 {
-		s.CarrierProbes = 10
+		s.CarrierProbes = 8
 	}
 	if s.PolishEvaluations <= 0 {
 		s.PolishEvaluations = 800
