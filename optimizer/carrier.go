@@ -67,6 +67,9 @@ func (sh *shared) rigFor(value float64) (*rig, error) {
 		}
 	}
 	rg := newRig(value, sys, sh.p.Robust)
+	if sh.ctx != nil {
+		rg.set.Stop = sh.ctx.Done()
+	}
 	sh.rigs[value] = rg
 	return rg, nil
 }
@@ -300,7 +303,7 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 	// exact robust checks (their scores are not comparable with the screen's)
 	h := (lb - la) / float64(n)
 	a, b := math.Max(math.Log(best.rg.value)-h, la), math.Min(math.Log(best.rg.value)+h, lb)
-	if sh.approx >= 0 {
+	if sh.approx >= 0 && ctx.Err() == nil {
 		sh.approx = -1
 		from = best
 		tried = map[float64]candidate{start.rg.value: start}

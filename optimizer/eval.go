@@ -299,6 +299,11 @@ func (e *evaluator) scoreOven(o Oven) (f float64, saved Oven, res *model.Result)
 		return infeasibleBase + 1e5*miss + math.Min(obj, maxRunTime)*1e-3, saved, &e.res
 	}
 	if p.Robust.On() {
+		if e.sh.stopped() && !e.rg.set.Built() {
+			// stopped before the tolerances were ever checked on this
+			// setting: building them now would delay the stop
+			return infeasibleBase + 1e5 + obj*1e-3, saved, &e.res
+		}
 		if err := p.robust(e.rg, e.q, &e.res, &e.rsc, p.MinResolution, &e.rep); err != nil {
 			return 3 * infeasibleBase, saved, &e.res
 		}

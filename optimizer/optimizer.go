@@ -7,6 +7,7 @@ package optimizer
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -19,6 +20,7 @@ import (
 	"gonum.org/v1/gonum/optimize"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/robust"
 )
 
 // Progress is a report of the search so far.
@@ -116,6 +118,7 @@ func Optimize(ctx context.Context, p Problem, s Settings) (*Result, error) {
 	}
 	s = s.withDefaults()
 	sh := newShared(p, s, begin)
+	sh.ctx = ctx
 	stopProgress := sh.startProgress(ctx)
 	defer stopProgress()
 
@@ -132,6 +135,9 @@ func Optimize(ctx context.Context, p Problem, s Settings) (*Result, error) {
 	oven, f := sh.polish(ctx, best)
 	rg := best.rg
 	for _, c := range stages {
+		if ctx.Err() != nil {
+			break // stopped: return promptly with what there is
+		}
 		if c.f >= infeasibleBase && f < infeasibleBase {
 			continue
 		}
@@ -225,6 +231,8 @@ type shared struct {
 
 	rigMu sync.Mutex
 	rigs  map[float64]*rig
+	// ctx is the Optimize call's context (stopped reports it ended)
+	ctx context.Context
 	// approx ≥ 0 while the carrier search screens the robust margin by the
 	// loss measured at the method's own setting (see evaluator.approx)
 	approx float64
@@ -240,6 +248,8 @@ type shared struct {
 func newShared(p Problem, s Settings, begin time.Time) *shared {
 	return &shared{p: p, s: s, begin: begin, bestF: math.Inf(1), rigs: map[float64]*rig{}, approx: -1}
 }
+
+func (sh *shared) stopped() bool { return sh.ctx != nil && sh.ctx.Err() != nil }
 
 func (sh *shared) offer(f, rs float64, prog model.Program, rg *rig) {
 	sh.mu.Lock()
@@ -394,7 +404,12 @@ func (sh *shared) finish(ctx context.Context, rg *rig, oven Oven) (*Result, erro
 	if err := rg.sys.Simulate(r.Program, &r.Sim); err != nil {
 		return nil, fmt.Errorf("optimizer: the saved program does not simulate: %v", err)
 	}
-	if err := p.robust(rg, r.Program, &r.Sim, &ev.rsc, math.Inf(-1), &r.Robust); err != nil {
+	unchecked := RobustReport{On: true, Nominal: r.Sim.MinResolution, Worst: math.NaN(), LowZ: math.NaN(), LowPair: -1, Margin: math.NaN()}
+	if p.Robust.On() && sh.stopped() && !rg.set.Built() {
+		r.Robust = unchecked // stopped before the tolerances could be checked
+	} else if err := p.robust(rg, r.Program, &r.Sim, &ev.rsc, math.Inf(-1), &r.Robust); errors.Is(err, robust.ErrStopped) {
+		r.Robust = unchecked
+	} else if err != nil {
 		return nil, fmt.Errorf("optimizer: robust check: %v", err)
 	}
 	r.Status = Met

@@ -8,6 +8,7 @@
 package robust
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sync"
@@ -22,7 +23,12 @@ type Set struct {
 	Tol  Tolerances
 	Base *model.System
 
+	// Stop, when set, ends a wait for the Systems being built (Evaluate then
+	// returns ErrStopped; the build finishes in the background).
+	Stop <-chan struct{}
+
 	once sync.Once
+	done chan struct{} // closed when the build has finished
 	err  error
 	// corner[0] and corner[1]: the flow (or pressure) × (1 ∓ pct/100), with
 	// the tables raised by the oven offset so a hot corner stays in range.
@@ -32,8 +38,25 @@ type Set struct {
 	dH, dS *model.System
 }
 
+// Built reports whether the Systems of the tolerances have been built (the
+// first Evaluate that needs them builds them).
+func (rg *Set) Built() bool {
+	select {
+	case <-rg.done:
+		return true
+	default:
+		return false
+	}
+}
+
+// ErrStopped is returned by Evaluate when Stop ended the wait for the
+// Systems of the tolerances.
+var ErrStopped = errors.New("robust: stopped before the tolerances were built")
+
 // NewSet prepares the evaluation of programs on base under tol.
-func NewSet(base *model.System, tol Tolerances) *Set { return &Set{Tol: tol, Base: base} }
+func NewSet(base *model.System, tol Tolerances) *Set {
+	return &Set{Tol: tol, Base: base, done: make(chan struct{})}
+}
 
 // SE is the standard error of one compound's ΔH (J/mol) and ΔS
 // (J/(mol·K)) and their correlation.
@@ -82,8 +105,21 @@ func carrierWith(car model.Carrier, f float64) model.Carrier {
 	return car
 }
 
+// build builds the Systems once, in a goroutine of its own, and waits for
+// them or for Stop.
 func (rg *Set) build() error {
-	rg.once.Do(func() {
+	rg.once.Do(func() { go rg.construct() })
+	select {
+	case <-rg.done:
+		return rg.err
+	case <-rg.Stop:
+		return ErrStopped
+	}
+}
+
+func (rg *Set) construct() {
+	defer close(rg.done)
+	func() {
 		rb := rg.Tol
 		base := rg.Base
 		col := base.Cond.Column
@@ -126,8 +162,7 @@ func (rg *Set) build() error {
 				}
 			}
 		}
-	})
-	return rg.err
+	}()
 }
 
 // Report is how a program fares under the [goal.robust] tolerances.
