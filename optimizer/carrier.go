@@ -321,6 +321,9 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 	}
 	// hill-climb in small steps from the best setting: the golden-section
 	// bracket assumes one minimum, and each probe's search is short
+	// (probes made before the best program was found were seeded worse:
+	// search those settings again from it)
+	tried = map[float64]candidate{best.rg.value: best}
 	for _, f := range []float64{1.04, 1 / 1.04} {
 		for k := 0; k < 3 && ctx.Err() == nil; k++ {
 			was := best.rg.value
