@@ -33,6 +33,9 @@ const (
 
 var columnKindNames = [...]string{WallCoated: "wall-coated", Packed: "packed", PorousLayer: "porous-layer"}
 
+// ColumnKinds lists every column kind, in the order a choice cycles.
+var ColumnKinds = []ColumnKind{WallCoated, Packed, PorousLayer}
+
 // String is the kind as written in a method file.
 func (k ColumnKind) String() string {
 	if k < 0 || int(k) >= len(columnKindNames) {
@@ -48,7 +51,7 @@ func ParseColumnKind(s string) (ColumnKind, error) {
 			return ColumnKind(i), nil
 		}
 	}
-	return 0, fmt.Errorf("unknown column kind %q (want wall-coated, packed or porous-layer)", s)
+	return 0, fmt.Errorf("%q is not one of wall-coated, packed, porous-layer", s)
 }
 
 // Defaults of the packed-column model (MODEL.md §10) and of the porous layer

@@ -265,3 +265,18 @@ func (s *System) peak(i int, tr, te, k, tm, vz float64) Peak {
 		RetentionFactor: k,
 	}
 }
+
+// NotElutedTargets names, in elution order, the targets of r (a result of
+// s) that elute after the program ends; nil when every target elutes.
+func (s *System) NotElutedTargets(r *Result) []string {
+	if r.TargetsNotEluted == 0 {
+		return nil
+	}
+	var out []string
+	for _, pk := range r.Peaks {
+		if !pk.Eluted && pk.Compound >= 0 && pk.Compound < len(s.Compounds) && s.Compounds[pk.Compound].Target {
+			out = append(out, s.Compounds[pk.Compound].Name)
+		}
+	}
+	return out
+}

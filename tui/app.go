@@ -93,10 +93,19 @@ type App struct {
 	kind    msgKind
 
 	optSettings optimizer.Settings
+	plan        planState
 	job         *job
 	jobSeq      int // the last job's id
+	// keys (and the end of input) that came while a save ran: handled,
+	// in order, once it is done, so that ctrl+s q saves and then quits
+	queued []tea.Msg
+	// the keys came from a pipe or a file and it ended (InputEndedMsg)
+	inputEnded, endedUnsaved bool
 
 	view cachedView
+	rows rowCount // of the root's own lines, as last drawn
+	cautionsOf *methodfile.Method // the method sh.cautions belong to
+	quitQ      component          // the last quit question
 }
 
 type cachedView struct {
@@ -149,6 +158,16 @@ type (
 	discardRecoveryMsg struct{}
 )
 
+// InputEndedMsg tells the UI that its keys came from a pipe or a file and
+// that it has ended: the UI finishes as if the user quit, at once (a save
+// under way is waited for). With unsaved changes, InputEnded says so and
+// the caller writes the recovery file.
+type InputEndedMsg struct{}
+
+// InputEnded reports whether the UI ended at the end of its input, and
+// whether changes were unsaved then.
+func (a *App) InputEnded() (ended, unsaved bool) { return a.inputEnded, a.endedUnsaved }
+
 // Init implements tea.Model.
 func (a *App) Init() tea.Cmd { return nil }
 
@@ -167,11 +186,13 @@ func (a *App) Path() string { return a.path }
 func (a *App) say(k msgKind, format string, args ...any) {
 	a.kind = k
 	a.message = fmt.Sprintf(format, args...)
+	a.sh.status = a.message
 }
 
 // systemKey is everything the model's tables depend on.
 func systemKey(m *methodfile.Method) string {
-	return fmt.Sprintf("%v|%v|%v|%v %v %v", m.Column, m.Carrier, m.Compounds, m.Limits.AmbientC, m.Limits.CooldownTauMin, m.Limits.EquilibrationMin)
+	return fmt.Sprintf("%v|%v|%v|%v %v %v|%v %v", m.Column, m.Carrier, m.Compounds, m.Limits.AmbientC, m.Limits.CooldownTauMin, m.Limits.EquilibrationMin,
+		m.Limits.HasCoolant, m.Limits.CoolantC) // the oven's sink and the tables' low end (MODEL.md §12)
 }
 
 // resimulate rebuilds the tables when the column, carrier or compounds
@@ -192,8 +213,14 @@ func (a *App) resimulate() error {
 // apply makes m the method if it is valid: the previous one goes on the
 // undo stack. An invalid m leaves everything as it was, with a message.
 // It is the only place an edit becomes the method.
-func (a *App) apply(m *methodfile.Method, what string) bool {
-	if err := validate(m); err != nil {
+func (a *App) apply(m *methodfile.Method, what, key string) bool {
+	var err error
+	if key != "" {
+		err = m.ValidateKey(key) // the edited key's rules only: Validate's answer for one edit
+	} else {
+		err = validate(m)
+	}
+	if err != nil {
 		a.say(msgError, "%v (kept the last valid value)", inertErr(err))
 		return false
 	}
@@ -203,10 +230,10 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 		a.sh.method, a.sh.sys = prev, prevSys
 		a.sysk = prevKey
 		a.resimulate()
-		a.say(msgError, "%s (kept the last valid value)", inert(strings.TrimPrefix(err.Error(), "model: ")))
+		a.say(msgError, "%s (kept the last valid value)", inertMsg(strings.TrimPrefix(err.Error(), "model: ")))
 		return false
 	}
-	caution := a.newCaution(prev, prevSys)
+	caution, more := a.newCaution(prev, prevSys)
 	a.undo = append(a.undo, prev)
 	if len(a.undo) > maxUndo {
 		a.undo = append(a.undo[:0], a.undo[len(a.undo)-maxUndo:]...)
@@ -214,13 +241,28 @@ func (a *App) apply(m *methodfile.Method, what string) bool {
 	a.redo = nil
 	a.say(msgInfo, "%s", what)
 	if caution != "" {
-		a.say(msgWarn, "%s · %s", what, caution)
+		a.say(msgWarn, "%s · %s", what, inert(caution))
+		if more > 0 {
+			a.say(msgWarn, "%s · %s (and %d more: ! lists them)", what, inert(caution), more)
+		}
 	}
 	if m.Carrier.Gas.Flammable() && !prev.Carrier.Gas.Flammable() {
-		a.say(msgWarn, "%s · %s", what, model.HydrogenCaution)
+		// the caution itself stands whole at the top of the settings (where
+		// the gas is switched) and in the cautions list
+		a.say(msgWarn, "%s · ⚠ hydrogen is flammable: see the caution above", what)
+	}
+	if m.Limits.HasCoolant && !prev.Limits.HasCoolant {
+		a.open(newCautionDialog(&a.sh)) // the cryogen cautions, in full
+	} else if below(m) && !below(prev) {
+		a.say(msgWarn, "%s · %s", what, checks.CoolantNote(m))
 	}
 	a.guard.update(a.path, a.sh.method, a.Dirty())
 	return true
+}
+
+// below reports a start below ambient (a coolant is needed).
+func below(m *methodfile.Method) bool {
+	return m.Limits.HasCoolant && m.Oven.InitialC <= m.Limits.AmbientC
 }
 
 // restore makes m the method without touching the undo stacks (undo, redo
@@ -234,11 +276,12 @@ func (a *App) restore(m *methodfile.Method) {
 }
 
 // newCaution is the first caution (overload, detector zone, inlet
-// pressure, late peak) that the change from prev brought in.
-func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string {
+// pressure, late peak) that the change from prev brought in, and how many
+// more it brought.
+func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) (string, int) {
 	now := checks.Warnings(a.sh.method, a.sh.sys, &a.res)
 	if len(now) == 0 {
-		return ""
+		return "", 0
 	}
 	var before []string
 	if prevSys != nil {
@@ -247,6 +290,7 @@ func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string 
 			before = checks.Warnings(prev, prevSys, &r)
 		}
 	}
+	first, more := "", 0
 	for _, w := range now {
 		seen := false
 		for _, b := range before {
@@ -254,11 +298,15 @@ func (a *App) newCaution(prev *methodfile.Method, prevSys *model.System) string 
 				seen = true
 			}
 		}
-		if !seen {
-			return w
+		switch {
+		case seen:
+		case first == "":
+			first = w
+		default:
+			more++
 		}
 	}
-	return ""
+	return first, more
 }
 
 // Update implements tea.Model.
@@ -284,6 +332,34 @@ func (a *App) handle(msg tea.Msg, cmds *[]tea.Cmd) {
 		a.sh.outbox = a.sh.outbox[1:]
 		*cmds = append(*cmds, a.intent(next))
 	}
+	if len(a.queued) > 0 && !a.saving() {
+		// the save is done: the keys typed meanwhile, in order (one that
+		// starts another save queues the rest again)
+		q := a.queued
+		a.queued = nil
+		for _, m := range q {
+			a.handle(m, cmds)
+		}
+	}
+}
+
+// tooSmall reports whether the terminal is below the size the UI draws in.
+func (a *App) tooSmall() bool { return a.ready && (a.width < MinWidth || a.height < MinHeight) }
+
+// saving reports whether a save runs in the background.
+func (a *App) saving() bool { return a.job != nil && a.job.save }
+
+// endOfInput finishes at the end of piped keys as quitting would: any work
+// stops and the UI ends; unsaved changes are reported by InputEnded.
+func (a *App) endOfInput() tea.Cmd {
+	if a.job != nil {
+		a.job.cancel()
+		a.job = nil
+	}
+	a.overlay, a.pending = nil, nil
+	a.inputEnded, a.endedUnsaved = true, a.Dirty()
+	a.guard.update(a.path, a.sh.method, a.Dirty())
+	return tea.Quit
 }
 
 // typing reports whether a text prompt has the keys (a paste stays whole).
@@ -299,9 +375,31 @@ func (a *App) route(msg tea.Msg) tea.Cmd {
 		a.width, a.height, a.ready = msg.Width, msg.Height, true
 		a.layout()
 		return nil
+	case InputEndedMsg:
+		if a.saving() {
+			a.queued = append(a.queued, msg)
+			return nil
+		}
+		return a.endOfInput()
 	case tea.KeyMsg:
 		if key.Matches(msg, a.keys.Interrupt) {
 			return a.interrupt()
+		}
+		if a.saving() {
+			// typed while the file is written: taken once it is done
+			a.queued = append(a.queued, msg)
+			return nil
+		}
+		if a.tooSmall() {
+			// nothing is drawn but the request to enlarge: only q (and
+			// the answer to its question) act, never the hidden dialog
+			switch {
+			case a.overlay != nil && a.overlay == a.quitQ:
+				return a.toOverlay(msg)
+			case key.Matches(msg, a.keys.Quit):
+				return a.interrupt()
+			}
+			return nil
 		}
 		if a.overlay != nil {
 			if key.Matches(msg, a.keys.Help) && a.dialogHelp() {
@@ -398,12 +496,19 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		a.setFocus((a.sh.focus + 1) % paneCount)
 	case key.Matches(msg, k.FocusBack):
 		a.setFocus((a.sh.focus + paneCount - 1) % paneCount)
+	case key.Matches(msg, k.Cautions):
+		a.cautions()
+		a.open(newCautionsDialog(&a.sh))
 	case key.Matches(msg, k.Help):
 		a.open(newHelpDialog(&a.sh, &a.help, a.pane(a.sh.focus), paneNames[a.sh.focus], a.keys))
 	case key.Matches(msg, k.Export):
 		return a.askExport(), true
 	case key.Matches(msg, k.Fit):
-		a.open(newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} }))
+		a.open(a.fitPrompt())
+	case key.Matches(msg, k.Plan):
+		return a.startPlan(), true
+	case key.Matches(msg, k.Verify):
+		a.open(newPrompt(&a.sh, "verification run (peak table, .cdf chromatogram or runs .toml): ", "", func(text string) tea.Msg { return startVerifyMsg{path: strings.TrimSpace(text)} }))
 	case key.Matches(msg, k.Compare):
 		m := a.sh.method
 		a.open(newPrompt(&a.sh, "columns to compare (lengths m, diameters mm, films µm): ",
@@ -412,6 +517,11 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		return nil, false
 	}
 	return nil, true
+}
+
+// fitPrompt asks for a scouting runs file (F).
+func (a *App) fitPrompt() component {
+	return newPrompt(&a.sh, "scouting runs file: ", "", func(text string) tea.Msg { return startFitMsg{path: strings.TrimSpace(text)} })
 }
 
 func (a *App) setFocus(p int) {
@@ -442,12 +552,14 @@ func (a *App) askQuit() {
 		a.sh.send(quitMsg{})
 		return
 	}
-	a.open(newConfirm(&a.sh, "unsaved changes", "save them before quitting?", []choice{
+	// no yes/no: "y" to "save them?" could be read either way
+	a.quitQ = newConfirm(&a.sh, "unsaved changes", "s saves and quits · d discards the changes and quits · esc stays", []choice{
 		{keys: []string{"s"}, label: "save and quit", msgs: []tea.Msg{saveMsg{quit: true}}},
-		{keys: []string{"y"}, label: "quit without saving", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
-		{keys: []string{"esc", "n"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
-	}))
-	a.say(msgWarn, "unsaved changes: s save and quit · y quit without saving · esc stay")
+		{keys: []string{"d"}, label: "discard the changes and quit", msgs: []tea.Msg{forgetMsg{}, quitMsg{}}},
+		{keys: []string{"esc"}, label: "stay", msgs: []tea.Msg{sayMsg{msgInfo, "still here"}}},
+	})
+	a.open(a.quitQ)
+	a.say(msgWarn, "unsaved changes: s save and quit · d discard and quit · esc stay")
 }
 
 // forgetMsg drops the guard's unsaved method (quitting without saving).
@@ -457,7 +569,7 @@ type forgetMsg struct{}
 func (a *App) intent(msg tea.Msg) tea.Cmd {
 	switch msg := msg.(type) {
 	case editMsg:
-		a.apply(msg.m, msg.what)
+		a.apply(msg.m, msg.what, msg.key)
 	case openMsg:
 		a.open(msg.d)
 	case closeMsg:
@@ -466,8 +578,6 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		a.say(msg.kind, "%s", msg.text)
 	case quitMsg:
 		return tea.Quit
-	case askQuitMsg:
-		a.askQuit()
 	case forgetMsg:
 		a.guard.update(a.path, a.sh.method, false)
 	case previewMsg:
@@ -490,6 +600,23 @@ func (a *App) intent(msg tea.Msg) tea.Cmd {
 		return a.startExport(msg.base)
 	case startFitMsg:
 		return a.startFit(msg.path)
+	case startPlanMsg:
+		return a.startPlan()
+	case replanMsg:
+		if a.plan.shown && a.job == nil {
+			return a.startPlan()
+		}
+	case fitTakenMsg:
+		if a.plan.prior == nil || msg.path != a.plan.runs {
+			a.plan.prior = msg.prior
+		}
+		a.plan.runs = msg.path
+	case askFitMsg:
+		a.open(a.fitPrompt())
+	case startVerifyMsg:
+		return a.startVerify(msg.path)
+	case measuredMsg:
+		a.chart.Update(msg)
 	case startCompareMsg:
 		return a.startCompare(msg.text)
 	case startSweepMsg:
@@ -530,8 +657,12 @@ func (a *App) View() string {
 	if !a.ready {
 		return "rampwise: starting…"
 	}
-	if a.width < MinWidth || a.height < MinHeight {
-		return fmt.Sprintf("rampwise needs a terminal of at least %d×%d; this one is %d×%d.\nEnlarge the window (q quits).", MinWidth, MinHeight, a.width, a.height)
+	if a.tooSmall() {
+		s := fmt.Sprintf("rampwise needs a terminal of at least %d×%d; this one is %d×%d.\nEnlarge the window (q quits).", MinWidth, MinHeight, a.width, a.height)
+		if a.overlay != nil && a.overlay == a.quitQ {
+			s += "\nUnsaved changes: s save and quit · d discard and quit · esc stay."
+		}
+		return s
 	}
 	v := &a.view
 	parts := []string{v.title, v.method, a.program.View()}
@@ -547,13 +678,45 @@ func (a *App) View() string {
 	default:
 		parts = append(parts, a.chart.View(), a.pane(a.lower).View())
 	}
-	parts = append(parts, v.summary, v.message, v.footer)
+	parts = append(parts, v.summary)
+	if v.message != "" || a.rows.message > 0 {
+		parts = append(parts, v.message)
+	}
+	parts = append(parts, v.footer)
 	return strings.Join(parts, "\n")
 }
 
-// The fixed rows: title, method line, two program lines, summary, two
-// message lines and the footer.
-const fixedRows = 8
+// The rows around the panes: the title, the method lines, the two program
+// lines, the summary, the status message (as many lines as it needs, none
+// when there is none) and the footer. They wrap rather than cut; the chart
+// keeps its height whatever the message, the lower pane takes the rest.
+type rowCount struct{ title, method, summary, message int }
+
+func (r rowCount) fixed() int { return r.title + r.method + r.summary + 2 + 1 }
+
+// maxMessageRows is the most the status message takes; a longer one ends
+// with a pointer to the list of cautions, which shows it whole.
+const maxMessageRows = 6
+
+// minLowerRows is the least the lower pane keeps: its heading, the table
+// head and one row.
+const minLowerRows = 3
+
+// heights are the chart's and the lower pane's (dialog's) rows.
+func (a *App) heights() (chartH, lowerH int) {
+	base := a.height - a.rows.fixed()
+	chartH = chartRows(base)
+	return chartH, max(minLowerRows, base-chartH-a.rows.message)
+}
+
+// chartRows is the chart's share of the base rows left by the fixed ones.
+func chartRows(base int) int {
+	h := base * 11 / 20
+	if base < 20 {
+		h-- // a small terminal: the row goes to the peak table
+	}
+	return max(7, h)
+}
 
 // layout gives every child its size (the resize fan-out).
 func (a *App) layout() {
@@ -561,12 +724,8 @@ func (a *App) layout() {
 	if a.width < MinWidth || a.height < MinHeight {
 		return
 	}
-	rest := a.height - fixedRows
-	chartH := rest * 11 / 20
-	if chartH < 7 {
-		chartH = 7
-	}
-	lowerH := rest - chartH
+	a.measure()
+	chartH, lowerH := a.heights()
 	a.program.SetSize(a.width, 2)
 	a.chart.SetSize(a.width, chartH)
 	a.peaks.SetSize(a.width, lowerH)
@@ -587,16 +746,36 @@ func (a *App) sizeDialog(d component) {
 	if !a.ready || a.width < MinWidth || a.height < MinHeight {
 		return
 	}
-	rest := a.height - fixedRows
-	chartH := rest * 11 / 20
-	if chartH < 7 {
-		chartH = 7
-	}
-	h := rest - chartH
+	chartH, h := a.heights()
 	if t, ok := d.(interface{ tall() bool }); ok && t.tall() {
-		h = rest
+		h += chartH
 	}
 	d.SetSize(a.width, h)
+}
+
+// measure renders the root's own lines and counts them; it reports
+// whether the count changed (the panes then need new sizes).
+func (a *App) measure() bool {
+	w := a.width
+	v := &a.view
+	title, method, summary := a.titleLines(w), a.methodLines(w), a.summaryLines(w)
+	was := a.rows
+	a.rows = rowCount{title: len(title), method: len(method), summary: len(summary)}
+	base := a.height - a.rows.fixed()
+	chartH := chartRows(base)
+	n := max(0, min(maxMessageRows, base-chartH-minLowerRows))
+	if _, ok := a.overlay.(*cautionsDialog); ok {
+		n = 0 // the list shows the message whole
+	}
+	msg := a.messageLines(w, n)
+	a.rows.message = len(msg)
+	a.sh.status = a.message
+	v.title = strings.Join(title, "\n")
+	v.method = strings.Join(method, "\n")
+	v.summary = strings.Join(summary, "\n")
+	v.message = strings.Join(msg, "\n")
+	v.footer = a.footerLine(w)
+	return a.rows != was
 }
 
 // refresh tells every child that the state may have changed, then
@@ -605,19 +784,16 @@ func (a *App) refresh() {
 	if !a.ready || a.width < MinWidth || a.height < MinHeight {
 		return
 	}
+	if a.measure() {
+		a.layout()
+	}
 	for p := 0; p < paneCount; p++ {
 		a.toPane(p, refreshMsg{})
 	}
 	if a.overlay != nil {
 		a.overlay, _ = a.overlay.Update(refreshMsg{})
 	}
-	w := a.width
-	v := &a.view
-	v.title = a.titleLine(w)
-	v.method = a.methodLine(w)
-	v.summary = a.summaryLine(w)
-	v.message = strings.Join(a.messageLines(w), "\n")
-	v.footer = a.footerLine(w)
+	a.view.footer = a.footerLine(a.width)
 }
 
 // footerLine is the active component's short key help, "? all keys" first
@@ -635,8 +811,18 @@ func (a *App) footerLine(w int) string {
 		b = append([]key.Binding{a.keys.Help}, a.pane(a.sh.focus).ShortHelp()...)
 		b = append(b, a.keys.ShortHelp()...)
 	}
-	// bubbles/help adds the last item when even its ellipsis does not fit
-	return ansi.Truncate(a.help.ShortHelpView(b), w, "…")
+	// as many whole items as fit ("? all keys" first lists the rest)
+	hm := a.help
+	hm.Width = 0
+	line := ""
+	for i := range b {
+		next := hm.ShortHelpView(b[:i+1])
+		if ansi.StringWidth(next) > w {
+			break
+		}
+		line = next
+	}
+	return line
 }
 
 // cancelMsg asks the root to stop the background work.
@@ -646,6 +832,7 @@ type cancelMsg struct{}
 type job struct {
 	id     int
 	what   string
+	save   bool // a save: keys typed meanwhile wait for it
 	cancel context.CancelFunc
 	ch     chan tea.Msg // optimizer progress, or nil
 }

@@ -171,16 +171,31 @@ func TestTooSmallAndPlaceholder(t *testing.T) {
 func TestHydrogenCaution(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
 	press(a, "tab", "tab", "tab") // settings
-	for i := 0; i < 4; i++ {
+	for i := 0; i < 5; i++ {
 		press(a, "down")
 	}
 	press(a, "+")
 	if a.Method().Carrier.Gas != model.Hydrogen {
 		t.Fatalf("gas %q", a.Method().Carrier.Gas)
 	}
-	if s := screen(a); !strings.Contains(s, "flammable") || !strings.Contains(s, "leak") {
-		t.Errorf("no hydrogen caution:\n%s", s)
+	// the safety text is never cut: wrapped whole in the settings, with
+	// settings still to choose from, and in the cautions list
+	if s := screen(a); !strings.Contains(unwrap(s), model.HydrogenCaution) || !strings.Contains(s, "› carrier gas") {
+		t.Errorf("no whole hydrogen caution, or no settings:\n%s", s)
 	}
+	press(a, "tab", "tab", "!")
+	if s := screen(a); !strings.Contains(unwrap(s), model.HydrogenCaution) {
+		t.Errorf("no whole hydrogen caution in the cautions list:\n%s", s)
+	}
+}
+
+// unwrap joins wrapped screen lines (each with its indent) into one text.
+func unwrap(s string) string {
+	var words []string
+	for _, l := range strings.Split(s, "\n") {
+		words = append(words, strings.Fields(strings.TrimLeft(l, " ⚠"))...)
+	}
+	return strings.Join(words, " ")
 }
 
 func TestToggleTargetAndEditCompound(t *testing.T) {
@@ -222,8 +237,40 @@ func TestQuitAsksWithUnsavedChanges(t *testing.T) {
 	if !strings.Contains(screen(a), "unsaved changes") {
 		t.Error("no question")
 	}
-	if !press(a, "y") {
-		t.Error("y did not quit")
+	// y and n are no answer: "y" to "save them?" could mean either
+	for _, k := range []string{"y", "n", "Y"} {
+		if press(a, k) {
+			t.Fatalf("%s quit", k)
+		}
+		if _, ok := a.overlay.(*confirmDialog); !ok {
+			t.Fatalf("%s closed the question", k)
+		}
+	}
+	for _, want := range []string{"s save and quit", "d discard", "esc stay"} {
+		if !strings.Contains(screen(a), want) {
+			t.Errorf("question does not say %q:\n%s", want, screen(a))
+		}
+	}
+	if !press(a, "d") {
+		t.Error("d did not quit")
+	}
+	if p, _ := a.guard.WriteRecovery(); p != "" {
+		t.Error("discarded changes still held for recovery")
+	}
+	// s saves, then quits
+	a, path := newApp(t, 80, 24)
+	press(a, "-", "q")
+	if !press(a, "s") {
+		t.Fatal("s did not quit")
+	}
+	if back, err := methodfile.ReadFile(path); err != nil || !back.Equal(a.Method()) {
+		t.Errorf("s quit without saving: %v", err)
+	}
+	// ctrl+c asks the same question
+	a, _ = newApp(t, 80, 24)
+	press(a, "-", "ctrl+c")
+	if press(a, "y") || !strings.Contains(screen(a), "d discard") {
+		t.Error("ctrl+c: y quit, or not the same question")
 	}
 }
 
@@ -349,7 +396,7 @@ func TestSelectionSurvivesShorterProgram(t *testing.T) {
 	}
 	m := a.Method().Clone()
 	m.Oven.Ramps = m.Oven.Ramps[:1]
-	a.apply(m, "test")
+	a.apply(m, "test", "")
 	a.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
 	press(a, "+", "enter", "esc", "right", "left")
 	if a.program.list.sel >= len(programFields(a.Method())) {
@@ -366,9 +413,10 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 	a.optSettings = optimizer.Settings{Workers: 1, Starts: 1, Evaluations: 200}
 	rng := rand.New(rand.NewPCG(42, 1))
 	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "shift+tab", "backspace", "pgdown", "pgup"}
-	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCo")
+	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCocV")
 	w, h := 90, 28
 	runs, _ := filepath.Abs("../testdata/scouting.toml")
+	verify, _ := filepath.Abs("../testdata/lab/verify.csv")
 	dialogs := map[string]bool{}
 	for i := 0; i < 3000; i++ {
 		if rng.IntN(3) == 0 {
@@ -387,6 +435,12 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 		case 700:
 			a.overlay, a.pending = nil, nil
 			press(a, "C", "ctrl+u", "20,30", "enter")
+		case 500:
+			a.overlay, a.pending = nil, nil
+			press(a, "V", verify, "enter")
+		case 900:
+			a.overlay, a.pending = nil, nil
+			press(a, "P")
 		}
 		if i%500 == 0 {
 			w, h = 80+rng.IntN(60), 24+rng.IntN(30)

@@ -9,13 +9,17 @@ import (
 	"github.com/charmbracelet/lipgloss"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/report"
 	"github.com/rampwise/rampwise/tui/canvas"
 )
 
 const (
-	layerPeak = 0
-	layerTemp = 1
-	tempAxisW = 7 // right margin for the temperature axis
+	layerPeak  = 0
+	layerTemp  = 1
+	layerUnder = 3 // the faint run beneath (layer 2 is the window diagram's)
+	layerMeas  = 4 // a measured run, mirrored below
+	layerJoin  = 5 // the lines joining matched peaks
+	tempAxisW  = 7 // right margin for the temperature axis
 )
 
 // chartInput is what the chromatogram shows.
@@ -25,6 +29,12 @@ type chartInput struct {
 	comps []model.Compound
 	// visible time window, s
 	t0, t1 float64
+	// under is another run drawn faint and dotted beneath this one (the
+	// current program's while the optimizer's waits), or nil
+	under *model.Result
+	// meas is a measured run drawn mirrored below, on the same time axis,
+	// each matched peak joined to its prediction, or nil
+	meas *report.Measured
 }
 
 // chart draws the simulated chromatogram: the summed Gaussian peaks as a
@@ -34,6 +44,7 @@ type chartInput struct {
 type chart struct {
 	cv    *canvas.Canvas
 	ys    []float64
+	ms    []float64 // a measured run's apexes per dot column
 	label []int8 // per cell: 0 none, 1 label, 2 critical label
 }
 
@@ -90,11 +101,30 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 			}
 		}
 	}
+	var under []float64
+	if in.under != nil {
+		under = make([]float64, dw)
+		for x := range under {
+			under[x] = in.under.Signal(in.comps, t0+(float64(x)+0.5)/float64(dw)*span)
+			ymax = math.Max(ymax, under[x])
+		}
+	}
+	// base is the predicted run's baseline (dot row); with a measured run
+	// the lower part of the plot holds it, upside down
+	base := dh - 1
+	if in.meas != nil {
+		base = (ph*11/20)*4 - 1
+	}
 	row := func(y float64) int {
 		if ymax <= 0 {
-			return dh - 1
+			return base
 		}
-		return dh - 1 - int(math.Round(y/ymax*float64(dh-2)))
+		return base - int(math.Round(y/ymax*float64(base-1)))
+	}
+	// the run beneath: every other dot column, so that it reads as dotted
+	// without colour too
+	for x := 0; x < len(under); x += 2 {
+		c.cv.Set(x, row(under[x]), layerUnder)
 	}
 	prev := row(c.ys[0])
 	for x := 0; x < dw; x++ {
@@ -107,7 +137,7 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 	pad := math.Max(5, (thi-tlo)*0.08)
 	tlo, thi = tlo-pad, thi+pad
 	trow := func(temp float64) int {
-		return dh - 1 - int(math.Round((temp-tlo)/(thi-tlo)*float64(dh-1)))
+		return base - int(math.Round((temp-tlo)/(thi-tlo)*float64(base)))
 	}
 	px, py := -1, 0
 	for x := 0; x < dw; x++ {
@@ -117,6 +147,9 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 			c.cv.Line(px, py, x, y, layerTemp)
 		}
 		px, py = x, y
+	}
+	if in.meas != nil {
+		c.measured(in, base, dw, dh, t0, span, ymax)
 	}
 	// labels: elution-order numbers above the apexes
 	crit := map[int]bool{}
@@ -159,6 +192,7 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 		}
 	}
 	lines := make([]string, 0, h)
+	baseRow := base / 4
 	for r := 0; r < ph; r++ {
 		var b strings.Builder
 		c.row(&b, r, pw, st)
@@ -167,16 +201,80 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 		switch r {
 		case 0:
 			lab = fmt.Sprintf(" %3.0f°C", thi-model.ZeroCelsius)
-		case ph - 1:
+		case baseRow:
 			lab = fmt.Sprintf(" %3.0f°C", tlo-model.ZeroCelsius)
-		case ph / 2:
+		case (baseRow + 1) / 2:
 			lab = fmt.Sprintf(" %3.0f°C", (thi+tlo)/2-model.ZeroCelsius)
+		case baseRow + 2:
+			if in.meas != nil {
+				lab = " meas."
+			}
 		}
 		b.WriteString(st.Temp.Render(padRight(lab, tempAxisW)))
 		lines = append(lines, b.String())
 	}
 	lines = append(lines, st.Axis.Render(padRight(timeAxis(t0, t1, pw), w)))
 	return lines
+}
+
+// measured draws the measured run upside down below the predicted one
+// (baseline at dot row base), scaled as the figure scales it
+// (report.Measured.Scale), and joins each matched peak's predicted time on
+// the predicted baseline to its measured time on the measured one.
+func (c *chart) measured(in chartInput, base, dw, dh int, t0, span, ymax float64) {
+	top := base + 8 // a text row apart, for the joins
+	if top >= dh-1 {
+		return
+	}
+	// on the prediction's scale: its trace at 1 for the tallest point shown
+	scale := in.meas.Scale((t0+span)/60, func(tmin float64) float64 {
+		if !(ymax > 0) {
+			return 0
+		}
+		return signalAt(in, tmin*60) / ymax
+	})
+	mrow := func(v float64) int { return top + int(math.Round(v/1.2*float64(dh-1-top))) }
+	prev := -1
+	// a peak narrower than a dot column still shows its apex
+	if cap(c.ms) < dw {
+		c.ms = make([]float64, dw)
+	}
+	apex := c.ms[:dw]
+	for i := range apex {
+		apex[i] = math.NaN()
+	}
+	for _, p := range in.meas.Peaks {
+		x := int((p.TimeMin*60 - t0) / span * float64(dw))
+		if x >= 0 && x < dw {
+			if y := in.meas.Signal(p.TimeMin); !(y <= apex[x]) {
+				apex[x] = y
+			}
+		}
+	}
+	for x := 0; x < dw; x++ {
+		y := in.meas.Signal((t0 + (float64(x)+0.5)/float64(dw)*span) / 60)
+		if !math.IsNaN(apex[x]) && !(y >= apex[x]) {
+			y = apex[x]
+		}
+		if math.IsNaN(y) {
+			prev = -1
+			continue
+		}
+		r := mrow(scale(y))
+		if prev < 0 {
+			prev = r
+		}
+		c.cv.VLine(x, prev, r, layerMeas)
+		prev = r
+	}
+	xOf := func(tmin float64) int { return int(math.Round((tmin*60 - t0) / span * float64(dw-1))) }
+	for _, j := range in.meas.Matches {
+		xp, xm := xOf(j.PredictedMin), xOf(j.MeasuredMin)
+		if (xp < 0 && xm < 0) || (xp >= dw && xm >= dw) {
+			continue
+		}
+		c.cv.Line(xp, base+1, xm, top-1, layerJoin)
+	}
 }
 
 // free reports whether cells a..b-1 of row r hold no label yet.
@@ -189,22 +287,9 @@ func (c *chart) free(r, a, b, pw int) bool {
 	return true
 }
 
-// signalAt is the summed detector signal at time t: each peak a Gaussian
-// of area proportional to the compound's amount.
-func signalAt(in chartInput, t float64) float64 {
-	y := 0.0
-	for _, pk := range in.res.Peaks {
-		if !pk.Eluted || pk.Sigma <= 0 {
-			continue
-		}
-		z := (t - pk.RetentionTime) / pk.Sigma
-		if z < -6 || z > 6 {
-			continue
-		}
-		y += in.comps[pk.Compound].AreaOrOne() / pk.Sigma * math.Exp(-0.5*z*z)
-	}
-	return y
-}
+// signalAt is the detector signal at time t (model.Result.Signal, the
+// figure's too).
+func signalAt(in chartInput, t float64) float64 { return in.res.Signal(in.comps, t) }
 
 // row renders one canvas row, one style per run of like cells.
 func (c *chart) row(b *strings.Builder, r, pw int, st *Styles) {
@@ -224,6 +309,10 @@ func (c *chart) row(b *strings.Builder, r, pw int, st *Styles) {
 			b.WriteString(st.PeakLabel.Render(s))
 		case 4:
 			b.WriteString(st.Critical.Render(s))
+		case 5, 7:
+			b.WriteString(st.Dim.Render(s))
+		case 6:
+			b.WriteString(st.Label.Render(s))
 		default:
 			b.WriteString(s)
 		}
@@ -241,6 +330,12 @@ func (c *chart) row(b *strings.Builder, r, pw int, st *Styles) {
 			kind = 1
 		case cell.Layers&(1<<layerTemp) != 0:
 			kind = 2
+		case cell.Layers&(1<<layerUnder) != 0:
+			kind = 5
+		case cell.Layers&(1<<layerMeas) != 0:
+			kind = 6
+		case cell.Layers&(1<<layerJoin) != 0:
+			kind = 7
 		}
 		if kind != cur {
 			flush()

@@ -31,6 +31,9 @@ type shared struct {
 	res    *model.Result
 	focus  int // the focused pane
 	outbox []tea.Msg
+	// kept current by the root for the cautions list
+	cautions []string // checks.Cautions of the method, made inert
+	status   string   // the status message, whole
 }
 
 func (s *shared) send(msgs ...tea.Msg) { s.outbox = append(s.outbox, msgs...) }
@@ -42,6 +45,7 @@ type (
 	editMsg struct {
 		m    *methodfile.Method
 		what string
+		key  string // the one key edited, when known: only its rules are checked
 	}
 	// openMsg puts a dialog in the overlay slot.
 	openMsg struct{ d component }
@@ -65,6 +69,7 @@ type (
 		prog   model.Program
 		label  string
 		showIt bool // draw the preview (true) or the method's run (false)
+		faint  bool // draw the other run faint and dotted beneath
 	}
 )
 
@@ -99,4 +104,8 @@ var (
 	_ component = (*promptDialog)(nil)
 	_ component = (*helpDialog)(nil)
 	_ component = (*progressDialog)(nil)
+	_ component = (*cautionsDialog)(nil)
+	_ component = (*cautionDialog)(nil)
+	_ component = (*verifyDialog)(nil)
+	_ component = (*planDialog)(nil)
 )

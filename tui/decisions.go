@@ -26,11 +26,9 @@ import (
 func decisionKeys() ListKeys {
 	return scrollKeys(ListKeys{
 		Accept: bind([]string{"enter", "y"}, "enter/y", "take it"),
-		Reject: bind([]string{"esc", "n"}, "n/esc", "keep the current"),
+		Reject: bind([]string{"esc", "n", "q"}, "n/esc/q", "keep the current"),
 	})
 }
-
-var quitKey = bind([]string{"q"}, "q", "quit")
 
 // scroll keeps an offset into n body rows shown rows at a time.
 func scroll(off *int, km tea.KeyMsg, k ListKeys, n, rows int) {
@@ -53,7 +51,11 @@ func rsText(sh *shared, sys *model.System, r *model.Result) string {
 		return "no counted pair"
 	}
 	cp := r.Pairs[r.Critical]
-	return format.Rs(r.MinResolution, sh.method.Goal.MinResolution) + " " + format.CriticalPair(inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
+	var missing []string
+	for _, n := range sys.NotElutedTargets(r) {
+		missing = append(missing, inert(n))
+	}
+	return format.RsAll(r.MinResolution, sh.method.Goal.MinResolution, missing) + " " + format.CriticalPair(inert(sys.Compounds[cp.First].Name), inert(sys.Compounds[cp.Second].Name))
 }
 
 // --- the optimizer's result ---
@@ -79,15 +81,13 @@ func newResultDialog(sh *shared, res *optimizer.Result, after *methodfile.Method
 
 // preview is what the chart shows while the result waits.
 func (d *resultDialog) preview() previewMsg {
-	return previewMsg{res: &d.afterR, prog: d.after.ModelProgram(), label: "optimized program (v: the current one)", showIt: d.showNew}
+	return previewMsg{res: &d.afterR, prog: d.after.ModelProgram(), label: "optimized run", showIt: d.showNew, faint: true}
 }
 
 func (d *resultDialog) ShortHelp() []key.Binding {
-	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Toggle, d.keys.Up, quitKey}
+	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Toggle, d.keys.Up}
 }
-func (d *resultDialog) FullHelp() [][]key.Binding {
-	return append(d.keys.FullHelp(), []key.Binding{quitKey})
-}
+func (d *resultDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
 func (d *resultDialog) View() string     { return strings.Join(d.lines, "\n") }
 func (d *resultDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
 
@@ -99,8 +99,6 @@ func (d *resultDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 			d.sh.send(closeMsg{}, editMsg{m: d.after, what: "took the optimized program (u undoes)"})
 		case key.Matches(msg, d.keys.Reject):
 			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the old program"})
-		case key.Matches(msg, quitKey):
-			d.sh.send(closeMsg{}, askQuitMsg{})
 		case key.Matches(msg, d.keys.Toggle):
 			d.showNew = !d.showNew
 			d.sh.send(d.preview())
@@ -150,7 +148,7 @@ func (d *resultDialog) render() {
 		if r.Critical < 0 {
 			return "no counted pair"
 		}
-		return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
+		return format.RsNumber(r.MinResolution, target) + " " + format.VerdictAll(r.MinResolution, target, r.TargetsNotEluted)
 	}
 	right := []string{
 		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
@@ -191,11 +189,11 @@ func (d *resultDialog) render() {
 
 // --- the fit review ---
 
-// Standard errors above these are called large (our threshold: about what
-// moves a retention factor at 100 °C by 30 %).
+// Standard errors above these are called large: the thresholds fit uses
+// too (calibrate.LargeSEDHkJ, LargeSEDS).
 const (
-	largeErrDH = 1.0 // kJ/mol
-	largeErrDS = 2.5 // J/(mol·K)
+	largeErrDH = calibrate.LargeSEDHkJ // kJ/mol
+	largeErrDS = calibrate.LargeSEDS   // J/(mol·K)
 )
 
 type fitDialog struct {
@@ -227,11 +225,9 @@ func newFitDialog(sh *shared, f fitOutcome) *fitDialog {
 }
 
 func (d *fitDialog) ShortHelp() []key.Binding {
-	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Up, d.keys.PageDown, quitKey}
+	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Up, d.keys.PageDown}
 }
-func (d *fitDialog) FullHelp() [][]key.Binding {
-	return append(d.keys.FullHelp(), []key.Binding{quitKey})
-}
+func (d *fitDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
 func (d *fitDialog) View() string     { return strings.Join(d.lines, "\n") }
 func (d *fitDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
 
@@ -243,7 +239,7 @@ func (d *fitDialog) body() []string {
 	var out []string
 	for _, c := range d.order {
 		mark := " "
-		if c.StdErrDH > largeErrDH || c.StdErrDS > largeErrDS {
+		if c.LargeError() {
 			mark = "⚠"
 		}
 		added := ""
@@ -266,11 +262,9 @@ func (d *fitDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	if km, ok := msg.(tea.KeyMsg); ok {
 		switch {
 		case key.Matches(km, d.keys.Accept):
-			d.sh.send(closeMsg{}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"})
+			d.sh.send(closeMsg{}, fitTakenMsg{path: d.fit.path, prior: d.sh.method}, editMsg{m: d.fit.rep.Method, what: "took the fitted parameters (u undoes)"}, replanMsg{})
 		case key.Matches(km, d.keys.Reject):
-			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"})
-		case key.Matches(km, quitKey):
-			d.sh.send(closeMsg{}, askQuitMsg{})
+			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current parameters"}, replanMsg{})
 		default:
 			scroll(&d.off, km, d.keys, len(d.body()), d.rows())
 		}
@@ -328,17 +322,15 @@ func newRankingDialog(sh *shared, out []methodsearch.Outcome) *rankingDialog {
 		Up:     bind([]string{"up", "k"}, "↑/↓", "choose"),
 		Down:   bind([]string{"down", "j"}, "↓", "next"),
 		Accept: bind([]string{"enter", "y"}, "enter", "switch to it"),
-		Reject: bind([]string{"esc", "n"}, "esc", "keep the current column"),
+		Reject: bind([]string{"esc", "n", "q"}, "esc/n/q", "keep the current column"),
 	}
 	return &rankingDialog{sh: sh, out: out, keys: k}
 }
 
 func (d *rankingDialog) ShortHelp() []key.Binding {
-	return []key.Binding{d.keys.Up, d.keys.Accept, d.keys.Reject, quitKey}
+	return []key.Binding{d.keys.Up, d.keys.Accept, d.keys.Reject}
 }
-func (d *rankingDialog) FullHelp() [][]key.Binding {
-	return append(d.keys.FullHelp(), []key.Binding{quitKey})
-}
+func (d *rankingDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
 func (d *rankingDialog) View() string     { return strings.Join(d.lines, "\n") }
 func (d *rankingDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
 
@@ -353,8 +345,6 @@ func (d *rankingDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 			d.sh.send(closeMsg{}, d.choose(d.out[d.sel]))
 		case key.Matches(km, d.keys.Reject):
 			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the current column"})
-		case key.Matches(km, quitKey):
-			d.sh.send(closeMsg{}, askQuitMsg{})
 		}
 	} else if ok {
 		d.sh.send(closeMsg{})

@@ -18,10 +18,6 @@ import (
 // chart too). It closes itself by sending closeMsg, and says what it
 // decided with the messages it sends after that.
 
-// askQuitMsg asks the root to quit (asking first when there are unsaved
-// changes): q in a dialog that waits for a decision.
-type askQuitMsg struct{}
-
 // title is a dialog's first line.
 func dialogTitle(st *Styles, name, extra string, w int) string {
 	return ansi.Truncate(st.Focused.Render("▸"+name)+st.Dim.Render(extra), w, "…")
@@ -266,6 +262,13 @@ func dialogName(d component) string {
 		return "question"
 	case *progressDialog:
 		return "background work"
+	case *cautionsDialog:
+	case *cautionDialog:
+		return "cautions"
+	case *verifyDialog:
+		return "verification run"
+	case *planDialog:
+		return "next run"
 	}
 	return "dialog"
 }
@@ -297,7 +300,7 @@ func newHelpDialog(sh *shared, hm *help.Model, focused component, name string, g
 	}
 	d.groups = append(d.groups, helpGroup{"in a dialog", []key.Binding{
 		bind([]string{"y"}, "enter/y", "take (result, fit, ranking)"),
-		bind([]string{"n"}, "n/esc", "keep the current method"),
+		bind([]string{"n"}, "n/esc/q", "close, keep the current method"),
 		bind([]string{"v"}, "v", "old/new run in the chart"),
 		bind([]string{"up"}, "↑/↓ pgdn", "scroll"),
 		bind([]string{"esc"}, "esc", "stop work, close"),

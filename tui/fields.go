@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -25,6 +26,15 @@ type field struct {
 	str     func(m *methodfile.Method) string // a choice field's current choice
 	setStr  func(m *methodfile.Method, s string)
 	integer bool
+	// an optional value (limits.coolant_c): absent reports it is not
+	// set, clear removes it; shown and typed as "none"; a step from none
+	// starts at fromNone
+	absent   func(m *methodfile.Method) bool
+	clear    func(m *methodfile.Method)
+	fromNone float64
+	// after runs once the value is set (a kind switch sets the kind's
+	// typical column); its text goes in the status line
+	after func(before, m *methodfile.Method) string
 	// program fields: which ramp (0 = initial) and value
 	ramp int
 	pv   model.ProgramValue
@@ -73,6 +83,9 @@ func (o outlet) String() string { return string(o) }
 func (f field) text(m *methodfile.Method) string {
 	if f.str != nil {
 		return f.str(m)
+	}
+	if f.absent != nil && f.absent(m) {
+		return noneWord
 	}
 	v := f.value(m)
 	if f.integer {
@@ -135,6 +148,10 @@ func (f field) stepped(m *methodfile.Method, n float64, big bool) *methodfile.Me
 		f.setStr(c, f.choices[i])
 		return c
 	}
+	if f.absent != nil && f.absent(c) {
+		f.setValue(c, f.fromNone)
+		return c
+	}
 	st := f.step
 	if big {
 		st = f.big
@@ -168,6 +185,10 @@ func (f field) typed(m *methodfile.Method, text string) (*methodfile.Method, err
 			}
 		}
 		return nil, fmt.Errorf("%s: %q is not one of %s", f.key, text, strings.Join(f.choices, ", "))
+	}
+	if f.clear != nil && (text == "" || strings.EqualFold(text, noneWord)) {
+		f.clear(c)
+		return c, nil
 	}
 	v, err := strconv.ParseFloat(text, 64)
 	if err != nil {
@@ -205,19 +226,48 @@ func programFields(m *methodfile.Method) []field {
 	return fs
 }
 
+// noneWord shows (and, typed, sets) an optional value that is not given.
+const noneWord = "none"
+
 // settingsFields lists the column, carrier, goal and limits values.
 func settingsFields(m *methodfile.Method) []field {
 	n := func(key, label, unit string, digits int, step, big float64, p func(m *methodfile.Method) *float64) field {
 		return field{key: key, label: label, unit: unit, digits: digits, step: step, big: big, num: p}
 	}
+	kind := choiceField("column.kind", "column kind", model.ColumnKinds, func(m *methodfile.Method) *model.ColumnKind { return &m.Column.Kind })
+	kind.after = typicalColumn
 	fs := []field{
+		kind,
 		n("column.length_m", "column length", "m", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Column.LengthM }),
-		n("column.diameter_mm", "column diameter", "mm", 3, 0.01, 0.05, func(m *methodfile.Method) *float64 { return &m.Column.DiameterMM }),
-		n("column.film_um", "film thickness", "µm", 2, 0.05, 0.25, func(m *methodfile.Method) *float64 { return &m.Column.FilmUM }),
+	}
+	switch m.Column.Kind {
+	case model.Packed:
+		fs = append(fs,
+			n("column.diameter_mm", "tube inner diameter", "mm", 2, 0.1, 0.5, func(m *methodfile.Method) *float64 { return &m.Column.DiameterMM }),
+			n("column.film_um", "liquid film (effective)", "µm", 2, 0.1, 0.5, func(m *methodfile.Method) *float64 { return &m.Column.FilmUM }),
+			packedField("column.particle_um", "particle diameter", "µm", 0, 5, 25, func(c *methodfile.Column) *float64 { return &c.ParticleUM }),
+			packedField("column.porosity", "porosity (between particles)", "", 2, 0.01, 0.05, func(c *methodfile.Column) *float64 { return &c.Porosity }),
+			packedField("column.phase_ratio", "phase ratio", "", 1, 1, 10, func(c *methodfile.Column) *float64 { return &c.PhaseRatio }),
+			packedField("column.eddy_lambda", "eddy factor λ", "", 2, 0.05, 0.2, func(c *methodfile.Column) *float64 { return &c.EddyLambda }),
+			packedField("column.obstruction_gamma", "obstruction factor γ", "", 2, 0.05, 0.2, func(c *methodfile.Column) *float64 { return &c.ObstructionGamma }),
+			packedField("column.mobile_omega", "mobile-phase factor ω", "", 2, 0.01, 0.05, func(c *methodfile.Column) *float64 { return &c.MobileOmega }),
+		)
+	case model.PorousLayer:
+		fs = append(fs,
+			n("column.diameter_mm", "column diameter", "mm", 3, 0.01, 0.05, func(m *methodfile.Method) *float64 { return &m.Column.DiameterMM }),
+			n("column.film_um", "layer thickness", "µm", 1, 0.5, 5, func(m *methodfile.Method) *float64 { return &m.Column.FilmUM }),
+		)
+	default:
+		fs = append(fs,
+			n("column.diameter_mm", "column diameter", "mm", 3, 0.01, 0.05, func(m *methodfile.Method) *float64 { return &m.Column.DiameterMM }),
+			n("column.film_um", "film thickness", "µm", 2, 0.05, 0.25, func(m *methodfile.Method) *float64 { return &m.Column.FilmUM }),
+		)
+	}
+	fs = append(fs,
 		n("column.max_temp_c", "column max temperature", "°C", 0, 1, 10, func(m *methodfile.Method) *float64 { return &m.Column.MaxTempC }),
 		choiceField("carrier.gas", "carrier gas", model.Gases, func(m *methodfile.Method) *model.Gas { return &m.Carrier.Gas }),
 		choiceField("carrier.mode", "pressure mode", model.PressureModes, func(m *methodfile.Method) *model.PressureMode { return &m.Carrier.Mode }),
-	}
+	)
 	if m.Carrier.Mode == model.ConstantPressure {
 		fs = append(fs, n("carrier.inlet_kpa", "inlet pressure (gauge)", "kPa", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Carrier.InletKPa }))
 	} else {
@@ -231,6 +281,7 @@ func settingsFields(m *methodfile.Method) []field {
 			get: func(m *methodfile.Method) float64 { return float64(m.Goal.Ramps) },
 			set: func(m *methodfile.Method, v float64) { m.Goal.Ramps = int(v) }},
 		n("goal.tail_min", "tail after last peak", "min", 2, 0.1, 1, func(m *methodfile.Method) *float64 { return &m.Goal.TailMin }),
+		coolantField(),
 		n("limits.oven_min_c", "lowest start temperature", "°C", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Limits.OvenMinC }),
 		n("limits.max_rate_c_min", "fastest ramp", "°C/min", 1, 1, 10, func(m *methodfile.Method) *float64 { return &m.Limits.MaxRateCMin }),
 		n("limits.max_hold_min", "longest hold", "min", 1, 0.5, 5, func(m *methodfile.Method) *float64 { return &m.Limits.MaxHoldMin }),
@@ -248,13 +299,15 @@ var settingsSaved = map[string]int{
 	"column.length_m": 2, "column.diameter_mm": 4, "column.film_um": 3, "column.max_temp_c": 1,
 	"carrier.inlet_kpa": 1, "carrier.flow_ml_min": 2, "goal.min_resolution": 2, "goal.tail_min": 3,
 	"limits.oven_min_c": 1, "limits.max_rate_c_min": 2, "limits.max_hold_min": 3, "limits.max_inlet_kpa": 1,
+	"limits.coolant_c": 1, "column.particle_um": 1, "column.porosity": 3, "column.phase_ratio": 2,
+	"column.eddy_lambda": 3, "column.obstruction_gamma": 3, "column.mobile_omega": 3,
 }
 
 // validate checks an edited method with the method file's own rules, the
 // instrument limits included (so the messages are the ones a file gets).
 func validate(m *methodfile.Method) error { return m.Validate() }
 
-func trimNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+func trimNum(x float64) string { return format.Num(x) }
 
 func round(x float64, digits int) float64 {
 	s := strconv.FormatFloat(x, 'f', digits, 64)

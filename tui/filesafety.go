@@ -94,7 +94,7 @@ type reloadMsg struct{ path string }
 func (m reloadMsg) apply(a *App) tea.Cmd {
 	fresh, err := methodfile.ReadFile(m.path)
 	if err != nil {
-		a.say(msgError, "cannot reload: %s", inert(err.Error()))
+		a.say(msgError, "cannot reload: %s", inertErr(err))
 		return nil
 	}
 	a.undo = append(a.undo, a.sh.method)

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -195,5 +196,28 @@ func TestUISaveKeepsComments(t *testing.T) {
 	}
 	if len(diff) != 1 || diff[0] != "initial_c = 50          # start → initial_c = 60          # start" {
 		t.Errorf("diff %q", diff)
+	}
+}
+
+// The signal path's work: writing the recovery file of a 2000-compound
+// method (Marshal and an atomic write, no validation).
+func BenchmarkWriteRecovery2000(b *testing.B) {
+	m := demoMethod(b)
+	base := m.Compounds
+	m.Compounds = nil
+	for i := 0; i < 2000; i++ {
+		c := base[i%len(base)]
+		c.Name = fmt.Sprintf("%s %d", c.Name, i)
+		m.Compounds = append(m.Compounds, c)
+	}
+	path := filepath.Join(b.TempDir(), "big.toml")
+	g := NewGuard(path)
+	g.update(path, m, true)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := g.WriteRecovery(); err != nil {
+			b.Fatal(err)
+		}
 	}
 }

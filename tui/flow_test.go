@@ -32,7 +32,7 @@ func TestFlowEditResimulates(t *testing.T) {
 	waitScreen(t, tm, "2.0 °C/min")
 	tm.Send(keyRune('q'))
 	waitScreen(t, tm, "unsaved changes")
-	tm.Send(keyRune('y'))
+	tm.Send(keyRune('d'))
 	final := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*App)
 	if final.Method().Oven.Ramps[0].RateCMin != 2 {
 		t.Errorf("rate %v", final.Method().Oven.Ramps[0].RateCMin)
@@ -99,8 +99,8 @@ func TestFlowFitInBackground(t *testing.T) {
 	tm.Send(keyRune('y'))
 	waitScreen(t, tm, "took the fitted parameters")
 	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
-	waitScreen(t, tm, "save them before quitting")
-	tm.Send(keyRune('y'))
+	waitScreen(t, tm, "d discard and quit")
+	tm.Send(keyRune('d'))
 	tm.WaitFinished(t, teatest.WithFinalTimeout(10*time.Second))
 }
 
@@ -115,8 +115,8 @@ func TestFlowInterruptDuringOptimize(t *testing.T) {
 	tm.Send(keyRune('o'))
 	waitScreen(t, tm, "evaluations")
 	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})
-	waitScreen(t, tm, "save them before quitting")
-	tm.Send(keyRune('y'))
+	waitScreen(t, tm, "d discard and quit")
+	tm.Send(keyRune('d'))
 	final := tm.FinalModel(t, teatest.WithFinalTimeout(10*time.Second)).(*App)
 	if final.job != nil {
 		t.Error("the search was not stopped")

@@ -68,6 +68,46 @@ var screens = []struct {
 		}
 		a.refresh()
 	}},
+	{"settings-packed", func(t *testing.T, a *App) {
+		press(a, "shift+tab", "+") // the kind: packed
+		pickSetting(t, a, "column.particle_um")
+		a.message = "column.kind = packed"
+	}},
+	{"settings-porous-layer-coolant", func(t *testing.T, a *App) {
+		press(a, "shift+tab", "+", "+") // porous-layer
+		pickSetting(t, a, "limits.coolant_c")
+		press(a, "-", "esc") // a coolant (its cautions open), then a start below ambient
+		a.setFocus(paneProgram)
+		a.program.list.sel = 0
+		press(a, "enter", "ctrl+u", "-40", "enter")
+		pickSetting(t, a, "limits.coolant_c")
+	}},
+	{"cautions", func(t *testing.T, a *App) {
+		pickSetting(t, a, "limits.coolant_c")
+		press(a, "-")
+	}},
+	{"plan", func(t *testing.T, a *App) {
+		a.optSettings.Starts, a.optSettings.Workers = 4, 1
+		press(a, "P")
+		if _, ok := a.overlay.(*planDialog); !ok {
+			t.Fatalf("no plan: %s", a.message)
+		}
+	}},
+	{"verification-run", func(t *testing.T, a *App) {
+		run, _ := filepath.Abs("../testdata/lab/verify.csv")
+		press(a, "V", run, "enter")
+		if _, ok := a.overlay.(*verifyDialog); !ok {
+			t.Fatalf("no verification dialog: %s", a.message)
+		}
+	}},
+	{"all-cautions", func(t *testing.T, a *App) {
+		pickSetting(t, a, "carrier.gas")
+		press(a, "+", "!")
+	}},
+	{"settings-hydrogen", func(t *testing.T, a *App) {
+		pickSetting(t, a, "carrier.gas")
+		press(a, "+")
+	}},
 	{"window-diagram", func(t *testing.T, a *App) { press(a, "right", "right", "s") }},
 	{"window-diagram-flow", func(t *testing.T, a *App) { press(a, "shift+tab", "s") }},
 }

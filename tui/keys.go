@@ -8,13 +8,14 @@ func bind(keys []string, k, desc string) key.Binding {
 
 // GlobalKeys work whenever no dialog is open (ctrl+c also with one open).
 type GlobalKeys struct {
-	Help, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare key.Binding
+	Help, Cautions, Quit, Interrupt, Save, SaveAs, Undo, Redo, Optimize, Focus, FocusBack, Export, Fit, Compare, Verify, Plan key.Binding
 }
 
 // DefaultGlobalKeys are the global bindings.
 func DefaultGlobalKeys() GlobalKeys {
 	return GlobalKeys{
 		Help:      bind([]string{"?"}, "?", "all keys"),
+		Cautions:  bind([]string{"!"}, "!", "all cautions, last message"),
 		Quit:      bind([]string{"q"}, "q", "quit"),
 		Interrupt: bind([]string{"ctrl+c"}, "ctrl+c", "quit (asks when unsaved)"),
 		Save:      bind([]string{"ctrl+s"}, "ctrl+s", "save"),
@@ -27,6 +28,8 @@ func DefaultGlobalKeys() GlobalKeys {
 		Export:    bind([]string{"e"}, "e", "export figure+sheet"),
 		Fit:       bind([]string{"F"}, "F", "fit from scouting runs"),
 		Compare:   bind([]string{"C"}, "C", "compare columns"),
+		Verify:    bind([]string{"V"}, "V", "verification run vs prediction"),
+		Plan:      bind([]string{"P"}, "P", "plan the next run"),
 	}
 }
 
@@ -38,8 +41,8 @@ func (k GlobalKeys) ShortHelp() []key.Binding {
 // FullHelp groups the global keys for the key list.
 func (k GlobalKeys) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
-		{k.Help, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
-		{k.Optimize, k.Fit, k.Compare, k.Export},
+		{k.Help, k.Cautions, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
+		{k.Optimize, k.Plan, k.Fit, k.Verify, k.Compare, k.Export},
 		{k.Save, k.SaveAs, k.Undo, k.Redo},
 	}
 }
@@ -49,7 +52,7 @@ var globalTitles = []string{"everywhere", "work", "file and history"}
 
 // FieldKeys edit a list of values (the program and the settings).
 type FieldKeys struct {
-	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp, Sweep key.Binding
+	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp, Sweep, Cautions key.Binding
 }
 
 // DefaultProgramKeys are the program pane's bindings.
@@ -57,7 +60,7 @@ func DefaultProgramKeys() FieldKeys {
 	return FieldKeys{
 		Prev:    bind([]string{"left", "h"}, "←/→", "choose value"),
 		Next:    bind([]string{"right", "l"}, "→", "next value"),
-		Up:      bind([]string{"+", "=", "up", "k"}, "+/-", "step"),
+		Up:      bind([]string{"+", "=", "up", "k"}, "+/- ↑/↓", "step"),
 		Down:    bind([]string{"-", "_", "down", "j"}, "-", "step down"),
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
@@ -73,12 +76,13 @@ func DefaultSettingsKeys() FieldKeys {
 	return FieldKeys{
 		Prev:    bind([]string{"up", "k"}, "↑/↓", "choose setting"),
 		Next:    bind([]string{"down", "j"}, "↓", "next setting"),
-		Up:      bind([]string{"+", "=", "right", "l"}, "+/-", "step or choice"),
+		Up:      bind([]string{"+", "=", "right", "l"}, "+/- ←/→", "step or choice"),
 		Down:    bind([]string{"-", "_", "left", "h"}, "-", "step down"),
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
 		Type:    bind([]string{"enter"}, "enter", "type value"),
-		Sweep:   bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
+		Sweep:    bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
+		Cautions: bind([]string{"c"}, "c", "cautions in full (coolant, hydrogen)"),
 	}
 }
 
@@ -95,7 +99,7 @@ func (k FieldKeys) ShortHelp() []key.Binding {
 func (k FieldKeys) FullHelp() [][]key.Binding {
 	// the second key of each pair (→, -, [) is named with the first
 	b := []key.Binding{k.Prev, k.Up, k.BigUp, k.Type}
-	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep} {
+	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep, k.Cautions} {
 		if len(x.Keys()) > 0 {
 			b = append(b, x)
 		}

@@ -11,8 +11,10 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/report"
 )
 
 // heading is a pane's first line: a marker and the name, bold when focused.
@@ -97,7 +99,14 @@ func fieldPrompt(f field) string {
 // mode switch also sets the flow or the inlet pressure so that the holdup
 // time at the start temperature stays what it was.
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
-	what := fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit)
+	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
+	editKey := f.key
+	if f.after != nil {
+		if more := f.after(sh.method, m); more != "" {
+			what = strings.TrimSpace(what) + " · " + more
+			editKey = "" // it changed other keys too: check all of it
+		}
+	}
 	if (f.key == "carrier.mode" || f.key == "carrier.gas") && sh.sys != nil && m.Carrier != sh.method.Carrier {
 		tm := sh.sys.Cond.HoldupTimeAt(sh.method.Oven.InitialC + model.ZeroCelsius)
 		if desc, err := keepHoldup(m, tm); err == nil {
@@ -106,7 +115,7 @@ func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 			what += " · " + err.Error()
 		}
 	}
-	return editMsg{m: m, what: strings.TrimSpace(what)}
+	return editMsg{m: m, what: strings.TrimSpace(what), key: editKey}
 }
 
 // --- program pane ---
@@ -153,14 +162,16 @@ func (p *programPane) key(msg tea.KeyMsg) {
 	}
 }
 
-// maxEditRamps is how many ramps a is allowed to add up to.
-const maxEditRamps = 5
+// maxEditRamps is how many ramps a adds up to: as many as a method file
+// holds (the optimizer's goal.ramps, 1–5, is how many it searches with,
+// not a limit of the program).
+const maxEditRamps = methodfile.MaxRamps
 
 func (p *programPane) addRamp() {
 	sh := p.list.sh
 	m := sh.method.Clone()
 	if len(m.Oven.Ramps) >= maxEditRamps {
-		sh.say(msgError, "five ramps at most")
+		sh.say(msgError, fmt.Sprintf("%d ramps at most: a method file holds no more (oven.ramp)", maxEditRamps))
 		return
 	}
 	prev := m.Oven.InitialC
@@ -297,6 +308,9 @@ type chartPane struct {
 	prevProg  model.Program
 	prevLabel string
 	showPrev  bool
+	faint     bool // draw the other run faint beneath (a waiting result)
+	// a measured run drawn below the prediction (a verification run)
+	meas *report.Measured
 }
 
 func newChartPane(sh *shared) *chartPane {
@@ -312,11 +326,14 @@ func (c *chartPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
 	case refreshMsg:
 		c.render()
+	case measuredMsg:
+		c.meas = msg.meas
+		c.render()
 	case previewMsg:
 		if msg.res == nil {
-			c.prev, c.showPrev = nil, false
+			c.prev, c.showPrev, c.faint = nil, false, false
 		} else {
-			c.prev, c.prevProg, c.prevLabel, c.showPrev = msg.res, msg.prog, msg.label, msg.showIt
+			c.prev, c.prevProg, c.prevLabel, c.showPrev, c.faint = msg.res, msg.prog, msg.label, msg.showIt, msg.faint
 		}
 		c.render()
 	case tea.KeyMsg:
@@ -340,6 +357,11 @@ func (c *chartPane) fullWindow() (float64, float64) {
 	for _, pk := range res.Peaks {
 		if pk.Eluted && pk.RetentionTime+4*pk.Sigma > end {
 			end = pk.RetentionTime + 4*pk.Sigma
+		}
+	}
+	if c.meas != nil { // every measured peak on the same axis
+		for _, p := range c.meas.Peaks {
+			end = math.Max(end, (p.TimeMin+2*p.WidthMin)*60)
 		}
 	}
 	return 0, end
@@ -389,13 +411,34 @@ func (c *chartPane) render() {
 	if c.zoom > 1 {
 		extra += fmt.Sprintf(" (zoom ×%.1f)", c.zoom)
 	}
-	if c.prev != nil && c.showPrev {
+	switch {
+	case c.prev != nil && c.showPrev && c.faint:
+		extra += " · " + c.prevLabel + " · ⠄⠄ dotted: the current run"
+	case c.prev != nil && c.showPrev:
 		extra += " · " + c.prevLabel
-	} else if c.prev != nil {
+	case c.prev != nil && c.faint:
+		extra += " · the current run · ⠄⠄ dotted: " + c.prevLabel
+	case c.prev != nil:
 		extra += " · the current program"
 	}
-	extra += " · numbers are elution order · oven temperature at right"
-	plot := c.c.render(chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1}, c.w, c.h-1, st)
+	if c.meas != nil {
+		extra += " · below: measured " + inert(c.meas.Label) + ", ╱ joins matched peaks"
+	}
+	// the legend, as much of it as fits whole
+	for _, l := range []string{" · numbers are elution order", " · oven temperature at right"} {
+		if ansi.StringWidth(" chromatogram"+extra+l) <= c.w {
+			extra += l
+		}
+	}
+	in := chartInput{res: res, prog: prog, comps: c.sh.sys.Compounds, t0: t0, t1: t1, meas: c.meas}
+	if c.prev != nil && c.faint {
+		// the other run, faint and dotted beneath the one shown
+		in.under = c.sh.res
+		if !c.showPrev {
+			in.under = c.prev
+		}
+	}
+	plot := c.c.render(in, c.w, c.h-1, st)
 	c.lines = fill(append([]string{heading(st, c.sh.focus == paneChart, "chromatogram", c.w, extra)}, plot...), c.h)
 }
 
@@ -407,13 +450,14 @@ var peakColumns = []struct{ name, unit string }{{"ΔH", format.UnitDH}, {"ΔS", 
 type peaksPane struct {
 	sh    *shared
 	keys  PeakKeys
-	sel   int
+	sel   int // the selected row (elution order)
+	comp  int // the selected compound (index in the method), -1 before any
 	col   int // index into peakColumns
 	w, h  int
 	lines []string
 }
 
-func newPeaksPane(sh *shared) *peaksPane { return &peaksPane{sh: sh, keys: DefaultPeakKeys()} }
+func newPeaksPane(sh *shared) *peaksPane { return &peaksPane{sh: sh, keys: DefaultPeakKeys(), comp: -1} }
 
 func (p *peaksPane) ShortHelp() []key.Binding  { return p.keys.ShortHelp() }
 func (p *peaksPane) FullHelp() [][]key.Binding { return p.keys.FullHelp() }
@@ -430,12 +474,24 @@ func (p *peaksPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	return p, nil
 }
 
+// clamp keeps the selection on the same compound when the table re-sorts
+// (an edit moves it in the elution order), else within the table.
 func (p *peaksPane) clamp() {
-	if n := len(p.sh.res.Peaks); p.sel >= n {
+	peaks := p.sh.res.Peaks
+	for i, pk := range peaks {
+		if p.comp >= 0 && pk.Compound == p.comp {
+			p.sel = i
+			return
+		}
+	}
+	if n := len(peaks); p.sel >= n {
 		p.sel = n - 1
 	}
 	if p.sel < 0 {
 		p.sel = 0
+	}
+	if p.sel < len(peaks) {
+		p.comp = peaks[p.sel].Compound
 	}
 }
 
@@ -449,8 +505,10 @@ func (p *peaksPane) key(msg tea.KeyMsg) {
 	switch {
 	case key.Matches(msg, k.Up):
 		p.sel = (p.sel + n - 1) % n
+		p.comp = sh.res.Peaks[p.sel].Compound
 	case key.Matches(msg, k.Down):
 		p.sel = (p.sel + 1) % n
+		p.comp = sh.res.Peaks[p.sel].Compound
 	case key.Matches(msg, k.Column):
 		p.col = (p.col + 1) % len(peakColumns)
 	case key.Matches(msg, k.ColumnBack):
@@ -479,7 +537,7 @@ func (p *peaksPane) key(msg tea.KeyMsg) {
 			cc := &m.Compounds[ci]
 			*compoundValue(cc, col) = round(v, compoundDigits)
 			cc.FromIndex = false
-			return editMsg{m: m, what: fmt.Sprintf("%s %s = %s %s", inert(cc.Name), pc.name, trimNum(*compoundValue(cc, col)), pc.unit)}
+			return editMsg{m: m, what: fmt.Sprintf("%s %s = %s %s", inert(cc.Name), pc.name, trimNum(*compoundValue(cc, col)), pc.unit), key: fmt.Sprintf("compound[%d]", ci+1)}
 		})})
 	}
 }
@@ -582,8 +640,13 @@ func (p *settingsPane) Update(msg tea.Msg) (component, tea.Cmd) {
 		p.list.clamp()
 		p.render()
 	case tea.KeyMsg:
-		if !p.list.key(msg) && key.Matches(msg, p.list.keys.Sweep) {
-			p.list.sh.send(startSweepMsg{spec: carrierSweep(p.list.sh.method)})
+		if !p.list.key(msg) {
+			switch {
+			case key.Matches(msg, p.list.keys.Sweep):
+				p.list.sh.send(startSweepMsg{spec: carrierSweep(p.list.sh.method)})
+			case key.Matches(msg, p.list.keys.Cautions):
+				p.list.sh.send(openMsg{newCautionDialog(p.list.sh)})
+			}
 		}
 		p.list.clamp()
 	}
@@ -597,10 +660,22 @@ func (p *settingsPane) render() {
 	fs := settingsFields(m)
 	focused := sh.focus == paneSettings
 	lines := []string{heading(st, focused, "settings", p.w, "  ↑/↓ choose · +/- change · enter types · s sweeps the flow or pressure")}
-	if m.Carrier.Gas.Flammable() {
-		lines = append(lines, ansi.Truncate(st.Warn.Render(" ⚠ "+model.HydrogenCaution), p.w, "…"))
+	if note := checks.CoolantNote(m); note != "" {
+		// the cautions in full are one key away (c), and open by
+		// themselves when a coolant is added
+		tail := " · c: in full"
+		lines = append(lines, st.Warn.Render(ansi.Truncate(" ⚠ "+note, p.w-len(tail), "…")+tail),
+			st.Warn.Render(ansi.Truncate(" ⚠ "+model.CryogenCaution, p.w, "…")))
 	}
-	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil {
+	if m.Carrier.Gas.Flammable() {
+		// safety text is never cut: it wraps
+		for _, l := range wrap(" ⚠ "+model.HydrogenCaution, p.w) {
+			lines = append(lines, st.Warn.Render(l))
+		}
+	}
+	// the derived inlet pressure gives way when fewer than three settings
+	// would show
+	if m.Carrier.Mode == model.ConstantFlow && sh.sys != nil && p.h-len(lines)-1 >= 3 {
 		prog := m.ModelProgram()
 		lo, hi := sh.sys.Cond.InletGauge(prog.Initial)/1000, sh.sys.Cond.InletGauge(prog.MaxTemp())/1000
 		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("  %-30s ", "inlet pressure (gauge), derived"))+

@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -10,6 +11,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -52,7 +54,7 @@ func TestResultReplacesHelp(t *testing.T) {
 	}
 }
 
-// q and ctrl+c work while a fit waits for a decision; the footer lists
+// q closes a fit review and ctrl+c asks to quit while it waits; the footer lists
 // the dialog's keys, not the program's.
 func TestQuitFromFitReview(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
@@ -65,8 +67,8 @@ func TestQuitFromFitReview(t *testing.T) {
 	if !strings.Contains(foot, "take it") || strings.Contains(foot, "add ramp") {
 		t.Errorf("footer is not the dialog's: %q", foot)
 	}
-	if !press(a, "q") {
-		t.Error("q did nothing in the fit review (nothing unsaved: it should quit)")
+	if press(a, "q") || a.overlay != nil {
+		t.Errorf("q in the fit review should close it (keeping the current parameters), not quit: %T", a.overlay)
 	}
 	press(a, "F", runs, "enter", "y") // now there is something unsaved
 	press(a, "F", runs, "enter")
@@ -76,8 +78,8 @@ func TestQuitFromFitReview(t *testing.T) {
 	if _, ok := a.overlay.(*confirmDialog); !ok {
 		t.Fatalf("ctrl+c did not ask: %T", a.overlay)
 	}
-	if !press(a, "y") {
-		t.Error("y did not quit")
+	if !press(a, "d") {
+		t.Error("d did not quit")
 	}
 }
 
@@ -127,7 +129,7 @@ func TestSelectionVisibleWithoutColour(t *testing.T) {
 		t.Errorf("peak selection not marked:\n%s", s)
 	}
 	press(a, "tab")
-	if s := screen(a); !strings.Contains(s, "[30.0 m]") {
+	if s := screen(a); !strings.Contains(s, "[wall-coated]") {
 		t.Errorf("setting selection not marked:\n%s", s)
 	}
 }
@@ -147,7 +149,7 @@ func TestSeeBeforeTaking(t *testing.T) {
 		t.Error("the chart does not show the optimized run")
 	}
 	s := screen(a)
-	if !strings.Contains(s, "optimized program") {
+	if !strings.Contains(s, "optimized run") {
 		t.Errorf("chart heading does not say which run it shows:\n%s", s)
 	}
 	for _, r := range d.after.Oven.Ramps {
@@ -178,7 +180,7 @@ func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
 	}
 	want := holdup()
 	press(a, "shift+tab") // settings
-	for i := 0; i < 5; i++ {
+	for i := 0; i < 6; i++ {
 		press(a, "down")
 	}
 	press(a, "+") // constant pressure
@@ -209,7 +211,7 @@ func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
 // What is shown is what is saved.
 func TestValuesAtSavedPrecision(t *testing.T) {
 	a, path := newApp(t, 100, 32)
-	press(a, "shift+tab", "down", "down", "down", "down", "down", "down") // column flow
+	press(a, "shift+tab", "down", "down", "down", "down", "down", "down", "down") // column flow
 	press(a, "enter", "ctrl+u", "1.234567", "enter")
 	if got := a.Method().Carrier.FlowMLMin; got != 1.23 {
 		t.Errorf("flow kept as %v, want 1.23 (what the screen shows)", got)
@@ -307,7 +309,7 @@ func TestFlowWindowDiagram(t *testing.T) {
 		}
 	}
 	// in constant pressure, the inlet pressure, never above the limit
-	press(a, "esc", "down", "down", "down", "down", "down", "+", "s") // pressure mode
+	press(a, "esc", "down", "down", "down", "down", "down", "down", "+", "s") // pressure mode
 	d, ok = a.overlay.(*sweepDialog)
 	if !ok || d.spec.value.Kind != model.InletPressure || d.spec.unit != "kPa" {
 		t.Fatalf("no inlet-pressure diagram in constant pressure: %T %s", a.overlay, a.message)
@@ -535,5 +537,297 @@ func TestFiveRampResultFits(t *testing.T) {
 	}
 	if !strings.Contains(s, "0.125") {
 		t.Errorf("holds not shown at the precision saved:\n%s", s)
+	}
+}
+
+// A key typed while a save runs in the background (ctrl+s q sent together)
+// waits for the save and then acts: here q quits once the file is saved.
+func TestKeyDuringSaveWaits(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	press(a, "-")
+	_, save := a.Update(tea.KeyMsg{Type: tea.KeyCtrlS}) // the save, not run yet
+	if save == nil || !a.saving() {
+		t.Fatal("ctrl+s started no save")
+	}
+	if _, cmd := a.Update(keyRune('q')); cmd != nil && runCmd(a, cmd) {
+		t.Fatal("quit before the save was done")
+	}
+	if len(a.queued) != 1 {
+		t.Fatalf("%d keys waiting, want 1", len(a.queued))
+	}
+	if !runCmd(a, save) {
+		t.Fatalf("q typed during the save did not quit after it: %s", a.message)
+	}
+	back, err := methodfile.ReadFile(path)
+	if err != nil || !back.Equal(a.Method()) {
+		t.Errorf("not saved before quitting: %v", err)
+	}
+}
+
+// At the end of piped keys the UI finishes as if the user quit: unsaved
+// changes are reported (the command writes the recovery file) and a save
+// under way is waited for.
+func TestEndOfInputQuits(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	if !send(a, InputEndedMsg{}) {
+		t.Fatal("the end of input did not quit")
+	}
+	if ended, unsaved := a.InputEnded(); !ended || unsaved {
+		t.Errorf("ended %v unsaved %v, want true false", ended, unsaved)
+	}
+
+	a, _ = newApp(t, 80, 24)
+	press(a, "-", "q") // the question is open when the keys run out
+	if !send(a, InputEndedMsg{}) {
+		t.Fatal("the end of input did not quit with the question open")
+	}
+	if _, unsaved := a.InputEnded(); !unsaved {
+		t.Error("unsaved changes not reported")
+	}
+	if p, err := a.guard.WriteRecovery(); err != nil || p == "" {
+		t.Errorf("no recovery written: %q %v", p, err)
+	}
+
+	a, _ = newApp(t, 80, 24)
+	press(a, "-")
+	_, save := a.Update(tea.KeyMsg{Type: tea.KeyCtrlS})
+	if _, cmd := a.Update(InputEndedMsg{}); cmd != nil && runCmd(a, cmd) {
+		t.Fatal("ended before the save was done")
+	}
+	if !runCmd(a, save) {
+		t.Fatal("did not end after the save")
+	}
+	if _, unsaved := a.InputEnded(); unsaved {
+		t.Error("saved, yet reported unsaved")
+	}
+}
+
+// At 80×24 nothing on the main screen is cut with "…" (title, method
+// lines, summary, message, footer wrap or keep whole items), no row stays
+// blank at the bottom, and the peak table gets the rows the message does
+// not need.
+func TestNothingCutAt80x24(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "tab", "tab") // peaks
+	s := screen(a)
+	for i, l := range strings.Split(s, "\n") {
+		if strings.Contains(l, "…") {
+			t.Errorf("line %d cut: %q", i, l)
+		}
+	}
+	lines := strings.Split(s, "\n")
+	if strings.TrimSpace(lines[len(lines)-2]) == "" {
+		t.Errorf("a blank row above the footer:\n%s", s)
+	}
+	if !strings.Contains(s, "  7 alpha-pinene") {
+		t.Errorf("the peak table shows fewer than 7 compounds:\n%s", s)
+	}
+	if !strings.Contains(unwrap(s), "Rs 1.06 not met ◆ beta-pinene / myrcene (target 1.50)") {
+		t.Errorf("the critical pair is not named whole:\n%s", s)
+	}
+	// a long message wraps; past its rows it points to the list, which
+	// shows it whole
+	long := strings.Repeat("a long status message that goes on ", 20)
+	a.say(msgInfo, "%s", long)
+	a.refresh()
+	if s := screen(a); !strings.Contains(s, "! shows it all") {
+		t.Errorf("a cut message does not say where it is whole:\n%s", s)
+	}
+	press(a, "!")
+	if s := screen(a); strings.Contains(s, "! shows it all") {
+		t.Errorf("the message still cut under the list:\n%s", s)
+	}
+	var list []string
+	for i := 0; i < 30; i++ {
+		d := a.overlay.(*cautionsDialog)
+		if i == 0 || d.top > 0 {
+			list = append(list, d.lines[1+max(0, len(list)-d.top):]...)
+		}
+		press(a, "down")
+	}
+	if !strings.Contains(unwrap(strings.Join(list, "\n")), strings.TrimSpace(long)) {
+		t.Errorf("the cautions list does not show the whole message:\n%s", strings.Join(list, "\n"))
+	}
+}
+
+// ! lists every caution simulate prints (checks.Cautions), scrollable,
+// also after taking the optimizer's program.
+func TestCautionsListedLikeSimulate(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	fastOptimizer(a)
+	press(a, "o")
+	press(a, "y")
+	want := checks.Cautions(a.Method(), a.sh.sys, a.Result())
+	if len(want) == 0 {
+		t.Skip("no cautions for this program")
+	}
+	press(a, "!")
+	d, ok := a.overlay.(*cautionsDialog)
+	if !ok {
+		t.Fatalf("! opened %T", a.overlay)
+	}
+	var seen strings.Builder
+	for i := 0; i < 40; i++ {
+		seen.WriteString(screen(a) + "\n")
+		press(a, "down")
+	}
+	for _, w := range want {
+		if !strings.Contains(unwrap(seen.String()), w) {
+			t.Errorf("caution not listed: %s", w)
+		}
+	}
+	if len(d.body) > d.h-1 && d.top == 0 {
+		t.Error("↓ did not scroll a long list")
+	}
+	press(a, "esc")
+	if a.overlay != nil {
+		t.Error("esc did not close the list")
+	}
+}
+
+// On a terminal too small to draw in, keys never reach the hidden dialog
+// (typing once gave "45q" in a value): only q acts, and its question is
+// shown and answered there.
+func TestTooSmallOnlyQuits(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "-", "enter") // a change, and the value's prompt open
+	p, ok := a.overlay.(*promptDialog)
+	if !ok {
+		t.Fatalf("no prompt: %T", a.overlay)
+	}
+	before := p.ti.Value()
+	send(a, tea.WindowSizeMsg{Width: 60, Height: 20})
+	if press(a, "4", "5", "+", "u", "o") {
+		t.Fatal("quit")
+	}
+	if got := p.ti.Value(); got != before {
+		t.Errorf("the hidden prompt took keys: %q, was %q", got, before)
+	}
+	if a.job != nil || len(a.undo) != 1 {
+		t.Errorf("keys acted on the hidden screen: job %v, %d undo", a.job != nil, len(a.undo))
+	}
+	if press(a, "q") {
+		t.Fatal("q quit with unsaved changes without asking")
+	}
+	if s := screen(a); !strings.Contains(s, "s save and quit") || !strings.Contains(s, "q quits") {
+		t.Errorf("the question is not shown on the small screen:\n%s", s)
+	}
+	if !press(a, "d") {
+		t.Error("d did not quit")
+	}
+	// nothing unsaved: q quits at once
+	a, _ = newApp(t, 60, 20)
+	if !press(a, "q") {
+		t.Error("q did not quit a small, clean screen")
+	}
+}
+
+// After an edit re-sorts the peak table, the selection stays on the
+// compound edited, so that the next edit lands on it too.
+func TestPeakSelectionFollowsCompound(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "tab", "tab")
+	for i := 0; i < 8; i++ {
+		press(a, "down")
+	}
+	name := func() string {
+		return a.Method().Compounds[a.Result().Peaks[a.peaks.sel].Compound].Name
+	}
+	if name() != "beta-pinene" {
+		t.Fatalf("selected %s", name())
+	}
+	row := a.peaks.sel
+	press(a, "enter", "ctrl+u", "-58", "enter") // ΔH: now after myrcene
+	if name() != "beta-pinene" {
+		t.Errorf("after the re-sort the selection moved to %s", name())
+	}
+	if a.peaks.sel == row {
+		t.Fatal("the edit did not move beta-pinene in the table")
+	}
+	press(a, "enter", "ctrl+u", "-58.5", "enter")
+	for _, c := range a.Method().Compounds {
+		if c.Name == "beta-pinene" && c.DHkJ != -58.5 {
+			t.Errorf("the second edit missed beta-pinene: ΔH %v", c.DHkJ)
+		}
+		if c.Name == "myrcene" && c.DHkJ == -58.5 {
+			t.Error("the second edit landed on myrcene")
+		}
+	}
+	if !strings.Contains(screen(a), "›11 beta-pinene") {
+		t.Errorf("the marked row is not beta-pinene:\n%s", screen(a))
+	}
+}
+
+// ↑/↓ step a program value and ←/→ a setting: the key list says so.
+func TestArrowStepsListed(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	was := a.Method().Oven.InitialC
+	press(a, "up")
+	if a.Method().Oven.InitialC <= was {
+		t.Fatal("↑ did not step the start temperature")
+	}
+	press(a, "?")
+	if s := screen(a); !strings.Contains(s, "+/- ↑/↓ step") {
+		t.Errorf("the key list does not name ↑/↓ as a step:\n%s", s)
+	}
+	press(a, "esc", "shift+tab", "?")
+	if s := screen(a); !strings.Contains(s, "+/- ←/→ step or choice") {
+		t.Errorf("the settings' key list does not name ←/→:\n%s", s)
+	}
+}
+
+// a adds ramps up to what a method file holds, and says that limit; a
+// method with more ramps than the optimizer's goal.ramps (1–5) edits.
+func TestAddRampLimit(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	m := a.Method().Clone()
+	m.Oven.Ramps = nil
+	for i := 0; i < 7; i++ {
+		m.Oven.Ramps = append(m.Oven.Ramps, methodfile.Ramp{RateCMin: 5, FinalC: 60 + 10*float64(i), HoldMin: 0.1})
+	}
+	if !a.apply(m, "seven ramps", "") {
+		t.Fatalf("a 7-ramp program refused: %s", a.message)
+	}
+	press(a, "a")
+	if n := len(a.Method().Oven.Ramps); n != 8 {
+		t.Fatalf("a on 7 ramps: %d ramps (%s)", n, a.message)
+	}
+	m = a.Method().Clone()
+	for len(m.Oven.Ramps) < methodfile.MaxRamps-1 {
+		m.Oven.Ramps = append(m.Oven.Ramps, methodfile.Ramp{RateCMin: 5, FinalC: m.Oven.Ramps[len(m.Oven.Ramps)-1].FinalC + 1})
+	}
+	if !a.apply(m, "29 ramps", "") {
+		t.Fatalf("29 ramps refused: %s", a.message)
+	}
+	press(a, "a")
+	if n := len(a.Method().Oven.Ramps); n != methodfile.MaxRamps {
+		t.Fatalf("a on %d ramps: %d (%s)", methodfile.MaxRamps-1, n, a.message)
+	}
+	press(a, "a")
+	if n := len(a.Method().Oven.Ramps); n != methodfile.MaxRamps {
+		t.Errorf("%d ramps", n)
+	}
+	if want := fmt.Sprintf("%d ramps at most", methodfile.MaxRamps); !strings.Contains(a.message, want) {
+		t.Errorf("limit message %q, want %q", a.message, want)
+	}
+}
+
+// Save as to an existing folder is refused with a clear message (not
+// "replace it?").
+func TestSaveAsFolderRefused(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	dir := t.TempDir()
+	press(a, "-", "W", "ctrl+u", dir, "enter")
+	if _, ok := a.overlay.(*confirmDialog); ok {
+		t.Fatal("asked to replace a folder")
+	}
+	if !strings.Contains(a.message, "is a folder") || !strings.Contains(a.message, "not saved") {
+		t.Errorf("message %q", a.message)
+	}
+	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
+		t.Error("the folder is gone")
+	}
+	if !a.Dirty() || a.Path() != path {
+		t.Error("the method's file changed")
 	}
 }

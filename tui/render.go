@@ -13,26 +13,49 @@ import (
 // The root's own lines: title, method, summary and messages. Every string
 // from the file goes through inert.
 
-func (a *App) titleLine(w int) string {
+// titleLines are the file's name and the method's title, "modified" at the
+// right; "rampwise ·" only when it fits on one line. A long title wraps
+// (at most maxTitleRows lines).
+func (a *App) titleLines(w int) []string {
 	name := inert(a.name)
 	if a.name == "" {
 		name = "built-in demo"
 	}
-	left := " rampwise · " + name
+	text := name
 	if t := a.sh.method.Title; t != "" {
-		left += " · " + inert(t)
+		text += " · " + inert(t)
 	}
 	right := ""
 	if a.Dirty() {
 		right = "modified "
 	}
-	left = ansi.Truncate(left, w-len(right)-1, "…")
-	pad := max(0, w-ansi.StringWidth(left)-ansi.StringWidth(right))
-	return a.st.Title.Render(left+strings.Repeat(" ", pad)) + a.st.Modified.Render(right)
+	room := w - ansi.StringWidth(right) - 1
+	left := " rampwise · " + text
+	if ansi.StringWidth(left) > room {
+		left = " " + text
+	}
+	lines := wrap(left, room)
+	if len(lines) > maxTitleRows {
+		lines = lines[:maxTitleRows]
+		lines[maxTitleRows-1] = ansi.Truncate(lines[maxTitleRows-1], room-1, "") + "…"
+	}
+	for i, l := range lines {
+		r := ""
+		if i == 0 {
+			r = right
+		}
+		pad := max(0, w-ansi.StringWidth(l)-ansi.StringWidth(r))
+		lines[i] = a.st.Title.Render(l+strings.Repeat(" ", pad)) + a.st.Modified.Render(r)
+	}
+	return lines
 }
 
-// methodLine shows the column and carrier at the precision they are saved.
-func (a *App) methodLine(w int) string {
+// maxTitleRows is the most the title takes.
+const maxTitleRows = 3
+
+// methodLines show the column and carrier at the precision they are
+// saved, wrapped.
+func (a *App) methodLines(w int) []string {
 	m := a.sh.method
 	c, g := m.Column, m.Carrier
 	fs := map[string]field{}
@@ -53,16 +76,35 @@ func (a *App) methodLine(w int) string {
 	if phase == "" {
 		phase = "phase not named"
 	}
-	s := fmt.Sprintf(" %s m × %s mm × %s µm, max %s °C · %s %s · goal Rs %.2f, %s, %d ramps · %s",
-		v("column.length_m"), v("column.diameter_mm"), v("column.film_um"), v("column.max_temp_c"), g.Gas, flow,
-		m.Goal.MinResolution, m.Goal.Objective, m.Goal.Ramps, phase)
-	if g.Gas.Flammable() {
-		return a.st.Warn.Render(" ⚠ H₂ flammable ") + a.st.Dim.Render(ansi.Truncate(s, w-16, "…"))
+	col := fmt.Sprintf("%s m × %s mm × %s µm", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
+	switch c.Kind {
+	case model.Packed:
+		col = fmt.Sprintf("packed %s m × %s mm, %s µm particles", v("column.length_m"), v("column.diameter_mm"), v("column.particle_um"))
+	case model.PorousLayer:
+		col = fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
 	}
-	return a.st.Dim.Render(ansi.Truncate(s, w, "…"))
+	// the target resolution is in the summary below
+	s := fmt.Sprintf(" %s, max %s °C · %s %s · goal %s, %d ramps · %s",
+		col, v("column.max_temp_c"), g.Gas, flow,
+		m.Goal.Objective, m.Goal.Ramps, phase)
+	const h2 = " ⚠ H₂ flammable ·"
+	if g.Gas.Flammable() {
+		s = h2 + s
+	}
+	lines := wrap(s, w)
+	for i, l := range lines {
+		if i == 0 && g.Gas.Flammable() {
+			lines[i] = a.st.Warn.Render(h2) + a.st.Dim.Render(strings.TrimPrefix(l, h2))
+			continue
+		}
+		lines[i] = a.st.Dim.Render(l)
+	}
+	return lines
 }
 
-func (a *App) summaryLine(w int) string {
+// summaryLines are the run's times, the critical pair and what the
+// program breaks, wrapped.
+func (a *App) summaryLines(w int) []string {
 	r := &a.res
 	s := fmt.Sprintf(" holdup %.2f · run %.2f · cycle %.2f min · ", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60)
 	rs := "no counted pair"
@@ -70,11 +112,11 @@ func (a *App) summaryLine(w int) string {
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
 		target := a.sh.method.Goal.MinResolution
-		if !format.Met(r.MinResolution, target) {
+		if !format.MetAll(r.MinResolution, target, r.TargetsNotEluted) {
 			style = a.st.Bad
 		}
 		// the pair before the target, so that a narrow screen still names it
-		rs = "Rs " + format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target) + " " +
+		rs = "Rs " + format.RsNumber(r.MinResolution, target) + " " + format.VerdictAll(r.MinResolution, target, r.TargetsNotEluted) + " " +
 			format.CriticalPair(inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name)) +
 			" (target " + format.Target(target) + ")"
 	}
@@ -93,11 +135,42 @@ func (a *App) summaryLine(w int) string {
 	if at, over := a.sh.sys.Cond.OverPressure(m.Limits.MaxInletKPa*1000, prog.Initial, prog.MaxTemp()); over {
 		tail += fmt.Sprintf(" · inlet over %s kPa from %.0f °C", trimNum(m.Limits.MaxInletKPa), at-model.ZeroCelsius)
 	}
-	return ansi.Truncate(a.st.Info.Render(s)+style.Render(rs)+a.st.Warn.Render(tail), w, "…")
+	if n := len(a.cautions()); n > 0 {
+		tail += fmt.Sprintf(" · %d %s (! lists)", n, plural(n, "caution", "cautions"))
+	}
+	return wrapStyled(a.st.Info.Render(s)+style.Render(rs)+a.st.Warn.Render(tail), w)
 }
 
-// messageLines is the status message on two lines.
-func (a *App) messageLines(w int) []string {
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+// wrapStyled wraps styled text at spaces into lines of at most w columns,
+// the lines after the first indented by one.
+func wrapStyled(s string, w int) []string {
+	// ansi.Wrap breaks at every hyphen: keep names such as beta-pinene
+	// whole (a non-breaking hyphen, as wide, stands in while wrapping)
+	const nbh = "\u2011"
+	lines := strings.Split(ansi.Wrap(strings.ReplaceAll(s, "-", nbh), w-1, ""), "\n")
+	for i := range lines {
+		lines[i] = strings.ReplaceAll(lines[i], nbh, "-")
+		if i > 0 {
+			lines[i] = " " + strings.TrimLeft(lines[i], " ")
+		}
+	}
+	return lines
+}
+
+// messageLines is the status message, wrapped, on at most n lines (none
+// when there is none); one that needs more ends with a pointer to the
+// cautions list, which shows it whole.
+func (a *App) messageLines(w, n int) []string {
+	if a.message == "" || n <= 0 {
+		return nil
+	}
 	st := a.st.Info
 	switch a.kind {
 	case msgWarn:
@@ -108,12 +181,10 @@ func (a *App) messageLines(w int) []string {
 		st = a.st.Good
 	}
 	lines := wrap(" "+a.message, w)
-	for len(lines) < 2 {
-		lines = append(lines, "")
-	}
-	if len(lines) > 2 {
-		lines = lines[:2]
-		lines[1] = ansi.Truncate(lines[1], w-1, "") + "…"
+	if len(lines) > n {
+		const more = "… (! shows it all)"
+		lines = lines[:n]
+		lines[n-1] = ansi.Truncate(lines[n-1], w-ansi.StringWidth(more), "") + more
 	}
 	for i := range lines {
 		lines[i] = st.Render(lines[i])

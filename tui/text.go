@@ -7,5 +7,9 @@ import "github.com/rampwise/rampwise/model/textsafe"
 func inert(s string) string { return textsafe.Inert(s) }
 
 // inertErr is an error's text made inert: errors quote names and values
-// from files.
-func inertErr(err error) string { return inert(err.Error()) }
+// from files, already through textsafe.Inert (whose escapes are kept, not
+// doubled).
+func inertErr(err error) string { return textsafe.Message(err.Error()) }
+
+// inertMsg is inertErr for an error's text already trimmed.
+func inertMsg(s string) string { return textsafe.Message(s) }

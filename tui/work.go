@@ -156,8 +156,15 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 			a.say(msgError, "%v", inertErr(v.err))
 			return nil
 		}
+		if v.path != a.plan.runs {
+			a.plan.runs, a.plan.prior = v.path, nil // other runs: the method is their prior
+		}
 		a.open(newFitDialog(&a.sh, v))
 		a.say(msgInfo, "fitted %d compounds from %s: y takes the fitted values into the method, n keeps the current ones", len(v.rep.Compounds), inert(v.path))
+	case planOutcome:
+		a.planDone(v)
+	case verifyOutcome:
+		a.verifyDone(v)
 	case compareOutcome:
 		a.open(newRankingDialog(&a.sh, v.out))
 		a.say(msgGood, "ranked %d columns: enter switches the method to the chosen one", len(v.out))
@@ -189,6 +196,10 @@ func (a *App) saveAs(path string, quit bool) tea.Cmd {
 		a.say(msgError, "no file name given; not saved")
 		return nil
 	}
+	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		a.say(msgError, "%s is a folder: give a file name in it, such as %s (not saved)", inert(path), inert(filepath.Join(path, "method.toml")))
+		return nil
+	}
 	if _, err := os.Stat(path); err == nil && !a.wrote[path] {
 		a.open(newConfirm(&a.sh, "replace "+inert(path)+"?", "it exists and was not written here", []choice{
 			{keys: []string{"y"}, label: "replace it", msgs: []tea.Msg{saveMsg{path: path, quit: quit}}},
@@ -211,7 +222,7 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 		return nil
 	}
 	m := a.sh.method
-	_, cmd := a.startJob("saving "+inert(path), func(ctx context.Context) any {
+	j, cmd := a.startJob("saving "+inert(path), func(ctx context.Context) any {
 		existed := false
 		if fp, err := fsafe.Take(path); err == nil && fp.Exists {
 			existed = true
@@ -219,6 +230,7 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 		kept, err := methodfile.Save(path, nil, m)
 		return saveOutcome{path: path, m: m, err: err, quit: quit, fresh: existed && !kept}
 	})
+	j.save = true
 	return cmd
 }
 
@@ -407,12 +419,7 @@ func fitRuns(m *methodfile.Method, path string) fitOutcome {
 		return out
 	}
 	fm := rep.Method.Clone()
-	fm.Column.DiameterMM = round(fm.Column.DiameterMM, settingsSaved["column.diameter_mm"])
-	fm.Column.PlateHeight = round(fm.Column.PlateHeight, 3)
-	for i := range fm.Compounds {
-		c := &fm.Compounds[i]
-		c.DHkJ, c.DS, c.DCp = round(c.DHkJ, compoundDigits), round(c.DS, compoundDigits), round(c.DCp, compoundDigits)
-	}
+	methodfile.RoundFitted(fm) // the rule fit --out uses too
 	rep.Method = fm
 	out.rep = rep
 	sys, err := fm.System()
@@ -429,7 +436,7 @@ func fitRuns(m *methodfile.Method, path string) fitOutcome {
 
 // compoundDigits is how many decimals ΔH (kJ/mol), ΔS and ΔCp (J/(mol·K))
 // keep when they are fitted or typed.
-const compoundDigits = 3
+const compoundDigits = methodfile.FittedCompoundDecimals
 
 // --- ranking of column dimensions (C) ---
 

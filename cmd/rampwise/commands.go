@@ -33,6 +33,7 @@ func init() {
 		{"optimize", "[FILE] [flags]", "find the fastest program meeting the target", runOptimize},
 		{"fit", "METHOD RUNS [flags]", "calibrate ΔH, ΔS (ΔCp) from scouting runs", runFit},
 		{"index", "METHOD [flags]", "retention indices against the ladder alkanes", runIndex},
+		{"check", "METHOD RUN [flags]", "does a measured run meet the target? (exit 0 yes, 3 no)", runCheck},
 		{"export", "METHOD [flags]", "figure (PNG/SVG/PDF), peak CSV, method sheet", runExport},
 		{"sweep", "METHOD [flags]", "window diagram of one or two program values", runSweep},
 		{"compare", "METHOD... [flags]", "rank phases and column dimensions", runCompare},
@@ -68,8 +69,10 @@ func usage() string {
 	}
 	b.WriteString(`
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
-compounds). Without FILE, or with - for FILE or METHOD, the built-in demo
-method is used. rampwise help COMMAND (or rampwise COMMAND --help) explains a
+compounds). - for FILE or METHOD reads the method from standard input
+(cat m.toml | rampwise simulate -); without FILE, or with @demo for FILE or
+METHOD, the built-in demo method is used; an empty name ("") is refused.
+rampwise help COMMAND (or rampwise COMMAND --help) explains a
 command and its flags.
 
 Limits: the instrument limits in the file (limits.max_rate_c_min and
@@ -80,7 +83,8 @@ limits.coolant_c) refuse a program everywhere; the search bounds
 bind what optimize proposes and are only noted for a program set by hand.
 
 Exit codes: 0 success; 1 unexpected failure; 2 bad input (the message names
-file, line and key); 3 optimize could not meet the target resolution.
+file, line and key); 3 optimize could not meet the target resolution, or
+check: the measured run does not meet it.
 
 Safety: never program the oven above the column's maximum temperature; the
 oven and inlet are hot; hydrogen carrier gas is flammable (leak checks, a
@@ -148,16 +152,31 @@ func runVersion(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-// versionLine is "rampwise VERSION (commit REV[, modified], TIME)" from the
-// build information; a value Go did not record is left out or "unknown".
+// buildCommit is the commit given at link time, for builds where Go
+// records no version-control information (a git worktree, whose .git is a
+// file Go does not recognise, golang/go#58218; -buildvcs=false; go run):
+//
+//	go build -ldflags "-X main.buildCommit=$(git rev-parse HEAD)" ./cmd/rampwise
+var buildCommit string
+
+// versionLine is "rampwise VERSION (commit REV[, modified], TIME, GO)" from
+// the build information.
 func versionLine() string {
 	info, ok := debug.ReadBuildInfo()
-	if !ok {
+	return versionFrom(info, ok, buildCommit)
+}
+
+// versionFrom is versionLine for the given build information and link-time
+// commit. Without a recorded revision it names the link-time commit, or
+// says the binary was built without version control information (never
+// "commit unknown", which reads like a fault of the checkout).
+func versionFrom(info *debug.BuildInfo, ok bool, ldCommit string) string {
+	if !ok || info == nil {
 		return "rampwise (no build information)"
 	}
 	version := info.Main.Version
 	if version == "" {
-		version = "unknown"
+		version = "(devel)"
 	}
 	var rev, when string
 	modified := false
@@ -172,14 +191,17 @@ func versionLine() string {
 		}
 	}
 	var extra []string
-	if rev != "" {
+	switch {
+	case rev != "":
 		c := "commit " + rev
 		if modified {
 			c += " (modified)"
 		}
 		extra = append(extra, c)
-	} else {
-		extra = append(extra, "commit unknown")
+	case strings.TrimSpace(ldCommit) != "":
+		extra = append(extra, "commit "+strings.TrimSpace(ldCommit))
+	default:
+		extra = append(extra, "built without version control information")
 	}
 	if when != "" {
 		extra = append(extra, when)
@@ -208,11 +230,41 @@ func newFlags(name, help string, _ io.Writer) *flag.FlagSet {
 			if !strings.HasSuffix(strings.TrimRight(help, "\n"), ":") {
 				fmt.Fprint(fs.Output(), "\nFlags:\n")
 			}
-			fs.PrintDefaults()
+			printDefaults(fs)
 		}
 	}
 	return fs
 }
+
+// printDefaults is flag.PrintDefaults in its layout, except that a flag
+// whose default is NaN (a value that must be given, or one that is off
+// unless given) shows no default rather than "(default NaN)".
+func printDefaults(fs *flag.FlagSet) {
+	fs.VisitAll(func(f *flag.Flag) {
+		var b strings.Builder
+		fmt.Fprintf(&b, "  -%s", f.Name)
+		name, usage := flag.UnquoteUsage(f)
+		if name != "" {
+			b.WriteString(" " + name)
+		}
+		if b.Len() <= 4 {
+			b.WriteString("\t")
+		} else {
+			b.WriteString("\n    \t")
+		}
+		b.WriteString(strings.ReplaceAll(usage, "\n", "\n    \t"))
+		if d := f.DefValue; d != "" && d != "0" && d != "false" && d != "NaN" {
+			if g, ok := f.Value.(flag.Getter); ok && isString(g.Get()) {
+				fmt.Fprintf(&b, " (default %q)", d)
+			} else {
+				fmt.Fprintf(&b, " (default %v)", d)
+			}
+		}
+		fmt.Fprintln(fs.Output(), b.String())
+	})
+}
+
+func isString(v any) bool { _, ok := v.(string); return ok }
 
 // parseFlags parses args with fs, flags before and after the positional
 // arguments, which it returns.
@@ -228,6 +280,10 @@ func parseFlags(fs *flag.FlagSet, args []string) ([]string, error) {
 		args = fs.Args()
 		if len(args) == 0 {
 			break
+		}
+		if strings.TrimSpace(args[0]) == "" {
+			// an unset shell variable ("$METHOD") must not mean the demo
+			return nil, badf("%s: an empty file name (give a method file, - for standard input, or %s for the built-in demo)", fs.Name(), DemoArg)
 		}
 		pos = append(pos, args[0])
 		args = args[1:]

@@ -33,7 +33,8 @@ goal and limits, its carrier flow (or inlet pressure) optimized with the
 program unless goal.lock names "flow", and the table ranks them:
 those that reach the target first, fastest first, with the inlet pressure the
 program needs at its start and end and the highest oven temperature it uses;
-then those that cannot reach it, with their limiting pair. "-" is the demo.
+then those that cannot reach it, with their limiting pair. - reads one method from
+standard input; @demo is the built-in demo.
 
 The column kind is part of a candidate: methods on wall-coated, packed and
 porous-layer columns are ranked together (a packed column with the same
@@ -150,7 +151,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 						c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
 						c.Carrier.Gas = g
 						if err := c.Validate(); err != nil {
-							if kindName(m.Column.Kind) != kindOfLists {
+							if m.Column.Kind != kindOfLists {
 								fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
 								lastSkip = err
 								continue
@@ -252,7 +253,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintln(tw, "#\tphase\tcolumn\tcarrier\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
 	for i, j := range rows {
 		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
-		if j.Kind != "wall-coated" {
+		if j.Kind != kindOfLists.String() {
 			col = j.Kind + " " + col
 		}
 		phase := textsafe.Inert(j.Phase)
@@ -301,11 +302,6 @@ func carrierText(c carrierJSON) string {
 // kindOfLists is the kind the dimension lists are written for: a list
 // value outside another kind's ranges skips that candidate instead of
 // failing the comparison.
-const kindOfLists = "wall-coated"
+const kindOfLists = model.WallCoated
 
-func kindName(k string) string {
-	if k == "" {
-		return "wall-coated"
-	}
-	return k
-}
+func kindName(k model.ColumnKind) string { return k.String() }

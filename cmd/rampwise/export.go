@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
@@ -17,14 +18,20 @@ import (
 	"github.com/rampwise/rampwise/model/textsafe"
 )
 
-const exportHelp = `Usage: rampwise export METHOD [--png F] [--svg F] [--pdf F] [--csv F] [--sheet F]
+const exportHelp = `Usage: rampwise export METHOD [--png F] [--svg F] [--pdf F] [--csv F] [--sheet F] [--measured RUN]
+                       [--width W] [--height H]
 
 Writes the method's simulated chromatogram as a figure (PNG, SVG or PDF:
 labelled peaks, the critical pair marked, the oven program in a panel below
 on the same time axis), the peak table as CSV, and a Markdown method sheet
 (column, carrier, heated zones, oven program, limits, expected retention,
 critical pair, where the parameters come from, and the cautions). Every file
-is written atomically. Without METHOD's name, "-" uses the built-in demo.
+is written atomically. - as METHOD reads the method from standard input;
+@demo uses the built-in demo.
+--measured RUN (a peak table, an AIA/ANDI chromatogram, or a runs file's
+last run, as check reads it) draws the measured run mirrored under the
+predicted chromatogram on the same time axis, each compound's predicted
+and measured apex joined by a dashed line.
 
 Flags:
 `
@@ -38,6 +45,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	sheetF := fs.String("sheet", "", "write the method sheet (Markdown) to this `file`")
 	width := fs.Int("width", 1200, "figure width (pixels for PNG, points otherwise)")
 	height := fs.Int("height", 800, "figure height")
+	measured := fs.String("measured", "", "draw this measured `run` (peak table, chromatogram or runs file) under the prediction")
 	files, err := parseArgsN(fs, args, 1, 1, "METHOD")
 	if err != nil {
 		return err
@@ -52,12 +60,25 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if _, err := simulateMethod(m, name); err != nil {
+	sim, err := simulateMethod(m, name)
+	if err != nil {
 		return err
 	}
-	rs, err := report.Simulate(m)
-	if err != nil {
-		return badf("%s: %v", name, err)
+	rs := &sim.Sim
+	if *measured != "" {
+		run, _, err := readVerificationRun(m, *measured)
+		if err != nil {
+			return err
+		}
+		ck, err := calibrate.Verify(m, run)
+		if err != nil {
+			return badf("%s: %v", *measured, err)
+		}
+		// the prediction drawn is for the measured run's own program
+		if rs, err = report.Simulate(m.RunMethod(run)); err != nil {
+			return badf("%s: %v", *measured, err)
+		}
+		rs.Measured = report.MeasuredFromCheck(ck)
 	}
 	write := func(path string, data []byte) error {
 		if err := methodfile.WriteAtomic(path, data); err != nil {
@@ -97,14 +118,15 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 
 const sweepHelp = `Usage: rampwise sweep METHOD --vary NAME --from A --to B [--steps N]
                       [--vary2 NAME --from2 A --to2 B --steps2 N] [--csv F] [--png F]
+                      [--max-points N]
 
 Varies one program value (initial_c, initial_hold_min, rate_N, final_N,
 hold_N, or the carrier's flow_ml_min or inlet_kpa) from A to B in N steps and
 reports the minimum resolution, the critical pair and the run time at each: a
 window diagram (Laub & Purnell 1975). With --vary2, a map of the minimum
 resolution over two values (a text heat map here, an image with --png).
-Steps where the program is not valid are listed with the reason. "-" as
-METHOD uses the built-in demo. A sweep is at most 100000 points (steps ×
+Steps where the program is not valid are listed with the reason. - as METHOD
+reads the method from standard input; @demo uses the built-in demo. A sweep is at most 100000 points (steps ×
 steps2) unless --max-points raises it; after a second, progress and an
 estimate of the time left are shown on stderr.
 
@@ -167,7 +189,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		if err != nil {
 			return err
 		}
-		grid, err := sweep.Two(m, pv, sweep.Steps(*from, *to, *steps), pv2, sweep.Steps(*from2, *to2, *steps2), progress)
+		grid, err := sweep.Two(m, pv, keypadSteps(m, pv, *from, *to, *steps), pv2, keypadSteps(m, pv2, *from2, *to2, *steps2), progress)
 		if err != nil {
 			return badf("sweep: %v", err)
 		}
@@ -196,24 +218,28 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		}
 		return nil
 	}
-	pts, err := sweep.One(m, pv, sweep.Steps(*from, *to, *steps), progress)
+	pts, err := sweep.One(m, pv, keypadSteps(m, pv, *from, *to, *steps), progress)
 	if err != nil {
 		return badf("sweep: %v", err)
 	}
-	fmt.Fprintf(stdout, "%s: sweep of %s (now %g)\n\n", textsafe.Inert(name), *vary, current)
+	step := m.Limits.Step(pv.Kind)
+	fmt.Fprintf(stdout, "%s: sweep of %s (now %s)\n\n", textsafe.Inert(name), *vary, format.OnStep(current, step))
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "%s\tmin Rs\tcritical pair\trun (min)\t\n", *vary)
 	for _, p := range pts {
 		if !p.Valid {
-			fmt.Fprintf(tw, "%g\t-\tnot a valid program: %s\t\t\n", p.Value, textsafe.Inert(p.Reason))
+			fmt.Fprintf(tw, "%s\t-\tnot a valid program: %s\t\t\n", format.OnStep(p.Value, step), textsafe.Inert(p.Reason))
 			continue
 		}
 		rs, pair := "–", "no counted pair"
 		if !math.IsNaN(p.MinRs) {
-			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.Verdict(p.MinRs, m.Goal.MinResolution)
+			rs = format.RsNumber(p.MinRs, m.Goal.MinResolution) + " " + format.VerdictAll(p.MinRs, m.Goal.MinResolution, len(p.NotEluted))
 			pair = format.CriticalPair(textsafe.Inert(p.Critical[0]), textsafe.Inert(p.Critical[1]))
 		}
-		fmt.Fprintf(tw, "%g\t%s\t%s\t%.2f\t\n", p.Value, rs, pair, p.RunTime)
+		if len(p.NotEluted) > 0 {
+			pair += "; " + format.NotEluted(inertAll(p.NotEluted))
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%.2f\t\n", format.OnStep(p.Value, step), rs, pair, p.RunTime)
 	}
 	tw.Flush()
 	if *csvF != "" {
@@ -236,6 +262,21 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 	}
 	return nil
+}
+
+// keypadSteps are n values from a to b, each on the value's keypad step
+// (what the oven takes: 236.7 °C, not 236.66666666666666), repeats left
+// out when the steps are finer than the keypad.
+func keypadSteps(m *methodfile.Method, pv model.ProgramValue, a, b float64, n int) []float64 {
+	step := m.Limits.Step(pv.Kind)
+	var out []float64
+	for _, x := range sweep.Steps(a, b, n) {
+		x = methodfile.OnStep(x, step)
+		if len(out) == 0 || x != out[len(out)-1] {
+			out = append(out, x)
+		}
+	}
+	return out
 }
 
 // defaultMaxPoints bounds a sweep's size unless --max-points raises it: a

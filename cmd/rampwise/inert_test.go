@@ -86,6 +86,7 @@ func TestHostileTextIsInert(t *testing.T) {
 	p := hostileMethod(t)
 	dir := t.TempDir()
 	sheet, peaks, sw := filepath.Join(dir, "s.md"), filepath.Join(dir, "p.csv"), filepath.Join(dir, "w.csv")
+	cmpCSV := filepath.Join(dir, "c.csv")
 	runs := [][]string{
 		{"simulate", p},
 		{"simulate", "--csv", p},
@@ -94,6 +95,9 @@ func TestHostileTextIsInert(t *testing.T) {
 		{"export", "--sheet", sheet, "--csv", peaks, p},
 		{"sweep", "--vary", "rate_1", "--from", "5", "--to", "30", "--steps", "4", "--csv", sw, p},
 		{"index", p},
+		{"compare", "--csv", cmpCSV, p},
+		{"plan", p},
+		{"plan", "--json", p},
 		{"simulate", filepath.Join(dir, "missing \x1b]0;x\x07.toml")}, // an error naming the file
 	}
 	for _, args := range runs {
@@ -122,7 +126,7 @@ func TestHostileTextIsInert(t *testing.T) {
 			}
 		}
 	}
-	for _, f := range []string{sheet, peaks, sw} {
+	for _, f := range []string{sheet, peaks, sw, cmpCSV} {
 		data, err := os.ReadFile(f)
 		if err != nil {
 			t.Fatal(err)

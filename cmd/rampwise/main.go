@@ -12,6 +12,7 @@
 package main
 
 import (
+	"bytes"
 	_ "embed"
 	"errors"
 	"fmt"
@@ -80,6 +81,9 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 		hr.fs.Usage()
 		return exitOK
 	}
+	// messages show names from files through textsafe.Inert already; the
+	// last line of defence escapes what is left without doubling their
+	// backslashes (as the text output does)
 	fmt.Fprintf(stderr, "rampwise: %s\n", inertLines(err.Error()))
 	var bi badInput
 	var me *methodfile.Error
@@ -90,12 +94,61 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	return exitFailure
 }
 
-// loadMethod reads FILE, or the built-in demo when file is empty or "-".
+// DemoArg names the built-in demo on the command line (a name no method
+// file has); no FILE means the demo too.
+const DemoArg = "@demo"
+
+// StdinName is how standard input is named in messages.
+const StdinName = "<stdin>"
+
+// stdin is where - reads a method from (a variable for tests).
+var stdin io.Reader = os.Stdin
+
+// stdinText is the method text read from standard input, kept for --out
+// (which carries the source's comments over); stdin can be read once.
+var stdinText []byte
+
+// loadMethod reads FILE: the built-in demo when file is empty (no FILE
+// given) or DemoArg, standard input when it is "-" (as every Unix tool
+// reads it), else the file.
 func loadMethod(file string) (*methodfile.Method, string, error) {
-	if file == "" || file == "-" {
+	switch file {
+	case "", DemoArg:
 		m, err := methodfile.Parse(DemoName, demoMethod)
 		return m, DemoName, err
+	case "-":
+		data, err := readStdin()
+		if err != nil {
+			return nil, StdinName, err
+		}
+		m, err := methodfile.Parse(StdinName, data)
+		return m, StdinName, err
 	}
 	m, err := methodfile.ReadFile(file)
 	return m, file, err
+}
+
+// readStdin reads a method from standard input, once. A terminal is
+// refused rather than waited on (- is standard input, not the demo).
+func readStdin() ([]byte, error) {
+	if stdinText != nil {
+		return nil, badf("%s: - (standard input) can be read only once", StdinName)
+	}
+	if f, ok := stdin.(*os.File); ok {
+		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
+			return nil, badf("%s: - reads the method from standard input, which is a terminal; pipe the file in (rampwise simulate - < m.toml) or give its name (%s is the built-in demo)", StdinName, DemoArg)
+		}
+	}
+	data, err := io.ReadAll(io.LimitReader(stdin, methodfile.MaxFileSize+1))
+	if err != nil {
+		return nil, badf("%s: cannot read: %v", StdinName, err)
+	}
+	if len(data) > methodfile.MaxFileSize {
+		return nil, badf("%s: more than %d MiB; not a method file", StdinName, methodfile.MaxFileSize>>20)
+	}
+	if len(bytes.TrimSpace(data)) == 0 {
+		return nil, badf("%s: standard input is empty (- reads the method from standard input; %s is the built-in demo)", StdinName, DemoArg)
+	}
+	stdinText = data
+	return data, nil
 }

@@ -241,21 +241,34 @@ func TestFitOutAndIndex(t *testing.T) {
 	}
 }
 
-// An inlet pressure above [limits] max_inlet_kpa in constant flow is an
-// instrument limit: refused (exit 2) with file, line and key, naming the
-// temperature where the flow needs more.
-func TestPressureLimitRefused(t *testing.T) {
+// A method breaking an instrument limit (the inlet pressure a constant flow
+// needs, a ramp faster than the oven) is refused by every command: exit 2
+// with file, line and key.
+func TestInstrumentLimitsRefusedEverywhere(t *testing.T) {
 	demo, _ := os.ReadFile("../../testdata/demo.toml")
-	text := strings.Replace(string(demo), "max_inlet_kpa = 690.0", "max_inlet_kpa = 120.0", 1)
-	text = strings.Replace(text, "flow_ml_min = 1.2", "flow_ml_min = 2.0", 1)
-	path := filepath.Join(t.TempDir(), "p.toml")
-	os.WriteFile(path, []byte(text), 0o644)
-	for _, args := range [][]string{{"simulate", path}, {"export", "--csv", filepath.Join(t.TempDir(), "x.csv"), path}, {"optimize", path},
-		{"sweep", "--vary", "rate_1", "--from", "5", "--to", "20", path}, {"compare", path}} {
-		cmd := args[0]
-		code, _, errs := runCmd(t, args...)
-		if code != 2 || !strings.Contains(errs, "p.toml:16: carrier.flow_ml_min: constant flow of 2 mL/min needs") || !strings.Contains(errs, "above the instrument's inlet limit 120 kPa") {
-			t.Errorf("%s: exit %d:\n%s", cmd, code, errs)
+	pressure := strings.Replace(string(demo), "max_inlet_kpa = 690.0", "max_inlet_kpa = 120.0", 1)
+	pressure = strings.Replace(pressure, "flow_ml_min = 1.2", "flow_ml_min = 2.0", 1)
+	rate := strings.Replace(string(demo), "rate_c_min = 12.0", "rate_c_min = 100.0", 1)
+	for _, c := range []struct {
+		text string
+		want []string
+	}{
+		{pressure, []string{"p.toml:16: carrier.flow_ml_min: constant flow of 2 mL/min needs", "above the instrument's inlet limit 120 kPa"}},
+		{rate, []string{"p.toml:24: oven.ramp[1].rate_c_min: 100 °C/min is faster than the oven's limit 60 °C/min (limits.max_rate_c_min)"}},
+	} {
+		path := filepath.Join(t.TempDir(), "p.toml")
+		os.WriteFile(path, []byte(c.text), 0o644)
+		for _, args := range [][]string{{"simulate", path}, {"export", "--csv", filepath.Join(t.TempDir(), "x.csv"), path}, {"optimize", path},
+			{"sweep", "--vary", "rate_1", "--from", "5", "--to", "20", path}, {"compare", path},
+			{"fit", path, "../../testdata/scouting.toml"}, {"index", path}, {"tui", path}} {
+			code, _, errs := runCmd(t, args...)
+			ok := code == 2 && strings.Count(errs, "\n") == 1
+			for _, w := range c.want {
+				ok = ok && strings.Contains(errs, w)
+			}
+			if !ok {
+				t.Errorf("%s: exit %d:\n%s", args[0], code, errs)
+			}
 		}
 	}
 }
@@ -264,7 +277,7 @@ func TestPressureLimitRefused(t *testing.T) {
 func TestExportCSVEqualsSimulateJSON(t *testing.T) {
 	dir := t.TempDir()
 	csvPath := filepath.Join(dir, "peaks.csv")
-	if code, _, errs := runCmd(t, "export", "-", "--csv", csvPath, "--sheet", filepath.Join(dir, "s.md")); code != 0 {
+	if code, _, errs := runCmd(t, "export", DemoArg, "--csv", csvPath, "--sheet", filepath.Join(dir, "s.md")); code != 0 {
 		t.Fatalf("export: %s", errs)
 	}
 	_, out, _ := runCmd(t, "simulate", "--json")
@@ -283,17 +296,17 @@ func TestExportCSVEqualsSimulateJSON(t *testing.T) {
 			t.Errorf("row %d: %v vs %s %v %v", i, rows[i+1], pk.Name, *pk.RetentionTime, *pk.Sigma)
 		}
 	}
-	if code, _, _ := runCmd(t, "export", "-"); code != 2 {
+	if code, _, _ := runCmd(t, "export", DemoArg); code != 2 {
 		t.Error("export with nothing to write should be bad input")
 	}
-	if code, _, _ := runCmd(t, "sweep", "-", "--vary", "rate_7", "--from", "1", "--to", "2"); code != 2 {
+	if code, _, _ := runCmd(t, "sweep", DemoArg, "--vary", "rate_7", "--from", "1", "--to", "2"); code != 2 {
 		t.Error("sweep of a missing ramp should be bad input")
 	}
 }
 
 // compare's rows equal optimize run on each candidate alone.
 func TestCompareRowsEqualOptimize(t *testing.T) {
-	code, out, errs := runCmd(t, "compare", "--json", "--length", "20,40", "-")
+	code, out, errs := runCmd(t, "compare", "--json", "--length", "20,40", DemoArg)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}

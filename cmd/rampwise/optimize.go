@@ -21,7 +21,8 @@ import (
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
-const optimizeHelp = `Usage: rampwise optimize [FILE] [flags]
+const optimizeHelp = `Usage: rampwise optimize [FILE] [--out F [--write-best]] [--json] [--seed N] [--ramps N]
+                         [--objective run-time|cycle-time] [--min-resolution RS]
 
 Searches oven programs (initial temperature and hold, then up to N ramps with
 their rates, final temperatures and holds) and the carrier flow (the inlet
@@ -169,7 +170,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	prob := methodsearch.Problem(m, before.sys)
+	prob := methodsearch.Problem(m, before.System)
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
@@ -186,7 +187,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
 	}
 	meets := func(s *simulation) bool {
-		return s.res.Critical < 0 || s.res.MinResolution >= m.Goal.MinResolution
+		return s.Result.Critical < 0 || s.Result.MinResolution >= m.Goal.MinResolution
 	}
 	met := res.Offer && meets(afterSim)
 
@@ -204,8 +205,8 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 			Program:     programToJSON(after.Oven),
 			Carrier:     carrierToJSON(after.Carrier),
 			Robust:      robustToJSON(res.Robust),
-			RunTime:     afterSim.res.RunTime / 60,
-			CycleTime:   afterSim.res.CycleTime / 60,
+			RunTime:     afterSim.Result.RunTime / 60,
+			CycleTime:   afterSim.Result.CycleTime / 60,
 			Evaluations: res.Evaluations,
 			Elapsed:     res.Elapsed.Seconds(),
 			TargetRs:    m.Goal.MinResolution,
@@ -217,7 +218,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		j.MinResolution, j.CriticalPair = sj.MinResolution, sj.CriticalPair
 		for _, i := range res.Limiting {
 			pr := res.Sim.Pairs[i]
-			j.Limiting = append(j.Limiting, []string{before.sys.Compounds[pr.First].Name, before.sys.Compounds[pr.Second].Name})
+			j.Limiting = append(j.Limiting, []string{before.System.Compounds[pr.First].Name, before.System.Compounds[pr.Second].Name})
 		}
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
@@ -248,8 +249,8 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	fmt.Fprintln(tw, "\tbefore\tafter\t")
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
 	fmt.Fprintf(tw, "carrier\t%s\t%s\t\n", describeCarrier(m.Carrier), describeCarrier(after.Carrier))
-	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.res.RunTime/60, afterSim.res.RunTime/60)
-	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.res.CycleTime/60, afterSim.res.CycleTime/60)
+	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.Result.RunTime/60, afterSim.Result.RunTime/60)
+	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.Result.CycleTime/60, afterSim.Result.CycleTime/60)
 	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before, m.Goal.MinResolution), fmtRs(afterSim, m.Goal.MinResolution))
 	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
 	tw.Flush()
@@ -268,18 +269,22 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 }
 
 func fmtRs(s *simulation, target float64) string {
-	if s.res.Critical < 0 {
+	if s.Result.Critical < 0 {
 		return "-"
 	}
-	return format.RsNumber(s.res.MinResolution, target) + " " + format.Verdict(s.res.MinResolution, target)
+	r := &s.Result
+	if missing := inertAll(s.System.NotElutedTargets(r)); len(missing) > 0 {
+		return format.RsNumber(r.MinResolution, target) + " not met (" + format.NotEluted(missing) + ")"
+	}
+	return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
 }
 
 func critName(s *simulation) string {
-	if s.res.Critical < 0 {
+	if s.Result.Critical < 0 {
 		return "-"
 	}
-	cp := s.res.Pairs[s.res.Critical]
-	return format.CriticalPair(textsafe.Inert(s.sys.Compounds[cp.First].Name), textsafe.Inert(s.sys.Compounds[cp.Second].Name))
+	cp := s.Result.Pairs[s.Result.Critical]
+	return format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name))
 }
 
 // progressPrinter reports progress on stderr: a bar redrawn in place on a

@@ -11,7 +11,7 @@ import (
 // --min-resolution outside (0, 100] is bad input.
 func TestOptimizeMinResolutionRange(t *testing.T) {
 	for _, v := range []string{"0", "-1", "100.5", "NaN", "Inf"} {
-		if code, _, errs := runCmd(t, "optimize", "--min-resolution", v, "-"); code != 2 {
+		if code, _, errs := runCmd(t, "optimize", "--min-resolution", v, DemoArg); code != 2 {
 			t.Errorf("--min-resolution %s: exit %d, want 2 (%s)", v, code, errs)
 		}
 	}
@@ -96,7 +96,7 @@ func TestOptimizeJSONCarrierAndRobust(t *testing.T) {
 // compare --gas tries each carrier gas with its own optimized flow and
 // cautions about hydrogen whenever it appears.
 func TestCompareGasAxis(t *testing.T) {
-	code, out, errs := runCmd(t, "compare", "--json", "--gas", "helium,hydrogen", "-")
+	code, out, errs := runCmd(t, "compare", "--json", "--gas", "helium,hydrogen", DemoArg)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -120,7 +120,7 @@ func TestCompareGasAxis(t *testing.T) {
 	if len(j.Cautions) == 0 || !strings.Contains(j.Cautions[0], "flammable") {
 		t.Errorf("no hydrogen caution: %v", j.Cautions)
 	}
-	if code, _, _ := runCmd(t, "compare", "--gas", "argon", "-"); code != 2 {
+	if code, _, _ := runCmd(t, "compare", "--gas", "argon", DemoArg); code != 2 {
 		t.Errorf("unknown gas: exit %d, want 2", code)
 	}
 }

@@ -11,8 +11,8 @@ import (
 	"github.com/rampwise/rampwise/model/textsafe"
 )
 
-// saveMethodOut writes m (derived from the method file src, "" or "-" for
-// the demo) to out for --out. The user's text is kept: when out already
+// saveMethodOut writes m (derived from the method file src, "" or DemoArg
+// for the demo, "-" for standard input) to out for --out. The user's text is kept: when out already
 // holds a method, only what changed is written into it; otherwise the new
 // file is src's text with the changes (its comments and layout carried
 // over). A path that cannot be written is bad input (exit 2) and the
@@ -25,8 +25,10 @@ func saveMethodOut(out, src string, m *methodfile.Method) error {
 		}
 	}
 	if base == nil {
-		if src == "" || src == "-" {
+		if src == "" || src == DemoArg {
 			base = demoMethod
+		} else if src == "-" {
+			base = stdinText
 		} else if b, err := fsafe.ReadRegular(src, methodfile.MaxFileSize); err == nil {
 			base = b
 		}
@@ -136,7 +138,7 @@ func unsafeRune(r rune) bool {
 func inertLines(s string) string {
 	lines := strings.Split(s, "\n")
 	for i, l := range lines {
-		lines[i] = textsafe.Inert(l)
+		lines[i] = textsafe.Message(l)
 	}
 	return strings.Join(lines, "\n")
 }

@@ -36,9 +36,9 @@ func TestOutputPathErrorsExit2(t *testing.T) {
 	bad := filepath.Join(t.TempDir(), "no", "such", "folder", "x")
 	for _, args := range [][]string{
 		{"optimize", "--out", bad + ".toml"},
-		{"export", "--csv", bad + ".csv", "-"},
-		{"export", "--sheet", bad + ".md", "-"},
-		{"export", "--png", bad + ".png", "-"},
+		{"export", "--csv", bad + ".csv", DemoArg},
+		{"export", "--sheet", bad + ".md", DemoArg},
+		{"export", "--png", bad + ".png", DemoArg},
 		{"simulate", "--csv"}, // a control: writes to stdout, exit 0
 	} {
 		code, _, stderr := runCmd(t, args...)

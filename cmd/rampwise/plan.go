@@ -18,14 +18,15 @@ import (
 	"github.com/rampwise/rampwise/optimizer/plan"
 )
 
-const planHelp = `Usage: rampwise plan METHOD [RUNS] [--json]
+const planHelp = `Usage: rampwise plan METHOD [RUNS] [--json] [--seed N]
 
 Says what to inject next so that the next injection is the last:
 
   inject   a scouting program, within every instrument limit of the method,
            chosen to shrink the uncertainty of the resolution of the pairs
            that are or could become critical near the optimum (the run that
-           most reduces the summed variance of those resolutions);
+           leaves the least shortfall of the margin, by the expected
+           posterior SD of those resolutions);
   verify   the optimized program, when its predicted minimum resolution
            clears the target by z standard deviations (z = [goal.robust]
            retention_sigma, at least 3; parameters and measurement) and holds
@@ -108,6 +109,9 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 			where = files[1]
 		}
 		return badf("%s: %v", where, strings.TrimPrefix(strings.TrimPrefix(err.Error(), "plan: "), "model: "))
+	}
+	if err := p.Method.Validate(); err != nil {
+		return fmt.Errorf("the planned program breaks an instrument limit (please report this): %v", err)
 	}
 	runName := ""
 	if p.Action != plan.Done {

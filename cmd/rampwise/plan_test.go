@@ -63,7 +63,7 @@ func TestPlanDemoJSONWithinLimits(t *testing.T) {
 	if p.Action != "inject" {
 		t.Fatalf("no runs yet: action %q, want inject (%s)", p.Action, p.Reason)
 	}
-	m, _, err := loadMethod("-")
+	m, _, err := loadMethod(DemoArg)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -90,7 +90,7 @@ func TestPlanDemoJSONWithinLimits(t *testing.T) {
 // The [[run]] block plan prints parses as a runs file once the measured
 // times are filled in, and plan then reads it back (exit 0).
 func TestPlanRunBlockRoundTrip(t *testing.T) {
-	code, out, errs := runCmd(t, "plan", "-")
+	code, out, errs := runCmd(t, "plan", DemoArg)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -101,7 +101,7 @@ func TestPlanRunBlockRoundTrip(t *testing.T) {
 	block := out[i:]
 	block = block[:strings.Index(block, "[run.width_min]")]
 	// fill in the demo's own prediction for the planned program
-	demo, _, _ := loadMethod("-")
+	demo, _, _ := loadMethod(DemoArg)
 	var head strings.Builder
 	var oven methodfile.Oven
 	sc := bufio.NewScanner(strings.NewReader(block))
@@ -183,7 +183,7 @@ func TestPlanBadInput(t *testing.T) {
 			t.Errorf("plan demo %s: exit %d, message %q (want %q)", name, code, errs, frag)
 		}
 	}
-	for _, args := range [][]string{{"plan"}, {"plan", "a", "b", "c"}, {"plan", "--bogus", "-"}} {
+	for _, args := range [][]string{{"plan"}, {"plan", "a", "b", "c"}, {"plan", "--bogus", DemoArg}} {
 		if code, _, _ := runCmd(t, args...); code != 2 {
 			t.Errorf("%v: exit %d, want 2", args, code)
 		}

@@ -151,3 +151,68 @@ func TestTUIKeysFromFile(t *testing.T) {
 		t.Errorf("UI not drawn: %q", out.String())
 	}
 }
+
+// At the end of keys from a file or a pipe the UI exits instead of
+// waiting: with unsaved changes non-zero, with the recovery file written
+// and a message; a key typed after ctrl+s acts once the save is done.
+func TestTUIEndOfInput(t *testing.T) {
+	data, _ := os.ReadFile("../../testdata/demo.toml")
+	for _, tc := range []struct {
+		keys     string
+		pipe     bool
+		code     int
+		recovery bool
+		changed  bool
+	}{
+		{keys: "x", code: 1, recovery: true},
+		{keys: "", code: 0},
+		{keys: "", pipe: true, code: 0},
+		{keys: "+\x13q", code: 0, changed: true},
+		{keys: "+\x13q", pipe: true, code: 0, changed: true},
+		{keys: "+\x13", code: 0, changed: true},
+	} {
+		dir := t.TempDir()
+		path := filepath.Join(dir, "m.toml")
+		os.WriteFile(path, data, 0o644)
+		cmd := helper("tui", "--no-color", path)
+		if tc.pipe {
+			cmd.Stdin = strings.NewReader(tc.keys)
+		} else {
+			keys := filepath.Join(dir, "keys.txt")
+			os.WriteFile(keys, []byte(tc.keys), 0o644)
+			f, err := os.Open(keys)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer f.Close()
+			cmd.Stdin = f
+		}
+		var out, errb syncBuffer
+		cmd.Stdout, cmd.Stderr = &out, &errb
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		done := make(chan error, 1)
+		go func() { done <- cmd.Wait() }()
+		select {
+		case <-done:
+		case <-time.After(20 * time.Second):
+			cmd.Process.Kill()
+			t.Fatalf("%q: still running at the end of input; stderr %q", tc.keys, errb.String())
+		}
+		if got := cmd.ProcessState.ExitCode(); got != tc.code {
+			t.Errorf("%q (pipe %v): exit %d, want %d; stderr %q", tc.keys, tc.pipe, got, tc.code, errb.String())
+		}
+		_, err := os.Stat(path + ".rampwise-recovery.toml")
+		if (err == nil) != tc.recovery {
+			t.Errorf("%q: recovery file there %v, want %v", tc.keys, err == nil, tc.recovery)
+		}
+		if tc.recovery && !strings.Contains(errb.String(), "unsaved changes") {
+			t.Errorf("%q: no message: %q", tc.keys, errb.String())
+		}
+		now, _ := os.ReadFile(path)
+		if changed := string(now) != string(data); changed != tc.changed {
+			t.Errorf("%q: file changed %v, want %v", tc.keys, changed, tc.changed)
+		}
+	}
+}

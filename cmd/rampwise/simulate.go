@@ -27,6 +27,11 @@ that involve a target compound, and the critical pair. Without FILE the
 built-in demo method is used. The column may be wall-coated, packed or
 porous-layer ([column] kind); with [limits] coolant_c the oven may start
 below ambient, and the cautions for the cryogenic coolant are printed.
+A program beyond an instrument limit (max_rate_c_min, rate bands, the inlet
+pressure limits, max_temp_c, max_isothermal_c, ambient or coolant_c) is
+refused with file, line and key (exit 2); one that only breaks a search bound
+(oven_min_c, max_hold_min, keypad steps, min_first_k) is simulated as it is,
+with a warning.
 
 Flags:
 `
@@ -57,7 +62,12 @@ type simulateJSON struct {
 	Pairs         []pairJSON `json:"pairs"`
 	MinResolution *float64   `json:"min_resolution"`
 	CriticalPair  []string   `json:"critical_pair"`
-	Warnings      []string   `json:"warnings"`
+	// GoalMet: min_resolution reaches goal.min_resolution and every
+	// target elutes within the program; TargetsNotEluted names the targets
+	// that do not (min_resolution counts only the pairs that eluted).
+	GoalMet          bool     `json:"goal_met"`
+	TargetsNotEluted []string `json:"targets_not_eluted"`
+	Warnings         []string `json:"warnings"`
 }
 
 func finiteOrNil(x float64) *float64 {
@@ -67,20 +77,17 @@ func finiteOrNil(x float64) *float64 {
 	return &x
 }
 
-// simulation is a method's system and the result of its program.
-type simulation struct {
-	method *methodfile.Method
-	sys    *model.System
-	res    model.Result
-}
+// simulation is a method's system and the result of its program: the
+// report's Sim, with what the commands print from it.
+type simulation struct{ report.Sim }
 
 func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 	sys, err := m.System()
 	if err != nil {
 		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
 	}
-	s := &simulation{method: m, sys: sys}
-	if err := sys.Simulate(m.ModelProgram(), &s.res); err != nil {
+	s := &simulation{report.Sim{Method: m, System: sys}}
+	if err := sys.Simulate(m.ModelProgram(), &s.Result); err != nil {
 		return nil, badf("%s: %v", name, strings.TrimPrefix(err.Error(), "model: "))
 	}
 	return s, nil
@@ -88,14 +95,7 @@ func simulateMethod(m *methodfile.Method, name string) (*simulation, error) {
 
 // warnings are the cautions a chromatographer needs with this result.
 func (s *simulation) warnings(prog model.Program) []string {
-	w := checks.Warnings(s.method, s.sys, &s.res)
-	if s.sys.Cond.Carrier.Gas.Flammable() {
-		w = append(w, model.HydrogenCaution)
-	}
-	if note := checks.CoolantNote(s.method); note != "" {
-		w = append(w, note, model.CryogenCaution)
-	}
-	return w
+	return checks.Cautions(s.Method, s.System, &s.Result)
 }
 
 func fmtMin(s float64) string {
@@ -106,7 +106,7 @@ func fmtMin(s float64) string {
 }
 
 func (s *simulation) json(prog model.Program) simulateJSON {
-	r := &s.res
+	r := &s.Result
 	out := simulateJSON{
 		HoldupTime: r.HoldupTime / 60,
 		RunTime:    r.RunTime / 60,
@@ -119,7 +119,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 		out.Warnings = []string{}
 	}
 	for _, pk := range r.Peaks {
-		c := &s.sys.Compounds[pk.Compound]
+		c := &s.System.Compounds[pk.Compound]
 		out.Peaks = append(out.Peaks, peakJSON{
 			Name:            c.Name,
 			RetentionTime:   finiteOrNil(pk.RetentionTime / 60),
@@ -133,7 +133,7 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 	}
 	for _, pr := range r.Pairs {
 		out.Pairs = append(out.Pairs, pairJSON{
-			First: s.sys.Compounds[pr.First].Name, Second: s.sys.Compounds[pr.Second].Name,
+			First: s.System.Compounds[pr.First].Name, Second: s.System.Compounds[pr.Second].Name,
 			Resolution: pr.Resolution, Counts: pr.Counts,
 		})
 	}
@@ -141,8 +141,13 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 		v := r.MinResolution
 		out.MinResolution = &v
 		cp := r.Pairs[r.Critical]
-		out.CriticalPair = []string{s.sys.Compounds[cp.First].Name, s.sys.Compounds[cp.Second].Name}
+		out.CriticalPair = []string{s.System.Compounds[cp.First].Name, s.System.Compounds[cp.Second].Name}
 	}
+	out.TargetsNotEluted = s.System.NotElutedTargets(r)
+	if out.TargetsNotEluted == nil {
+		out.TargetsNotEluted = []string{}
+	}
+	out.GoalMet = r.Critical >= 0 && format.MetAll(r.MinResolution, s.Method.Goal.MinResolution, r.TargetsNotEluted)
 	return out
 }
 
@@ -160,8 +165,8 @@ func resolutionAfter(r *model.Result) []float64 {
 }
 
 func (s *simulation) writeTable(w io.Writer, name string) {
-	r := &s.res
-	m := s.method
+	r := &s.Result
+	m := s.Method
 	title := m.Title
 	if title == "" {
 		title = name
@@ -172,7 +177,7 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 	fmt.Fprintf(tw, "compound\ttR (min)\tTe (°C)\tw½ (s)\tk(Te)\t%s\t%s\t\n", format.HeadRsNext, format.HeadTarget)
 	rs := resolutionAfter(r)
 	for i, pk := range r.Peaks {
-		c := &s.sys.Compounds[pk.Compound]
+		c := &s.System.Compounds[pk.Compound]
 		rsText := ""
 		if !math.IsNaN(rs[i]) {
 			rsText = format.Pair(rs[i], m.Goal.MinResolution)
@@ -199,41 +204,42 @@ func (s *simulation) writeTable(w io.Writer, name string) {
 }
 
 func (s *simulation) summary() string {
-	r := &s.res
+	r := &s.Result
+	missing := inertAll(s.System.NotElutedTargets(r))
 	crit := "no counted pair"
+	if len(missing) > 0 {
+		crit += ", not met: " + format.NotEluted(missing)
+	}
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.Rs(r.MinResolution, s.method.Goal.MinResolution),
-			format.CriticalPair(textsafe.Inert(s.sys.Compounds[cp.First].Name), textsafe.Inert(s.sys.Compounds[cp.Second].Name)))
+		crit = fmt.Sprintf("min Rs %s, critical pair %s", format.RsAll(r.MinResolution, s.Method.Goal.MinResolution, missing),
+			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 	return fmt.Sprintf("holdup %.3f min · run %.2f min · cycle %.2f min · %s", r.HoldupTime/60, r.RunTime/60, r.CycleTime/60, crit)
 }
 
-func describeColumn(m *methodfile.Method) string {
-	c, g := m.Column, m.Carrier
-	phase := c.Phase
-	if phase == "" {
-		phase = "phase not named"
+// inertAll is names shown inert (textsafe.Inert).
+func inertAll(names []string) []string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = textsafe.Inert(n)
 	}
-	flow := fmt.Sprintf("%s mL/min constant flow", fmtNum(g.FlowMLMin))
-	if g.Mode == model.ConstantPressure {
-		flow = fmt.Sprintf("%s kPa constant pressure", fmtNum(g.InletKPa))
-	}
-	return fmt.Sprintf("%s %s (max %s °C) · %s %s · %s outlet",
-		c.Describe(), textsafe.Inert(phase), fmtNum(c.MaxTempC), g.Gas, flow, g.Outlet)
+	return out
 }
 
-func describeProgram(o methodfile.Oven) string { return report.Program(o) }
+func describeColumn(m *methodfile.Method) string { return textsafe.Inert(m.Describe()) }
+
+func describeProgram(o methodfile.Oven) string { return o.Describe() }
 
 func round(x float64, digits int) float64 {
 	p := math.Pow(10, float64(digits))
 	return math.Round(x*p) / p
 }
 
-func fmtNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+func fmtNum(x float64) string { return format.Num(x) }
 
 func (s *simulation) writeCSV(w io.Writer) error {
-	rs := report.Sim{Method: s.method, System: s.sys, Result: s.res}
+	rs := s.Sim
 	data, err := rs.CSV()
 	if err != nil {
 		return err

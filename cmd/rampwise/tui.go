@@ -1,16 +1,18 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
+	"sync"
 
 	tea "github.com/charmbracelet/bubbletea"
 
 	"github.com/rampwise/rampwise/tui"
 )
 
-const tuiHelp = `Usage: rampwise tui [FILE]
+const tuiHelp = `Usage: rampwise tui [FILE] [--no-color]
 
 Opens the interactive program editor: the oven program, a live simulated
 chromatogram with the oven temperature, the peak table and the method
@@ -40,6 +42,12 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	switch file {
+	case "-":
+		return badf("tui: the terminal UI reads its keys from standard input; give the method file's name (or %s for the built-in demo)", DemoArg)
+	case DemoArg:
+		file = ""
+	}
 	m, name, err := loadMethod(file)
 	if err != nil {
 		return err
@@ -56,12 +64,13 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 	// the program while the recovery file is being written. CatchSignals
 	// writes it first, then ends the UI; stop waits for that write.
 	opts := []tea.ProgramOption{tea.WithAltScreen(), tea.WithOutput(stdout), tea.WithoutSignalHandler()}
-	if in := keyInput(os.Stdin); in != nil {
+	var p *tea.Program
+	if in := keyInput(os.Stdin, func() { p.Send(tui.InputEndedMsg{}) }); in != nil {
 		// keys come from a pipe or a file (scripts, tests): read them as
-		// they are
+		// they are; at their end the UI finishes as if the user quit
 		opts = append(opts, tea.WithInput(in))
 	}
-	p := tea.NewProgram(app, opts...)
+	p = tea.NewProgram(app, opts...)
 	stop := guard.CatchSignals(p.Kill)
 	if !isTerminal(stdout) {
 		// no terminal to ask for its size (a pipe, a test): draw at 80×24
@@ -77,23 +86,66 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 	if runErr != nil {
 		return runErr
 	}
+	if ended, unsaved := app.InputEnded(); ended && unsaved {
+		// the keys ran out before the changes were saved: keep them
+		path, err := guard.WriteRecovery()
+		if err != nil {
+			fmt.Fprintf(stderr, "rampwise: end of input with unsaved changes; could not write the recovery file: %v\n", err)
+		} else {
+			fmt.Fprintf(stderr, "rampwise: end of input with unsaved changes (not saved to %s): written to %s\n", name, path)
+		}
+		return exitError{exitFailure}
+	}
 	return nil
 }
 
 // keyInput is where the UI reads keys when stdin is not a terminal: a pipe
-// as it is; a regular file or a device such as /dev/null hidden behind a
-// plain reader, because the UI library's cancellable reader cannot poll
-// those and would fail to start. nil for a terminal (the library's own).
-func keyInput(f *os.File) io.Reader {
+// as a file (the UI library polls it); a regular file or a device such as
+// /dev/null behind a plain reader, because the library's cancellable reader
+// cannot poll those and would fail to start. nil for a terminal (the
+// library's own). atEnd is called once when the input ends (the library
+// itself ignores the end of its input), after every key before it.
+func keyInput(f *os.File, atEnd func()) io.Reader {
 	st, err := f.Stat()
 	if err != nil {
-		return f
+		return &endFile{File: f, atEnd: atEnd}
 	}
 	switch m := st.Mode(); {
 	case m&os.ModeNamedPipe != 0, m&os.ModeSocket != 0:
-		return f
+		return &endFile{File: f, atEnd: atEnd}
 	case m&os.ModeCharDevice != 0 && isTerminal(f):
 		return nil
 	}
-	return struct{ io.Reader }{f}
+	return &endReader{r: f, atEnd: atEnd}
+}
+
+// endFile is a file whose end of input is reported (it keeps Fd, so that
+// the UI library can still poll it).
+type endFile struct {
+	*os.File
+	atEnd func()
+	once  sync.Once
+}
+
+func (e *endFile) Read(p []byte) (int, error) {
+	n, err := e.File.Read(p)
+	if errors.Is(err, io.EOF) {
+		e.once.Do(e.atEnd)
+	}
+	return n, err
+}
+
+// endReader is a plain reader whose end of input is reported.
+type endReader struct {
+	r     io.Reader
+	atEnd func()
+	once  sync.Once
+}
+
+func (e *endReader) Read(p []byte) (int, error) {
+	n, err := e.r.Read(p)
+	if errors.Is(err, io.EOF) {
+		e.once.Do(e.atEnd)
+	}
+	return n, err
 }

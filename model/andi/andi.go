@@ -3,10 +3,11 @@ package andi
 import (
 	"errors"
 	"fmt"
-	"io"
+	"io/fs"
 	"math"
-	"os"
 	"strings"
+
+	"github.com/rampwise/rampwise/model/fsafe"
 )
 
 // MaxFileSize caps what Read accepts.
@@ -36,29 +37,23 @@ type Chromatogram struct {
 // Time of sample i in minutes.
 func (c *Chromatogram) Time(i int) float64 { return (c.DelayS + float64(i)*c.IntervalS) / 60 }
 
-// Read reads an AIA/ANDI chromatography file.
+// Read reads an AIA/ANDI chromatography file. It opens only a regular
+// file (a FIFO or a device is refused at once, never waited on:
+// fsafe.ReadRegular).
 func Read(path string) (*Chromatogram, error) {
-	if st, err := os.Stat(path); err == nil && !st.Mode().IsRegular() {
-		return nil, fmt.Errorf("%s: not a regular file", path)
-	}
-	f, err := os.Open(path)
+	b, err := fsafe.ReadRegular(path, MaxFileSize)
 	if err != nil {
-		var pe *os.PathError
+		var pe *fs.PathError
 		if errors.As(err, &pe) {
 			err = pe.Err
 		}
+		switch {
+		case errors.Is(err, fsafe.ErrNotRegular):
+			return nil, fmt.Errorf("%s: %s", path, strings.TrimSuffix(err.Error(), ": "+fsafe.ErrNotRegular.Error()))
+		case strings.Contains(err.Error(), "larger than"):
+			return nil, fmt.Errorf("%s: larger than %d MiB", path, MaxFileSize>>20)
+		}
 		return nil, fmt.Errorf("%s: cannot read: %v", path, err)
-	}
-	defer f.Close()
-	if st, err := f.Stat(); err != nil || !st.Mode().IsRegular() {
-		return nil, fmt.Errorf("%s: not a regular file", path)
-	}
-	b, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
-		return nil, fmt.Errorf("%s: cannot read: %v", path, err)
-	}
-	if len(b) > MaxFileSize {
-		return nil, fmt.Errorf("%s: larger than %d MiB", path, MaxFileSize>>20)
 	}
 	c, err := DecodeChromatogram(b)
 	if err != nil {

@@ -17,13 +17,13 @@ func TestDecodeHandBuilt(t *testing.T) {
 	var b []byte
 	u := func(x uint32) { b = binary.BigEndian.AppendUint32(b, x) }
 	b = append(b, "CDF\x01"...)
-	u(0)                     // numrecs
-	u(0x0A)                  // NC_DIMENSION
-	u(1)                     // one dim
-	u(1)                     // name length
+	u(0)                        // numrecs
+	u(0x0A)                     // NC_DIMENSION
+	u(1)                        // one dim
+	u(1)                        // name length
 	b = append(b, 'x', 0, 0, 0) // padded name
-	u(3)                     // dim length
-	u(0x0C)                  // NC_ATTRIBUTE
+	u(3)                        // dim length
+	u(0x0C)                     // NC_ATTRIBUTE
 	u(1)
 	u(5)
 	b = append(b, "title\x00\x00\x00"...)
@@ -38,8 +38,8 @@ func TestDecodeHandBuilt(t *testing.T) {
 	u(0) // dim id 0
 	u(0) // ABSENT vatt_list
 	u(0)
-	u(3)  // NC_SHORT
-	u(8)  // vsize: 3 shorts padded to 8
+	u(3) // NC_SHORT
+	u(8) // vsize: 3 shorts padded to 8
 	begin := len(b) + 4
 	u(uint32(begin))
 	b = binary.BigEndian.AppendUint16(b, 1)

@@ -230,24 +230,26 @@ func savgol(y []float64, h int) (s, d []float64) {
 }
 
 // rollingMin is the minimum over a centred window of w samples (a
-// monotone deque, O(n)).
+// monotone deque in a ring of indices, O(n), one allocation).
 func rollingMin(x []float64, w int) []float64 {
 	n := len(x)
 	out := make([]float64, n)
 	half := w / 2
-	dq := make([]int, 0, w+1)
+	dq := make([]int, n) // indices; head..tail-1 live, increasing values
+	head, tail := 0, 0
 	j := 0
 	for i := 0; i < n; i++ {
 		for ; j < n && j <= i+half; j++ {
-			for len(dq) > 0 && x[dq[len(dq)-1]] >= x[j] {
-				dq = dq[:len(dq)-1]
+			for tail > head && x[dq[tail-1]] >= x[j] {
+				tail--
 			}
-			dq = append(dq, j)
+			dq[tail] = j
+			tail++
 		}
-		for dq[0] < i-half {
-			dq = dq[1:]
+		for dq[head] < i-half {
+			head++
 		}
-		out[i] = x[dq[0]]
+		out[i] = x[dq[head]]
 	}
 	return out
 }

@@ -11,6 +11,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -43,9 +44,12 @@ type CompoundFit struct {
 	Residuals          map[string]float64
 	Fitted             bool
 	Added              bool // was in the runs, not in the method (added as a non-target)
-	ElutionSpreadC     float64
-	Condition          float64 // condition number of the scaled normal matrix
-	withDCp            bool
+	// NotWritten: the fitted values are outside the method file's ranges
+	// and were not written to the method (a warning says so).
+	NotWritten     bool
+	ElutionSpreadC float64
+	Condition      float64 // condition number of the scaled normal matrix
+	withDCp        bool
 }
 
 // Assignment is an unnamed peak given a compound's name.
@@ -69,6 +73,16 @@ type Outlier struct {
 	Excluded      bool    // left out of the final fit
 }
 
+// Suspect is a compound whose runs disagree beyond their noise where the
+// data cannot tell which run is wrong (one run more than the fitted
+// parameters, and no run's removal clearly more plausible than another's):
+// nothing is left out, the runs are named.
+type Suspect struct {
+	Compound    string
+	Runs        []string
+	Studentized float64
+}
+
 // Report is a whole calibration.
 type Report struct {
 	Compounds      []CompoundFit
@@ -90,6 +104,7 @@ type Report struct {
 	Method            *methodfile.Method // the method with the fitted values
 	Assignments       []Assignment
 	Outliers          []Outlier
+	Suspects          []Suspect
 	// ResidualSDMin is the pooled residual standard deviation of the
 	// retention times, DOF its degrees of freedom (Σ runs − parameters over
 	// the fitted compounds). With DOF 0 the method's
@@ -135,7 +150,7 @@ func setups(m *methodfile.Method, runs *methodfile.Runs) ([]runSetup, error) {
 // errors use the residual variance pooled over all compounds.
 func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, error) {
 	if opt.WithDCp && len(runsIn.Runs) < 3 {
-		return nil, fmt.Errorf("--with-dcp needs at least 3 scouting runs to fit ΔCp besides ΔH and ΔS; the runs file has %d", len(runsIn.Runs))
+		return nil, fmt.Errorf("--with-dcp needs at least 3 scouting runs (and fits ΔCp only for compounds seen in 4 or more, so that a residual degree of freedom is left); the runs file has %d", len(runsIn.Runs))
 	}
 	if opt.OutlierT <= 0 {
 		opt.OutlierT = 4
@@ -152,7 +167,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		}
 	}
 	rep.ParticleUM = m.Column.ParticleUM
-	if len(withHoldup) > 0 && out.Column.Kind == "packed" {
+	if len(withHoldup) > 0 && out.Column.Kind == model.Packed {
 		dp, err := fitParticle(out, runs, withHoldup)
 		if err != nil {
 			return nil, err
@@ -179,7 +194,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 	// 3. assignment of unnamed peaks, alternating with the fit
 	start := out.Clone()
 	if hasUnnamed(runs) {
-		if err := assignLoop(out, st, runs, opt, rep); err != nil {
+		if err := assignLoop(out, start, st, runs, opt, rep); err != nil {
 			return nil, err
 		}
 	}
@@ -192,7 +207,16 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 	pool(fits, out, rep)
 	excluded := map[obsKey]bool{}
 	for round := 0; round < 3; round++ {
-		o := findOutliers(fits, st, start, rep, opt)
+		o, sus := findOutliers(fits, st, start, rep, opt)
+		for _, x := range sus {
+			dup := false
+			for _, y := range rep.Suspects {
+				dup = dup || y.Compound == x.Compound
+			}
+			if !dup {
+				rep.Suspects = append(rep.Suspects, x)
+			}
+		}
 		if len(o) == 0 {
 			break
 		}
@@ -221,10 +245,17 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		}
 		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: run %q measured %.3f min but the other runs predict %.3f min (studentized residual %.1f): likely a misassigned or mistyped peak; %s", x.Compound, x.Run, x.MeasuredMin, x.PredictedMin, x.Studentized, left))
 	}
+	for _, x := range rep.Suspects {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the runs %s disagree beyond their noise (studentized residual %.1f): one of them is likely a misassigned or mistyped peak, but with one run more than the fitted parameters any two fit exactly and no choice gives clearly more plausible parameters: cannot tell which run is wrong; all kept in the fit, so its values are suspect; check the peaks or add a run", x.Compound, quoteList(x.Runs), x.Studentized))
+	}
+	implausible := trendWarnings(fits)
 	for _, f := range fits {
 		cf := f.CompoundFit
+		if w, ok := implausible[cf.Name]; ok {
+			rep.Warnings = append(rep.Warnings, w)
+		}
 		if f.onlyDS {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: elutes too close to the holdup time to tell ΔH from ΔS; ΔS fitted with ΔH from the homologous rule (ΔH = −(9 + 4.9 n) kJ/mol)", cf.Name))
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: elutes too close to the holdup time to tell ΔH from ΔS; ΔH held at the homologous rule's −(9 + 4.9 n) kJ/mol = %.2f kJ/mol with n = %.2f, the (fractional) carbon number at which the rule's ΔH and ΔS reproduce run %q's time; then ΔS alone fitted to all runs (%.2f J/(mol·K), the rule's would be %.2f)", cf.Name, cf.DHkJ, f.ruleN, st[f.ruleRun].name, cf.DS, -(44+6.0*f.ruleN)))
 		}
 		if !f.onlyDS && (cf.ElutionSpreadC < 3 || cf.Condition > 1e10) {
 			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the runs elute it at nearly the same temperature (spread %.1f °C): too similar to separate ΔH from ΔS reliably (ill-conditioned); add a run with a clearly different ramp rate", cf.Name, cf.ElutionSpreadC))
@@ -237,10 +268,36 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 			ci = len(out.Compounds) - 1
 		}
 		c := &out.Compounds[ci]
+		prev := *c
 		c.DHkJ, c.DS, c.DCp, c.RefTempC, c.FromIndex = cf.DHkJ, cf.DS, cf.DCp, 100, false
 		c.FromFormula = false
 		c.HasSE = false
-		if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
+		// A fitted value outside what a method file accepts is never
+		// written: the method keeps the compound as it was (an added
+		// compound is not added).
+		if err := out.ValidateKey(fmt.Sprintf("compound[%d].dH_kJ_mol", ci+1)); err != nil {
+			cf.NotWritten = true
+			what := err.Error()
+			var fe *methodfile.Error
+			if errors.As(err, &fe) {
+				what = strings.TrimPrefix(fe.Key, fmt.Sprintf("compound[%d].", ci+1)) + " " + fe.Msg
+			}
+			if cf.Added {
+				out.Compounds = out.Compounds[:ci]
+				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the fitted values are outside what a method file allows (%s): not added to the method; the runs do not determine it", cf.Name, what))
+			} else {
+				*c = prev
+				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the fitted values are outside what a method file allows (%s): not written; the method keeps ΔH %.2f kJ/mol, ΔS %.2f J/(mol·K), ΔCp %.1f J/(mol·K)", cf.Name, what, prev.DHkJ, prev.DS, prev.DCp))
+			}
+			rep.Compounds = append(rep.Compounds, cf)
+			continue
+		}
+		if finite(cf.StdErrDH) && finite(cf.StdErrDS) && (cf.StdErrDH > 500 || cf.StdErrDS > 1000) {
+			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: standard errors ±%.3g kJ/mol, ±%.3g J/(mol·K): the runs hardly determine it; errors not written to the method", cf.Name, cf.StdErrDH, cf.StdErrDS))
+		} else if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
+			if cf.LargeError() {
+				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: large standard errors ±%.2f kJ/mol on ΔH, ±%.2f J/(mol·K) on ΔS (large: over %g kJ/mol or %g J/(mol·K)): the runs determine it poorly; predictions away from the scouted programs are uncertain; add a run with a clearly different ramp or starting temperature", cf.Name, cf.StdErrDH, cf.StdErrDS, LargeSEDHkJ, LargeSEDS))
+			}
 			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true
 		}
 		rep.Compounds = append(rep.Compounds, cf)
@@ -295,6 +352,14 @@ func fitAll(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, opt Op
 	}
 	sort.Strings(names)
 	var fits []fitResult
+	var held []string // --with-dcp, too few runs: ΔCp kept at the method's value
+	defer func() {
+		if len(held) > 0 && len(runs.Runs) <= 3 {
+			*warn = append(*warn, fmt.Sprintf("ΔCp not fitted (for any compound): ΔH, ΔS and ΔCp from %d runs leave no residual degree of freedom (the fit would pass exactly through the times, its values and errors meaningless); ΔH and ΔS fitted with ΔCp kept at the method's value; a fourth run with a clearly different ramp lets ΔCp be fitted", len(runs.Runs)))
+		} else if len(held) > 0 {
+			*warn = append(*warn, fmt.Sprintf("ΔCp not fitted for %s: seen in 3 runs or fewer, and ΔH, ΔS and ΔCp from 3 runs leave no residual degree of freedom (the fit would pass exactly through the times, its values and errors meaningless); ΔH and ΔS fitted with ΔCp kept at the method's value; a fourth run with a clearly different ramp lets ΔCp be fitted", strings.Join(held, ", ")))
+		}
+	}()
 	for _, name := range names {
 		var obs []obsPoint
 		for i, s := range st {
@@ -315,11 +380,20 @@ func fitAll(out *methodfile.Method, st []runSetup, runs *methodfile.Runs, opt Op
 		if ci >= 0 {
 			base = mcs[ci]
 		}
-		withDCp := opt.WithDCp && len(obs) >= 3
+		// ΔCp is fitted only with a run to spare: with as many runs as
+		// parameters the curve passes exactly through the times, leaving
+		// no residual to judge it by, and the three values can go anywhere
+		// along the near-degenerate valley (ΔCp from −42 to +21 J/(mol·K),
+		// true 0, with zero residuals on the demo's three runs).
+		withDCp := opt.WithDCp && len(obs) >= 4
 		if opt.WithDCp && !withDCp {
-			*warn = append(*warn, fmt.Sprintf("%s: seen in %d runs; ΔCp needs 3, fitted ΔH and ΔS only", name, len(obs)))
+			held = append(held, name)
 		}
-		cf, err := fitCompound(st, obs, base, withDCp)
+		var th0 []float64
+		if ci >= 0 && (base.RefTemp == 0 || base.RefTemp == model.DefaultRefTemp) {
+			th0 = []float64{base.DH, base.DS, base.DCp} // warm start from the method's values
+		}
+		cf, err := fitCompoundFrom(st, obs, base, withDCp, th0)
 		if err != nil {
 			*warn = append(*warn, fmt.Sprintf("%s: %v; parameters not fitted", name, err))
 			continue
@@ -345,13 +419,18 @@ type fitResult struct {
 	CompoundFit
 	resid  []float64 // s
 	onlyDS bool
-	obs    []obsPoint
-	base   model.Compound
-	th     []float64  // ΔH J/mol, ΔS, (ΔCp)
-	free   []int      // fitted entries of th
-	jac    *mat.Dense // ∂t/∂θ_free at the solution, s per unit
-	cov    *mat.Dense // (JᵀJ)⁻¹, nil when singular
-	ssr    float64    // s²
+	// ruleN is, for an onlyDS fit, the (fractional) carbon number n at
+	// which the homologous rule's ΔH and ΔS reproduce run ruleRun's time:
+	// ΔH is held at −(9 + 4.9 n) kJ/mol.
+	ruleN   float64
+	ruleRun int
+	obs     []obsPoint
+	base    model.Compound
+	th      []float64  // ΔH J/mol, ΔS, (ΔCp)
+	free    []int      // fitted entries of th
+	jac     *mat.Dense // ∂t/∂θ_free at the solution, s per unit
+	cov     *mat.Dense // (JᵀJ)⁻¹, nil when singular
+	ssr     float64    // s²
 }
 
 // paramCompound builds the compound for parameter vector θ = (ΔH J/mol, ΔS, ΔCp).
@@ -383,11 +462,11 @@ func residuals(st []runSetup, obs []obsPoint, base model.Compound, th []float64,
 // ΔS = −(44 + 6.0 n) J/(mol·K) of a nonpolar phase (the demo's rule of thumb),
 // with n found so that the first observation is matched; this puts the
 // start in the right valley of the strongly correlated ΔH–ΔS surface.
-func startValues(st []runSetup, obs []obsPoint, base model.Compound) []float64 {
+func startValues(st []runSetup, obs []obsPoint, base model.Compound) ([]float64, float64) {
 	at := func(n float64) []float64 { return []float64{-(9 + 4.9*n) * 1000, -(44 + 6.0*n)} }
 	o := obs[0]
 	lo, hi := -1.5, 60.0
-	for it := 0; it < 60; it++ {
+	for it := 0; it < 36; it++ { // 61.5 / 2^36 ≈ 1e-9 carbon numbers
 		mid := (lo + hi) / 2
 		c := paramCompound(base, at(mid))
 		tr, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
@@ -397,35 +476,84 @@ func startValues(st []runSetup, obs []obsPoint, base model.Compound) []float64 {
 			lo = mid
 		}
 	}
-	return at((lo + hi) / 2)
+	n := (lo + hi) / 2
+	return at(n), n
 }
 
 // fitCompound is Levenberg–Marquardt on the retention-time residuals with
 // a forward-difference Jacobian; standard errors from σ² (JᵀJ)⁻¹.
 func fitCompound(st []runSetup, obs []obsPoint, base model.Compound, withDCp bool) (fitResult, error) {
-	th := startValues(st, obs, base)
-	free := []int{0, 1}
-	if withDCp {
-		th = append(th, 0)
-		free = append(free, 2)
+	return fitCompoundFrom(st, obs, base, withDCp, nil)
+}
+
+// fitCompoundFrom is fitCompound started from th0 (ΔH J/mol, ΔS) when given
+// (a warm start: a fit of nearly the same data), falling back to the
+// homologous-rule start when that fails.
+func fitCompoundFrom(st []runSetup, obs []obsPoint, base model.Compound, withDCp bool, th0 []float64) (fitResult, error) {
+	// params builds θ from ΔH and ΔS: with ΔCp fitted (from dcp0) or, when
+	// ΔCp is not fitted, held at the compound's own value.
+	params := func(dh, ds, dcp0 float64) ([]float64, []int) {
+		th, free := []float64{dh, ds}, []int{0, 1}
+		if withDCp {
+			th, free = append(th, dcp0), append(free, 2)
+		} else if base.DCp != 0 {
+			th = append(th, base.DCp)
+		}
+		return th, free
 	}
+	if len(th0) >= 2 {
+		dcp := 0.0
+		if len(th0) > 2 {
+			dcp = th0[2]
+		}
+		th, free := params(th0[0], th0[1], dcp)
+		if res, err := fitFree(st, obs, base, th, free); err == nil && determined(res) {
+			return res, nil
+		}
+	}
+	sv, n := startValues(st, obs, base)
+	th, free := params(sv[0], sv[1], 0)
 	res, err := fitFree(st, obs, base, th, free)
-	if err == nil {
+	if err == nil && determined(res) {
 		return res, nil
 	}
-	// Too little retention to tell ΔH from ΔS: keep ΔH of the homologous
-	// rule and fit ΔS alone.
-	res, err2 := fitFree(st, obs, base, startValues(st, obs, base), []int{1})
+	if err == nil {
+		err = errors.New("the runs do not determine ΔH")
+	}
+	// Too little retention to tell ΔH from ΔS: hold ΔH at the homologous
+	// rule's value for the carbon number n whose rule retention matches the
+	// first run, and fit ΔS alone.
+	th, _ = params(sv[0], sv[1], 0)
+	if len(th) > 2 && withDCp {
+		th[2] = base.DCp
+	}
+	res, err2 := fitFree(st, obs, base, th, []int{1})
 	if err2 != nil {
 		return res, err
 	}
 	res.onlyDS = true
+	res.ruleN = n
+	res.ruleRun = obs[0].run
 	return res, nil
+}
+
+// determined: with a retention-time SD of 0.002 min the fit's ΔH would be
+// known to better than half its size (else ΔH and ΔS are not separable
+// from these runs: a compound eluting near the holdup time).
+func determined(r fitResult) bool {
+	if r.cov == nil || len(r.free) < 2 || r.free[0] != 0 {
+		return r.cov != nil
+	}
+	se := 0.12 * math.Sqrt(math.Abs(r.cov.At(0, 0))) / 1000
+	return se < 0.5*math.Abs(r.DHkJ)
 }
 
 // fitFree fits the parameters listed in free (0 ΔH, 1 ΔS, 2 ΔCp) from th.
 func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, free []int) (fitResult, error) {
-	withDCp := len(th) > 2
+	withDCp := false
+	for _, f := range free {
+		withDCp = withDCp || f == 2
+	}
 	p := len(free)
 	n := len(obs)
 	allSteps := []float64{5, 0.01, 0.1}
@@ -451,7 +579,8 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 		}
 		jtj.Mul(J.T(), J)
 	}
-	for iter := 0; iter < 200; iter++ {
+	converged := false
+	for iter := 0; iter < 60; iter++ {
 		jacobian(J, &jtj)
 		g := mat.NewVecDense(n, append([]float64(nil), r...))
 		var jtr mat.VecDense
@@ -472,13 +601,22 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 			for j := 0; j < p; j++ {
 				tn[free[j]] -= delta.AtVec(j)
 			}
+			small := true
+			for j := 0; j < p; j++ {
+				if math.Abs(delta.AtVec(j)) > 1e-4*steps[j] {
+					small = false
+				}
+			}
 			sn, _ := residuals(st, obs, base, tn, rt)
+			if sn >= ssr && small {
+				// at the minimum: even a tiny step no longer helps
+				iter = 1 << 30
+				improved = true
+				break
+			}
 			if sn < ssr {
-				small := true
-				for j := 0; j < p; j++ {
-					if math.Abs(delta.AtVec(j)) > 1e-7*steps[j] {
-						small = false
-					}
+				if ssr-sn < 1e-7*ssr+1e-12 {
+					small = true // no longer worth another iteration
 				}
 				th, ssr = tn, sn
 				copy(r, rt)
@@ -492,15 +630,19 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 			lambda *= 10
 		}
 		if !improved || iter >= 1<<30 {
+			converged = true
 			break
+		}
+		if len(free) > 1 && th[0] > 0 {
+			break // ΔH > 0 is no retention: the data cannot tell ΔH from ΔS
 		}
 	}
 	// Jacobian at the solution for errors and conditioning
 	jacobian(J, &jtj)
 	res := fitResult{resid: append([]float64(nil), r...)}
 	res.DHkJ, res.DS = th[0]/1000, th[1]
-	if withDCp {
-		res.DCp = th[2]
+	if len(th) > 2 {
+		res.DCp = th[2] // fitted, or held at the compound's own value
 	}
 	res.withDCp = withDCp
 	res.Runs = n
@@ -542,6 +684,9 @@ func fitFree(st []runSetup, obs []obsPoint, base model.Compound, th []float64, f
 		lo, hi = math.Min(lo, te), math.Max(hi, te)
 	}
 	res.ElutionSpreadC = hi - lo
+	if !converged {
+		return res, errors.New("the fit did not converge (the runs do not pin ΔH and ΔS down)")
+	}
 	if !(res.DHkJ < 0) || math.IsNaN(res.DS) {
 		return res, errors.New("the fit did not converge to a retained compound")
 	}

@@ -7,8 +7,24 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
+
+// Standard errors above these are called large, by fit and by the UI
+// alike (our threshold: about what moves a retention factor at 100 °C by
+// 30 %: δ ln k = δΔH/(R T) with T = 373 K gives 0.32 for 1 kJ/mol, δΔS/R
+// gives 0.30 for 2.5 J/(mol·K)).
+const (
+	LargeSEDHkJ = 1.0 // kJ/mol
+	LargeSEDS   = 2.5 // J/(mol·K)
+)
+
+// LargeError reports whether either standard error is above its threshold
+// (LargeSEDHkJ, LargeSEDS); an unknown error is not called large.
+func (c *CompoundFit) LargeError() bool {
+	return c.StdErrDH > LargeSEDHkJ || c.StdErrDS > LargeSEDS
+}
 
 // assumedSD is the retention-time SD (s) used when no residual freedom is
 // left: the method's goal.robust.retention_time_sd_min.
@@ -69,17 +85,27 @@ func pool(fits []fitResult, m *methodfile.Method, rep *Report) {
 	}
 }
 
-// findOutliers flags, per compound, the measurement with the largest
-// externally studentized residual t = r / (σ₍ᵢ₎ √(1 − hᵢᵢ)), h the leverage
-// from J(JᵀJ)⁻¹Jᵀ and σ₍ᵢ₎² = (Σ SSR − rᵢ²/(1 − hᵢᵢ)) / (ν − 1) the pooled
-// variance without it (Belsley, Kuh & Welsch, Regression Diagnostics, 1980),
-// when |t| > OutlierT and the residual exceeds 5 × retention_time_sd_min.
-// With as many runs as parameters plus one, every residual of a compound has
-// the same |t|; the run is then the one whose time departs most from the
-// method's own prediction (start). The prediction reported is that of a
-// fit to the other runs; the measurement is left out (Excluded) when the
-// other runs still determine the parameters.
-func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep *Report, opt Options) []Outlier {
+// findOutliers flags, per compound, the measurement that the other runs
+// predict worst: each run is left out in turn, the compound refitted to the
+// others, and the left-out time compared with that prediction:
+// t = e / (σ₍ᵢ₎ √(1 + g C gᵀ)), e the measured less the predicted time, g
+// the prediction's gradient, C the refit's (JᵀJ)⁻¹ and σ₍ᵢ₎² the pooled
+// residual variance without the point (the externally studentized
+// prediction residual; Belsley, Kuh & Welsch, Regression Diagnostics,
+// 1980). A point is flagged when |t| > OutlierT and |e| exceeds 5 ×
+// retention_time_sd_min. With one run more than parameters every point has
+// nearly the same |t|; the run named is then the one whose removal leaves
+// the most plausible parameters (closest to the method's own values, or to
+// the enthalpy–entropy compensation line ΔS ≈ 1.224 ΔH − 33 of the
+// homologous rule). The point is left out of the fit (Excluded).
+//
+// With one run more than parameters the plausibility must single one run
+// out: the most plausible choice within 1 unit (see plausibility) and every
+// other at least 1.5 units and 1 unit worse. Otherwise the compound is
+// returned as a Suspect (the runs named, none left out): the data cannot
+// tell which run is wrong, and dropping a good run would fit the error.
+func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep *Report, opt Options) ([]Outlier, []Suspect) {
+	var sus []Suspect
 	ssr := 0.0
 	dof := 0
 	for _, f := range fits {
@@ -87,67 +113,156 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 		dof += len(f.obs) - len(f.free)
 	}
 	if dof < 2 {
-		return nil
+		return nil, nil
 	}
 	floor := 5 * assumedSD(start)
 	startC, _ := start.ModelCompounds()
 	var out []Outlier
 	for _, f := range fits {
 		n, p := len(f.obs), len(f.free)
-		if n <= p || f.cov == nil {
+		if f.onlyDS {
+			p = 2 // a gross error also makes ΔH look undeterminable: judge by two-parameter refits
+		}
+		if n <= p {
 			continue
 		}
-		var hat mat.Dense
-		hat.Product(f.jac, f.cov, f.jac.T())
-		best, bestT, bestTie := -1, 0.0, 0.0
-		for i := 0; i < n; i++ {
-			h := hat.At(i, i)
-			if h > 1-1e-9 {
-				continue
-			}
-			r := f.resid[i]
-			s2 := (ssr - r*r/(1-h)) / float64(dof-1)
-			if !(s2 > 0) {
-				s2 = 1e-30
-			}
-			t := r / math.Sqrt(s2*(1-h))
-			if math.Abs(t) <= opt.OutlierT || math.Abs(r) < floor {
-				continue
-			}
-			tie := 0.0
-			if ci := compoundIndex(start, f.Name); ci >= 0 {
-				o := f.obs[i]
-				if tp, _ := st[o.run].cond.RetentionTime(&startC[ci], st[o.run].prog); finite(tp) && tp > 0 {
-					tie = math.Abs(o.t-tp) / tp
+		// screen: leave-one-out residuals rᵢ/(1 − hᵢᵢ) all below the floor
+		// cannot make an outlier
+		if f.cov != nil {
+			var hat mat.Dense
+			hat.Product(f.jac, f.cov, f.jac.T())
+			big := false
+			for i, r := range f.resid {
+				if h := hat.At(i, i); h > 0.98 || math.Abs(r)/(1-h) >= floor {
+					big = true
 				}
 			}
-			switch {
-			case best < 0, math.Abs(t) > 1.02*math.Abs(bestT):
-				best, bestT, bestTie = i, t, tie
-			case math.Abs(t) >= 0.98*math.Abs(bestT) && tie > bestTie:
-				best, bestT, bestTie = i, t, tie
+			if !big {
+				continue
 			}
 		}
-		if best < 0 {
+		type cand struct {
+			i          int
+			t, e, pred float64
+			plaus      float64
+		}
+		var cs []cand
+		for i := 0; i < n; i++ {
+			rest := append(append([]obsPoint(nil), f.obs[:i]...), f.obs[i+1:]...)
+			g, err := fitCompoundFrom(st, rest, f.base, f.withDCp && len(rest) >= 4, f.th)
+			if err != nil || g.onlyDS {
+				continue
+			}
+			o := f.obs[i]
+			c := paramCompound(f.base, g.th)
+			tp, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
+			if !finite(tp) {
+				continue
+			}
+			pv := 0.0
+			if g.cov != nil {
+				grad := make([]float64, len(g.free))
+				steps := []float64{5, 0.01, 0.1}
+				for j, fr := range g.free {
+					th := append([]float64(nil), g.th...)
+					th[fr] += steps[fr]
+					cc := paramCompound(f.base, th)
+					t2, _ := st[o.run].cond.RetentionTime(&cc, st[o.run].prog)
+					grad[j] = (t2 - tp) / steps[fr]
+				}
+				for a := range grad {
+					for b := range grad {
+						pv += grad[a] * g.cov.At(a, b) * grad[b]
+					}
+				}
+			}
+			s2 := (ssr - f.ssr + g.ssr) / float64(dof-1)
+			if !(s2 > 0) {
+				s2 = 1e-12
+			}
+			e := o.t - tp
+			x := cand{i: i, e: e, pred: tp, t: e / math.Sqrt(s2*(1+math.Abs(pv)))}
+			x.plaus = plausibility(g.th, startC, compoundIndex(start, f.Name), start)
+			cs = append(cs, x)
+		}
+		if len(cs) == 0 {
 			continue
 		}
-		o := f.obs[best]
-		x := Outlier{Run: st[o.run].name, Compound: f.Name, MeasuredMin: o.t / 60, Studentized: bestT, PredictedMin: math.NaN()}
-		rest := append(append([]obsPoint(nil), f.obs[:best]...), f.obs[best+1:]...)
-		if len(rest) >= p {
-			if g, err := fitCompound(st, rest, f.base, len(f.th) > 2 && len(rest) >= 3); err == nil {
-				c := paramCompound(f.base, g.th)
-				tp, _ := st[o.run].cond.RetentionTime(&c, st[o.run].prog)
-				x.PredictedMin = tp / 60
-				x.Excluded = true
+		best := 0
+		for k := range cs {
+			if math.Abs(cs[k].t) > math.Abs(cs[best].t) {
+				best = k
 			}
 		}
-		if math.IsNaN(x.PredictedMin) {
-			x.PredictedMin = (o.t + f.resid[best]) / 60
+		top := math.Abs(cs[best].t)
+		for k := range cs {
+			if math.Abs(cs[k].t) >= 0.85*top && cs[k].plaus < cs[best].plaus {
+				best = k
+			}
 		}
-		out = append(out, x)
+		if n == p+1 {
+			// |t| is nearly the same for every run: judge by plausibility
+			// alone; a run whose refit failed counts as implausible.
+			best = 0
+			for k := range cs {
+				if cs[k].plaus < cs[best].plaus {
+					best = k
+				}
+			}
+			clear := cs[best].plaus <= 1
+			for k := range cs {
+				if k != best && (cs[k].plaus < 1.5 || cs[k].plaus < cs[best].plaus+1) {
+					clear = false
+				}
+			}
+			if !clear {
+				if top <= opt.OutlierT || math.Abs(cs[best].e) < floor {
+					continue
+				}
+				x := Suspect{Compound: f.Name, Studentized: cs[best].t}
+				for _, o := range f.obs {
+					x.Runs = append(x.Runs, st[o.run].name)
+				}
+				sus = append(sus, x)
+				continue
+			}
+		}
+		b := cs[best]
+		if math.Abs(b.t) <= opt.OutlierT || math.Abs(b.e) < floor {
+			continue
+		}
+		o := f.obs[b.i]
+		out = append(out, Outlier{Run: st[o.run].name, Compound: f.Name, MeasuredMin: o.t / 60, PredictedMin: b.pred / 60, Studentized: b.t, Excluded: true})
 	}
-	return out
+	return out, sus
+}
+
+// plausibility of fitted θ (lower is more plausible): the smaller of the
+// distance to the method's own values in units of the priors
+// (goal.robust.prior_dH_kJ_mol, prior_dS_J_mol_K) and the distance from the
+// compensation line ΔS = 1.224 ΔH − 33 in units of 15 J/(mol·K) (the
+// demo's homologous rule; a loose guide for other classes).
+func plausibility(th []float64, startC []model.Compound, ci int, m *methodfile.Method) float64 {
+	dh, ds := th[0]/1000, th[1]
+	comp := math.Abs(ds-(1.224*dh-33)) / 15
+	if ci < 0 || ci >= len(startC) {
+		return comp
+	}
+	c := startC[ci]
+	pdh, pds := m.Goal.Robust.PriorDHkJ, m.Goal.Robust.PriorDS
+	if !(pdh > 0) {
+		pdh = 2
+	}
+	if !(pds > 0) {
+		pds = 4
+	}
+	// the start's values at the fit's reference temperature
+	sc := c
+	if c.RefTemp != 0 && c.RefTemp != model.DefaultRefTemp || c.DCp != 0 {
+		return comp
+	}
+	prior := math.Hypot((dh-sc.DH/1000)/pdh, (ds-sc.DS)/pds)
+	return math.Min(prior, comp)
 }
 
 // dcpTrend tests for a ΔCp the fit leaves out: per compound (≥ 3 runs) the
@@ -165,14 +280,17 @@ func dcpTrend(fits []fitResult, st []runSetup, rep *Report) string {
 	k := 0
 	for _, f := range fits {
 		n := len(f.obs)
-		if n < 3 || len(f.th) > 2 || f.onlyDS || f.cov == nil {
+		if n < 3 || f.withDCp || f.onlyDS || f.cov == nil {
 			continue
 		}
-		th := append(append([]float64(nil), f.th...), 0)
+		th := append([]float64(nil), f.th...)
+		if len(th) < 3 {
+			th = append(th, 0) // ΔCp held at 0; else at the compound's value
+		}
 		base := make([]float64, n)
 		plus := make([]float64, n)
 		residuals(st, f.obs, f.base, th, base)
-		th[2] = 1
+		th[2]++
 		residuals(st, f.obs, f.base, th, plus)
 		j3 := mat.NewVecDense(n, nil)
 		for i := range plus {
@@ -275,4 +393,66 @@ func orderChecks(m *methodfile.Method, st []runSetup, runs *methodfile.Runs, rep
 		}
 	}
 	sort.Strings(rep.Notes)
+}
+
+// trendWarnings flags fitted parameters implausible for a compound: ΔS far
+// from the ΔH–ΔS line. On one stationary phase ΔS of retention falls
+// nearly linearly with ΔH across compounds (enthalpy–entropy compensation;
+// common practice: the homologous-series rule the fit starts from,
+// ΔH = −(9 + 4.9 n), ΔS = −(44 + 6.0 n), is that line, ΔS ≈ 1.224 ΔH − 33).
+// The line is fitted by least squares to the other well-determined
+// compounds of this fit (not held at the rule's ΔH, errors not large) when
+// there are at least 4 spanning 10 kJ/mol or more, else the rule's line is
+// used. A compound is flagged when its ΔS is off the line by more than
+// max(15 J/(mol·K), 4 × the others' scatter about it): a gross error that
+// the fit passed through (a misassigned peak in one of three runs moves
+// ΔS by tens of J/(mol·K) along the ΔH–ΔS valley).
+func trendWarnings(fits []fitResult) map[string]string {
+	out := map[string]string{}
+	good := func(f *fitResult) bool {
+		return !f.onlyDS && finite(f.StdErrDH) && !f.LargeError()
+	}
+	for i := range fits {
+		f := &fits[i]
+		if f.onlyDS {
+			continue
+		}
+		var xs, ys []float64
+		for j := range fits {
+			if j != i && good(&fits[j]) {
+				xs, ys = append(xs, fits[j].DHkJ), append(ys, fits[j].DS)
+			}
+		}
+		a, b, scatter, src := 1.224, -33.0, 0.0, "the homologous-series rule's line"
+		if len(xs) >= 4 {
+			lo, hi := math.Inf(1), math.Inf(-1)
+			var mx, my float64
+			for k := range xs {
+				lo, hi = math.Min(lo, xs[k]), math.Max(hi, xs[k])
+				mx += xs[k] / float64(len(xs))
+				my += ys[k] / float64(len(xs))
+			}
+			if hi-lo >= 10 {
+				var sxy, sxx float64
+				for k := range xs {
+					sxy += (xs[k] - mx) * (ys[k] - my)
+					sxx += (xs[k] - mx) * (xs[k] - mx)
+				}
+				a = sxy / sxx
+				b = my - a*mx
+				for k := range xs {
+					r := ys[k] - (a*xs[k] + b)
+					scatter += r * r
+				}
+				scatter = math.Sqrt(scatter / float64(len(xs)-2))
+				src = fmt.Sprintf("the trend of the other %d fitted compounds", len(xs))
+			}
+		}
+		tol := math.Max(15, 4*scatter)
+		dev := f.DS - (a*f.DHkJ + b)
+		if math.Abs(dev) > tol {
+			out[f.Name] = fmt.Sprintf("%s: fitted ΔH %.2f kJ/mol, ΔS %.2f J/(mol·K) look implausible: ΔS is %+.0f J/(mol·K) off %s (ΔS ≈ %.3f ΔH %+.1f; flagged beyond ±%.0f J/(mol·K)); on one phase ΔH and ΔS of retention keep close to one line (enthalpy–entropy compensation): likely a misassigned or mistyped peak in one of its runs; check its peaks", f.Name, f.DHkJ, f.DS, dev, src, a, b, tol)
+		}
+	}
+	return out
 }

@@ -52,7 +52,7 @@ func ColumnCapacity(c methodfile.Column) float64 {
 	if c.HasCapacity && c.CapacityNG > 0 {
 		return c.CapacityNG
 	}
-	if c.Kind == "packed" {
+	if c.Kind == model.Packed {
 		return PackedCapacity
 	}
 	return Capacity(c.DiameterMM, c.FilmUM, 0)
@@ -89,11 +89,11 @@ func Overloads(m *methodfile.Method) []Overload {
 }
 
 // remedy is the column change that raises capacity, by kind.
-func remedy(kind string) string {
+func remedy(kind model.ColumnKind) string {
 	switch kind {
-	case "packed":
+	case model.Packed:
 		return "higher loading or a wider tube"
-	case "porous-layer":
+	case model.PorousLayer:
 		return "thicker layer or a wider bore"
 	}
 	return "thicker film"
@@ -147,6 +147,21 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 	// search bounds and rules of thumb the program breaks (never refused)
 	for _, n := range m.Advice() {
 		w = append(w, n.String())
+	}
+	return w
+}
+
+// Cautions are everything a chromatographer is warned of with this
+// result: Warnings, then the safety notes that go with the method (the
+// hydrogen caution for a flammable carrier, the coolant note and the
+// cryogen caution). simulate prints them and the UI lists them.
+func Cautions(m *methodfile.Method, sys *model.System, res *model.Result) []string {
+	w := Warnings(m, sys, res)
+	if sys.Cond.Carrier.Gas.Flammable() {
+		w = append(w, model.HydrogenCaution)
+	}
+	if note := CoolantNote(m); note != "" {
+		w = append(w, note, model.CryogenCaution)
 	}
 	return w
 }

@@ -95,3 +95,93 @@ func Rs(rs, target float64) string {
 // Pair is the resolution of one adjacent pair in a peak table: two
 // decimals, or RsDigits near the target.
 func Pair(rs, target float64) string { return RsNumber(rs, target) }
+
+// Num is a number as the file would hold it, without trailing zeros: 1.2,
+// 325, 0.25; very small or very large magnitudes in exponent form (1e-09).
+func Num(x float64) string {
+	if a := math.Abs(x); a != 0 && (a < 1e-4 || a >= 1e9) {
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	}
+	return strconv.FormatFloat(x, 'f', -1, 64)
+}
+
+// RsAll is Rs for a run in which the targets named in notEluted elute after
+// the program ends: the run does not meet the goal whatever the resolution
+// of the pairs that did elute, and the summary says so and names them:
+// "1.71 not met (target 1.50; nootkatone does not elute)". Without such
+// targets it is Rs.
+func RsAll(rs, target float64, notEluted []string) string {
+	if len(notEluted) == 0 {
+		return Rs(rs, target)
+	}
+	num := RsNumber(rs, target)
+	return num + " not met (target " + Target(target) + "; " + NotEluted(notEluted) + ")"
+}
+
+// MetAll reports whether a run meets the goal: its minimum resolution
+// reaches the target and every target elutes within the program.
+func MetAll(rs, target float64, notEluted int) bool { return notEluted == 0 && Met(rs, target) }
+
+// VerdictAll is the word for MetAll: "met" or "not met".
+func VerdictAll(rs, target float64, notEluted int) string {
+	if MetAll(rs, target, notEluted) {
+		return "met"
+	}
+	return "not met"
+}
+
+// NotEluted names targets that elute after the program: "nootkatone does
+// not elute", "a, b do not elute", "a, b, c and 2 more do not elute".
+func NotEluted(names []string) string {
+	const show = 3
+	list := ""
+	for i, n := range names {
+		if i == show {
+			list += " and " + strconv.Itoa(len(names)-show) + " more"
+			break
+		}
+		if i > 0 {
+			list += ", "
+		}
+		list += n
+	}
+	if len(names) == 1 {
+		return list + " does not elute"
+	}
+	return list + " do not elute"
+}
+
+// StepDecimals is how many decimals show a multiple of the keypad step
+// exactly: 0 for 1 or 5, 1 for 0.1 or 0.5, 2 for 0.01 or 0.25 (at most 6).
+func StepDecimals(step float64) int {
+	step = math.Abs(step)
+	for d := 0; d < 6; d++ {
+		p := math.Pow(10, float64(d))
+		if math.Abs(step*p-math.Round(step*p)) < 1e-9*math.Max(1, step*p) {
+			return d
+		}
+	}
+	return 6
+}
+
+// OnStep is x rounded to the nearest multiple of step and written at the
+// step's precision: OnStep(82.25, 0.1) is "82.3", never 82.30000000000001.
+// With no step (0) it is Clean(x).
+func OnStep(x, step float64) string {
+	if !(step > 0) || math.IsNaN(x) || math.IsInf(x, 0) {
+		return Clean(x)
+	}
+	return strconv.FormatFloat(math.Round(x/step)*step, 'f', StepDecimals(step), 64)
+}
+
+// Clean is a computed number for a message: at most 12 significant digits,
+// trailing zeros dropped, so that binary noise (36.66666666666667,
+// 308.90000000000003) never shows; values as written in a file (at most
+// 12 digits) are unchanged.
+func Clean(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	}
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 12, 64), 64)
+	return Num(r)
+}

@@ -60,7 +60,7 @@ func cleanErr(err error) error {
 //   - path a symlink: the link is followed (to the end of a chain) and its
 //     target is saved; the link stays a link.
 //   - target a regular file with one link, or missing: atomic replace with
-//     mode, owner and group kept (new files get 0644 less the umask).
+//     mode, owner and group kept (a new file gets 0644).
 //   - target a regular file with more than one hard link: copied to
 //     TARGET.bak first, then rewritten in place, so every link sees the new
 //     content.
@@ -149,11 +149,9 @@ func replace(path, target string, data []byte, old fs.FileInfo) error {
 	if err := tmp.Sync(); err != nil {
 		return fail(err)
 	}
-	mode := fs.FileMode(0o644)
+	mode := newFileMode()
 	if old != nil {
 		mode = old.Mode().Perm()
-	} else {
-		mode = newFileMode()
 	}
 	if err := tmp.Chmod(mode); err != nil && !isUnsupported(err) {
 		return fail(err)
@@ -212,6 +210,23 @@ func writeInPlace(path, target string, data []byte, st fs.FileInfo, backup bool)
 	return nil
 }
 
+// retryRename calls rename until it succeeds, fails for a reason transient
+// does not accept, or budget is spent; the waits grow from 5 ms to 200 ms.
+func retryRename(rename func(from, to string) error, transient func(error) bool, from, to string, budget time.Duration) error {
+	delay := 5 * time.Millisecond
+	deadline := time.Now().Add(budget)
+	for {
+		err := rename(from, to)
+		if err == nil || !transient(err) || time.Now().After(deadline) {
+			return err
+		}
+		time.Sleep(delay)
+		if delay < 200*time.Millisecond {
+			delay *= 2
+		}
+	}
+}
+
 // Fingerprint identifies one state of a file: it changes when the file is
 // rewritten, replaced or removed.
 type Fingerprint struct {
@@ -236,12 +251,18 @@ func Take(path string) (Fingerprint, error) {
 	if !st.Mode().IsRegular() {
 		return fp, nil
 	}
-	data, err := ReadRegular(path, 0)
+	f, _, err := openRegular(path)
 	if err != nil {
 		return Fingerprint{}, err
 	}
-	fp.Hash = sha256.Sum256(data)
-	fp.Size = int64(len(data))
+	defer f.Close()
+	h := sha256.New()
+	n, err := io.Copy(h, f) // streamed: a huge file is not held in memory
+	if err != nil {
+		return Fingerprint{}, err
+	}
+	h.Sum(fp.Hash[:0])
+	fp.Size = n
 	return fp, nil
 }
 
@@ -277,11 +298,8 @@ func (fp Fingerprint) Changed(path string) (bool, error) {
 	if !st.Mode().IsRegular() {
 		return false, nil
 	}
-	// Cheap check first: same size and time means unchanged for ordinary
-	// editors; otherwise compare the hash (a touch is not a change).
-	if st.Size() == fp.Size && st.ModTime().Equal(fp.ModTime) {
-		return false, nil
-	}
+	// Always the hash: a same-size rewrite within the file system's time
+	// resolution keeps size and time (and a touch alone is no change).
 	now, err := Take(path)
 	if err != nil {
 		return true, err
@@ -297,30 +315,11 @@ var ErrNotRegular = errors.New("not a regular file")
 // is refused at once (it is opened without blocking, then checked), so a
 // path that names a FIFO never hangs. max > 0 bounds the size read.
 func ReadRegular(path string, max int64) ([]byte, error) {
-	f, err := openNoBlock(path)
+	f, st, err := openRegular(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	st, err := f.Stat()
-	if err != nil {
-		return nil, err
-	}
-	if !st.Mode().IsRegular() {
-		what := "not a regular file"
-		switch {
-		case st.IsDir():
-			what = "is a folder, not a file"
-		case st.Mode()&fs.ModeNamedPipe != 0:
-			what = "is a FIFO (named pipe), not a regular file"
-		case st.Mode()&fs.ModeDevice != 0:
-			what = "is a device, not a regular file"
-		}
-		return nil, &fs.PathError{Op: "open", Path: path, Err: fmt.Errorf("%s: %w", what, ErrNotRegular)}
-	}
-	if err := clearNoBlock(f); err != nil {
-		return nil, err
-	}
 	var r io.Reader = f
 	if max > 0 {
 		if st.Size() > max {
@@ -337,4 +336,36 @@ func ReadRegular(path string, max int64) ([]byte, error) {
 		return nil, &fs.PathError{Op: "read", Path: path, Err: fmt.Errorf("file is larger than the %d bytes allowed", max)}
 	}
 	return buf.Bytes(), nil
+}
+
+// openRegular opens path for reading without blocking (a FIFO), checks it
+// is a regular file, and returns it in blocking mode.
+func openRegular(path string) (*os.File, fs.FileInfo, error) {
+	f, err := openNoBlock(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	st, err := f.Stat()
+	if err != nil {
+		f.Close()
+		return nil, nil, err
+	}
+	if !st.Mode().IsRegular() {
+		f.Close()
+		what := "not a regular file"
+		switch {
+		case st.IsDir():
+			what = "is a folder, not a file"
+		case st.Mode()&fs.ModeNamedPipe != 0:
+			what = "is a FIFO (named pipe), not a regular file"
+		case st.Mode()&fs.ModeDevice != 0:
+			what = "is a device, not a regular file"
+		}
+		return nil, nil, &fs.PathError{Op: "open", Path: path, Err: fmt.Errorf("%s: %w", what, ErrNotRegular)}
+	}
+	if err := clearNoBlock(f); err != nil {
+		f.Close()
+		return nil, nil, err
+	}
+	return f, st, nil
 }

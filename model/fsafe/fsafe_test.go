@@ -223,3 +223,61 @@ func TestReadRegularLimit(t *testing.T) {
 		t.Errorf("folder: %v", err)
 	}
 }
+
+// A new file is 0644 (readable by the others who share the method folder).
+func TestNewFileMode(t *testing.T) {
+	if runtime.GOOS == "windows" {
+		t.Skip("no Unix modes")
+	}
+	p := filepath.Join(t.TempDir(), "n.toml")
+	if err := WriteFile(p, []byte("x")); err != nil {
+		t.Fatal(err)
+	}
+	if st, _ := os.Stat(p); st.Mode().Perm() != 0o644 {
+		t.Errorf("mode %v", st.Mode().Perm())
+	}
+}
+
+// A same-size rewrite that keeps the time (coarse file-system clocks, or
+// a tool that restores it) is still seen.
+func TestFingerprintSameSizeSameTime(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "m.toml")
+	os.WriteFile(p, []byte("aaa"), 0o644)
+	fp, _ := Take(p)
+	os.WriteFile(p, []byte("bbb"), 0o644)
+	os.Chtimes(p, fp.ModTime, fp.ModTime)
+	if ch, _ := fp.Changed(p); !ch {
+		t.Error("rewrite with the same size and time not seen")
+	}
+}
+
+// The Windows replace retries while another program holds the file (a
+// sharing violation), and gives up on other errors or when the budget is
+// spent. The loop is the same on every platform, so it is tested here.
+func TestRetryRename(t *testing.T) {
+	busy := errors.New("sharing violation")
+	transient := func(err error) bool { return err == busy }
+	calls := 0
+	flaky := func(from, to string) error {
+		calls++
+		if calls < 4 {
+			return busy
+		}
+		return nil
+	}
+	if err := retryRename(flaky, transient, "a", "b", time.Second); err != nil || calls != 4 {
+		t.Errorf("flaky: %v after %d calls", err, calls)
+	}
+	calls = 0
+	denied := errors.New("denied")
+	if err := retryRename(func(string, string) error { calls++; return denied }, transient, "a", "b", time.Second); err != denied || calls != 1 {
+		t.Errorf("permanent error retried: %v after %d calls", err, calls)
+	}
+	start := time.Now()
+	if err := retryRename(func(string, string) error { return busy }, transient, "a", "b", 50*time.Millisecond); err != busy {
+		t.Errorf("held for good: %v", err)
+	}
+	if el := time.Since(start); el > 2*time.Second {
+		t.Errorf("budget 50 ms took %v", el)
+	}
+}

@@ -61,11 +61,10 @@ func keepOwner(f *os.File, old fs.FileInfo) error {
 	return nil
 }
 
-func newFileMode() fs.FileMode {
-	mask := syscall.Umask(0)
-	syscall.Umask(mask)
-	return fs.FileMode(0o666 &^ mask)
-}
+// newFileMode is the mode of a file that did not exist: 0644, as before
+// (reading the umask would mean setting it, racing other goroutines that
+// create files).
+func newFileMode() fs.FileMode { return 0o644 }
 
 func isUnsupported(err error) bool { return errors.Is(err, syscall.ENOTSUP) }
 

@@ -20,20 +20,10 @@ const (
 
 // renameReplace renames with replace-existing (os.Rename uses MoveFileEx
 // with MOVEFILE_REPLACE_EXISTING on Windows), retrying for up to about two
-// seconds while the target is held open by another program.
+// seconds while the target is held open by another program (a virus
+// scanner, an indexer, an editor).
 func renameReplace(from, to string) error {
-	var err error
-	delay := 5 * time.Millisecond
-	for deadline := time.Now().Add(2 * time.Second); ; {
-		err = os.Rename(from, to)
-		if err == nil || !transient(err) || time.Now().After(deadline) {
-			return err
-		}
-		time.Sleep(delay)
-		if delay < 200*time.Millisecond {
-			delay *= 2
-		}
-	}
+	return retryRename(os.Rename, transient, from, to, 2*time.Second)
 }
 
 func transient(err error) bool {

@@ -8,14 +8,15 @@ import (
 	"math"
 	"regexp"
 	"sort"
-	"strconv"
 	"strings"
 
 	toml "github.com/pelletier/go-toml/v2"
 	"github.com/pelletier/go-toml/v2/unstable"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/fsafe"
+	"github.com/rampwise/rampwise/model/textsafe"
 )
 
 // MaxFileSize is the largest method or runs file read (4 MiB): a method is
@@ -38,13 +39,19 @@ type Error struct {
 	Msg  string
 }
 
+// quoted is a name from a file in a message: in quotes, shown inert
+// (textsafe.Inert), the same way in every message.
+func quoted(s string) string { return `"` + textsafe.Inert(s) + `"` }
+
+// Error is file:line: key: message, the file name and key shown inert (a
+// key may hold a compound's name).
 func (e *Error) Error() string {
 	var b strings.Builder
-	b.WriteString(e.File)
+	b.WriteString(textsafe.Inert(e.File))
 	if e.Line > 0 {
 		fmt.Fprintf(&b, ":%d", e.Line)
 	}
-	for _, s := range []string{e.Key, e.Msg} {
+	for _, s := range []string{textsafe.Inert(e.Key), e.Msg} {
 		if s == "" {
 			continue
 		}
@@ -217,6 +224,9 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 	dec.DisallowUnknownFields()
 	err := dec.Decode(target)
 	if err == nil {
+		if err := checkExactKeys(name, data, target); err != nil {
+			return nil, err
+		}
 		return locate(data), nil
 	}
 	var strict *toml.StrictMissingError
@@ -234,9 +244,26 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 		} else if len(de.Key()) == 0 {
 			msg = "TOML syntax error: " + msg
 		}
-		return nil, &Error{File: name, Line: line, Key: strings.Join(de.Key(), "."), Msg: msg}
+		return nil, &Error{File: name, Line: line, Key: canonicalKey(data, line, de.Key()), Msg: msg}
 	}
 	return nil, &Error{File: name, Msg: strings.TrimPrefix(err.Error(), "toml: ")}
+}
+
+// canonicalKey is the decoder's key path as the other messages write it,
+// with the element of each array of tables (run[2].holdup_min, not
+// run.holdup_min): the located key on that line with the same last part.
+func canonicalKey(data []byte, line int, key []string) string {
+	plain := strings.Join(key, ".")
+	if line == 0 || len(key) == 0 {
+		return plain
+	}
+	last := key[len(key)-1]
+	for k, l := range locate(data) {
+		if l == line && (k == last || strings.HasSuffix(k, "."+last)) {
+			return k
+		}
+	}
+	return plain
 }
 
 // isUTF16 spots UTF-16 text: a UTF-16 byte order mark, or (without one)
@@ -262,7 +289,10 @@ func isUTF16(data []byte) bool {
 	return (odd > half*3/4 && even == 0) || (even > half*3/4 && odd == 0)
 }
 
-var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into .* of type (\S+)`)
+// typeMismatch matches go-toml's type errors: "cannot decode TOML string
+// into struct field ... of type *float64", and for a map's value "cannot
+// decode TOML string into float64".
+var typeMismatch = regexp.MustCompile(`cannot decode TOML (\w+) into (?:.* of type )?(\S+)$`)
 
 // goTypeWords names a decoding target type in the file's terms.
 func goTypeWords(t string) string {
@@ -304,18 +334,9 @@ type bound struct {
 	loOpen, hiOpen bool
 }
 
-func (b bound) String() string {
-	l, r := "[", "]"
-	if b.loOpen {
-		l = "("
-	}
-	if b.hiOpen {
-		r = ")"
-	}
-	return fmt.Sprintf("%s%s, %s%s", l, fmtNum(b.lo), fmtNum(b.hi), r)
-}
-
-func fmtNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+// fmtNum is a number in a message: at most 12 significant digits, so that
+// a computed value never shows binary noise (format.Clean).
+func fmtNum(x float64) string { return format.Clean(x) }
 
 // num checks an optional or required number against its range and returns
 // it (or def when absent).
@@ -327,12 +348,7 @@ func (v *validator) num(path string, p *float64, required bool, def float64, b b
 		return def
 	}
 	x := *p
-	if !finite(x) {
-		v.fail(path, "must be a finite number, got %v", x)
-		return def
-	}
-	if x < b.lo || x > b.hi || (b.loOpen && x == b.lo) || (b.hiOpen && x == b.hi) {
-		v.fail(path, "%s %s is out of range %s %s", fmtNum(x), unit, b, unit)
+	if !v.in(path, x, b.rng(unit), "") {
 		return def
 	}
 	return x
@@ -370,7 +386,7 @@ func (v *validator) str(path string, p *string, required bool, def string, choic
 			return c
 		}
 	}
-	v.fail(path, "%q is not one of %s", *p, strings.Join(choices, ", "))
+	v.fail(path, "%s is not one of %s", quoted(*p), strings.Join(choices, ", "))
 	return def
 }
 
@@ -388,7 +404,7 @@ func (v *validator) distinct(path, name string, seen map[string]int, n int, what
 		v.fail(path, "empty name")
 	}
 	if j, dup := seen[name]; dup && v.err == nil {
-		v.fail(path, "duplicate %s name %q (also %s %d)", what, name, what, j)
+		v.fail(path, "duplicate %s name %s (also %s %d)", what, quoted(name), what, j)
 	}
 	seen[name] = n
 }
@@ -447,7 +463,7 @@ func (v *validator) column(r *rawMethod, m *Method) {
 		return
 	}
 	c := r.Column
-	m.Column.Kind = v.str("column.kind", c.Kind, false, "wall-coated", "wall-coated", "packed", "porous-layer")
+	m.Column.Kind = choice(v, "column.kind", c.Kind, false, model.WallCoated, model.ParseColumnKind)
 	kr := rulesFor(m.Column.Kind)
 	m.Column.LengthM = v.opt("column.length_m", c.LengthM, true, 30)
 	m.Column.DiameterMM = v.opt("column.diameter_mm", c.DiameterMM, true, 0.25)
@@ -614,7 +630,7 @@ func (v *validator) goal(r *rawMethod, m *Method) {
 		}
 		pv, err := model.ParseProgramValue(name)
 		if err != nil || !pv.Kind.InProgram() {
-			v.fail("goal.lock", "%q is not a program value (use %s or %s)", name, model.ValueNames(model.ProgramValues(m.Goal.Ramps)), FlowLockName)
+			v.fail("goal.lock", "%s is not a program value (use %s or %s)", quoted(name), model.ValueNames(model.ProgramValues(m.Goal.Ramps)), FlowLockName)
 			break
 		}
 		m.Goal.Lock = append(m.Goal.Lock, pv)
@@ -671,6 +687,9 @@ func (v *validator) compounds(r *rawMethod, m *Method) {
 		}
 		if rc.AlkaneCarbons != nil {
 			c.AlkaneCarbons = whole(*rc.AlkaneCarbons)
+			if c.AlkaneCarbons == 0 { // 0 would read as "not a ladder alkane"
+				v.intIn(base+".alkane_carbons", 0, 1, 100)
+			}
 		}
 		if rc.RetentionIndex != nil {
 			c.RetentionIndex = *rc.RetentionIndex

@@ -62,8 +62,8 @@ func Marshal(m *Method) ([]byte, error) {
 	if m.Column.HasCapacity {
 		r.Column.CapacityNG = ptr(m.Column.CapacityNG)
 	}
-	if m.Column.Kind != "" && m.Column.Kind != "wall-coated" {
-		r.Column.Kind = ptr(m.Column.Kind)
+	if m.Column.Kind != model.WallCoated {
+		r.Column.Kind = ptr(m.Column.Kind.String())
 	}
 	if m.Column.HasMaxIsothermal {
 		r.Column.MaxIsoC = ptr(m.Column.MaxIsothermalC)
@@ -71,13 +71,13 @@ func Marshal(m *Method) ([]byte, error) {
 	if m.Column.HasParticle {
 		r.Column.ParticleUM = ptr(m.Column.ParticleUM)
 	}
-	if m.Column.HasPorosity || m.Column.Kind == "packed" {
+	if m.Column.HasPorosity || m.Column.Kind == model.Packed {
 		r.Column.Porosity = ptr(m.Column.Porosity)
 	}
 	if m.Column.HasPhaseRatio {
 		r.Column.PhaseRatio = ptr(m.Column.PhaseRatio)
 	}
-	if m.Column.Kind == "packed" {
+	if m.Column.Kind == model.Packed {
 		r.Column.EddyLambda = ptr(m.Column.EddyLambda)
 		r.Column.ObstrGamma = ptr(m.Column.ObstructionGamma)
 		r.Column.MobileOmega = ptr(m.Column.MobileOmega)

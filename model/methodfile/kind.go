@@ -2,6 +2,7 @@ package methodfile
 
 import (
 	"fmt"
+	"math"
 
 	"github.com/rampwise/rampwise/model"
 )
@@ -19,9 +20,9 @@ type kindRules struct {
 // film up to 50 µm; a porous-layer tube with a 1-60 µm layer and a layer
 // diffusivity of 1e-7 m²/s (MODEL.md §11); a packed tube of 1-6 mm and
 // 0.3-10 m with an effective liquid film of 1 µm by default (§10).
-func rulesFor(kind string) kindRules {
+func rulesFor(kind model.ColumnKind) kindRules {
 	switch kind {
-	case "packed":
+	case model.Packed:
 		return kindRules{
 			length:      bound{lo: 0.3, hi: 10},
 			diameter:    bound{lo: 1, hi: 6},
@@ -30,7 +31,7 @@ func rulesFor(kind string) kindRules {
 			filmWord:    "liquid film",
 			diffusivity: model.DefaultDs,
 		}
-	case "porous-layer":
+	case model.PorousLayer:
 		return kindRules{
 			length:       bound{lo: 0.1, hi: 300},
 			diameter:     bound{lo: 0.01, hi: 1.0},
@@ -56,7 +57,7 @@ func rulesFor(kind string) kindRules {
 // eddy_lambda (default 0.8), obstruction_gamma (0.7) and mobile_omega (0.1)
 // optional; on an open tube each of them is an error naming the key.
 func (v *validator) packedKeys(c *rawColumn, m *Method) {
-	if m.Column.Kind != "packed" {
+	if m.Column.Kind != model.Packed {
 		for _, k := range []struct {
 			key   string
 			given bool
@@ -87,18 +88,18 @@ func (v *validator) packedKeys(c *rawColumn, m *Method) {
 // not belong to the kind when the file is read).
 func (v *validator) checkKind(m *Method) {
 	c := &m.Column
-	if v.err == nil && c.Kind != "wall-coated" && c.Kind != "packed" && c.Kind != "porous-layer" {
-		v.fail("column.kind", "%q is not one of wall-coated, packed, porous-layer", c.Kind)
+	if v.err == nil && !validChoice(c.Kind, model.ColumnKinds) {
+		v.fail("column.kind", "%s is not one of wall-coated, packed, porous-layer", quoted(c.Kind.String()))
 		return
 	}
 	kr := rulesFor(c.Kind)
 	v.in("column.length_m", c.LengthM, kr.length.rng("m"), "")
 	v.in("column.diameter_mm", c.DiameterMM, kr.diameter.rng("mm"), "")
 	v.in("column.film_um", c.FilmUM, kr.film.rng("µm"), "")
-	if v.err == nil && c.Kind != "packed" && c.FilmUM*1e-3 >= c.DiameterMM/2 {
+	if v.err == nil && c.Kind != model.Packed && c.FilmUM*1e-3 >= c.DiameterMM/2 {
 		v.fail("column.film_um", "%s %s µm is thicker than the column radius (%s mm diameter)", kr.filmWord, fmtNum(c.FilmUM), fmtNum(c.DiameterMM))
 	}
-	if c.Kind != "packed" {
+	if c.Kind != model.Packed {
 		for _, k := range []struct {
 			key   string
 			given bool
@@ -123,25 +124,54 @@ func (b bound) rng(unit string) rng {
 	return rng{lo: b.lo, hi: b.hi, loOpen: b.loOpen, hiOpen: b.hiOpen, unit: unit}
 }
 
-// modelKind is the model's column kind of the file's kind name.
-func modelKind(kind string) model.ColumnKind {
-	k, err := model.ParseColumnKind(kind)
-	if err != nil {
-		return model.WallCoated // "" is the default; the decoder refuses others
-	}
-	return k
-}
-
 // Describe is a short description of the column for screens and sheets,
 // e.g. "packed 2 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 15)";
 // a wall-coated column is "30 m × 0.25 mm × 0.25 µm".
 func (c Column) Describe() string {
 	switch c.Kind {
-	case "packed":
+	case model.Packed:
 		return fmt.Sprintf("packed %s m × %s mm (%s µm particles, porosity %s, phase ratio %s)",
 			fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.ParticleUM), fmtNum(c.Porosity), fmtNum(c.PhaseRatio))
-	case "porous-layer":
+	case model.PorousLayer:
 		return fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
 	}
 	return fmt.Sprintf("%s m × %s mm × %s µm", fmtNum(c.LengthM), fmtNum(c.DiameterMM), fmtNum(c.FilmUM))
+}
+
+// Describe is the carrier in a few words: "helium 1.2 mL/min constant
+// flow" or "hydrogen 80 kPa constant pressure", with ", vacuum outlet" for a
+// vacuum outlet.
+func (g Carrier) Describe() string {
+	s := fmt.Sprintf("%s %s mL/min constant flow", g.Gas, fmtNum(g.FlowMLMin))
+	if g.Mode == model.ConstantPressure {
+		s = fmt.Sprintf("%s %s kPa constant pressure", g.Gas, fmtNum(g.InletKPa))
+	}
+	if g.Outlet == "vacuum" {
+		s += ", vacuum outlet"
+	}
+	return s
+}
+
+// Describe is the oven program in one line, at the precision the oven
+// takes: "50 °C (1 min) → 12 °C/min → 240 °C (2 min)".
+func (o Oven) Describe() string {
+	r2 := func(x float64, d int) string {
+		p := math.Pow(10, float64(d))
+		return fmtNum(math.Round(x*p) / p)
+	}
+	s := fmt.Sprintf("%s °C (%s min)", r2(o.InitialC, 2), r2(o.InitialHoldMin, 3))
+	for _, r := range o.Ramps {
+		s += fmt.Sprintf(" → %s °C/min → %s °C (%s min)", r2(r.RateCMin, 2), r2(r.FinalC, 2), r2(r.HoldMin, 3))
+	}
+	return s
+}
+
+// Describe is the column, its phase and limit, and the carrier in one line:
+// what the command outputs, the figure and the sheet head with.
+func (m *Method) Describe() string {
+	phase := m.Column.Phase
+	if phase == "" {
+		phase = "phase not named"
+	}
+	return fmt.Sprintf("%s %s (max %s °C) · %s", m.Column.Describe(), phase, fmtNum(m.Column.MaxTempC), m.Carrier.Describe())
 }

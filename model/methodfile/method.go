@@ -28,7 +28,7 @@ type Column struct {
 	CapacityNG  float64 // capacity_ng; 0 = estimate
 	HasCapacity bool
 	// Kind is wall-coated (default), packed or porous-layer (MODEL.md §10-11).
-	Kind string
+	Kind model.ColumnKind
 	// MaxIsothermalC bounds every hold (max_isothermal_c); MaxTempC bounds
 	// the programmed maximum. HasMaxIsothermal is false when not given.
 	MaxIsothermalC   float64
@@ -160,7 +160,8 @@ type Compound struct {
 	IndexTempC     float64
 	HasIndexTemp   bool
 	// FromIndex is true when dH and dS were not in the file and were derived
-	// from the retention index and the ladder (the virtual-alkane rule).
+	// from the retention index and the ladder (ln K between the two
+	// bracketing ladder alkanes, index.go).
 	FromIndex bool
 	// FromFormula is true when the file gave neither dH and dS nor a
 	// retention index, only a formula: dH and dS are then a rough estimate
@@ -210,7 +211,7 @@ const kPa = 1000.0
 // ModelColumn is the column in SI units.
 func (m *Method) ModelColumn() model.Column {
 	c := model.Column{
-		Kind:                  modelKind(m.Column.Kind),
+		Kind:                  m.Column.Kind,
 		Length:                m.Column.LengthM,
 		Diameter:              m.Column.DiameterMM * 1e-3,
 		Film:                  m.Column.FilmUM * 1e-6,
@@ -297,7 +298,7 @@ func (m *Method) ModelCompounds() ([]model.Compound, error) {
 		if c.Formula != "" {
 			f, err := model.ParseFormula(c.Formula, c.AromaticRings)
 			if err != nil {
-				return nil, fmt.Errorf("compound %q: %v", c.Name, err)
+				return nil, fmt.Errorf("compound %s: %v", quoted(c.Name), err)
 			}
 			mc.MolarMass, mc.DiffusionVolume = f.MolarMass, f.Volume
 		}

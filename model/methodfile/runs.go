@@ -1,6 +1,7 @@
 package methodfile
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"path/filepath"
@@ -240,7 +241,7 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 			x := w
 			r.Widths[cname] = v.num(key, &x, true, 0, positive(100), "min")
 			if _, ok := rr.Retention[cname]; !ok && v.err == nil {
-				v.fail(key, "a width for %q without its retention time", cname)
+				v.fail(key, "a width for %s without its retention time", quoted(cname))
 			}
 		}
 		sort.Strings(r.names)
@@ -462,12 +463,12 @@ func (v *validator) exportedPeaks(file, base string, rr *rawRun, r *Run) {
 			continue
 		}
 		if q, dup := seen[p.Name]; dup {
-			v.fail(key, "%s: %q named twice (also at %.4f min)", at(p), p.Name, q.TimeMin)
+			v.fail(key, "%s: %s named twice (also at %s min)", at(p), quoted(p.Name), fmtNum(q.TimeMin))
 			return
 		}
 		seen[p.Name] = p
 		if r.HasHoldup && p.TimeMin <= r.HoldupMin {
-			v.fail(key, "%s: %q at %s min is not after the run's holdup time %s min", at(p), p.Name, fmtNum(p.TimeMin), fmtNum(r.HoldupMin))
+			v.fail(key, "%s: %s at %s min is not after the run's holdup time %s min", at(p), quoted(p.Name), fmtNum(p.TimeMin), fmtNum(r.HoldupMin))
 			return
 		}
 		r.Retention[p.Name] = p.TimeMin
@@ -477,4 +478,55 @@ func (v *validator) exportedPeaks(file, base string, rr *rawRun, r *Run) {
 		}
 	}
 	r.Peaks = peaks
+}
+
+// ReadExportRun reads one peak table or chromatogram file (by its
+// extension: .cdf or .nc is an AIA/ANDI chromatogram, anything else a peak
+// table) as a run of the method's own program and carrier, named after the
+// file.
+func ReadExportRun(path string, m *Method, cols *rawColumns) (*Run, error) {
+	v := &validator{file: path, loc: Locations{}}
+	r := Run{Name: filepath.Base(path), Oven: m.Oven, Retention: map[string]float64{}, Widths: map[string]float64{}}
+	r.Oven.Ramps = append([]Ramp(nil), m.Oven.Ramps...)
+	base := filepath.Base(path)
+	rr := rawRun{Columns: cols}
+	switch strings.ToLower(filepath.Ext(path)) {
+	case ".cdf", ".nc":
+		rr.Chrom = &base
+	default:
+		rr.Peaks = &base
+	}
+	v.exportedPeaks(path, "run", &rr, &r)
+	if v.err != nil {
+		if fe, ok := v.err.(*Error); ok {
+			msg := fe.Msg
+			if !strings.HasPrefix(msg, path) {
+				msg = path + ": " + msg
+			}
+			return nil, errors.New(msg)
+		}
+		return nil, v.err
+	}
+	sort.Strings(r.names)
+	return &r, nil
+}
+
+// AddRun appends a run (a verification run joining the scouting runs),
+// renaming it with a suffix when its name is taken.
+func (r *Runs) AddRun(run Run) {
+	name := run.Name
+	for k := 2; ; k++ {
+		taken := false
+		for _, x := range r.Runs {
+			if x.Name == name {
+				taken = true
+			}
+		}
+		if !taken {
+			break
+		}
+		name = fmt.Sprintf("%s (%d)", run.Name, k)
+	}
+	run.Name = name
+	r.Runs = append(r.Runs, run)
 }

@@ -6,6 +6,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"github.com/rampwise/rampwise/model"
 )
 
 // secondWave adds every second-wave key of FORMAT.md to the demo.
@@ -61,7 +63,7 @@ func TestSecondWaveKeysRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m.Column.MaxIsothermalC != 300 || !m.Column.HasMaxIsothermal || m.Column.Kind != "wall-coated" {
+	if m.Column.MaxIsothermalC != 300 || !m.Column.HasMaxIsothermal || m.Column.Kind != model.WallCoated {
 		t.Errorf("column: %+v", m.Column)
 	}
 	l := m.Limits

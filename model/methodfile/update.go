@@ -112,6 +112,16 @@ func (t *ttable) removal(data []byte) (int, int) {
 	return t.regionStart, end
 }
 
+// hasFolded reports whether t has a key spelled like rel but for case.
+func (t *ttable) hasFolded(rel string) bool {
+	for _, kv := range t.kvs {
+		if kv.rel != rel && strings.EqualFold(kv.rel, rel) {
+			return true
+		}
+	}
+	return false
+}
+
 // insertAt is where a new key of t goes: after its last key's line, or
 // after the header.
 func (t *ttable) insertAt() int {
@@ -371,6 +381,10 @@ func patch(orig, a, b []byte) ([]byte, bool) {
 // from A's at (nil when absent) to B's bt. where is the B table used to find
 // a place for a new table.
 func (p *patcher) table(at, bt, ot *ttable, where *ttable) bool {
+	tpath := bt.path
+	if at != nil {
+		tpath = at.path
+	}
 	var added strings.Builder
 	for _, bk := range bt.kvs {
 		bv, _ := p.b.val(bt, bk.rel)
@@ -379,21 +393,21 @@ func (p *patcher) table(at, bt, ot *ttable, where *ttable) bool {
 				continue
 			}
 		}
-		line := string(p.b.data[bk.lineStart:bk.lineEnd])
-		if ot != nil {
-			if okv, ok := ot.byRel[bk.rel]; ok {
-				p.add(okv.valStart, okv.valEnd, keepSpelling(string(p.o.data[okv.valStart:okv.valEnd]), bv))
-				continue
-			}
+		if okv := p.okv(ot, tpath, bk.rel); okv != nil {
+			p.add(okv.valStart, okv.valEnd, keepSpelling(string(p.o.data[okv.valStart:okv.valEnd]), bv))
+			continue
 		}
-		added.WriteString(line)
+		if ot != nil && ot.hasFolded(bk.rel) {
+			return false // never a second spelling of a key beside the file's
+		}
+		added.WriteString(string(p.b.data[bk.lineStart:bk.lineEnd]))
 	}
-	if at != nil && ot != nil {
+	if at != nil {
 		for _, ak := range at.kvs {
 			if _, ok := bt.byRel[ak.rel]; ok {
 				continue
 			}
-			if okv, ok := ot.byRel[ak.rel]; ok {
+			if okv := p.okv(ot, tpath, ak.rel); okv != nil {
 				p.add(okv.lineStart, okv.lineEnd, "")
 			}
 		}
@@ -410,11 +424,77 @@ func (p *patcher) table(at, bt, ot *ttable, where *ttable) bool {
 		p.add(at, at, text)
 		return true
 	}
+	// The file writes this table as dotted keys in an enclosing one
+	// (goal.ramps = 2 at the top): new keys join them, dotted the same way.
+	if anc, prefix, last := p.dottedHome(tpath); anc != nil {
+		var b strings.Builder
+		for _, l := range strings.SplitAfter(text, "\n") {
+			if l != "" {
+				b.WriteString(prefix + l)
+			}
+		}
+		p.add(last.lineEnd, last.lineEnd, b.String())
+		return true
+	}
 	// A table the file does not have: its header and keys, placed before
 	// the first table that follows it in B and exists in the file.
 	hdr := string(p.b.data[where.headerStart:where.headerEnd])
 	p.insertTable(where, hdr+text+"\n")
 	return true
+}
+
+// okv finds the original's key rel of the table at tpath: in that table
+// (ot), or written as a dotted key in an enclosing table.
+func (p *patcher) okv(ot *ttable, tpath, rel string) *tkv {
+	if ot != nil {
+		if kv, ok := ot.byRel[rel]; ok {
+			return kv
+		}
+	}
+	if strings.ContainsRune(tpath, '[') {
+		return nil
+	}
+	// Enclosing tables from the nearest out, the top level last.
+	for i := strings.LastIndexByte(tpath, '.'); ; i = strings.LastIndexByte(tpath[:i], '.') {
+		anc, rest := "", tpath
+		if i >= 0 {
+			anc, rest = tpath[:i], tpath[i+1:]
+		}
+		if t := p.o.byPath[anc]; t != nil {
+			if kv, ok := t.byRel[rest+"."+rel]; ok {
+				return kv
+			}
+		}
+		if i < 0 {
+			return nil
+		}
+	}
+}
+
+// dottedHome finds an enclosing table of the original in which the table
+// at tpath is written as dotted keys: that table, the key prefix
+// ("goal."), and the last such key.
+func (p *patcher) dottedHome(tpath string) (*ttable, string, *tkv) {
+	if strings.ContainsRune(tpath, '[') {
+		return nil, "", nil
+	}
+	for _, t := range p.o.tables {
+		if t.base != "" || (t.path != "" && !strings.HasPrefix(tpath, t.path+".")) {
+			continue
+		}
+		prefix := strings.TrimPrefix(tpath, t.path)
+		prefix = strings.TrimPrefix(prefix, ".") + "."
+		var last *tkv
+		for _, kv := range t.kvs {
+			if strings.HasPrefix(kv.rel, prefix) {
+				last = kv
+			}
+		}
+		if last != nil {
+			return t, prefix, last
+		}
+	}
+	return nil, "", nil
 }
 
 // insertTable places a whole new table's text before the original's region

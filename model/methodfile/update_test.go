@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/rampwise/rampwise/model"
 )
 
 const commentedPath = "../../testdata/commented.toml"
@@ -439,5 +441,68 @@ func BenchmarkParse2000(b *testing.B) {
 		if _, err := Parse("big.toml", orig); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// Layouts other than one table per header: quoted keys and a dotted key
+// are placed in the text; inline tables for the ramps defeat the placer,
+// and then the method is written fresh (still exactly the method).
+func TestUpdateOtherLayouts(t *testing.T) {
+	orig, _ := readCommented(t)
+	s := string(orig)
+	quoted := strings.Replace(s, "diameter_mm = 0.25", `"diameter_mm" = 0.25`, 1)
+	goal := "[goal]\nmin_resolution = 1.5\nobjective = \"run-time\"\nramps = 2\n"
+	dotted := strings.Replace(strings.Replace(s, goal, "", 1), "# --- hardware", "goal.min_resolution = 1.5\ngoal.objective = \"run-time\"\ngoal.ramps = 2\n\n# --- hardware", 1)
+	inline := s[:strings.Index(s, "# first ramp")] + "ramp = [{rate_c_min = 10.0, final_c = 150.0}, {rate_c_min = 20.0, final_c = 240.0, hold_min = 2.0}]\n\n" + s[strings.Index(s, "[goal]"):]
+	for _, tc := range []struct {
+		name    string
+		text    string
+		inPlace bool
+	}{{"quoted", quoted, true}, {"dotted", dotted, true}, {"inline", inline, false}} {
+		m, err := Parse("m.toml", []byte(tc.text))
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
+		m.Column.DiameterMM = 0.32
+		m.Carrier.Gas = model.Hydrogen
+		m.Oven.InitialC = 45
+		m.Goal.MinResolution = 2
+		out, inPlace, err := Update("m.toml", []byte(tc.text), m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := Parse("m.toml", out)
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
+		want, _ := Marshal(m)
+		if again, _ := Marshal(got); !bytes.Equal(again, want) {
+			t.Errorf("%s: result means another method", tc.name)
+		}
+		if inPlace != tc.inPlace {
+			t.Errorf("%s: in place %v, want %v", tc.name, inPlace, tc.inPlace)
+		}
+		if inPlace {
+			r, a := lineDiff(tc.text, string(out))
+			if len(r) != 4 || len(a) != 4 {
+				t.Errorf("%s: diff -%q +%q", tc.name, r, a)
+			}
+		}
+	}
+}
+
+// A key new to a table the file writes as dotted keys joins them, dotted.
+func TestUpdateDottedNewKey(t *testing.T) {
+	orig, _ := readCommented(t)
+	goal := "[goal]\nmin_resolution = 1.5\nobjective = \"run-time\"\nramps = 2\n"
+	text := strings.Replace(strings.Replace(string(orig), goal, "", 1), "# --- hardware", "goal.min_resolution = 1.5\ngoal.ramps = 2\n\n# --- hardware", 1)
+	m, err := Parse("m.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Goal.TailMin = 1
+	out := update(t, []byte(text), m)
+	if !strings.Contains(out, "goal.ramps = 2\ngoal.tail_min = 1.0\n") {
+		t.Errorf("not joined to the dotted keys:\n%s", out[:400])
 	}
 }

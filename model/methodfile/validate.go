@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 )
 
 // The rules of a method apart from TOML decoding. Parse applies them after
@@ -119,6 +120,7 @@ func (m *Method) ValidateKey(key string) error {
 	case "column":
 		v.checkColumn(m)
 		v.checkProgram(m)
+		v.checkGoal(m) // goal.bakeout_c is bounded by the column maximum
 		v.checkPressure(m)
 	case "carrier":
 		v.checkCarrier(m)
@@ -166,10 +168,10 @@ func (v *validator) checkColumn(m *Method) {
 func (v *validator) checkCarrier(m *Method) {
 	c := &m.Carrier
 	if v.err == nil && !validChoice(c.Gas, model.Gases) {
-		v.fail("carrier.gas", "%q is not one of helium, hydrogen, nitrogen", c.Gas.String())
+		v.fail("carrier.gas", "%s is not one of helium, hydrogen, nitrogen", quoted(c.Gas.String()))
 	}
 	if v.err == nil && !validChoice(c.Mode, model.PressureModes) {
-		v.fail("carrier.mode", "%q is not one of constant-flow, constant-pressure", c.Mode.String())
+		v.fail("carrier.mode", "%s is not one of constant-flow, constant-pressure", quoted(c.Mode.String()))
 	}
 	flow := closed(0.01, 200, "mL/min")
 	inlet := closed(0.1, 10000, "kPa")
@@ -180,7 +182,7 @@ func (v *validator) checkCarrier(m *Method) {
 		v.in("carrier.inlet_kpa", c.InletKPa, inlet, "gauge")
 	}
 	if v.err == nil && c.Outlet != "atmospheric" && c.Outlet != "vacuum" {
-		v.fail("carrier.outlet", "%q is not one of atmospheric, vacuum", c.Outlet)
+		v.fail("carrier.outlet", "%s is not one of atmospheric, vacuum", quoted(c.Outlet))
 	}
 	v.in("carrier.ambient_kpa", c.AmbientKPa, closed(20, 200, "kPa"), "")
 	v.in("carrier.initial_band_s", c.InitialBand, closed(0, 600, "s"), "")
@@ -349,11 +351,11 @@ func (v *validator) checkGoal(m *Method) {
 			return
 		}
 		if !pv.Valid(g.Ramps) {
-			v.fail("goal.lock", "%q is not a program value for %d ramps (use %s)", pv.String(), g.Ramps, model.ValueNames(model.ProgramValues(g.Ramps)))
+			v.fail("goal.lock", "%s is not a program value for %d ramps (use %s)", quoted(pv.String()), g.Ramps, model.ValueNames(model.ProgramValues(g.Ramps)))
 			return
 		}
 		if seen[pv] {
-			v.fail("goal.lock", "%q is listed twice", pv.String())
+			v.fail("goal.lock", "%s is listed twice", quoted(pv.String()))
 			return
 		}
 		seen[pv] = true
@@ -507,7 +509,7 @@ func (m *Method) Advice() []Note {
 	}
 	step := func(key string, x, st float64, stepKey, unit string) {
 		if st > 0 && math.Abs(x/st-math.Round(x/st)) > 1e-6 {
-			out = append(out, Note{key, fmt.Sprintf("%s %s is not on the oven's %s %s step (limits.%s): the oven takes %s %s", fmtNum(x), unit, fmtNum(st), unit, stepKey, fmtNum(math.Round(x/st)*st), unit)})
+			out = append(out, Note{key, fmt.Sprintf("%s %s is not on the oven's %s %s step (limits.%s): the oven takes %s %s", fmtNum(x), unit, fmtNum(st), unit, stepKey, format.OnStep(x, st), unit)})
 		}
 	}
 	l := &m.Limits

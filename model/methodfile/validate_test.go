@@ -96,6 +96,10 @@ func TestSearchBoundsAreAdvice(t *testing.T) {
 // agrees with Validate.
 func TestValidateKeyAgreesWithValidate(t *testing.T) {
 	base := readDemo(t)
+	base.Goal.BakeoutC, base.Goal.HasBakeout = 300, true // ties goal to the column maximum
+	if err := base.Validate(); err != nil {
+		t.Fatal(err)
+	}
 	rng := rand.New(rand.NewPCG(3, 4))
 	type edit struct {
 		key string

@@ -9,7 +9,8 @@
 // Anything it cannot decide is an error that says which of these it was, and
 // a Columns value given by the user (the runs file's [run.columns]) settles
 // it. A UTF-8 byte-order mark, lines before the header (sample information),
-// extra columns, quoted cells and a footer of totals are tolerated.
+// extra columns, quoted cells, thousands separators (15,234.1 or 1.234,5)
+// and a footer of totals are tolerated.
 //
 // Widths are converted to the width at half height: a header naming a base
 // (tangent) width is divided by 4 and multiplied by 2√(2 ln 2) (a Gaussian's
@@ -22,11 +23,12 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"io"
+	"io/fs"
 	"math"
-	"os"
 	"strconv"
 	"strings"
+
+	"github.com/rampwise/rampwise/model/fsafe"
 	"unicode/utf8"
 )
 
@@ -71,8 +73,8 @@ type Table struct {
 	Separator string // ",", ";" or "tab"
 	Decimal   string // "." or ","
 	Header    bool
-	TimeUnit  string // "min" or "s"
-	WidthKind string // "half-height", "base", "sigma" or "" without widths
+	TimeUnit  string         // "min" or "s"
+	WidthKind string         // "half-height", "base", "sigma" or "" without widths
 	Columns   map[string]int // role -> 0-based column
 }
 
@@ -97,31 +99,30 @@ func (e *Error) Error() string {
 	return b.String()
 }
 
-// Read reads a peak table file.
+// Read reads a peak table file. It opens only a regular file (a FIFO or
+// a device is refused at once, never waited on: fsafe.ReadRegular).
 func Read(path string, cols Columns) (*Table, error) {
-	if st, err := os.Stat(path); err == nil && !st.Mode().IsRegular() {
-		return nil, &Error{File: path, Msg: "not a regular file"}
-	}
-	f, err := os.Open(path)
+	data, err := fsafe.ReadRegular(path, MaxFileSize)
 	if err != nil {
-		var pe *os.PathError
-		if errors.As(err, &pe) {
-			err = pe.Err
-		}
-		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
-	}
-	defer f.Close()
-	if st, err := f.Stat(); err != nil || !st.Mode().IsRegular() {
-		return nil, &Error{File: path, Msg: "not a regular file"}
-	}
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
-	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read: " + err.Error()}
-	}
-	if len(data) > MaxFileSize {
-		return nil, &Error{File: path, Msg: fmt.Sprintf("larger than %d MiB: not a peak table", MaxFileSize>>20)}
+		return nil, &Error{File: path, Msg: readError(err)}
 	}
 	return Parse(path, data, cols)
+}
+
+// readError is why a file could not be read, without the path (Error
+// names it).
+func readError(err error) string {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		err = pe.Err
+	}
+	if errors.Is(err, fsafe.ErrNotRegular) {
+		return strings.TrimSuffix(err.Error(), ": "+fsafe.ErrNotRegular.Error())
+	}
+	if strings.Contains(err.Error(), "larger than") {
+		return fmt.Sprintf("larger than %d MiB: not a peak table", MaxFileSize>>20)
+	}
+	return "cannot read: " + err.Error()
 }
 
 type line struct {
@@ -467,10 +468,15 @@ func chooseDecimal(body []line, sep rune, given string) (rune, error) {
 	for _, l := range body {
 		for _, c := range l.cells {
 			c = strings.TrimSpace(c)
-			if looksDecimal(c, ',') {
+			ic, ip := strings.LastIndex(c, ","), strings.LastIndex(c, ".")
+			switch {
+			case ic >= 0 && ip >= 0 && ip > ic && grouped(c, ',', '.'):
+				point++ // 15,234.1
+			case ic >= 0 && ip >= 0 && ic > ip && grouped(c, '.', ','):
+				comma++ // 1.234,5
+			case looksDecimal(c, ','):
 				comma++
-			}
-			if looksDecimal(c, '.') {
+			case looksDecimal(c, '.'):
 				point++
 			}
 		}
@@ -500,6 +506,30 @@ func looksDecimal(c string, mark rune) bool {
 	return true
 }
 
+// grouped: s (sign removed) is digits in groups of three split by sep
+// before an optional decimal part: 1.234.567,8 or 15,234.1.
+func grouped(s string, sep, dec rune) bool {
+	s = strings.TrimLeft(s, "+-")
+	if i := strings.IndexRune(s, dec); i >= 0 {
+		s = s[:i]
+	}
+	parts := strings.Split(s, string(sep))
+	if len(parts) < 2 || len(parts[0]) < 1 || len(parts[0]) > 3 {
+		return false
+	}
+	for i, p := range parts {
+		if i > 0 && len(p) != 3 {
+			return false
+		}
+		for _, r := range p {
+			if r < '0' || r > '9' {
+				return false
+			}
+		}
+	}
+	return true
+}
+
 func parseNum(s string, dec rune) (float64, bool) {
 	s = strings.TrimSpace(s)
 	if s == "" {
@@ -507,9 +537,17 @@ func parseNum(s string, dec rune) (float64, bool) {
 	}
 	if dec == ',' {
 		if strings.Contains(s, ".") {
-			return 0, false
+			if !grouped(s, '.', ',') {
+				return 0, false
+			}
+			s = strings.ReplaceAll(s, ".", "") // thousands points: 1.234,5
 		}
 		s = strings.Replace(s, ",", ".", 1)
+	} else if strings.Contains(s, ",") {
+		if !grouped(s, ',', '.') {
+			return 0, false
+		}
+		s = strings.ReplaceAll(s, ",", "") // thousands commas: 15,234.1
 	}
 	x, err := strconv.ParseFloat(s, 64)
 	if err != nil || math.IsNaN(x) {

@@ -148,3 +148,24 @@ func TestDialectsAgree(t *testing.T) {
 		}
 	}
 }
+
+func TestThousandsSeparators(t *testing.T) {
+	for in, want := range map[string]float64{
+		"RT (min);Area\n3,62;1.234.567,5\n4,10;12,0\n": 1234567.5,
+		"RT (min)\tArea\n3.62\t15,234.1\n4.10\t12.0\n": 15234.1,
+		"\"RT (min)\",\"Area\"\n3.62,\"15,234.1\"\n":   15234.1,
+	} {
+		tab, err := Parse("t.csv", []byte(in), Columns{})
+		if err != nil {
+			t.Errorf("%q: %v", in, err)
+			continue
+		}
+		if tab.Peaks[0].Area != want || tab.Peaks[0].TimeMin != 3.62 {
+			t.Errorf("%q: %+v", in, tab.Peaks[0])
+		}
+	}
+	// 1,5 with a point elsewhere is not a thousands group
+	if _, err := Parse("t.csv", []byte("RT;Area\n1,5;2.5\n"), Columns{}); err == nil {
+		t.Error("mixed marks accepted")
+	}
+}

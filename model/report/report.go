@@ -12,7 +12,6 @@ import (
 	"image/color"
 	"math"
 	"strconv"
-	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -23,6 +22,7 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/textsafe"
 )
@@ -32,6 +32,9 @@ type Sim struct {
 	Method *methodfile.Method
 	System *model.System
 	Result model.Result
+	// Measured, when set, is drawn mirrored under the predicted
+	// chromatogram with the matched peaks joined (overlay.go).
+	Measured *Measured
 }
 
 // Simulate builds the system for m and simulates its program.
@@ -47,7 +50,7 @@ func Simulate(m *methodfile.Method) (*Sim, error) {
 	return s, nil
 }
 
-func num(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+func num(x float64) string { return format.Num(x) }
 
 // CSV is the peak table: name, retention time, elution temperature, sigma,
 // half-height width, retention factor at elution, resolution to the next
@@ -72,44 +75,18 @@ func (s *Sim) CSV() ([]byte, error) {
 }
 
 // Describe is the column, carrier and program in one line.
-func Describe(m *methodfile.Method) string {
-	c, g := m.Column, m.Carrier
-	flow := fmt.Sprintf("%s mL/min const. flow", num(g.FlowMLMin))
-	if g.Mode == model.ConstantPressure {
-		flow = fmt.Sprintf("%s kPa const. pressure", num(g.InletKPa))
-	}
-	return fmt.Sprintf("%s · %s %s · %s", c.Describe(), g.Gas, flow, Program(m.Oven))
-}
+func Describe(m *methodfile.Method) string { return m.Describe() + " · " + m.Oven.Describe() }
 
-// Program is the oven program in one line.
-func Program(o methodfile.Oven) string {
-	var b strings.Builder
-	fmt.Fprintf(&b, "%s °C (%s min)", num(round(o.InitialC, 2)), num(round(o.InitialHoldMin, 3)))
-	for _, r := range o.Ramps {
-		fmt.Fprintf(&b, " → %s °C/min → %s °C (%s min)", num(round(r.RateCMin, 2)), num(round(r.FinalC, 2)), num(round(r.HoldMin, 3)))
-	}
-	return b.String()
-}
+// Program is the oven program in one line (methodfile.Oven.Describe).
+func Program(o methodfile.Oven) string { return o.Describe() }
 
 func round(x float64, d int) float64 {
 	p := math.Pow(10, float64(d))
 	return math.Round(x*p) / p
 }
 
-// signal is the summed Gaussian detector signal (areas ∝ amount) at t s.
-func (s *Sim) signal(t float64) float64 {
-	y := 0.0
-	for _, pk := range s.Result.Peaks {
-		if !pk.Eluted || pk.Sigma <= 0 {
-			continue
-		}
-		z := (t - pk.RetentionTime) / pk.Sigma
-		if z > -8 && z < 8 {
-			y += s.System.Compounds[pk.Compound].AreaOrOne() / pk.Sigma * math.Exp(-0.5*z*z)
-		}
-	}
-	return y
-}
+// signal is the detector signal at t s (model.Result.Signal).
+func (s *Sim) signal(t float64) float64 { return s.Result.Signal(s.System.Compounds, t) }
 
 var (
 	traceColor    = color.RGBA{R: 0, G: 110, B: 100, A: 255}
@@ -117,13 +94,143 @@ var (
 	ovenColor     = color.RGBA{R: 170, G: 100, B: 0, A: 255}
 )
 
-// Figure draws the chromatogram with numbered, named peaks and the critical
-// pair marked, and the oven program in a panel below on the same time axis.
+// Figure draws the chromatogram with numbered, named peaks (labels spread
+// so that none overlaps, tied to their apex) and the critical pair in its
+// colour and in the legend, and the oven program in a panel below on the
+// same time axis (every tick at the same x in both panels).
 // format is png, svg or pdf; for png, width and height are pixels (96 dpi),
 // otherwise points.
 func (s *Sim) Figure(format string, width, height int) ([]byte, error) {
+	top, bottom, _, err := s.figurePlots()
+	if err != nil {
+		return nil, err
+	}
+
+	w, h := vg.Length(width), vg.Length(height)
+	var c vg.CanvasWriterTo
+	switch format {
+	case "png":
+		w, h = w*vg.Inch/96, h*vg.Inch/96
+		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(96))}
+	case "svg":
+		c = vgsvg.New(w, h)
+	case "pdf":
+		c = vgpdf.New(w, h)
+	default:
+		return nil, fmt.Errorf("unknown figure format %q", format)
+	}
+	dc := draw.New(c.(vg.CanvasSizer))
+	// a margin above the title, which would otherwise touch the top edge
+	dc = draw.Crop(dc, 0, 0, 0, -vg.Points(8))
+	upper, lower := panels(top, bottom, dc)
+	top.Draw(upper)
+	bottom.Draw(lower)
+	var buf bytes.Buffer
+	if _, err := c.WriteTo(&buf); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// panels are the canvases of the chromatogram (the upper 72 %) and the oven
+// panel, cropped so that both data areas span the same x.
+func panels(top, bottom *plot.Plot, dc draw.Canvas) (upper, lower draw.Canvas) {
+	h := dc.Max.Y - dc.Min.Y
+	cs := alignX([]*plot.Plot{top, bottom}, []draw.Canvas{draw.Crop(dc, 0, 0, h*0.28, 0), draw.Crop(dc, 0, 0, 0, -h*0.74)})
+	return cs[0], cs[1]
+}
+
+// figurePlots builds the two panels of the figure: the normalised trace
+// with its peak labels and legend, and the oven temperature, both over
+// [0, end] s (shown in min).
+func (s *Sim) figurePlots() (top, bottom *plot.Plot, labels *peakLabels, err error) {
+	trace, end, ymax := s.trace()
 	r := &s.Result
-	end := r.RunTime
+	target := s.Method.Goal.MinResolution
+	top = plot.New()
+	// the method's title over its column and program; every string from
+	// the file is drawn inert (a control character would make the SVG
+	// invalid XML)
+	top.Title.Text = textsafe.Inert(Describe(s.Method))
+	if t := textsafe.Inert(s.Method.Title); t != "" {
+		top.Title.Text = t + "\n" + top.Title.Text
+	}
+	top.Title.TextStyle.Font.Size = vg.Points(9)
+	top.Title.Padding = vg.Points(4)
+	top.Y.Label.Text = "signal (relative)"
+	top.X.Min, top.X.Max = 0, end/60
+	// headroom for the vertical labels above the tallest peak
+	top.Y.Min, top.Y.Max = 0, 1.6
+	useNiceTicks(top)
+	line, err := plotter.NewLine(trace)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	line.Color = traceColor
+	top.Add(line)
+	crit := map[int]bool{}
+	if r.Critical >= 0 {
+		cp := r.Pairs[r.Critical]
+		crit[cp.First], crit[cp.Second] = true, true
+	}
+	labels = &peakLabels{size: vg.Points(6)}
+	for i, pk := range r.Peaks {
+		if !pk.Eluted {
+			continue
+		}
+		labels.labels = append(labels.labels, peakLabel{
+			x: pk.RetentionTime / 60, y: s.signal(pk.RetentionTime) / ymax,
+			text: fmt.Sprintf("%d %s", i+1, textsafe.Inert(s.System.Compounds[pk.Compound].Name)), critical: crit[pk.Compound],
+		})
+	}
+	top.Add(labels)
+	if r.Critical >= 0 {
+		cp := r.Pairs[r.Critical]
+		mark, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 0, Y: 0}})
+		mark.Color = criticalColor
+		mark.Width = vg.Points(2)
+		top.Legend.Add(fmt.Sprintf("critical pair %s / %s: min Rs %s", textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name),
+			format.RsAll(r.MinResolution, target, inertNames(s.System.NotElutedTargets(r)))), mark)
+		top.Legend.Top = true
+		top.Legend.TextStyle.Font.Size = vg.Points(7)
+	}
+
+	if s.Measured != nil {
+		for _, p := range s.Measured.Peaks {
+			end = math.Max(end, (p.TimeMin+3*p.WidthMin)*60)
+		}
+		top.X.Max = end / 60
+		apex := func(tMin float64) float64 { return s.signal(tMin*60) / ymax }
+		if err := s.Measured.draw(top, end/60, apex); err != nil {
+			return nil, nil, nil, err
+		}
+	}
+
+	bottom = plot.New()
+	bottom.X.Label.Text = "time (min)"
+	bottom.Y.Label.Text = "oven (°C)"
+	bottom.X.Min, bottom.X.Max = 0, end/60
+	useNiceTicks(bottom)
+	prog := s.Method.ModelProgram()
+	oven := make(plotter.XYs, 400)
+	for i := range oven {
+		t := end * float64(i) / float64(len(oven)-1)
+		oven[i] = plotter.XY{X: t / 60, Y: prog.TempAt(t) - model.ZeroCelsius}
+	}
+	ol, err := plotter.NewLine(oven)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	ol.Color = ovenColor
+	bottom.Add(ol)
+	return top, bottom, labels, nil
+}
+
+// trace is the chromatogram sampled finely enough for the narrowest peak,
+// normalised to the tallest apex (ymax before normalising), over [0, end] s.
+func (s *Sim) trace() (trace plotter.XYs, end, ymax float64) {
+	r := &s.Result
+	end = r.RunTime
 	for _, pk := range r.Peaks {
 		if pk.Eluted {
 			end = math.Max(end, pk.RetentionTime+5*pk.Sigma)
@@ -137,8 +244,8 @@ func (s *Sim) Figure(format string, width, height int) ([]byte, error) {
 		}
 	}
 	n := int(math.Min(200000, math.Max(2000, 8*end/minSigma)))
-	trace := make(plotter.XYs, n)
-	ymax := 0.0
+	trace = make(plotter.XYs, n)
+	ymax = 0.0
 	for i := range trace {
 		t := end * float64(i) / float64(n-1)
 		trace[i] = plotter.XY{X: t / 60, Y: s.signal(t)}
@@ -156,106 +263,5 @@ func (s *Sim) Figure(format string, width, height int) ([]byte, error) {
 		trace[i].Y /= ymax
 	}
 
-	top := plot.New()
-	top.Title.Text = Describe(s.Method)
-	top.Title.TextStyle.Font.Size = vg.Points(9)
-	top.Y.Label.Text = "signal (relative)"
-	top.X.Min, top.X.Max = 0, end/60
-	top.Y.Min, top.Y.Max = 0, 1.25
-	line, err := plotter.NewLine(trace)
-	if err != nil {
-		return nil, err
-	}
-	line.Color = traceColor
-	top.Add(line)
-	crit := map[int]bool{}
-	if r.Critical >= 0 {
-		cp := r.Pairs[r.Critical]
-		crit[cp.First], crit[cp.Second] = true, true
-	}
-	var lx plotter.XYs
-	var lt []string
-	var cx plotter.XYs
-	var ct []string
-	for i, pk := range r.Peaks {
-		if !pk.Eluted {
-			continue
-		}
-		name := s.System.Compounds[pk.Compound].Name
-		pt := plotter.XY{X: pk.RetentionTime / 60, Y: s.signal(pk.RetentionTime)/ymax + 0.02}
-		label := fmt.Sprintf("%d %s", i+1, name)
-		if crit[pk.Compound] {
-			cx, ct = append(cx, pt), append(ct, label+" (critical)")
-		} else {
-			lx, lt = append(lx, pt), append(lt, label)
-		}
-	}
-	if len(lx) > 0 {
-		labels, err := plotter.NewLabels(plotter.XYLabels{XYs: lx, Labels: lt})
-		if err != nil {
-			return nil, err
-		}
-		for i := range labels.TextStyle {
-			labels.TextStyle[i].Font.Size = vg.Points(6)
-			labels.TextStyle[i].Rotation = math.Pi / 2
-		}
-		top.Add(labels)
-	}
-	if len(cx) > 0 {
-		labels, err := plotter.NewLabels(plotter.XYLabels{XYs: cx, Labels: ct})
-		if err != nil {
-			return nil, err
-		}
-		for i := range labels.TextStyle {
-			labels.TextStyle[i].Font.Size = vg.Points(6)
-			labels.TextStyle[i].Rotation = math.Pi / 2
-			labels.TextStyle[i].Color = criticalColor
-		}
-		top.Add(labels)
-	}
-	if r.Critical >= 0 {
-		top.Legend.Add(fmt.Sprintf("min Rs %.2f (target %.2f)", r.MinResolution, s.Method.Goal.MinResolution))
-		top.Legend.Top = true
-	}
-
-	bottom := plot.New()
-	bottom.X.Label.Text = "time (min)"
-	bottom.Y.Label.Text = "oven (°C)"
-	bottom.X.Min, bottom.X.Max = 0, end/60
-	prog := s.Method.ModelProgram()
-	oven := make(plotter.XYs, 400)
-	for i := range oven {
-		t := end * float64(i) / float64(len(oven)-1)
-		oven[i] = plotter.XY{X: t / 60, Y: prog.TempAt(t) - model.ZeroCelsius}
-	}
-	ol, err := plotter.NewLine(oven)
-	if err != nil {
-		return nil, err
-	}
-	ol.Color = ovenColor
-	bottom.Add(ol)
-
-	w, h := vg.Length(width), vg.Length(height)
-	var c vg.CanvasWriterTo
-	switch format {
-	case "png":
-		w, h = w*vg.Inch/96, h*vg.Inch/96
-		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(96))}
-	case "svg":
-		c = vgsvg.New(w, h)
-	case "pdf":
-		c = vgpdf.New(w, h)
-	default:
-		return nil, fmt.Errorf("unknown figure format %q", format)
-	}
-	dc := draw.New(c.(vg.CanvasSizer))
-	upper := draw.Crop(dc, 0, 0, h*0.28, 0)
-	lower := draw.Crop(dc, 0, 0, 0, -h*0.74)
-	top.Draw(upper)
-	bottom.Draw(lower)
-	var buf bytes.Buffer
-	if _, err := c.WriteTo(&buf); err != nil {
-		return nil, err
-	}
-	return buf.Bytes(), nil
+	return trace, end, ymax
 }

@@ -38,9 +38,9 @@ func (s *Sim) Sheet() []byte {
 		phase = "(not named)"
 	}
 	fmt.Fprintf(&b, "| stationary phase | %s |\n", textsafe.Inert(phase))
-	if m.Column.Kind == "packed" || m.Column.Kind == "porous-layer" {
+	if m.Column.Kind != model.WallCoated {
 		fmt.Fprintf(&b, "| column | %s, maximum %s °C |\n", m.Column.Describe(), num(m.Column.MaxTempC))
-		if m.Column.Kind == "porous-layer" { // a packed column's is in its description
+		if m.Column.Kind == model.PorousLayer { // a packed column's is in its description
 			fmt.Fprintf(&b, "| phase ratio | %.1f |\n", cond.PhaseRatio())
 		}
 	} else {
@@ -107,9 +107,12 @@ func (s *Sim) Sheet() []byte {
 		}
 		fmt.Fprintf(&b, "| %d | %s | %s | %.1f | %.2f | %s | %s |\n", i+1, textsafe.Inert(c.Name), tr, pk.ElutionTemp-model.ZeroCelsius, pk.HalfWidth(), rs, tgt)
 	}
+	if missing := s.System.NotElutedTargets(r); r.Critical < 0 && len(missing) > 0 {
+		fmt.Fprintf(&b, "\nNo counted pair; the goal is not met: %s.\n", format.NotEluted(inertNames(missing)))
+	}
 	if r.Critical >= 0 {
 		cp := r.Pairs[r.Critical]
-		fmt.Fprintf(&b, "\nMinimum resolution %s, critical pair %s.\n", format.Rs(r.MinResolution, m.Goal.MinResolution),
+		fmt.Fprintf(&b, "\nMinimum resolution %s, critical pair %s.\n", format.RsAll(r.MinResolution, m.Goal.MinResolution, inertNames(s.System.NotElutedTargets(r))),
 			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 
@@ -128,10 +131,10 @@ func (s *Sim) Sheet() []byte {
 		fmt.Fprintf(&b, "- ΔH and ΔS in the method file (entered, or fitted from scouting runs with `rampwise fit`): %s.\n", strings.Join(entered, ", "))
 	}
 	if len(idx) > 0 {
-		fmt.Fprintf(&b, "- From retention indices on this phase, modelled as virtual n-alkanes (an assumption): %s.\n", strings.Join(idx, ", "))
+		fmt.Fprintf(&b, "- From retention indices on this phase, ln K interpolated between the bracketing ladder alkanes (the index taken as independent of temperature, an assumption): %s.\n", strings.Join(idx, ", "))
 	}
 	ideal := "ideal Golay column"
-	if m.Column.Kind == "packed" {
+	if m.Column.Kind == model.Packed {
 		ideal = "the van Deemter plate height with the column's eddy, obstruction and mobile-phase factors"
 	}
 	fmt.Fprintf(&b, "- Plate-height factor %s (1 = %s).\n", num(m.Column.PlateHeight), ideal)
@@ -193,4 +196,13 @@ func inertLines(s string) string {
 		lines[i] = textsafe.Inert(strings.TrimSuffix(l, "\r"))
 	}
 	return strings.Join(lines, "\n")
+}
+
+// inertNames is names shown inert (textsafe.Inert).
+func inertNames(names []string) []string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = textsafe.Inert(n)
+	}
+	return out
 }

@@ -19,8 +19,9 @@ type Point struct {
 	Reason        string  // why the program is not valid
 	MinRs         float64 // NaN when no pair counts
 	Critical      [2]string
-	RunTime       float64 // min
-	CycleTime     float64 // min
+	NotEluted     []string // targets that elute after the program (the goal is then not met)
+	RunTime       float64  // min
+	CycleTime     float64  // min
 }
 
 // set returns a copy of m with the value v set to x.
@@ -84,6 +85,7 @@ func (e *evaluator) point(c *methodfile.Method) Point {
 	}
 	p.Valid = true
 	p.RunTime, p.CycleTime = e.res.RunTime/60, e.res.CycleTime/60
+	p.NotEluted = e.sys.NotElutedTargets(&e.res)
 	if e.res.Critical >= 0 {
 		p.MinRs = e.res.MinResolution
 		cp := e.res.Pairs[e.res.Critical]

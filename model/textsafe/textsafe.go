@@ -51,6 +51,25 @@ func Inert(s string) string {
 	return b.String()
 }
 
+// Message is Inert for a message whose names and values from files are
+// already shown through Inert (the methodfile errors): controls are
+// escaped the same way, but a backslash is left as it is, so that an
+// escape Inert wrote (\x1b) is not doubled to \\x1b on the way out.
+func Message(s string) string {
+	var b strings.Builder
+	for i := 0; i < len(s); {
+		j := strings.IndexByte(s[i:], '\\')
+		if j < 0 {
+			b.WriteString(Inert(s[i:]))
+			break
+		}
+		b.WriteString(Inert(s[i : i+j]))
+		b.WriteByte('\\')
+		i += j + 1
+	}
+	return b.String()
+}
+
 func clean(s string) bool {
 	for i := 0; i < len(s); {
 		c := s[i]

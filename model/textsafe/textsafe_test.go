@@ -79,3 +79,10 @@ func FuzzInert(f *testing.F) {
 		}
 	})
 }
+
+func TestMessageKeepsInertEscapes(t *testing.T) {
+	in := `name "` + Inert("a\x1bb") + "\" and raw \x07"
+	if got, want := Message(in), `name "a\x1bb" and raw \x07`; got != want {
+		t.Errorf("Message = %q, want %q", got, want)
+	}
+}

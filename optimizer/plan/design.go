@@ -15,7 +15,7 @@ const maxScoutMin = 90
 // designChoice is the chosen scouting run.
 type designChoice struct {
 	oven    methodfile.Oven
-	score   float64 // summed posterior variance of the weighed pairs
+	score   float64 // summed squared shortfall of the margin
 	sdAfter float64 // SD of the critical pair's Rs after the run
 	pairs   int
 }
@@ -24,6 +24,7 @@ type designChoice struct {
 type pairSens struct {
 	a, b     int
 	ga, gb   [2]float64
+	rs       float64
 	critical bool
 }
 
@@ -72,8 +73,9 @@ func (sl scoutLimits) rateTo(finalC float64) float64 {
 }
 
 // design picks, among scouting programs within the limits, the one after
-// which the summed variance of the resolutions of the pairs that are or
-// could become critical at the optimized program is least.
+// which the summed squared shortfall of the margin,
+// Σ max(0, target − Rs + z·SD_after)², over the pairs that are or could
+// become critical at the optimized programs is least.
 func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoice, error) {
 	var pairs []pairSens
 	for pi, o := range progs {
@@ -120,7 +122,10 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 		score, critSD := 0.0, 0.0
 		for _, p := range pairs {
 			v := post[p.a].quad(p.ga) + post[p.b].quad(p.gb)
-			score += v
+			// the shortfall of the margin this pair would still leave
+			if short := target - p.rs + z*math.Sqrt(math.Max(v, 0)); short > 0 {
+				score += short * short
+			}
 			if p.critical {
 				critSD = math.Sqrt(math.Max(v, 0))
 			}
@@ -146,8 +151,8 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 }
 
 // criticalPairs are the pairs with a target that are, or within three
-// standard deviations could become, critical at program o (Rs within
-// 3 SD of the target plus half a unit), with their gradients; the least
+// standard deviations could become, critical at program o (Rs − 3 SD
+// below twice the target), with their gradients; the least
 // adjacent one is marked critical when mark is set.
 func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]pairSens, error) {
 	if err := st.sens.eval(methodfile.ProgramToModel(o)); err != nil {
@@ -172,10 +177,10 @@ func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]
 			}
 			rs, ga, gb := s.resolution(a, b)
 			sd := rsSD(ga, gb, st.cov[a], st.cov[b])
-			if rs-3*sd > target+0.5 {
+			if rs-3*sd > 2*target {
 				continue
 			}
-			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb})
+			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb, rs: rs})
 			if y == x+1 && rs < critRs {
 				critRs, crit = rs, len(pairs)-1
 			}

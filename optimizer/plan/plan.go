@@ -5,14 +5,19 @@
 //
 //   - inject: a scouting program, within every instrument limit of the
 //     method, chosen to shrink the uncertainty of the resolution of the
-//     pairs that are or could become critical near the optimum. The
-//     criterion is the expected reduction of the variance of those
-//     resolutions (a linear, "L-optimum" design: Atkinson, Donev & Tobias,
-//     Optimum Experimental Designs, with SAS, Oxford 2007, §10.1; with one
-//     pair it is c-optimum). The variances come from first-order propagation
-//     of each compound's (ΔH, ΔS) covariance; a candidate run updates that
-//     covariance by its retention-time sensitivities (a Bayesian update
-//     with the retention-time SD as the measurement error).
+//     pairs that are or could become critical near the optimum: the run
+//     after which the summed squared shortfall of the margin,
+//     Σ max(0, target − Rs + z·SD_after)², is least, SD_after being each
+//     pair's expected posterior SD. This is expected reduction of the Rs
+//     variance weighted towards the pairs that would block a verification,
+//     a Bayesian linear design (Atkinson, Donev & Tobias, Optimum
+//     Experimental Designs, with SAS, Oxford 2007, criteria of optimality:
+//     linear and c-optimality; Chaloner & Verdinelli, Statistical Science
+//     10, 1995, 273); the weighting is ours. The variances come from
+//     first-order propagation of each compound's (ΔH, ΔS) covariance; a
+//     candidate run updates that covariance by its retention-time
+//     sensitivities (a Bayesian update with the retention-time SD as the
+//     measurement error).
 //   - verify: the optimized program, when its predicted minimum resolution
 //     minus z standard deviations (parameters and measurement) meets the
 //     target and, when [goal.robust] gives instrument tolerances, every
@@ -26,6 +31,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"sort"
 	"strings"
 
@@ -74,11 +80,16 @@ type Settings struct {
 	// trades a slower verified program for fewer injections, never a
 	// likelier failed verification.
 	MarginGain float64
+	// Draws is how many draws of the parameters from their uncertainty
+	// are optimized to find the pairs that could become critical near the
+	// optimum, for the design of a scouting run. Default 3.
+	Draws int
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
 	// is at most (1 + Tolerance) times that of the program now predicted
-	// to hold the margin. Default 0.5: after a passing verification a
-	// program predicted a little faster is mentioned, not demanded.
+	// to hold the margin. Default 1: after a passing verification a
+	// program predicted faster is mentioned, not demanded; a slow scouting
+	// ramp that happens to meet the target is not taken for the method.
 	Tolerance float64
 }
 
@@ -98,8 +109,11 @@ func (s Settings) withDefaults() Settings {
 	if s.Slower <= 0 {
 		s.Slower = 0.25
 	}
+	if s.Draws <= 0 {
+		s.Draws = 3
+	}
 	if s.Tolerance <= 0 {
-		s.Tolerance = 0.5
+		s.Tolerance = 1
 	}
 	return s
 }
@@ -115,8 +129,8 @@ type Plan struct {
 	Reason  string
 	// ExpectedMinResolution is the predicted minimum resolution of the
 	// optimized program; ExpectedSD its standard deviation (parameters and
-	// measurement); SDAfter (inject) the SD expected once the planned run
-	// is fitted.
+	// measurement); SDAfter (inject) the parameters' part of that SD
+	// expected once the planned run is fitted.
 	ExpectedMinResolution float64
 	ExpectedSD            float64
 	SDAfter               float64
@@ -172,7 +186,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		// raise by the shortfall; when the raised target cannot be met
 		// within the limits, halve the raise
 		lo, step := 0.0, nominal.deficit+0.01
-		for iter := 0; iter < 8 && ctx.Err() == nil && step >= 0.01; iter++ {
+		for iter := 0; iter < 12 && ctx.Err() == nil && step >= 0.01; iter++ {
 			extra := lo + step
 			if extra > s.MaxMargin*target {
 				step = s.MaxMargin*target - lo
@@ -228,6 +242,37 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			// a raised target may lead where the parameters are less
 			// known: never raise by more than the last step
 			lo, step = extra, math.Min(ev.deficit+0.01, step)
+		}
+	}
+	// A raised target can lead where the parameters are less known. The
+	// robust counterpart instead: optimize on the method whose near-critical
+	// pairs are moved, each pair's two compounds along the direction that
+	// lowers its resolution most, by z parameter SDs (first order), with the
+	// target raised by the measurement's part of the margin only.
+	if robust == nil && feasible {
+		o := nomOven
+		for it := 0; it < 3 && ctx.Err() == nil; it++ {
+			pm, extra, err := st.pessimistic(o, z, s.WidthScatter)
+			if err != nil {
+				return nil, err
+			}
+			po, ok, err := st.optimizeMethod(ctx, pm, target+extra, s.Optimizer)
+			if err != nil {
+				return nil, err
+			}
+			if !ok {
+				break
+			}
+			ev, err := st.evaluate(po, z, s.WidthScatter)
+			if err != nil {
+				return nil, err
+			}
+			tried = append(tried, po)
+			if ev.ok {
+				robust, robustOven = ev, po
+				break
+			}
+			o = po
 		}
 	}
 	best, bestOven := nominal, nomOven
@@ -301,6 +346,18 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	bestOven, best = nomOven, nominal
 
 	// inject: the scouting run that shrinks the Rs variance the most
+	// where the optimum could be: the optimized programs of a few draws of
+	// the parameters from their uncertainty, so that the pairs critical
+	// there are weighed too
+	for k := 0; k < s.Draws && ctx.Err() == nil; k++ {
+		o, ok, err := st.optimizeDraw(ctx, target, s.Optimizer, uint64(k+1))
+		if err != nil {
+			return nil, err
+		}
+		if ok {
+			tried = append(tried, o)
+		}
+	}
 	d, err := st.design(tried, target, z)
 	if err != nil {
 		return nil, err
@@ -321,7 +378,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	} else if best.sdOK && best.cornerText != "" {
 		why = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f does not hold at every instrument tolerance%s", best.minRs, best.sd, best.cornerText)
 	}
-	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink that to ± %.2f (%d pairs that are or could become critical weighed)",
+	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%d pairs that are or could become critical weighed)",
 		why, robustNote, d.sdAfter, d.pairs)
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
@@ -601,17 +658,149 @@ func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
 func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
 	m := st.m.Clone()
 	m.Goal.MinResolution = rs
-	prob := methodsearch.Problem(m, st.sys)
-	// the plan weighs the tolerances and the parameters' uncertainty itself
-	// (evaluation) and keeps the method's carrier setting
-	prob.Robust = optimizer.Robust{}
-	prob.Lock = append(prob.Lock, optimizer.FlowLock)
-	res, err := optimizer.Optimize(ctx, prob, s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, st.sys), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
 	oven := onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits)
 	return oven, res.Feasible(), nil
+}
+
+// problem is the optimizer's problem for m with every instrument limit the
+// scouting runs keep: the highest temperature (detector − 20 °C,
+// max_isothermal_c, inlet pressure) and, when rate bands are given, the
+// slowest band's rate throughout (the search has one rate limit).
+func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
+	prob := methodsearch.Problem(m, sys)
+	// the plan weighs the tolerances and the parameters' uncertainty itself
+	// (evaluation) and keeps the method's carrier setting
+	prob.Robust = optimizer.Robust{}
+	prob.Lock = append(prob.Lock, optimizer.FlowLock)
+	sl := st.scoutLimits()
+	prob.Limits.MaxTemp = math.Min(prob.Limits.MaxTemp, sl.highC+model.ZeroCelsius)
+	if len(sl.bands) > 0 {
+		prob.Limits.MaxRate = math.Min(prob.Limits.MaxRate, sl.rateTo(sl.highC)/60)
+	}
+	return prob
+}
+
+// optimizeMethod runs the optimizer on method m (the current one with
+// other parameters) for target rs.
+func (st *state) optimizeMethod(ctx context.Context, m *methodfile.Method, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
+	m = m.Clone()
+	m.Goal.MinResolution = rs
+	sys, err := m.System()
+	if err != nil {
+		return methodfile.Oven{}, false, nil // an implausible shift: no program
+	}
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
+	if err != nil {
+		return methodfile.Oven{}, false, err
+	}
+	return onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits), res.Feasible(), nil
+}
+
+// pessimistic is the method with the compounds of every pair with a
+// target whose bound at program o falls short of the target plus half a
+// unit moved to the first-order worst case on their joint uncertainty
+// ellipsoid: Δθ = −z Σ g / √(gᵀ Σ g) for the pair's stacked gradient g (a
+// compound in several such pairs takes the move of its weakest pair), and
+// the largest measurement part of the margin, z × that SD, over those
+// pairs.
+func (st *state) pessimistic(o methodfile.Oven, z, widthScatter float64) (*methodfile.Method, float64, error) {
+	target := st.m.Goal.MinResolution
+	if err := st.sens.eval(methodfile.ProgramToModel(o)); err != nil {
+		return nil, 0, err
+	}
+	s := st.sens
+	var order []int
+	for i := 0; i < s.n; i++ {
+		if s.eluted[i] {
+			order = append(order, i)
+		}
+	}
+	sort.Slice(order, func(a, b int) bool { return s.t[order[a]] < s.t[order[b]] })
+	move := make([][2]float64, s.n)
+	bound := make([]float64, s.n)
+	for i := range bound {
+		bound[i] = math.Inf(1)
+	}
+	extra := 0.0
+	for k := 0; k+1 < len(order); k++ {
+		a, b := order[k], order[k+1]
+		if !st.sys.Compounds[a].Target && !st.sys.Compounds[b].Target {
+			continue
+		}
+		rs, ga, gb := s.resolution(a, b)
+		sp := rsSD(ga, gb, st.cov[a], st.cov[b])
+		sm := st.measurementSD(rs, a, b, widthScatter)
+		low := rs - z*math.Hypot(sp, sm)
+		if low > target+0.5 || !(sp > 0) {
+			continue
+		}
+		extra = math.Max(extra, z*sm)
+		da, db := st.cov[a].mul(ga), st.cov[b].mul(gb)
+		for _, x := range []struct {
+			i int
+			d [2]float64
+		}{{a, da}, {b, db}} {
+			if low < bound[x.i] {
+				bound[x.i] = low
+				move[x.i] = [2]float64{-z * x.d[0] / sp, -z * x.d[1] / sp}
+			}
+		}
+	}
+	m := st.m.Clone()
+	m.Compounds = append([]methodfile.Compound(nil), st.m.Compounds...)
+	for i := range m.Compounds {
+		c := &m.Compounds[i]
+		if dh := c.DHkJ + move[i][0]/1000; dh < 0 {
+			c.DHkJ, c.DS = dh, c.DS+move[i][1]
+		}
+	}
+	return m, extra + 0.01, nil
+}
+
+// optimizeDraw optimizes, at the target, the method with every compound's
+// parameters drawn from their uncertainty (Gaussian, seeded by the
+// optimizer's seed and draw, so that a plan repeats exactly).
+func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.Settings, draw uint64) (methodfile.Oven, bool, error) {
+	seed := s.Seed
+	if seed == 0 {
+		seed = 1
+	}
+	rng := rand.New(rand.NewPCG(seed, draw))
+	m := st.m.Clone()
+	m.Compounds = append([]methodfile.Compound(nil), st.m.Compounds...)
+	for i := range m.Compounds {
+		c := st.cov[i]
+		// Cholesky of the 2×2 covariance
+		l11 := math.Sqrt(math.Max(c.hh, 0))
+		var l21, l22 float64
+		if l11 > 0 {
+			l21 = c.hs / l11
+			l22 = math.Sqrt(math.Max(c.ss-l21*l21, 0))
+		}
+		// at most three SDs, so that a draw stays a plausible compound
+		z1 := math.Max(-3, math.Min(3, rng.NormFloat64()))
+		z2 := math.Max(-3, math.Min(3, rng.NormFloat64()))
+		m.Compounds[i].DHkJ += l11 * z1 / 1000
+		m.Compounds[i].DS += l21*z1 + l22*z2
+		if !(m.Compounds[i].DHkJ < 0) {
+			m.Compounds[i].DHkJ = st.m.Compounds[i].DHkJ
+			m.Compounds[i].DS = st.m.Compounds[i].DS
+		}
+	}
+	m.Goal.MinResolution = target
+	sys, err := m.System()
+	if err != nil {
+		return methodfile.Oven{}, false, nil // an implausible draw: skip it
+	}
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
+	if err != nil {
+		return methodfile.Oven{}, false, nil
+	}
+	return onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits), res.Feasible(), nil
 }
 
 // duration is the program's run time or cycle time (the goal's objective),

@@ -1,0 +1,255 @@
+package tui
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"path/filepath"
+	"strings"
+
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
+
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/format"
+	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/report"
+)
+
+// A verification run (V): a measured run of the method's program, read as
+// `rampwise check` reads it (calibrate.Verify), drawn below the predicted
+// chromatogram on the same time axis with the matched peaks joined
+// (report.Measured, the figure's overlay), and judged in a dialog: each
+// compound's Δt and whether the measured run meets the target.
+
+type (
+	// startVerifyMsg asks the root to read and judge a verification run.
+	startVerifyMsg struct{ path string }
+	// measuredMsg tells the chart which measured run to draw below the
+	// prediction (nil: none).
+	measuredMsg struct{ meas *report.Measured }
+)
+
+type verifyOutcome struct {
+	path string
+	ck   *calibrate.Check
+	meas *report.Measured
+	// the prediction of the run's own program (a runs file's run may have
+	// another program than the method's): shown in the chart while the
+	// dialog is open, unless same
+	pred model.Result
+	prog model.Program
+	same bool
+	err  error
+}
+
+// readVerificationRun reads a runs file (its last run), or a peak table or
+// chromatogram file as a run of the method's own program, as `check`
+// does. Every file is opened only when it is a regular file.
+func readVerificationRun(m *methodfile.Method, path string) (*methodfile.Run, error) {
+	if strings.EqualFold(filepath.Ext(path), ".toml") {
+		all, err := methodfile.ReadRuns(path, m)
+		if err != nil {
+			return nil, err
+		}
+		if len(all.Runs) == 0 {
+			return nil, fmt.Errorf("%s: no [[run]] in it", path)
+		}
+		return &all.Runs[len(all.Runs)-1], nil
+	}
+	return methodfile.ReadExportRun(path, m, nil)
+}
+
+// verifyRun is the job: read, judge, and simulate the run's program.
+func verifyRun(m *methodfile.Method, path string) verifyOutcome {
+	out := verifyOutcome{path: path}
+	run, err := readVerificationRun(m, path)
+	if err != nil {
+		out.err = err
+		return out
+	}
+	ck, err := calibrate.Verify(m, run)
+	if err != nil {
+		out.err = fmt.Errorf("%s: %v", path, err)
+		return out
+	}
+	out.ck, out.meas = ck, report.MeasuredFromCheck(ck)
+	rm := m.RunMethod(ck.Run)
+	out.same = rm.Oven.Describe() == m.Oven.Describe() && rm.Carrier == m.Carrier
+	sys, err := rm.System()
+	if err == nil {
+		out.prog = rm.ModelProgram()
+		err = sys.Simulate(out.prog, &out.pred)
+	}
+	if err != nil {
+		out.err = fmt.Errorf("%s: %v", path, err)
+	}
+	return out
+}
+
+func (a *App) startVerify(path string) tea.Cmd {
+	if path == "" {
+		a.say(msgError, "no verification run given")
+		return nil
+	}
+	m := a.sh.method
+	_, cmd := a.startJob("reading the verification run "+inert(path), func(ctx context.Context) any {
+		return verifyRun(m, path)
+	})
+	return cmd
+}
+
+func (a *App) verifyDone(v verifyOutcome) {
+	if v.err != nil {
+		a.say(msgError, "verification run: %v", inertErr(v.err))
+		return
+	}
+	d := newVerifyDialog(&a.sh, v)
+	a.open(d)
+	a.chart.Update(measuredMsg{meas: v.meas})
+	if !v.same {
+		a.chart.Update(previewMsg{res: &d.v.pred, prog: d.v.prog, label: "predicted for the run's program", showIt: true})
+	}
+	if v.ck.Met {
+		a.say(msgGood, "%s meets the target as measured · esc closes", inert(v.ck.Run.Name))
+	} else {
+		a.say(msgWarn, "%s does NOT meet the target as measured · esc closes", inert(v.ck.Run.Name))
+	}
+}
+
+// --- the verification dialog ---
+
+type verifyDialog struct {
+	sh    *shared
+	v     verifyOutcome
+	keys  ListKeys
+	off   int
+	w, h  int
+	lines []string
+}
+
+func newVerifyDialog(sh *shared, v verifyOutcome) *verifyDialog {
+	k := scrollKeys(ListKeys{Reject: bind([]string{"esc", "q", "n"}, "esc/q", "close")})
+	return &verifyDialog{sh: sh, v: v, keys: k}
+}
+
+func (d *verifyDialog) ShortHelp() []key.Binding {
+	return []key.Binding{d.keys.Reject, d.keys.Up, d.keys.PageDown}
+}
+func (d *verifyDialog) FullHelp() [][]key.Binding {
+	return [][]key.Binding{{d.keys.Reject, d.keys.Up, d.keys.PageDown}}
+}
+func (d *verifyDialog) View() string     { return strings.Join(d.lines, "\n") }
+func (d *verifyDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
+func (d *verifyDialog) rows() int        { return max(1, d.h-2) }
+
+func (d *verifyDialog) Update(msg tea.Msg) (component, tea.Cmd) {
+	switch msg := msg.(type) {
+	case tea.KeyMsg:
+		if key.Matches(msg, d.keys.Reject) {
+			d.sh.send(closeMsg{}, measuredMsg{}, sayMsg{msgInfo, "closed the verification run"})
+			return d, nil
+		}
+		scroll(&d.off, msg, d.keys, len(d.body()), d.rows())
+		d.render()
+	case refreshMsg:
+		d.render()
+	}
+	return d, nil
+}
+
+func num3(x float64) string {
+	if math.IsNaN(x) {
+		return "-"
+	}
+	return fmt.Sprintf("%.3f", x)
+}
+
+// body is a row per compound in predicted elution order (predicted and
+// measured time, Δt, the resolution to the next peak predicted and as
+// measured), then the warnings, notes and missing targets.
+func (d *verifyDialog) body() []string {
+	st, ck := d.sh.st, d.v.ck
+	var out []string
+	for i, c := range ck.Compounds {
+		rs := ""
+		if i < len(ck.Pairs) {
+			p := ck.Pairs[i]
+			meas := "-"
+			if !math.IsNaN(p.Measured) {
+				meas = fmt.Sprintf("%.2f", p.Measured)
+				if p.WidthsPredicted {
+					meas += "*"
+				}
+			}
+			mark := " "
+			if p.First == ck.Critical[0] && p.Second == ck.Critical[1] {
+				mark = format.CriticalMark
+			}
+			if !p.Counts {
+				mark = "·"
+			}
+			rs = fmt.Sprintf("%s%6.2f %7s", mark, p.Predicted, meas)
+		}
+		delta := "-"
+		if !math.IsNaN(c.DeltaMin) {
+			delta = fmt.Sprintf("%+.3f", c.DeltaMin)
+		}
+		how := ""
+		switch {
+		case c.Assigned:
+			how = fmt.Sprintf("assigned %.2f", c.AssignedConfidence)
+		case math.IsNaN(c.MeasuredMin) && c.Target:
+			how = "target not found"
+		}
+		tgt := " "
+		if c.Target {
+			tgt = "t"
+		}
+		line := fmt.Sprintf(" %2d %s %s %8s %8s %7s  %s  %s", i+1, padRight(ansi.Truncate(inert(c.Name), 20, "…"), 20), tgt, num3(c.PredictedMin), num3(c.MeasuredMin), delta, padRight(rs, 15), how)
+		s := st.TableRow
+		if how == "target not found" {
+			s = st.Warn
+		}
+		out = append(out, s.Render(ansi.Truncate(line, d.w, "…")))
+	}
+	add := func(prefix string, xs []string) {
+		for _, x := range xs {
+			for _, l := range wrap(" "+prefix+inert(x), d.w) {
+				out = append(out, st.Warn.Render(l))
+			}
+		}
+	}
+	if len(ck.MissingTargets) > 0 {
+		add("⚠ targets not found in the run: ", []string{strings.Join(ck.MissingTargets, ", ")})
+	}
+	add("⚠ ", ck.Warnings)
+	add("note: ", ck.Notes)
+	return out
+}
+
+func (d *verifyDialog) render() {
+	st, ck := d.sh.st, d.v.ck
+	verdict := st.Good.Render("target met as measured")
+	if !ck.Met {
+		verdict = st.Bad.Render("target NOT met as measured")
+	}
+	rs := "no counted pair measured"
+	if !math.IsNaN(ck.MinResolution) {
+		rs = fmt.Sprintf("min Rs %s %s", format.RsNumber(ck.MinResolution, ck.Target), format.CriticalPair(inert(ck.Critical[0]), inert(ck.Critical[1])))
+	}
+	title := ansi.Truncate(st.Focused.Render("▸verification "+inert(ck.Run.Name)+": ")+verdict+
+		st.Dim.Render(fmt.Sprintf(" · %s, target %s · Δt = measured − predicted · * widths predicted", rs, format.Target(ck.Target))), d.w, "…")
+	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-20s %s %8s %8s %7s  %-15s", "#", "compound", "t", "pred min", "meas min", "Δt min", " Rs pred   meas"), d.w, "…"))
+	body := d.body()
+	rows := d.rows()
+	d.off = max(0, min(d.off, len(body)-rows))
+	if len(body) > rows {
+		head = ansi.Truncate(head+st.Dim.Render(fmt.Sprintf("  %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))), d.w, "…")
+	}
+	lines := []string{title, head}
+	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
+	d.lines = fill(lines, d.h)
+}
