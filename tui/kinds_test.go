@@ -1,11 +1,14 @@
 package tui
 
 import (
+	"fmt"
+	"math"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -190,5 +193,34 @@ func TestOldRunFaintUnderResult(t *testing.T) {
 	press(a, "n")
 	if a.chart.faint || a.chart.prev != nil {
 		t.Error("the faint run stays after the result closed")
+	}
+}
+
+// With [goal.robust] the optimizer result shows, at 80×24, the nominal
+// Rs, the worst corner's Rs and which corner, and Rs ± σ, for the current
+// and the optimized program, the figures the optimizer reports.
+func TestResultShowsRobustFigures(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	if rb := a.Method().Goal.Robust; rb.OvenOffsetC == 0 || rb.RetentionSigma == 0 {
+		t.Fatalf("the demo's [goal.robust] is off: %+v", rb)
+	}
+	fastOptimizer(a)
+	press(a, "o")
+	d, ok := a.overlay.(*resultDialog)
+	if !ok {
+		t.Fatalf("no result: %s", a.message)
+	}
+	r := d.res.Robust
+	if !r.On || math.IsNaN(r.Worst) || r.Corner == "" || !d.nowRob.On {
+		t.Fatalf("robust report missing: %+v now %+v", r, d.nowRob)
+	}
+	s := screen(a)
+	target := a.Method().Goal.MinResolution
+	for _, want := range []string{"nominal Rs", "worst Rs", "Rs ± σ",
+		format.RsNumber(r.Worst, target), fmt.Sprintf("%.2f ± %.2f", r.Nominal, r.Sigma),
+		fmt.Sprintf("%.2f ± %.2f", d.nowRob.Nominal, d.nowRob.Sigma), "worst at " + r.Corner} {
+		if !strings.Contains(s, want) {
+			t.Errorf("80×24 result lacks %q:\n%s", want, s)
+		}
 	}
 }
