@@ -538,6 +538,7 @@ func (a *App) interrupt() tea.Cmd {
 		a.job.cancel()
 		a.job = nil
 	}
+	a.queued = nil // keys typed before ctrl+c never answer its question
 	a.overlay, a.pending = nil, nil
 	a.chart.Update(previewMsg{})
 	if !a.Dirty() {
@@ -696,7 +697,7 @@ func (r rowCount) fixed() int { return r.title + r.method + r.summary + 2 + 1 }
 
 // maxMessageRows is the most the status message takes; a longer one ends
 // with a pointer to the list of cautions, which shows it whole.
-const maxMessageRows = 6
+const maxMessageRows = 4
 
 // minLowerRows is the least the lower pane keeps: its heading, the table
 // head and one row.
@@ -715,7 +716,8 @@ func chartRows(base int) int {
 	if base < 20 {
 		h-- // a small terminal: the row goes to the peak table
 	}
-	return max(7, h)
+	// the lower pane keeps its rows even when the lines above wrap a lot
+	return max(3, min(max(7, h), base-minLowerRows))
 }
 
 // layout gives every child its size (the resize fan-out).

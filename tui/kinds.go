@@ -113,7 +113,7 @@ func typicalColumn(before, m *methodfile.Method) string {
 	if m.Carrier.Mode == model.ConstantPressure {
 		probe := m.Clone()
 		probe.Carrier.Mode, probe.Carrier.FlowMLMin = model.ConstantFlow, t.flowMLMin
-		if tm, err := holdupAt(probe); err == nil {
+		if tm, err := programHoldup(probe); err == nil {
 			if desc, err := keepHoldup(m, tm); err == nil {
 				what += fmt.Sprintf(" · for about %s mL/min %s", trimNum(t.flowMLMin), desc)
 			}

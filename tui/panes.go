@@ -97,7 +97,8 @@ func fieldPrompt(f field) string {
 
 // fieldEdit is the edit that sets field f as m has it. A gas or pressure
 // mode switch also sets the flow or the inlet pressure so that the holdup
-// time at the start temperature stays what it was.
+// time (under the program, as the status line shows it) stays what it was,
+// as nearly as the keypad step allows.
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
 	editKey := f.key
@@ -108,7 +109,7 @@ func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 		}
 	}
 	if (f.key == "carrier.mode" || f.key == "carrier.gas") && sh.sys != nil && m.Carrier != sh.method.Carrier {
-		tm := sh.sys.Cond.HoldupTimeAt(sh.method.Oven.InitialC + model.ZeroCelsius)
+		tm := sh.res.HoldupTime // under the program, as the status line shows it
 		if desc, err := keepHoldup(m, tm); err == nil {
 			what += " · " + desc
 		} else {

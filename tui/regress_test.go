@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
@@ -167,45 +168,74 @@ func TestSeeBeforeTaking(t *testing.T) {
 	}
 }
 
-// A pressure-mode or gas switch keeps the holdup time at the start
-// temperature, and says so.
+// A pressure-mode or gas switch keeps the holdup time the status line
+// shows (under the program) as closely as the keypad step allows, and says
+// truthfully which holdup time it gives.
 func TestModeAndGasSwitchKeepHoldup(t *testing.T) {
 	a, _ := newApp(t, 100, 32)
-	holdup := func() float64 {
-		v, err := holdupAt(a.Method())
-		if err != nil {
-			t.Fatal(err)
+	want := a.Result().HoldupTime
+	// the nearest step: no step either side comes closer
+	nearest := func(what string) {
+		t.Helper()
+		m := a.Method()
+		got := a.Result().HoldupTime
+		if ph, err := programHoldup(m); err != nil || math.Abs(ph-got) > 1e-4*got {
+			t.Errorf("%s: programHoldup %.5f min, the simulation %.5f min (%v)", what, ph/60, got/60, err)
 		}
-		return v
+		v, step := &m.Carrier.FlowMLMin, m.Limits.FlowStepMLMin
+		if m.Carrier.Mode == model.ConstantPressure {
+			v, step = &m.Carrier.InletKPa, m.Limits.PressureStepKPa
+		}
+		if n := *v / step; math.Abs(n-math.Round(n)) > 1e-6 {
+			t.Errorf("%s: %v is not on the %v step", what, *v, step)
+		}
+		for _, d := range []float64{-step, step} {
+			c := m.Clone()
+			if c.Carrier.Mode == model.ConstantPressure {
+				c.Carrier.InletKPa += d
+			} else {
+				c.Carrier.FlowMLMin += d
+			}
+			if h, _ := programHoldup(c); math.Abs(h-want) < math.Abs(got-want)-1e-9 {
+				t.Errorf("%s: %v %+v gives %.4f min, nearer %.4f than %.4f", what, *v, d, h/60, want/60, got/60)
+			}
+		}
+		if !strings.Contains(a.message, fmt.Sprintf("holdup time %.3f min", got/60)) {
+			t.Errorf("%s: the status line does not say the holdup time it gives (%.3f): %s", what, got/60, a.message)
+		}
 	}
-	want := holdup()
-	press(a, "shift+tab") // settings
-	for i := 0; i < 6; i++ {
-		press(a, "down")
-	}
+	pickSetting(t, a, "carrier.mode")
 	press(a, "+") // constant pressure
 	if a.Method().Carrier.Mode != model.ConstantPressure {
 		t.Fatalf("mode %q", a.Method().Carrier.Mode)
 	}
-	if got := holdup(); math.Abs(got-want)/want > 0.002 {
-		t.Errorf("holdup %.4f min after the mode switch, want %.4f", got/60, want/60)
-	}
-	if !strings.Contains(a.message, "keeps the holdup time") {
-		t.Errorf("status line does not say so: %s", a.message)
-	}
+	nearest("constant pressure")
 	press(a, "up", "+") // hydrogen
-	press(a, "-")       // back to helium
+	nearest("hydrogen")
+	press(a, "-") // back to helium
 	if a.Method().Carrier.Gas != model.Helium {
 		t.Fatalf("gas %q", a.Method().Carrier.Gas)
 	}
-	if got := holdup(); math.Abs(got-want)/want > 0.004 {
-		t.Errorf("holdup %.4f min after a detour through hydrogen, want %.4f", got/60, want/60)
-	}
+	nearest("helium again")
 	for _, pk := range a.Result().Peaks {
 		if !pk.Eluted {
 			t.Error("a compound no longer elutes after the detour")
 		}
 	}
+	// the keypad step is the method's: a coarse one is kept to
+	m := a.Method().Clone()
+	m.Limits.PressureStepKPa = 2
+	if !a.apply(m, "coarse steps", "") {
+		t.Fatalf("refused: %s", a.message)
+	}
+	pickSetting(t, a, "carrier.mode")
+	press(a, "-") // back to constant flow
+	if a.Method().Carrier.Mode != model.ConstantFlow {
+		t.Fatalf("mode %q", a.Method().Carrier.Mode)
+	}
+	want = a.Result().HoldupTime
+	press(a, "+") // constant pressure again, in 2 kPa steps
+	nearest("2 kPa steps")
 }
 
 // What is shown is what is saved.
@@ -829,5 +859,38 @@ func TestSaveAsFolderRefused(t *testing.T) {
 	}
 	if !a.Dirty() || a.Path() != path {
 		t.Error("the method's file changed")
+	}
+}
+
+// Text of any length from the file (title, phase, compound names) never
+// pushes the screen past its height.
+func TestLongFileTextKeepsScreenSize(t *testing.T) {
+	m := demoMethod(t)
+	m.Title = strings.Repeat("a very long method title ", 20)
+	m.Column.Phase = strings.Repeat("poly(dimethylsiloxane) ", 20)
+	for i := range m.Compounds {
+		m.Compounds[i].Name = fmt.Sprintf("compound-%d-%s", i, strings.Repeat("x", 60))
+	}
+	a, err := New(m, Options{Name: "long.toml", NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, size := range [][2]int{{80, 24}, {100, 30}, {200, 60}} {
+		send(a, tea.WindowSizeMsg{Width: size[0], Height: size[1]})
+		for _, k := range []string{"", "tab", "tab", "tab", "!", "esc", "?"} {
+			if k != "" {
+				press(a, k)
+			}
+			s := screen(a)
+			if n := strings.Count(s, "\n") + 1; n != size[1] {
+				t.Fatalf("%dx%d after %q: %d lines:\n%s", size[0], size[1], k, n, s)
+			}
+			for i, l := range strings.Split(s, "\n") {
+				if ansi.StringWidth(l) > size[0] {
+					t.Errorf("%dx%d after %q: line %d is %d wide: %q", size[0], size[1], k, i, ansi.StringWidth(l), l)
+				}
+			}
+		}
+		press(a, "esc")
 	}
 }

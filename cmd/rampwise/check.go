@@ -81,7 +81,7 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	if (*runsFile != "" || *out != "") && !*refit {
 		return badf("check: --runs and --out go with --refit")
 	}
-	m, err := methodfile.ReadFile(files[0])
+	m, _, err := loadMethod(files[0]) // - and @demo as every command reads them
 	if err != nil {
 		return err
 	}
@@ -109,6 +109,7 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 		if rep, err = calibrate.Fit(m, all, calibrate.Options{}); err != nil {
 			return badf("%s: %v", files[1], err)
 		}
+		methodfile.RoundFitted(rep.Method) // as fit --out saves them
 		if *out != "" {
 			if err := saveFitted(*out, rep.Method, func() error { return methodfile.WriteFile(*out, rep.Method) }); err != nil {
 				return err

@@ -69,11 +69,12 @@ func usage() string {
 	}
 	b.WriteString(`
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
-compounds). - for FILE or METHOD reads the method from standard input
-(cat m.toml | rampwise simulate -); without FILE, or with @demo for FILE or
-METHOD, the built-in demo method is used; an empty name ("") is refused.
-rampwise help COMMAND (or rampwise COMMAND --help) explains a
-command and its flags.
+compounds). - for FILE or METHOD (or the RUNS of fit and plan) reads it
+from standard input (cat m.toml | rampwise simulate -), and is the demo
+when nothing is piped in; without FILE, or with @demo for FILE or METHOD,
+the built-in demo method is used; an empty
+name ("") is refused. rampwise help COMMAND (or rampwise COMMAND --help)
+explains a command and its flags.
 
 Limits: the instrument limits in the file (limits.max_rate_c_min and
 limits.rate_band, limits.max_inlet_kpa and limits.min_inlet_kpa,

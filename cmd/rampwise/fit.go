@@ -132,7 +132,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	runs, err := methodfile.ReadRuns(files[1], m)
+	runs, err := readRuns(files[1], m)
 	if err != nil {
 		return err
 	}

@@ -25,7 +25,7 @@ func TestEmptyNameAndStdin(t *testing.T) {
 	for _, args := range [][]string{
 		{"simulate", ""}, {"optimize", ""}, {"tui", ""}, {"export", "", "--csv", "x.csv"},
 		{"sweep", "", "--vary", "rate_1", "--from", "5", "--to", "10"}, {"index", ""},
-		{"compare", ""}, {"plan", ""}, {"fit", "", "../../testdata/scouting.toml"},
+		{"compare", ""}, {"plan", ""}, {"fit", "", "../../testdata/scouting.toml"}, {"check", "", "../../testdata/lab/verify.csv"},
 	} {
 		code, out, errs := runCmd(t, args...)
 		if code != 2 || !strings.Contains(errs, "empty file name") || out != "" {
@@ -53,8 +53,9 @@ func TestEmptyNameAndStdin(t *testing.T) {
 	if code, out, _ := runCmd(t, "simulate"); code != 0 || out != fromDemo {
 		t.Error("no FILE and @demo differ")
 	}
+	// nothing piped in: - is the demo, as it always was, and says so
 	withStdin(t, "", func() {
-		if code, _, errs := runCmd(t, "simulate", "-"); code != 2 || !strings.Contains(errs, "standard input is empty") {
+		if code, out, errs := runCmd(t, "simulate", "-"); code != 0 || out != fromDemo || !strings.Contains(errs, "built-in demo") {
 			t.Errorf("empty stdin: exit %d %q", code, errs)
 		}
 	})
@@ -238,4 +239,26 @@ func TestVersionWithoutVCS(t *testing.T) {
 	if got := versionFrom(nil, false, ""); got != "rampwise (no build information)" {
 		t.Errorf("no build info: %q", got)
 	}
+}
+
+// - as the RUNS of fit reads the runs file from standard input; - for both
+// METHOD and RUNS is refused (standard input is read once).
+func TestRunsFromStdin(t *testing.T) {
+	runs, err := os.ReadFile("../../testdata/scouting.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var fromFile string
+	_, fromFile, _ = runCmd(t, "fit", "../../testdata/demo.toml", "../../testdata/scouting.toml")
+	withStdin(t, string(runs), func() {
+		code, out, errs := runCmd(t, "fit", "../../testdata/demo.toml", "-")
+		if code != 0 || out != fromFile {
+			t.Errorf("fit METHOD -: exit %d %s", code, errs)
+		}
+	})
+	withStdin(t, string(runs), func() {
+		if code, _, errs := runCmd(t, "fit", "-", "-"); code != 2 || !strings.Contains(errs, "<stdin>") {
+			t.Errorf("fit - -: exit %d %q", code, errs)
+		}
+	})
 }

@@ -95,7 +95,7 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	}
 	var runs *methodfile.Runs
 	if len(files) == 2 {
-		runs, err = methodfile.ReadRuns(files[1], m)
+		runs, err = readRuns(files[1], m)
 		if err != nil {
 			return err
 		}

@@ -16,9 +16,12 @@ const tuiHelp = `Usage: rampwise tui [FILE] [--no-color]
 
 Opens the interactive program editor: the oven program, a live simulated
 chromatogram with the oven temperature, the peak table and the method
-settings; o runs the optimizer in the background, ctrl+s saves, ? lists every
-key. Without FILE it opens the built-in demo. Keys may also come from a pipe
-or a file (rampwise tui m.toml < keys.txt).
+settings; o runs the optimizer in the background, ctrl+s saves, ! lists every
+caution, ? lists every key. Without FILE it opens the built-in demo. Keys may
+also come from a pipe or a file (rampwise tui m.toml < keys.txt); at their end
+the UI finishes as if the user quit: exit 0 with nothing unsaved; with unsaved
+changes the recovery file (below) is written, the message says where, and the
+exit status is 1.
 
 If the terminal or the SSH connection goes away, or the program gets SIGHUP,
 SIGTERM, SIGINT or SIGQUIT (on Windows: the console window closed, logoff,
@@ -27,7 +30,8 @@ the file, NAME being the whole file name (blend.toml.rampwise-recovery.toml);
 when that folder cannot be written, to rampwise/recovery in the user's cache
 folder (the message says where). The next start offers them with their age;
 the recovery file is kept until the method is saved. The ctrl+c key is like
-q: it asks first when there are unsaved changes.
+q: with unsaved changes it asks (s save and quit, d discard and quit, esc
+stay).
 
 A save changes only what changed, in the file's own text (comments and
 layout kept), and writes through a symlink to its target. If the file was

@@ -216,7 +216,11 @@ func findOutliers(fits []fitResult, st []runSetup, start *methodfile.Method, rep
 				}
 			}
 			if !clear {
-				if top <= opt.OutlierT || math.Abs(cs[best].e) < floor {
+				maxE := 0.0
+				for _, c := range cs {
+					maxE = math.Max(maxE, math.Abs(c.e))
+				}
+				if top <= opt.OutlierT || maxE < floor {
 					continue
 				}
 				x := Suspect{Compound: f.Name, Studentized: cs[best].t}
@@ -404,7 +408,9 @@ func orderChecks(m *methodfile.Method, st []runSetup, runs *methodfile.Runs, rep
 // compounds of this fit (not held at the rule's ΔH, errors not large) when
 // there are at least 4 spanning 10 kJ/mol or more, else the rule's line is
 // used. A compound is flagged when its ΔS is off the line by more than
-// max(15 J/(mol·K), 4 × the others' scatter about it): a gross error that
+// max(15 J/(mol·K), 4 × the others' scatter about it) and by more than 3
+// standard errors of that distance (from the fit's ΔH, ΔS covariance): a
+// gross error that
 // the fit passed through (a misassigned peak in one of three runs moves
 // ΔS by tens of J/(mol·K) along the ΔH–ΔS valley).
 func trendWarnings(fits []fitResult) map[string]string {
@@ -450,7 +456,13 @@ func trendWarnings(fits []fitResult) map[string]string {
 		}
 		tol := math.Max(15, 4*scatter)
 		dev := f.DS - (a*f.DHkJ + b)
-		if math.Abs(dev) > tol {
+		// the fit's own uncertainty of the distance from the line (a poorly
+		// determined compound has its large ± warned instead)
+		sdDev := 0.0
+		if finite(f.StdErrDH) && finite(f.StdErrDS) && finite(f.CorrDHDS) {
+			sdDev = math.Sqrt(math.Max(0, f.StdErrDS*f.StdErrDS+a*a*f.StdErrDH*f.StdErrDH-2*a*f.CorrDHDS*f.StdErrDS*f.StdErrDH))
+		}
+		if math.Abs(dev) > tol && math.Abs(dev) > 3*sdDev {
 			out[f.Name] = fmt.Sprintf("%s: fitted ΔH %.2f kJ/mol, ΔS %.2f J/(mol·K) look implausible: ΔS is %+.0f J/(mol·K) off %s (ΔS ≈ %.3f ΔH %+.1f; flagged beyond ±%.0f J/(mol·K)); on one phase ΔH and ΔS of retention keep close to one line (enthalpy–entropy compensation): likely a misassigned or mistyped peak in one of its runs; check its peaks", f.Name, f.DHkJ, f.DS, dev, src, a, b, tol)
 		}
 	}

@@ -220,3 +220,45 @@ func TestHomologousRuleMessageMatchesValue(t *testing.T) {
 		t.Errorf("no homologous-rule warning for ethanol: %v", rep.Warnings)
 	}
 }
+
+// The new warnings must not cry wolf: clean runs (three scouts, 0.002 min
+// noise, parameters not in the repository) give no suspect, no outlier and
+// no plausibility warning; the same runs with a 0.3 min error planted in
+// one run of one compound are always reported (suspect, outlier or
+// implausible), and a run left out is always the planted one.
+func TestTrustRulesNoFalseAlarms(t *testing.T) {
+	seeds := 6
+	if testing.Short() {
+		seeds = 2
+	}
+	for seed := 0; seed < seeds; seed++ {
+		truth := hiddenTruth(t, uint64(200+seed))
+		text := runsText(t, truth, threeScouts(), 0.002, uint64(300+seed), nil)
+		rep := fitText(t, demo(t), text, Options{})
+		if len(rep.Suspects) > 0 || len(rep.Outliers) > 0 || anyWarning(rep, "implausible") {
+			t.Errorf("seed %d: false alarm: %+v %+v %v", seed, rep.Suspects, rep.Outliers, rep.Warnings)
+		}
+		run := seed % 3
+		text = runsText(t, truth, threeScouts(), 0.002, uint64(300+seed), func(i int, times map[string]float64) {
+			if i == run {
+				times["octanal"] += 0.3
+			}
+		})
+		rep = fitText(t, demo(t), text, Options{})
+		got := anyWarning(rep, "octanal: fitted ΔH")
+		for _, s := range rep.Suspects {
+			got = got || s.Compound == "octanal"
+		}
+		for _, o := range rep.Outliers {
+			if o.Compound == "octanal" {
+				got = true
+				if o.Run != threeScouts()[run].name {
+					t.Errorf("seed %d: good run %q dropped (planted in %q)", seed, o.Run, threeScouts()[run].name)
+				}
+			}
+		}
+		if !got {
+			t.Errorf("seed %d: planted error in run %d not reported: %v", seed, run, rep.Warnings)
+		}
+	}
+}

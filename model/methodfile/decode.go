@@ -233,7 +233,11 @@ func decodeStrict(name string, data []byte, target any) (Locations, error) {
 	if errors.As(err, &strict) && len(strict.Errors) > 0 {
 		de := strict.Errors[0]
 		line, _ := de.Position()
-		return nil, &Error{File: name, Line: line, Key: strings.Join(de.Key(), "."), Msg: "unknown key"}
+		msg := "unknown key"
+		if hint := suggestKey(target, de.Key()); hint != "" {
+			msg += " (did you mean " + hint + "?)"
+		}
+		return nil, &Error{File: name, Line: line, Key: canonicalKey(data, line, de.Key()), Msg: msg}
 	}
 	var de *toml.DecodeError
 	if errors.As(err, &de) {

@@ -202,3 +202,56 @@ func checkValue(name string, t reflect.Type, path string, v *unstable.Node, line
 	}
 	return nil
 }
+
+// suggestKey is the format's name closest to an unknown key (path: the
+// decoder's key parts, the unknown one last) within two edits, or "".
+func suggestKey(target any, path []string) string {
+	if len(path) == 0 {
+		return ""
+	}
+	t := reflect.TypeOf(target)
+	for _, part := range path[:len(path)-1] {
+		nt, _ := field(elem(t, true), part)
+		if nt == nil {
+			return ""
+		}
+		t = nt
+	}
+	t = elem(t, true)
+	if t == nil || t.Kind() != reflect.Struct {
+		return ""
+	}
+	key := strings.ToLower(path[len(path)-1])
+	best, bestD := "", 3
+	for i := 0; i < t.NumField(); i++ {
+		tag, _, _ := strings.Cut(t.Field(i).Tag.Get("toml"), ",")
+		if tag == "" || tag == "-" {
+			continue
+		}
+		if d := editDistance(key, strings.ToLower(tag)); d < bestD {
+			best, bestD = tag, d
+		}
+	}
+	return best
+}
+
+// editDistance is the Levenshtein distance of a and b (bytes).
+func editDistance(a, b string) int {
+	prev := make([]int, len(b)+1)
+	cur := make([]int, len(b)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(a); i++ {
+		cur[0] = i
+		for j := 1; j <= len(b); j++ {
+			c := prev[j-1]
+			if a[i-1] != b[j-1] {
+				c++
+			}
+			cur[j] = min(c, prev[j]+1, cur[j-1]+1)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(b)]
+}

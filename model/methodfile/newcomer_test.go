@@ -134,3 +134,19 @@ func TestRunsWrongTypePlainWords(t *testing.T) {
 		}
 	}
 }
+
+// An unknown key close to a name of the format gets the name suggested.
+func TestUnknownKeySuggestion(t *testing.T) {
+	base, err := os.ReadFile(demoPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(base), "film_um = 0.25", "flim_um = 0.25", 1)
+	if _, err := Parse("m.toml", []byte(text)); err == nil || err.Error() != "m.toml:9: column.flim_um: unknown key (did you mean film_um?)" {
+		t.Errorf("typo: %v", err)
+	}
+	text = strings.Replace(string(base), "film_um = 0.25", "film_um = 0.25\ncolour = 3", 1)
+	if _, err := Parse("m.toml", []byte(text)); err == nil || strings.Contains(err.Error(), "did you mean") {
+		t.Errorf("far from any name: %v", err)
+	}
+}
