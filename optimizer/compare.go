@@ -96,7 +96,6 @@ func runCandidate(ctx context.Context, c Candidate, s Settings) Outcome {
 		o.Err = err
 		return o
 	}
-	sys := p.System
 	r, err := Optimize(ctx, p, s)
 	if err != nil {
 		o.Err = err
@@ -108,7 +107,7 @@ func runCandidate(ctx context.Context, c Candidate, s Settings) Outcome {
 		o.Time = r.Sim.CycleTime
 	}
 	o.MaxTemp = r.Program.MaxTemp()
-	o.InletStart = sys.Cond.InletGauge(r.Program.Initial)
-	o.InletEnd = sys.Cond.InletGauge(o.MaxTemp)
+	o.InletStart = r.System.Cond.InletGauge(r.Program.Initial)
+	o.InletEnd = r.System.Cond.InletGauge(o.MaxTemp)
 	return o
 }

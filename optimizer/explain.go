@@ -11,8 +11,7 @@ import (
 // explain says in the trade's words why the target is not met, from the
 // worst limiting pair's selectivity over the allowed temperature range and
 // the plates it would need.
-func explain(p *Problem, res *model.Result, limiting []int) string {
-	sys := p.System
+func explain(p *Problem, res *model.Result, limiting []int, sys *model.System) string {
 	if res.TargetsNotEluted > 0 {
 		var names []string
 		for _, pk := range res.Peaks {
@@ -21,7 +20,7 @@ func explain(p *Problem, res *model.Result, limiting []int) string {
 			}
 		}
 		return fmt.Sprintf("%s do(es) not elute within the limits: at the column maximum %.0f °C and the longest hold %.1f min it stays on the column; a less retentive column (thinner film, shorter column, another phase) is needed",
-			strings.Join(names, ", "), p.Limits.MaxTemp-model.ZeroCelsius, p.Limits.MaxHold/60)
+			strings.Join(names, ", "), p.maxFinal()-model.ZeroCelsius, p.Limits.MaxHold/60)
 	}
 	if len(limiting) == 0 {
 		return "the best program found breaks a limit (hold length or inlet pressure); relax the limits"
@@ -30,7 +29,7 @@ func explain(p *Problem, res *model.Result, limiting []int) string {
 	a, b := &sys.Compounds[pr.First], &sys.Compounds[pr.Second]
 	// selectivity α = K_b/K_a over the allowed oven range
 	bestAlpha, bestT := 1.0, p.Limits.OvenMin
-	for t := p.Limits.OvenMin; t <= p.Limits.MaxTemp; t += 1 {
+	for t := p.Limits.OvenMin; t <= p.maxFinal(); t += 1 {
 		al := math.Exp(math.Abs(b.LnK(t) - a.LnK(t)))
 		if al > bestAlpha {
 			bestAlpha, bestT = al, t
@@ -51,18 +50,4 @@ func explain(p *Problem, res *model.Result, limiting []int) string {
 	}
 	return fmt.Sprintf("%s reach only Rs %.2f within the limits; their selectivity is best (α = %.4f) near %.0f °C: a lower start temperature, slower ramps or longer holds than the limits allow, or a longer column, would be needed",
 		name, pr.Resolution, bestAlpha, bestT-model.ZeroCelsius)
-}
-
-// explainLate names the compounds that do not elute within the hold limit at
-// the highest temperature the program reaches.
-func explainLate(p *Problem, res, untrimmed *model.Result) string {
-	var names []string
-	for _, pk := range res.Peaks {
-		if !pk.Eluted {
-			names = append(names, p.System.Compounds[pk.Compound].Name)
-		}
-	}
-	last := untrimmed.Peaks[len(untrimmed.Peaks)-1]
-	return fmt.Sprintf("%s would elute only after %.1f min (at %.0f °C): beyond the longest hold (%.1f min) at the column maximum %.0f °C; such a compound needs a less retentive column (thinner film, shorter column, another phase) or a bake-out step",
-		strings.Join(names, ", "), last.RetentionTime/60, last.ElutionTemp-model.ZeroCelsius, p.Limits.MaxHold/60, p.Limits.MaxTemp-model.ZeroCelsius)
 }

@@ -20,40 +20,8 @@ import (
 	"gonum.org/v1/gonum/optimize"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/robust"
 )
-
-// Objective is what the optimizer minimises among programs that meet the target.
-type Objective = model.Objective
-
-// The objectives.
-const (
-	RunTime   = model.RunTime
-	CycleTime = model.CycleTime
-)
-
-// Limits bound the programs the optimizer may return (SI units: K, K/s, s, Pa).
-type Limits struct {
-	OvenMin  float64 // lowest initial temperature
-	MaxTemp  float64 // column maximum
-	MaxRate  float64 // highest ramp rate
-	MaxHold  float64 // longest hold
-	MinRate  float64 // lowest ramp rate; zero means 0.1 °C/min
-	MaxInlet float64 // highest inlet gauge pressure; zero means no limit
-}
-
-// Problem is one optimization.
-type Problem struct {
-	System *model.System
-	// Start is the method's current program: the values of locked variables
-	// and one of the starting points.
-	Start         model.Program
-	Ramps         int // ramps the optimizer may use, 1..5
-	Lock          []model.ProgramValue
-	Limits        Limits
-	MinResolution float64
-	Objective     Objective
-	Tail          float64 // s kept after the last peak
-}
 
 // Progress is a report of the search so far.
 type Progress struct {
@@ -61,17 +29,23 @@ type Progress struct {
 	Feasible      bool
 	Objective     float64 // s, of the best program so far
 	MinResolution float64
-	Program       model.Program // best so far, trimmed; a copy
+	Program       model.Program // best so far as it would be saved; a copy
+	Carrier       CarrierSetting
 	Elapsed       time.Duration
 }
 
 // Settings tune the search. The zero value means the defaults.
 type Settings struct {
 	Seed        uint64 // default 1
-	Starts      int    // seeded starting points per stage; default 24
-	Evaluations int    // budget per start; default 2500
-	Restarts    int    // Nelder–Mead restarts from the best point; default 3
+	Starts      int    // random starting points per stage (besides the seeds); default 10
+	Evaluations int    // budget per start; default 2000
+	Restarts    int    // Nelder–Mead restarts from the best point; default 2
 	Workers     int    // parallel starts; default runtime.GOMAXPROCS(0)
+	// CarrierProbes is how many flow (or pressure) settings the carrier
+	// search tries besides the method's own; default 8.
+	CarrierProbes int
+	// PolishEvaluations bounds the keypad-grid search at the end; default 800.
+	PolishEvaluations int
 	// Progress, when set, is called from one goroutine about every
 	// ProgressInterval (default 100 ms) and once at the end.
 	Progress         func(Progress)
@@ -83,20 +57,41 @@ type Status int
 
 // The statuses.
 const (
-	// Met: the returned program meets the target resolution.
+	// Met: the returned program meets the target resolution (and the
+	// robust margin) exactly as saved.
 	Met Status = iota
 	// NotMet: no program within the limits was found that meets the target;
-	// the returned program maximises the minimum resolution.
+	// the returned program is the best found.
 	NotMet
 )
 
+// CarrierSetting is the carrier flow (constant flow, mL/min at 25 °C and
+// 101.325 kPa) or inlet gauge pressure (constant pressure, kPa) of a
+// result, on the keypad steps.
+type CarrierSetting struct {
+	Mode      model.PressureMode
+	FlowMLMin float64
+	InletKPa  float64
+}
+
 // Result is the outcome of a search.
 type Result struct {
-	Status    Status
-	Canceled  bool          // the context ended the search early
-	Program   model.Program // trimmed to end at the run time
+	Status   Status
+	Canceled bool // the context ended the search early
+	// Offer is true when the program should be offered to the user: the
+	// target is met and, after an early stop, the program also beats the
+	// method's current one.
+	Offer bool
+	// Oven is the program exactly as saved, in the file's units, every
+	// value on the keypad steps (locked values as the method has them);
+	// Program is the same in SI units.
+	Oven      Oven
+	Program   model.Program
+	Carrier   CarrierSetting
+	System    *model.System // of the chosen carrier setting
 	Objective Objective
-	Sim       model.Result // a fresh simulation of Program
+	Sim       model.Result // a fresh simulation of Program on System
+	Robust    RobustReport
 	// Limiting are the counted pairs (indices into Sim.Pairs) below the
 	// target, worst first; empty when Met.
 	Limiting    []int
@@ -108,19 +103,14 @@ type Result struct {
 // Feasible reports whether the target was met.
 func (r *Result) Feasible() bool { return r.Status == Met }
 
-const (
-	infeasibleBase = 1e7 // added to the objective of a program that fails the target
-	maxRunTime     = 1e5 // s; a slower program counts as failing
-	tempGap        = 1.0 // K between consecutive finals the mapping keeps
-	// resolutionMargin is kept above the target so that rounding the
-	// program to what an oven's keypad takes (0.01 °C, 0.001 min) cannot
-	// drop a pair below it.
-	resolutionMargin = 0.002
-)
-
-// Optimize runs the search. It returns an error only for an impossible
-// problem (bad limits, a lock that names a missing ramp); a target that
-// cannot be reached is Status NotMet with an explanation.
+// Optimize runs the search: Nelder–Mead from seeded starts over programs of
+// 1..Ramps ramps at the method's carrier setting, then a search over the
+// carrier setting (golden-section on a log scale, each probe a short
+// program search seeded from the best so far), then a coordinate search on
+// the keypad grid so that the saved program meets the target as saved. It
+// returns an error only for an impossible problem (bad limits, a lock that
+// names a missing ramp); a target that cannot be reached is Status NotMet
+// with an explanation.
 func Optimize(ctx context.Context, p Problem, s Settings) (*Result, error) {
 	begin := time.Now()
 	if err := p.check(); err != nil {
@@ -128,96 +118,79 @@ func Optimize(ctx context.Context, p Problem, s Settings) (*Result, error) {
 	}
 	s = s.withDefaults()
 	sh := newShared(p, s, begin)
+	sh.ctx = ctx
 	stopProgress := sh.startProgress(ctx)
+	defer stopProgress()
 
-	var best []float64
-	var bestF = math.Inf(1)
-	var bestSpace *space
-	var bestProg model.Program
-	// Stages: with no ramp-specific locks, 1..Ramps ramps, each seeded with
-	// the previous stage's optimum, so more ramps are never worse.
+	start, err := sh.startRig()
+	if err != nil {
+		return nil, err
+	}
+	best, stages := sh.programStages(ctx, start)
+	if p.varyCarrier() && ctx.Err() == nil {
+		best = sh.carrierSearch(ctx, best)
+	}
+	// end on the keypad grid from the best program and from each ramp
+	// stage's best, so that more ramps are never worse on the grid either
+	oven, f := sh.polish(ctx, best)
+	rg := best.rg
+	for _, c := range stages {
+		if ctx.Err() != nil {
+			break // stopped: return promptly with what there is
+		}
+		if c.f >= infeasibleBase && f < infeasibleBase {
+			continue
+		}
+		if o2, f2 := sh.polish(ctx, c); f2 < f {
+			oven, f, rg = o2, f2, c.rg
+		}
+	}
+	stopProgress()
+	return sh.finish(ctx, rg, oven)
+}
+
+// candidate is the best point of a search on one rig.
+type candidate struct {
+	rg   *rig
+	sp   *space
+	x    []float64
+	f    float64
+	prog model.Program // untrimmed
+}
+
+// programStages: with no ramp-specific locks, 1..Ramps ramps, each seeded
+// with the previous stage's optimum, so more ramps are never worse.
+func (sh *shared) programStages(ctx context.Context, rg *rig) (candidate, []candidate) {
+	p := &sh.p
+	best := candidate{f: math.Inf(1)}
+	var stages []candidate
 	first := p.Ramps
 	if !p.rampLocks() {
 		first = 1
 	}
 	for n := first; n <= p.Ramps; n++ {
-		sp := newSpace(p, n)
+		sp := newSpace(*p, n)
 		var seeds [][]float64
-		if bestSpace != nil {
-			seeds = append(seeds, sp.embed(bestProg))
+		if best.sp != nil {
+			seeds = append(seeds, sp.embed(best.prog))
 		}
-		if len(p.Start.Ramps) >= 1 || n >= 1 {
-			if x, ok := sp.fromProgram(p.Start); ok {
-				seeds = append(seeds, x)
-			}
+		if x, ok := sp.fromProgram(p.Start); ok {
+			seeds = append(seeds, x)
 		}
-		x, f := sh.stage(ctx, sp, seeds, uint64(n))
-		if f < bestF || bestSpace == nil {
-			best, bestF, bestSpace = x, f, sp
-			bestProg = sp.program(x)
+		if n >= 2 {
+			seeds = append(seeds, sp.plateauSeeds()...)
+		}
+		x, f := sh.stage(ctx, rg, sp, seeds, sh.s.Starts, sh.s.Evaluations, sh.s.Restarts, uint64(n))
+		c := candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
+		stages = append(stages, c)
+		if f < best.f || best.sp == nil {
+			best = c
 		}
 		if ctx.Err() != nil {
 			break
 		}
 	}
-	stopProgress()
-	return sh.finish(ctx, bestSpace, best)
-}
-
-func (p *Problem) check() error {
-	if p.System == nil {
-		return errors.New("optimizer: no system")
-	}
-	if p.Ramps < 1 || p.Ramps > 5 {
-		return fmt.Errorf("optimizer: ramps must be 1..5, got %d", p.Ramps)
-	}
-	l := p.Limits
-	if !(l.MaxTemp > l.OvenMin) {
-		return fmt.Errorf("optimizer: the lowest start temperature %.1f °C is not below the column maximum %.1f °C", l.OvenMin-model.ZeroCelsius, l.MaxTemp-model.ZeroCelsius)
-	}
-	if !(l.MaxRate > 0) || l.MaxHold < 0 {
-		return errors.New("optimizer: ramp-rate limit must be positive and hold limit not negative")
-	}
-	if !(p.MinResolution > 0) {
-		return errors.New("optimizer: target resolution must be positive")
-	}
-	if p.Limits.MinRate == 0 {
-		p.Limits.MinRate = 0.1 / 60
-	}
-	if p.Limits.MinRate > p.Limits.MaxRate {
-		p.Limits.MinRate = p.Limits.MaxRate / 10
-	}
-	for _, name := range p.Lock {
-		n := name.Ramp
-		if !name.Valid(model.MaxRampNumber) {
-			return fmt.Errorf("optimizer: %s is not a program value to lock", name)
-		}
-		if n > 0 && n > len(p.Start.Ramps) {
-			return fmt.Errorf("optimizer: %s is locked but the method's program has only %d ramps", name, len(p.Start.Ramps))
-		}
-		if n > p.Ramps {
-			return fmt.Errorf("optimizer: %s is locked but the goal allows only %d ramps", name, p.Ramps)
-		}
-	}
-	return nil
-}
-
-func (p *Problem) rampLocks() bool {
-	for _, name := range p.Lock {
-		if name.Kind.PerRamp() {
-			return true
-		}
-	}
-	return false
-}
-
-func (p *Problem) locked(v model.ProgramValue) bool {
-	for _, l := range p.Lock {
-		if l == v {
-			return true
-		}
-	}
-	return false
+	return best, stages
 }
 
 func (s Settings) withDefaults() Settings {
@@ -225,16 +198,22 @@ func (s Settings) withDefaults() Settings {
 		s.Seed = 1
 	}
 	if s.Starts <= 0 {
-		s.Starts = 24
+		s.Starts = 10
 	}
 	if s.Evaluations <= 0 {
-		s.Evaluations = 2500
+		s.Evaluations = 2000
 	}
 	if s.Restarts <= 0 {
-		s.Restarts = 3
+		s.Restarts = 2
 	}
 	if s.Workers <= 0 {
 		s.Workers = runtime.GOMAXPROCS(0)
+	}
+	if s.CarrierProbes <= 0 {
+		s.CarrierProbes = 8
+	}
+	if s.PolishEvaluations <= 0 {
+		s.PolishEvaluations = 800
 	}
 	if s.ProgressInterval <= 0 {
 		s.ProgressInterval = 100 * time.Millisecond
@@ -243,28 +222,41 @@ func (s Settings) withDefaults() Settings {
 }
 
 // shared is the state of one Optimize call that the parallel starts share:
-// counters and the best program so far, behind a mutex.
+// counters, the carrier settings built so far and the best program so far.
 type shared struct {
 	p     Problem
 	s     Settings
 	begin time.Time
 	evals atomic.Int64
 
+	rigMu sync.Mutex
+	rigs  map[float64]*rig
+	// ctx is the Optimize call's context (stopped reports it ended)
+	ctx context.Context
+	// approx ≥ 0 while the carrier search screens the robust margin by the
+	// loss measured at the method's own setting (see evaluator.approx)
+	approx float64
+
 	mu      sync.Mutex
 	bestF   float64
 	bestRs  float64
 	bestP   model.Program
+	bestC   CarrierSetting
 	hasBest bool
 }
 
 func newShared(p Problem, s Settings, begin time.Time) *shared {
-	return &shared{p: p, s: s, begin: begin, bestF: math.Inf(1)}
+	return &shared{p: p, s: s, begin: begin, bestF: math.Inf(1), rigs: map[float64]*rig{}, approx: -1}
 }
 
-func (sh *shared) offer(f, rs float64, prog model.Program) {
+func (sh *shared) stopped() bool { return sh.ctx != nil && sh.ctx.Err() != nil }
+
+func (sh *shared) offer(f, rs float64, prog model.Program, rg *rig) {
 	sh.mu.Lock()
 	if f < sh.bestF {
-		sh.bestF, sh.bestRs, sh.bestP, sh.hasBest = f, rs, prog.Clone(), true
+		sh.bestF, sh.bestRs, sh.hasBest = f, rs, true
+		sh.bestP = prog.Clone()
+		sh.bestC = sh.setting(rg.value)
 	}
 	sh.mu.Unlock()
 }
@@ -280,6 +272,7 @@ func (sh *shared) report() {
 		Objective:     sh.bestF,
 		MinResolution: sh.bestRs,
 		Program:       sh.bestP.Clone(),
+		Carrier:       sh.bestC,
 		Elapsed:       time.Since(sh.begin),
 	}
 	has := sh.hasBest
@@ -295,6 +288,7 @@ func (sh *shared) startProgress(ctx context.Context) func() {
 	}
 	done := make(chan struct{})
 	var wg sync.WaitGroup
+	var once sync.Once
 	wg.Add(1)
 	go func() {
 		defer wg.Done()
@@ -311,87 +305,15 @@ func (sh *shared) startProgress(ctx context.Context) func() {
 			}
 		}
 	}()
-	return func() { close(done); wg.Wait() }
-}
-
-// evaluator scores points of a space; one per goroutine (it owns a Result).
-type evaluator struct {
-	sh  *shared
-	sp  *space
-	res model.Result
-	// best point this evaluator has seen
-	bestX []float64
-	bestF float64
-}
-
-func (e *evaluator) f(x []float64) float64 {
-	e.sh.evals.Add(1)
-	prog := e.sp.programInto(x)
-	f, rs := e.sh.score(prog, &e.res)
-	if f < e.bestF {
-		e.bestF = f
-		e.bestX = append(e.bestX[:0], x...)
-		e.sh.offer(f, rs, prog.TrimTo(e.res.RunTime))
-	}
-	return f
-}
-
-// score is the objective of a program: its run or cycle time in s when it
-// meets every limit and the target, otherwise infeasibleBase plus a measure
-// of how far it misses (so that the search first climbs toward the target).
-func (sh *shared) score(prog model.Program, res *model.Result) (f, rs float64) {
-	p := &sh.p
-	if err := p.System.SimulateTrimmed(prog, p.Tail, res); err != nil {
-		return 2 * infeasibleBase, math.NaN()
-	}
-	t := res.RunTime
-	if p.Objective == CycleTime {
-		t = res.CycleTime
-	}
-	rs = res.MinResolution
-	if math.IsNaN(rs) {
-		rs = math.Inf(1) // no counted pair: nothing to resolve
-	}
-	miss := 0.0
-	if target := p.MinResolution + resolutionMargin; rs < target {
-		miss += target - rs
-	}
-	if res.TargetsNotEluted > 0 || t > maxRunTime {
-		miss += 10
-	}
-	// the final hold the trim needs must stay within the hold limit
-	if over := finalHold(prog, res.RunTime) - p.Limits.MaxHold; over > 1e-9 {
-		miss += 1 + over/60
-	}
-	if p.Limits.MaxInlet > 0 {
-		if over := p.System.Cond.InletGauge(prog.TempAt(res.RunTime)) - p.Limits.MaxInlet; over > 0 && p.System.Cond.Carrier.Mode == model.ConstantFlow {
-			miss += 1 + over/1e5
-		}
-	}
-	if miss > 0 {
-		return infeasibleBase + 1e5*miss + math.Min(t, maxRunTime)*1e-3, res.MinResolution
-	}
-	return t, res.MinResolution
-}
-
-// finalHold is the length of the last hold of prog trimmed to end.
-func finalHold(prog model.Program, end float64) float64 {
-	q := prog.TrimTo(end)
-	if len(q.Ramps) == 0 {
-		return 0 // the initial hold is bounded by the mapping; a cut ramp holds nothing
-	}
-	if end > prog.RunTime() {
-		return q.Ramps[len(q.Ramps)-1].Hold
-	}
-	return 0
+	return func() { once.Do(func() { close(done); wg.Wait() }) }
 }
 
 // stage runs the seeded starts of one space in parallel, then restarts from
 // the best point; it returns the best point and its score.
-func (sh *shared) stage(ctx context.Context, sp *space, seeds [][]float64, stage uint64) ([]float64, float64) {
-	rng := rand.New(rand.NewPCG(sh.s.Seed, stage))
+func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float64, nStarts, evals, restarts int, stage uint64) ([]float64, float64) {
+	rng := rand.New(rand.NewPCG(sh.s.Seed, stage^uint64(math.Float64bits(rg.value))))
 	starts := append([][]float64(nil), seeds...)
-	for len(starts) < sh.s.Starts+len(seeds) {
+	for len(starts) < nStarts+len(seeds) {
 		x := make([]float64, sp.dim)
 		for i := range x {
 			x[i] = rng.Float64()
@@ -410,7 +332,7 @@ func (sh *shared) stage(ctx context.Context, sp *space, seeds [][]float64, stage
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				x, f := sh.run(ctx, sp, starts[i], 0.25)
+				x, f := sh.run(ctx, rg, sp, starts[i], 0.25, evals)
 				out[i] = outcome{x, f}
 			}
 		}()
@@ -433,8 +355,8 @@ func (sh *shared) stage(ctx context.Context, sp *space, seeds [][]float64, stage
 		return starts[0], math.Inf(1)
 	}
 	x, f := out[bi].x, out[bi].f
-	for r := 0; r < sh.s.Restarts && ctx.Err() == nil; r++ {
-		x2, f2 := sh.run(ctx, sp, x, 0.05/float64(r+1))
+	for r := 0; r < restarts && ctx.Err() == nil; r++ {
+		x2, f2 := sh.run(ctx, rg, sp, x, 0.05/float64(r+1), evals)
 		if f2 < f {
 			x, f = x2, f2
 		}
@@ -443,8 +365,9 @@ func (sh *shared) stage(ctx context.Context, sp *space, seeds [][]float64, stage
 }
 
 // run is one Nelder–Mead search from x0 with the given simplex size.
-func (sh *shared) run(ctx context.Context, sp *space, x0 []float64, size float64) ([]float64, float64) {
-	ev := &evaluator{sh: sh, sp: sp.clone(), bestF: math.Inf(1)}
+func (sh *shared) run(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) ([]float64, float64) {
+	ev := newEvaluator(sh, rg, sp)
+	ev.approx = sh.approx
 	if sp.dim == 0 {
 		return x0, ev.f(x0)
 	}
@@ -458,7 +381,7 @@ func (sh *shared) run(ctx context.Context, sp *space, x0 []float64, size float64
 		},
 	}
 	settings := &optimize.Settings{
-		FuncEvaluations: sh.s.Evaluations,
+		FuncEvaluations: evals,
 		Converger:       &optimize.FunctionConverge{Absolute: 1e-4, Relative: 1e-9, Iterations: 60},
 		Concurrent:      1,
 	}
@@ -469,44 +392,67 @@ func (sh *shared) run(ctx context.Context, sp *space, x0 []float64, size float64
 	return ev.bestX, ev.bestF
 }
 
-// finish simulates the best program afresh, trims it, and explains a miss.
-func (sh *shared) finish(ctx context.Context, sp *space, x []float64) (*Result, error) {
+// finish simulates the saved program afresh, reports the robust margin and
+// explains a miss.
+func (sh *shared) finish(ctx context.Context, rg *rig, oven Oven) (*Result, error) {
 	p := &sh.p
-	r := &Result{Objective: p.Objective, Canceled: ctx.Err() != nil}
-	prog := sp.program(x)
-	var tmp model.Result
-	if err := p.System.SimulateTrimmed(prog, p.Tail, &tmp); err != nil {
-		return nil, fmt.Errorf("optimizer: best program does not simulate: %v", err)
+	r := &Result{Objective: p.Objective, Canceled: ctx.Err() != nil, System: rg.sys, Carrier: sh.setting(rg.value)}
+	ev := newEvaluator(sh, rg, nil)
+	f, saved, _ := ev.scoreOven(oven)
+	r.Oven = saved
+	r.Program = saved.Model()
+	if err := rg.sys.Simulate(r.Program, &r.Sim); err != nil {
+		return nil, fmt.Errorf("optimizer: the saved program does not simulate: %v", err)
 	}
-	r.Program = prog.TrimTo(tmp.RunTime).Simplify()
-	// never return a program beyond the limits: a final hold the trim
-	// stretched past the hold limit is cut back (late peaks then show as
-	// not eluted, and the result says so)
-	holdCut := false
-	if n := len(r.Program.Ramps); n > 0 && r.Program.Ramps[n-1].Hold > p.Limits.MaxHold {
-		r.Program.Ramps[n-1].Hold = p.Limits.MaxHold
-		holdCut = true
-	} else if n == 0 && r.Program.InitialHold > p.Limits.MaxHold && !p.locked(model.ProgramValue{Kind: model.InitialHold}) {
-		r.Program.InitialHold = p.Limits.MaxHold
-		holdCut = true
+	unchecked := RobustReport{On: true, Nominal: r.Sim.MinResolution, Worst: math.NaN(), LowZ: math.NaN(), LowPair: -1, Margin: math.NaN()}
+	if p.Robust.On() && sh.stopped() && !rg.set.Built() {
+		r.Robust = unchecked // stopped before the tolerances could be checked
+	} else if err := p.robust(rg, r.Program, &r.Sim, &ev.rsc, math.Inf(-1), &r.Robust); errors.Is(err, robust.ErrStopped) {
+		r.Robust = unchecked
+	} else if err != nil {
+		return nil, fmt.Errorf("optimizer: robust check: %v", err)
 	}
-	if err := p.System.Simulate(r.Program, &r.Sim); err != nil {
-		return nil, fmt.Errorf("optimizer: trimmed program does not simulate: %v", err)
-	}
-	f, _ := sh.score(prog, &tmp)
 	r.Status = Met
-	if f >= infeasibleBase || holdCut {
+	if f >= infeasibleBase {
 		r.Status = NotMet
 		r.Limiting = limitingPairs(&r.Sim, p.MinResolution)
-		r.Explanation = explain(p, &r.Sim, r.Limiting)
-		if holdCut {
-			r.Explanation = explainLate(p, &r.Sim, &tmp)
+		r.Explanation = sh.explainMiss(ev, r)
+	}
+	r.Offer = r.Status == Met
+	if r.Canceled {
+		if r.Status != Met {
+			r.Explanation = "stopped before a program meeting the target was found; " + r.Explanation
+		} else if better, ok := sh.beatsStart(f); !better {
+			r.Offer = false
+			if ok {
+				r.Explanation = "stopped early: no program faster than the current one was found yet"
+			}
 		}
 	}
 	r.Evaluations = int(sh.evals.Load())
 	r.Elapsed = time.Since(sh.begin)
 	sh.report()
 	return r, nil
+}
+
+// beatsStart reports whether objective f beats the method's own program
+// (as it is, on the method's carrier setting); ok is false when the method's
+// program does not simulate or does not meet the target (then any program
+// that does is better).
+func (sh *shared) beatsStart(f float64) (better, ok bool) {
+	p := &sh.p
+	var res model.Result
+	if err := p.System.Simulate(p.Start, &res); err != nil {
+		return true, false
+	}
+	if res.Critical >= 0 && res.MinResolution < p.MinResolution {
+		return true, false
+	}
+	t := res.RunTime
+	if p.Objective == CycleTime {
+		t = res.CycleTime
+	}
+	return f < t, true
 }
 
 // limitingPairs are the counted pairs below the target, worst first.

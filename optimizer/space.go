@@ -113,8 +113,7 @@ func (sp *space) startRamp(r int) model.Ramp {
 
 // bounds of the final temperature of ramp r after prev.
 func (sp *space) finalRange(r int, prev float64) (lo, hi float64) {
-	l := sp.p.Limits
-	return prev + tempGap, l.MaxTemp - float64(sp.n-1-r)*tempGap
+	return prev + tempGap, sp.p.maxFinal() - float64(sp.n-1-r)*tempGap
 }
 
 func (sp *space) rateOf(c float64) float64 {
@@ -128,13 +127,16 @@ func (sp *space) programInto(x []float64) model.Program {
 	l := sp.p.Limits
 	pr := &sp.prog
 	if c, ok := sp.frac(x, varInitial, 0); ok {
-		hi := l.MaxTemp - float64(sp.n)*tempGap
+		hi := sp.p.maxFinal() - float64(sp.n)*tempGap
 		pr.Initial = l.OvenMin + (hi-l.OvenMin)*c
 	} else {
 		pr.Initial = sp.p.Start.Initial
 	}
 	if c, ok := sp.frac(x, varInitialHold, 0); ok {
 		pr.InitialHold = l.MaxHold * c
+		if pr.Initial > l.MaxIsothermal {
+			pr.InitialHold = 0 // no hold above the isothermal limit
+		}
 	} else {
 		pr.InitialHold = sp.p.Start.InitialHold
 	}
@@ -158,8 +160,17 @@ func (sp *space) programInto(x []float64) model.Program {
 		}
 		if c, ok := sp.frac(x, varHold, r); ok {
 			rp.Hold = l.MaxHold * c
+			if rp.Final > l.MaxIsothermal {
+				rp.Hold = 0
+			}
 		} else {
 			rp.Hold = st.Hold
+		}
+		// a ramp reaching into a rate band heats no faster than the band allows
+		if sp.at[slot(varRate, r)] >= 0 {
+			if m := sp.p.maxRateTo(rp.Final); rp.Rate > m {
+				rp.Rate = m
+			}
 		}
 		prev = rp.Final
 	}
@@ -181,7 +192,7 @@ func (sp *space) invert(q model.Program) []float64 {
 			x[i] = clamp01(c)
 		}
 	}
-	hi := l.MaxTemp - float64(sp.n)*tempGap
+	hi := sp.p.maxFinal() - float64(sp.n)*tempGap
 	set(varInitial, 0, (q.Initial-l.OvenMin)/(hi-l.OvenMin))
 	if l.MaxHold > 0 {
 		set(varInitialHold, 0, q.InitialHold/l.MaxHold)
@@ -231,7 +242,7 @@ func withRamps(q model.Program, n int, tmax float64) model.Program {
 
 // embed is the point of a program of fewer ramps in this space.
 func (sp *space) embed(q model.Program) []float64 {
-	return sp.invert(withRamps(q, sp.n, sp.p.Limits.MaxTemp))
+	return sp.invert(withRamps(q, sp.n, sp.p.maxFinal()))
 }
 
 // fromProgram is the point of the method's own program.
@@ -240,4 +251,40 @@ func (sp *space) fromProgram(q model.Program) ([]float64, bool) {
 		return nil, false
 	}
 	return sp.embed(q), true
+}
+
+// plateauSeeds are starting points of the shape a chromatographer tries
+// for a hard pair: start at a fraction c0 of the start range, jump at the
+// fastest rate to a plateau (fraction f of the first final's range), hold
+// there (fraction h of the hold limit), then heat at the fastest rate to the
+// top. Values the space does not vary are left to the mapping.
+func (sp *space) plateauSeeds() [][]float64 {
+	if sp.n < 1 {
+		return nil
+	}
+	var out [][]float64
+	for _, c0 := range []float64{0, 0.1} {
+		for _, f := range []float64{0.05, 0.12, 0.2, 0.3} {
+			for _, h := range []float64{0.2, 0.6} {
+				x := make([]float64, sp.dim)
+				set := func(kind model.ValueKind, ramp int, v float64) {
+					if i := sp.at[slot(kind, ramp)]; i >= 0 {
+						x[i] = v
+					}
+				}
+				set(varInitial, 0, c0)
+				set(varInitialHold, 0, 0.1)
+				set(varRate, 0, 1)
+				set(varFinal, 0, f)
+				set(varHold, 0, h)
+				for r := 1; r < sp.n; r++ {
+					set(varRate, r, 1)
+					set(varFinal, r, 1)
+					set(varHold, r, 0)
+				}
+				out = append(out, x)
+			}
+		}
+	}
+	return out
 }

@@ -716,7 +716,8 @@ func chartRows(base int) int {
 	if base < 20 {
 		h-- // a small terminal: the row goes to the peak table
 	}
-	return max(7, h)
+	// the lower pane keeps its rows even when the lines above wrap a lot
+	return max(3, min(max(7, h), base-minLowerRows))
 }
 
 // layout gives every child its size (the resize fan-out).

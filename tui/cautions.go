@@ -80,7 +80,7 @@ func (d *cautionsDialog) build() {
 		body = append(body, st.Good.Render(" no cautions for this method and program"))
 	}
 	for _, c := range d.sh.cautions {
-		for i, l := range wrap("   "+c, d.w) {
+		for i, l := range wrap("   "+c, d.w-2) {
 			if i == 0 {
 				l = " ⚠" + strings.TrimPrefix(l, "  ")
 			} else {

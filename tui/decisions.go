@@ -358,16 +358,7 @@ func (d *rankingDialog) choose(o methodsearch.Outcome) tea.Msg {
 	if o.Err != nil || o.Result == nil {
 		return sayMsg{msgError, "that candidate has no program"}
 	}
-	m := o.Method.Clone()
-	sys, err := m.System()
-	if err != nil {
-		return sayMsg{msgError, err.Error()}
-	}
-	oven, _, err := methodsearch.KeypadProgram(m, sys, o.Result)
-	if err != nil {
-		return sayMsg{msgError, err.Error()}
-	}
-	m.Oven = oven
+	m := methodsearch.Apply(o.Method, o.Result)
 	return editMsg{m: m, what: "switched to " + o.Source + " with its optimized program (u undoes)"}
 }
 
@@ -395,9 +386,11 @@ func (d *rankingDialog) render() {
 			if !o.Result.Feasible() {
 				t = "not met"
 			}
-			car := fmt.Sprintf("%s mL/min", fmtNum(o.Method.Carrier.FlowMLMin, 2, 2))
-			if o.Method.Carrier.Mode == model.ConstantPressure {
-				car = fmt.Sprintf("%s kPa const", fmtNum(o.Method.Carrier.InletKPa, 1, 1))
+			// the carrier setting the optimizer chose with the program
+			c := methodsearch.Apply(o.Method, o.Result).Carrier
+			car := fmt.Sprintf("%s mL/min", fmtNum(c.FlowMLMin, 2, 2))
+			if c.Mode == model.ConstantPressure {
+				car = fmt.Sprintf("%s kPa const", fmtNum(c.InletKPa, 1, 1))
 			}
 			text += fmt.Sprintf("%8s %5.2f %-13s %-9s %6.0f", t, o.Result.Sim.MinResolution, car,
 				fmt.Sprintf("%.0f→%.0f", o.InletStart/1000, o.InletEnd/1000), o.MaxTemp-model.ZeroCelsius)

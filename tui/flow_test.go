@@ -71,7 +71,7 @@ func TestFlowOptimizeAccept(t *testing.T) {
 	}
 }
 
-// esc during the run cancels and still offers the best program so far
+// esc during the run cancels; the best program so far is offered only when it meets the target and beats the current one
 func TestFlowOptimizeCancel(t *testing.T) {
 	a, _ := newApp(t, 100, 30)
 	a.optSettings.Starts = 400

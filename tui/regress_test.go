@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
@@ -858,5 +859,38 @@ func TestSaveAsFolderRefused(t *testing.T) {
 	}
 	if !a.Dirty() || a.Path() != path {
 		t.Error("the method's file changed")
+	}
+}
+
+// Text of any length from the file (title, phase, compound names) never
+// pushes the screen past its height.
+func TestLongFileTextKeepsScreenSize(t *testing.T) {
+	m := demoMethod(t)
+	m.Title = strings.Repeat("a very long method title ", 20)
+	m.Column.Phase = strings.Repeat("poly(dimethylsiloxane) ", 20)
+	for i := range m.Compounds {
+		m.Compounds[i].Name = fmt.Sprintf("compound-%d-%s", i, strings.Repeat("x", 60))
+	}
+	a, err := New(m, Options{Name: "long.toml", NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, size := range [][2]int{{80, 24}, {100, 30}, {200, 60}} {
+		send(a, tea.WindowSizeMsg{Width: size[0], Height: size[1]})
+		for _, k := range []string{"", "tab", "tab", "tab", "!", "esc", "?"} {
+			if k != "" {
+				press(a, k)
+			}
+			s := screen(a)
+			if n := strings.Count(s, "\n") + 1; n != size[1] {
+				t.Fatalf("%dx%d after %q: %d lines:\n%s", size[0], size[1], k, n, s)
+			}
+			for i, l := range strings.Split(s, "\n") {
+				if ansi.StringWidth(l) > size[0] {
+					t.Errorf("%dx%d after %q: line %d is %d wide: %q", size[0], size[1], k, i, ansi.StringWidth(l), l)
+				}
+			}
+		}
+		press(a, "esc")
 	}
 }

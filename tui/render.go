@@ -50,6 +50,21 @@ func (a *App) titleLines(w int) []string {
 	return lines
 }
 
+// capRows keeps at most maxLineRows lines (text from a file can be of any
+// length; the settings and the peak table show it whole), the last ending
+// in "…" when more were cut.
+func capRows(lines []string, w int) []string {
+	if len(lines) <= maxLineRows {
+		return lines
+	}
+	lines = lines[:maxLineRows]
+	lines[maxLineRows-1] = ansi.Truncate(lines[maxLineRows-1], w-1, "") + "…"
+	return lines
+}
+
+// maxLineRows is the most the method or the summary line takes.
+const maxLineRows = 3
+
 // maxTitleRows is the most the title takes.
 const maxTitleRows = 3
 
@@ -91,7 +106,7 @@ func (a *App) methodLines(w int) []string {
 	if g.Gas.Flammable() {
 		s = h2 + s
 	}
-	lines := wrap(s, w)
+	lines := capRows(wrap(s, w), w)
 	for i, l := range lines {
 		if i == 0 && g.Gas.Flammable() {
 			lines[i] = a.st.Warn.Render(h2) + a.st.Dim.Render(strings.TrimPrefix(l, h2))
@@ -138,7 +153,7 @@ func (a *App) summaryLines(w int) []string {
 	if n := len(a.cautions()); n > 0 {
 		tail += fmt.Sprintf(" · %d %s (! lists)", n, plural(n, "caution", "cautions"))
 	}
-	return wrapStyled(a.st.Info.Render(s)+style.Render(rs)+a.st.Warn.Render(tail), w)
+	return capRows(wrapStyled(a.st.Info.Render(s)+style.Render(rs)+a.st.Warn.Render(tail), w), w)
 }
 
 func plural(n int, one, many string) string {

@@ -372,15 +372,14 @@ func (a *App) optDone(v optOutcome) {
 		a.chart.Update(previewMsg{})
 		return
 	}
-	after := a.sh.method.Clone()
-	oven, sim, err := methodsearch.KeypadProgram(a.sh.method, a.sh.sys, v.res)
-	if err != nil {
-		a.say(msgError, "optimizer: %v", inertErr(err))
+	if v.res.Canceled && !v.res.Offer {
+		// an early stop offers only a better program that meets the target
+		a.say(msgInfo, "stopped early, nothing better to offer (%s); kept the current program", inert(v.res.Explanation))
 		a.chart.Update(previewMsg{})
 		return
 	}
-	after.Oven = oven
-	d := newResultDialog(&a.sh, v.res, after, sim)
+	after := methodsearch.Apply(a.sh.method, v.res)
+	d := newResultDialog(&a.sh, v.res, after, v.res.Sim)
 	a.open(d)
 	a.chart.Update(d.preview())
 	if v.res.Feasible() {

@@ -70,8 +70,9 @@ func usage() string {
 	b.WriteString(`
 FILE is a method file (TOML: column, carrier, oven program, limits, goal and
 compounds). - for FILE or METHOD (or the RUNS of fit and plan) reads it
-from standard input (cat m.toml | rampwise simulate -); without FILE, or
-with @demo for FILE or METHOD, the built-in demo method is used; an empty
+from standard input (cat m.toml | rampwise simulate -), and is the demo
+when nothing is piped in; without FILE, or with @demo for FILE or METHOD,
+the built-in demo method is used; an empty
 name ("") is refused. rampwise help COMMAND (or rampwise COMMAND --help)
 explains a command and its flags.
 

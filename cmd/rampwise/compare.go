@@ -22,13 +22,15 @@ import (
 )
 
 const compareHelp = `Usage: rampwise compare METHOD... [--length L,...] [--diameter D,...] [--film F,...]
-                        [--json] [--csv F] [--seed N]
+                        [--gas G,...] [--json] [--csv F] [--seed N]
 
 Each METHOD is the same compounds on one candidate stationary phase (their
 parameters measured or fitted on that phase). Because distribution constants
 do not depend on the column's dimensions, each can also be tried at other
-lengths (m), internal diameters (mm) and film thicknesses (µm). Every
-candidate is optimized with its own goal and limits, and the table ranks them:
+lengths (m), internal diameters (mm), film thicknesses (µm) and carrier
+gases (helium, hydrogen, nitrogen). Every candidate is optimized with its own
+goal and limits, its carrier flow (or inlet pressure) optimized with the
+program unless goal.lock names "flow", and the table ranks them:
 those that reach the target first, fastest first, with the inlet pressure the
 program needs at its start and end and the highest oven temperature it uses;
 then those that cannot reach it, with their limiting pair. - reads one method from
@@ -50,6 +52,9 @@ type candidateJSON struct {
 	Length        float64     `json:"length_m"`
 	Diameter      float64     `json:"diameter_mm"`
 	Film          float64     `json:"film_um"`
+	Gas           string      `json:"gas"`
+	Carrier       carrierJSON `json:"carrier"`
+	Robust        *robustJSON `json:"robust,omitempty"`
 	Feasible      bool        `json:"feasible"`
 	Objective     string      `json:"objective"`
 	target        float64     // the candidate's goal.min_resolution, for the table
@@ -86,6 +91,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	lengths := fs.String("length", "", "comma-separated column lengths to try (m)")
 	diams := fs.String("diameter", "", "comma-separated internal diameters to try (mm)")
 	films := fs.String("film", "", "comma-separated film thicknesses to try (µm)")
+	gasList := fs.String("gas", "", "comma-separated carrier gases to try: helium, hydrogen, nitrogen")
 	asJSON := fs.Bool("json", false, "print the ranking as JSON")
 	csvF := fs.String("csv", "", "write the ranking as CSV to this `file`")
 	seed := fs.Uint64("seed", 1, "seed of the optimizer's starting points")
@@ -105,6 +111,16 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return bad(err)
 	}
+	var gases []model.Gas
+	if *gasList != "" {
+		for _, g := range strings.Split(*gasList, ",") {
+			gas, err := model.ParseGas(strings.TrimSpace(g))
+			if err != nil {
+				return badf("--gas: %v", err)
+			}
+			gases = append(gases, gas)
+		}
+	}
 	var cands []methodsearch.Candidate
 	for _, file := range files {
 		m, name, err := loadMethod(file)
@@ -121,22 +137,29 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		if fv == nil {
 			fv = []float64{m.Column.FilmUM}
 		}
+		gv := gases
+		if gv == nil {
+			gv = []model.Gas{m.Carrier.Gas}
+		}
 		before := len(cands)
 		var lastSkip error
 		for _, l := range lv {
 			for _, d := range dv {
 				for _, df := range fv {
-					c := m.Clone()
-					c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
-					if err := c.Validate(); err != nil {
-						if m.Column.Kind != kindOfLists {
-							fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
-							lastSkip = err
-							continue
+					for _, g := range gv {
+						c := m.Clone()
+						c.Column.LengthM, c.Column.DiameterMM, c.Column.FilmUM = l, d, df
+						c.Carrier.Gas = g
+						if err := c.Validate(); err != nil {
+							if m.Column.Kind != kindOfLists {
+								fmt.Fprintf(stderr, "compare: skipped %s at %g m × %g mm × %g µm: %v\n", name, l, d, df, err)
+								lastSkip = err
+								continue
+							}
+							return badf("%s at %g m × %g mm × %g µm, %s: %v", name, l, d, df, g, err)
 						}
-						return badf("%s at %g m × %g mm × %g µm: %v", name, l, d, df, err)
+						cands = append(cands, methodsearch.Candidate{Source: name, Method: c})
 					}
-					cands = append(cands, methodsearch.Candidate{Source: name, Method: c})
 				}
 			}
 		}
@@ -155,22 +178,26 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Gas: m.Carrier.Gas.String(), Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution, Carrier: carrierToJSON(m.Carrier)}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
 			continue
 		}
 		r := o.Result
-		sys, err := m.System()
+		// report what optimize reports: the program and carrier as saved
+		after := methodsearch.Apply(m, r)
+		sys, err := after.System()
 		if err != nil {
 			return err
 		}
-		// report what optimize reports: the keypad-rounded program
-		oven, sim, err := methodsearch.KeypadProgram(m, sys, r)
-		if err != nil {
+		var sim model.Result
+		if err := sys.Simulate(after.ModelProgram(), &sim); err != nil {
 			return err
 		}
+		oven := after.Oven
+		j.Carrier = carrierToJSON(after.Carrier)
+		j.Robust = robustToJSON(r.Robust)
 		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
 		j.RunTime, j.CycleTime = sim.RunTime/60, sim.CycleTime/60
 		j.Time = j.RunTime
@@ -191,7 +218,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		rows = append(rows, j)
 	}
 	if *csvF != "" {
-		recs := [][]string{{"rank", "method", "phase", "kind", "length_m", "diameter_mm", "film_um", "feasible", "objective", "time_min", "min_resolution", "critical_first", "critical_second", "inlet_kpa_start", "inlet_kpa_end", "max_temp_c", "explanation"}}
+		recs := [][]string{{"rank", "method", "phase", "kind", "length_m", "diameter_mm", "film_um", "gas", "carrier_setting", "feasible", "objective", "time_min", "min_resolution", "critical_first", "critical_second", "inlet_kpa_start", "inlet_kpa_end", "max_temp_c", "explanation"}}
 		for i, j := range rows {
 			rs, c1, c2 := "", "", ""
 			if j.MinResolution != nil {
@@ -200,20 +227,30 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			if len(j.CriticalPair) == 2 {
 				c1, c2 = j.CriticalPair[0], j.CriticalPair[1]
 			}
-			recs = append(recs, []string{strconv.Itoa(i + 1), textsafe.CSVCell(j.Method), textsafe.CSVCell(j.Phase), j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), fmt.Sprint(j.Feasible), j.Objective,
+			recs = append(recs, []string{strconv.Itoa(i + 1), textsafe.CSVCell(j.Method), textsafe.CSVCell(j.Phase), j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), j.Gas, carrierText(j.Carrier), fmt.Sprint(j.Feasible), j.Objective,
 				fmtNum(j.Time), rs, textsafe.CSVCell(c1), textsafe.CSVCell(c2), fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), textsafe.CSVCell(j.Explanation + j.Error)})
 		}
 		if err := writeCSVFile(*csvF, recs, stderr); err != nil {
 			return err
 		}
 	}
+	hydrogen := false
+	for _, j := range rows {
+		if j.Gas == "hydrogen" {
+			hydrogen = true
+		}
+	}
 	if *asJSON {
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
-		return enc.Encode(map[string]any{"candidates": rows})
+		out := map[string]any{"candidates": rows}
+		if hydrogen {
+			out["cautions"] = []string{model.HydrogenCaution}
+		}
+		return enc.Encode(out)
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "#\tphase\tcolumn\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
+	fmt.Fprintln(tw, "#\tphase\tcolumn\tcarrier\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
 	for i, j := range rows {
 		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
 		if j.Kind != kindOfLists.String() {
@@ -224,7 +261,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			phase = textsafe.Inert(j.Method)
 		}
 		if j.Error != "" {
-			fmt.Fprintf(tw, "%d\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, textsafe.Inert(j.Error))
+			fmt.Fprintf(tw, "%d\t%s\t%s\t%s\terror: %s\t\t\t\t\t\n", i+1, phase, col, j.Gas, textsafe.Inert(j.Error))
 			continue
 		}
 		rs, cp := "-", "-"
@@ -238,7 +275,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		if !j.Feasible {
 			t = "not reached"
 		}
-		fmt.Fprintf(tw, "%d\t%s\t%s\t%s\t%s\t%s\t%.0f → %.0f\t%.0f\t\n", i+1, phase, col, t, rs, cp, j.InletStart, j.InletEnd, j.MaxTemp)
+		fmt.Fprintf(tw, "%d\t%s\t%s\t%s %s\t%s\t%s\t%s\t%.0f → %.0f\t%.0f\t\n", i+1, phase, col, j.Gas, carrierText(j.Carrier), t, rs, cp, j.InletStart, j.InletEnd, j.MaxTemp)
 	}
 	tw.Flush()
 	for i, j := range rows {
@@ -246,7 +283,20 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			fmt.Fprintf(stdout, "%d: %s\n", i+1, textsafe.Inert(j.Explanation))
 		}
 	}
+	if hydrogen {
+		fmt.Fprintf(stdout, "caution: %s\n", model.HydrogenCaution)
+	}
 	return nil
+}
+
+func carrierText(c carrierJSON) string {
+	if c.InletKPa != nil {
+		return fmtNum(*c.InletKPa) + " kPa"
+	}
+	if c.FlowMLMin != nil {
+		return fmtNum(*c.FlowMLMin) + " mL/min"
+	}
+	return ""
 }
 
 // kindOfLists is the kind the dimension lists are written for: a list

@@ -66,6 +66,7 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 		}
 	}()
 	out, flush := textOutput(args, stdout)
+	noteOut = stderr
 	err := dispatch(args, out, stderr)
 	flush()
 	if err == nil {
@@ -108,9 +109,18 @@ var stdin io.Reader = os.Stdin
 // (which carries the source's comments over); stdin can be read once.
 var stdinText []byte
 
+// noteOut is where a command's notes go (its stderr).
+var noteOut io.Writer = io.Discard
+
+// errNoStdin says that "-" found nothing to read: standard input is a
+// terminal or empty.
+var errNoStdin = errors.New("nothing on standard input")
+
 // loadMethod reads FILE: the built-in demo when file is empty (no FILE
-// given) or DemoArg, standard input when it is "-" (as every Unix tool
-// reads it), else the file.
+// given) or DemoArg; for "-" standard input (as every Unix tool reads it)
+// when something is piped in, and the built-in demo, with a note, when
+// standard input is a terminal or empty (so "-" keeps naming the demo as
+// it always did); else the file.
 func loadMethod(file string) (*methodfile.Method, string, error) {
 	switch file {
 	case "", DemoArg:
@@ -118,6 +128,11 @@ func loadMethod(file string) (*methodfile.Method, string, error) {
 		return m, DemoName, err
 	case "-":
 		data, err := readStdin()
+		if errors.Is(err, errNoStdin) {
+			fmt.Fprintf(noteOut, "rampwise: nothing on standard input: - is the built-in demo here (pipe a method in to read it, or name it %s)\n", DemoArg)
+			m, err := methodfile.Parse(DemoName, demoMethod)
+			return m, DemoName, err
+		}
 		if err != nil {
 			return nil, StdinName, err
 		}
@@ -135,6 +150,9 @@ func readRuns(path string, m *methodfile.Method) (*methodfile.Runs, error) {
 		return methodfile.ReadRuns(path, m)
 	}
 	data, err := readStdin()
+	if errors.Is(err, errNoStdin) {
+		return nil, badf("%s: - reads the runs from standard input, which is a terminal or empty; pipe the runs file in or give its name", StdinName)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -149,7 +167,7 @@ func readStdin() ([]byte, error) {
 	}
 	if f, ok := stdin.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
-			return nil, badf("%s: - reads the method from standard input, which is a terminal; pipe the file in (rampwise simulate - < m.toml) or give its name (%s is the built-in demo)", StdinName, DemoArg)
+			return nil, errNoStdin
 		}
 	}
 	data, err := io.ReadAll(io.LimitReader(stdin, methodfile.MaxFileSize+1))
@@ -160,7 +178,7 @@ func readStdin() ([]byte, error) {
 		return nil, badf("%s: more than %d MiB; not a method file", StdinName, methodfile.MaxFileSize>>20)
 	}
 	if len(bytes.TrimSpace(data)) == 0 {
-		return nil, badf("%s: standard input is empty (- reads the method from standard input; %s is the built-in demo)", StdinName, DemoArg)
+		return nil, errNoStdin
 	}
 	stdinText = data
 	return data, nil

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"os/signal"
 	"strings"
@@ -20,20 +21,34 @@ import (
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
 
-const optimizeHelp = `Usage: rampwise optimize [FILE] [--out F] [--json] [--seed N] [--ramps N]
+const optimizeHelp = `Usage: rampwise optimize [FILE] [--out F [--write-best]] [--json] [--seed N] [--ramps N]
                          [--objective run-time|cycle-time] [--min-resolution RS]
 
 Searches oven programs (initial temperature and hold, then up to N ramps with
-their rates, final temperatures and holds) for the shortest run time, or oven
-cycle time, in which every pair involving a target compound reaches the target
-resolution, within the column's maximum temperature and the oven's limits in
-[limits]. Values named in goal.lock stay as the method has them. The program
-found is trimmed to end at the run time (last peak plus goal.tail_min).
+their rates, final temperatures and holds) and the carrier flow (the inlet
+pressure at constant pressure) for the shortest run time, or oven cycle time,
+in which every pair involving a target compound reaches the target
+resolution. Every limit is a hard constraint: the column's max_temp_c (and
+the detector temperature - 20 °C), max_isothermal_c for every hold, the
+ramp-rate limit and [[limits.rate_band]], the hold limit, the inlet-pressure
+limits, the flow range (default 0.5x-3x the optimum velocity) and
+goal.min_first_k. Everything injected must elute within the run (or within
+the goal.bakeout_c / bakeout_min step, which is then appended). Values named
+in goal.lock (and "flow") stay exactly as the method has them.
 
-Shows the program before and after; --out writes the whole method with the new
-program (atomically). Exit 0 when the target is met, 3 when no program within
-the limits meets it (the best program found and the limiting pair are still
-reported). Without FILE the built-in demo method is used.
+The program found is cut to end at the last peak plus goal.tail_min, and it
+is exactly on the keypad steps of [limits] (temp_step_c, rate_step_c_min,
+hold_step_min, flow_step_ml_min, pressure_step_kpa): what is shown and saved
+meets the target as saved. With [goal.robust] it also meets it at every
+corner of the oven offset, flow and efficiency tolerances and at Rs - z*sigma
+for the retention parameters' standard errors; the result reports the
+nominal Rs, the worst corner and Rs +/- sigma.
+
+Shows the program before and after; --out writes the whole method with the
+new program and carrier setting (atomically). Exit 0 when the target is met,
+3 when no program within the limits meets it (the best program found and the
+limiting pair are still reported; --out then writes nothing unless
+--write-best is given). Without FILE the built-in demo method is used.
 
 Flags override the file's [goal]:
 `
@@ -50,10 +65,23 @@ type programJSON struct {
 	Ramps       []rampJSON `json:"ramps"`
 }
 
+// robustJSON is how the saved program fares under [goal.robust].
+type robustJSON struct {
+	Nominal     float64  `json:"nominal_resolution"`
+	WorstCorner *float64 `json:"worst_corner_resolution"`
+	Corner      string   `json:"worst_corner,omitempty"`
+	Sigma       float64  `json:"sigma_resolution"`
+	Z           float64  `json:"z"`
+	LowZ        *float64 `json:"resolution_minus_z_sigma"`
+	Margin      float64  `json:"robust_resolution"`
+}
+
 type optimizeJSON struct {
 	Feasible      bool        `json:"feasible"`
 	Objective     string      `json:"objective"`
 	Program       programJSON `json:"program"`
+	Carrier       carrierJSON `json:"carrier"`
+	Robust        *robustJSON `json:"robust,omitempty"`
 	RunTime       float64     `json:"run_time_min"`
 	CycleTime     float64     `json:"cycle_time_min"`
 	MinResolution *float64    `json:"min_resolution"`
@@ -74,6 +102,31 @@ func programToJSON(o methodfile.Oven) programJSON {
 	return p
 }
 
+func robustToJSON(r optimizer.RobustReport) *robustJSON {
+	if !r.On {
+		return nil
+	}
+	j := &robustJSON{Nominal: r.Nominal, Corner: r.Corner, Sigma: r.Sigma, Z: r.Z, Margin: r.Margin}
+	j.WorstCorner = finiteOrNil(r.Worst)
+	j.LowZ = finiteOrNil(r.LowZ)
+	return j
+}
+
+// describeRobust is the robust margin in one line.
+func describeRobust(r optimizer.RobustReport) string {
+	if !r.On {
+		return ""
+	}
+	s := fmt.Sprintf("robust margin: nominal Rs %.3f", r.Nominal)
+	if !math.IsNaN(r.Worst) {
+		s += fmt.Sprintf(", worst corner Rs %.3f (%s)", r.Worst, r.Corner)
+	}
+	if r.Z > 0 {
+		s += fmt.Sprintf(", critical pair Rs %.3f ± %.3f (1σ), lowest Rs − %gσ %.3f", r.Nominal, r.Sigma, r.Z, r.LowZ)
+	}
+	return s
+}
+
 func runOptimize(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("optimize", optimizeHelp, stderr)
 	asJSON := fs.Bool("json", false, "print the result as JSON")
@@ -81,7 +134,8 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	seed := fs.Uint64("seed", 1, "seed of the starting points: the same seed gives the same program")
 	ramps := fs.Int("ramps", 0, "ramps the program may use, 1..5 (default: goal.ramps)")
 	objective := fs.String("objective", "", "run-time or cycle-time (default: goal.objective)")
-	minRs := fs.Float64("min-resolution", 0, "target resolution of every counted pair (default: goal.min_resolution)")
+	minRs := fs.Float64("min-resolution", 0, "target resolution of every counted pair, in (0, 100] (default: goal.min_resolution)")
+	writeBest := fs.Bool("write-best", false, "with --out, write the best program found even when the target is not met (exit 3)")
 	file, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -104,6 +158,9 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		m.Goal.Objective = o
 	}
 	if given(fs, "min-resolution") {
+		if !(*minRs > 0 && *minRs <= 100) {
+			return badf("optimize: --min-resolution must be in (0, 100], got %v", *minRs)
+		}
 		m.Goal.MinResolution = *minRs
 		if err := override(m, "min-resolution", "goal.min_resolution"); err != nil {
 			return err
@@ -124,12 +181,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		return bad(fmt.Errorf("%s: %v", name, strings.TrimPrefix(err.Error(), "optimizer: ")))
 	}
 
-	after := m.Clone()
-	oven, _, err := methodsearch.KeypadProgram(m, before.System, res)
-	if err != nil {
-		return fmt.Errorf("optimized program does not simulate: %v", err)
-	}
-	after.Oven = oven
+	after := methodsearch.Apply(m, res)
 	afterSim, err := simulateMethod(after, name)
 	if err != nil {
 		return fmt.Errorf("optimized program does not simulate: %v", err)
@@ -137,18 +189,22 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	meets := func(s *simulation) bool {
 		return s.Result.Critical < 0 || s.Result.MinResolution >= m.Goal.MinResolution
 	}
-	met := res.Feasible() && meets(afterSim)
+	met := res.Offer && meets(afterSim)
 
-	if *out != "" {
+	wrote := false
+	if *out != "" && (met || *writeBest) {
 		if err := saveMethodOut(*out, file, after); err != nil {
 			return err
 		}
+		wrote = true
 	}
 	if *asJSON {
 		j := optimizeJSON{
 			Feasible:    met,
 			Objective:   m.Goal.Objective.String(),
 			Program:     programToJSON(after.Oven),
+			Carrier:     carrierToJSON(after.Carrier),
+			Robust:      robustToJSON(res.Robust),
 			RunTime:     afterSim.Result.RunTime / 60,
 			CycleTime:   afterSim.Result.CycleTime / 60,
 			Evaluations: res.Evaluations,
@@ -171,8 +227,10 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 		}
 	} else {
 		writeComparison(stdout, m, before, after, afterSim, res, met)
-		if *out != "" {
+		if wrote {
 			fmt.Fprintf(stdout, "\nsaved the method with the optimized program to %s\n", textsafe.Inert(*out))
+		} else if *out != "" {
+			fmt.Fprintf(stdout, "\nnothing was written to %s: the target is not met (--write-best writes the best program anyway)\n", textsafe.Inert(*out))
 		}
 	}
 	if !met {
@@ -190,12 +248,16 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "\tbefore\tafter\t")
 	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
+	fmt.Fprintf(tw, "carrier\t%s\t%s\t\n", describeCarrier(m.Carrier), describeCarrier(after.Carrier))
 	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.Result.RunTime/60, afterSim.Result.RunTime/60)
 	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.Result.CycleTime/60, afterSim.Result.CycleTime/60)
 	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before, m.Goal.MinResolution), fmtRs(afterSim, m.Goal.MinResolution))
 	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
 	tw.Flush()
 	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %s)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, format.Target(m.Goal.MinResolution))
+	if line := describeRobust(res.Robust); line != "" {
+		fmt.Fprintln(w, line)
+	}
 	if met {
 		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
 	} else {

@@ -626,9 +626,15 @@ func (v *validator) goal(r *rawMethod, m *Method) {
 		RetentionTimeSDMin: v.opt("goal.robust.retention_time_sd_min", rb.RetentionTimeSD, false, DefaultRetentionTimeSDMin),
 	}
 	for _, name := range g.Lock {
+		if strings.EqualFold(strings.TrimSpace(name), FlowLockName) {
+			// the carrier flow (inlet pressure at constant pressure), which
+			// the optimizer otherwise varies with the program
+			m.Goal.Lock = append(m.Goal.Lock, model.ProgramValue{Kind: model.CarrierFlow})
+			continue
+		}
 		pv, err := model.ParseProgramValue(name)
 		if err != nil || !pv.Kind.InProgram() {
-			v.fail("goal.lock", "%s is not a program value (use %s)", quoted(name), model.ValueNames(model.ProgramValues(m.Goal.Ramps)))
+			v.fail("goal.lock", "%s is not a program value (use %s or %s)", quoted(name), model.ValueNames(model.ProgramValues(m.Goal.Ramps)), FlowLockName)
 			break
 		}
 		m.Goal.Lock = append(m.Goal.Lock, pv)

@@ -258,10 +258,17 @@ func WriteAtomic(path string, data []byte) error {
 	return fsafe.WriteFile(path, data)
 }
 
+// FlowLockName is the goal.lock name that keeps the carrier flow (or, at
+// constant pressure, the inlet pressure) as the method has it.
+const FlowLockName = "flow"
+
 func lockNames(vs []model.ProgramValue) []string {
 	out := make([]string, len(vs))
 	for i, v := range vs {
 		out[i] = v.String()
+		if v.Kind == model.CarrierFlow || v.Kind == model.InletPressure {
+			out[i] = FlowLockName
+		}
 	}
 	return out
 }

@@ -17,7 +17,7 @@ func secondWave(t *testing.T) string {
 	if err != nil {
 		t.Fatal(err)
 	}
-	s := string(base)
+	s := withoutSecondWave(string(base))
 	rep := func(from, to string) {
 		t.Helper()
 		if !strings.Contains(s, from) {
@@ -32,6 +32,29 @@ func secondWave(t *testing.T) string {
 	s += "\n[[limits.rate_band]]\nabove_c = 175.0\nmax_rate_c_min = 45.0\n\n[[limits.rate_band]]\nabove_c = 250.0\nmax_rate_c_min = 30.0\n"
 	s += "\n[goal.robust]\noven_offset_c = 1.0\nflow_pct = 2.0\nefficiency_pct = 10.0\nretention_sigma = 2.0\nprior_dH_kJ_mol = 3.0\n"
 	return s
+}
+
+// withoutSecondWave drops the second-wave keys the demo itself carries
+// ([goal.robust] and the compounds' standard errors), so they can be added
+// here without defining a key twice.
+func withoutSecondWave(s string) string {
+	var out []string
+	skip := false
+	for _, line := range strings.Split(s, "\n") {
+		switch {
+		case strings.HasPrefix(line, "[goal.robust]"):
+			skip = true
+			continue
+		case strings.HasPrefix(line, "["):
+			skip = false
+		case strings.HasPrefix(line, "dH_se_kJ_mol") || strings.HasPrefix(line, "dS_se_J_mol_K") || strings.HasPrefix(line, "dH_dS_corr"):
+			continue
+		}
+		if !skip {
+			out = append(out, line)
+		}
+	}
+	return strings.Join(out, "\n")
 }
 
 func TestSecondWaveKeysRoundTrip(t *testing.T) {

@@ -204,3 +204,22 @@ func TestSheetKindsAndCoolant(t *testing.T) {
 		}
 	}
 }
+
+// The sheet reports the robust margin of the demo: nominal, worst corner
+// and Rs ± σ.
+func TestSheetRobustSection(t *testing.T) {
+	m, err := methodfile.ReadFile("../../testdata/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := Simulate(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sheet := string(s.Sheet())
+	for _, want := range []string{"## Robust margin", "| nominal |", "worst corner (oven", "Rs ± σ", "NOT met"} {
+		if !strings.Contains(sheet, want) {
+			t.Errorf("sheet lacks %q", want)
+		}
+	}
+}

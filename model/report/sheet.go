@@ -2,11 +2,13 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
+	"github.com/rampwise/rampwise/model/robust/methodtol"
 	"github.com/rampwise/rampwise/model/textsafe"
 )
 
@@ -114,6 +116,8 @@ func (s *Sim) Sheet() []byte {
 			format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name)))
 	}
 
+	b.WriteString(s.robustSection())
+
 	fmt.Fprintf(&b, "\n## Where the retention parameters come from\n\n")
 	var idx, entered []string
 	for _, c := range m.Compounds {
@@ -150,6 +154,38 @@ func (s *Sim) Sheet() []byte {
 		fmt.Fprintf(&b, "- Warning: %s\n", textsafe.Inert(w))
 	}
 	return []byte(b.String())
+}
+
+// robustSection is the method sheet's account of the [goal.robust]
+// tolerances: the nominal Rs, the worst corner of the instrument
+// tolerances and which, and Rs ± σ of the critical pair from the retention
+// parameters' standard errors (model/robust, the optimizer's own check).
+func (s *Sim) robustSection() string {
+	m := s.Method
+	rep, err := methodtol.Check(m, s.System)
+	if err != nil || !rep.On {
+		return ""
+	}
+	rb := m.Goal.Robust
+	var b strings.Builder
+	fmt.Fprintf(&b, "\n## Robust margin\n\n")
+	fmt.Fprintf(&b, "Tolerances (goal.robust): oven ±%s °C, flow ±%s %%, plate height +%s %%, z = %s.\n\n",
+		num(rb.OvenOffsetC), num(rb.FlowPct), num(rb.EfficiencyPct), num(rb.RetentionSigma))
+	fmt.Fprintf(&b, "| check | min Rs |\n|---|---|\n")
+	fmt.Fprintf(&b, "| nominal | %.3f |\n", rep.Nominal)
+	if !math.IsNaN(rep.Worst) {
+		fmt.Fprintf(&b, "| worst corner (%s) | %.3f |\n", rep.Corner, rep.Worst)
+	}
+	if rep.Z > 0 && !math.IsNaN(rep.LowZ) {
+		fmt.Fprintf(&b, "| critical pair Rs ± σ (retention parameters) | %.3f ± %.3f |\n", rep.Nominal, rep.Sigma)
+		fmt.Fprintf(&b, "| lowest Rs − %s·σ over the pairs | %.3f |\n", num(rep.Z), rep.LowZ)
+	}
+	word := "met"
+	if rep.Margin < m.Goal.MinResolution {
+		word = "NOT met"
+	}
+	fmt.Fprintf(&b, "\nTarget %.2f %s at every corner and at Rs − z·σ (robust Rs %.3f).\n", m.Goal.MinResolution, word, rep.Margin)
+	return b.String()
 }
 
 // inertLines makes each line of a multi-line text (the notes) inert,

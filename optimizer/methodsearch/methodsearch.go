@@ -1,5 +1,5 @@
 // Package methodsearch connects the optimizer to method files: the search
-// problem a method describes, the keypad-rounded result, and the ranking of
+// problem a method describes, the result applied to the method, and the ranking of
 // candidate columns given as methods. The optimizer itself knows only the
 // model.
 package methodsearch
@@ -9,43 +9,98 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/robust/methodtol"
 	"github.com/rampwise/rampwise/optimizer"
 )
 
 // Problem builds the search a method file describes: its goal, its limits
+// (all of them hard constraints), its keypad steps, its robust tolerances
 // and its program as the start.
 func Problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
-	return optimizer.Problem{
-		System: sys,
-		Start:  m.ModelProgram(),
-		Ramps:  m.Goal.Ramps,
-		Lock:   append([]model.ProgramValue(nil), m.Goal.Lock...),
+	l := m.Limits
+	p := optimizer.Problem{
+		System:    sys,
+		Start:     m.ModelProgram(),
+		StartOven: ovenFromFile(m.Oven),
+		Ramps:     m.Goal.Ramps,
+		Lock:      append([]model.ProgramValue(nil), m.Goal.Lock...),
 		Limits: optimizer.Limits{
-			OvenMin:  m.Limits.OvenMinC + model.ZeroCelsius,
+			OvenMin:  l.OvenMinC + model.ZeroCelsius,
 			MaxTemp:  m.Column.MaxTempC + model.ZeroCelsius,
-			MaxRate:  m.Limits.MaxRateCMin / 60,
-			MaxHold:  m.Limits.MaxHoldMin * 60,
-			MaxInlet: m.Limits.MaxInletKPa * 1000,
+			MaxRate:  l.MaxRateCMin / 60,
+			MaxHold:  l.MaxHoldMin * 60,
+			MaxInlet: l.MaxInletKPa * 1000,
+			MinInlet: l.MinInletKPa * 1000,
+			MinFlow:  l.MinFlowMLMin * 1e-6 / 60,
+			MaxFlow:  l.MaxFlowMLMin * 1e-6 / 60,
 		},
+		Steps: optimizer.Steps{TempC: l.TempStepC, RateCMin: l.RateStepCMin, HoldMin: l.HoldStepMin,
+			FlowMLMin: l.FlowStepMLMin, PressureKPa: l.PressureStepKPa},
 		MinResolution: m.Goal.MinResolution,
 		Objective:     m.Goal.Objective,
 		Tail:          m.Goal.TailMin * 60,
+		MinFirstK:     m.Goal.MinFirstK,
+		Robust:        methodtol.FromMethod(m),
 	}
+	if m.Column.HasMaxIsothermal {
+		p.Limits.MaxIsothermal = m.Column.MaxIsothermalC + model.ZeroCelsius
+	}
+	if m.Injection.HasDetector {
+		p.Limits.Detector = m.Injection.DetectorTempC + model.ZeroCelsius
+	}
+	for _, b := range l.RateBands {
+		p.Limits.RateBands = append(p.Limits.RateBands, optimizer.RateBand{Above: b.AboveC + model.ZeroCelsius, MaxRate: b.MaxRateCMin / 60})
+	}
+	if m.Goal.HasBakeout {
+		p.Bakeout = optimizer.Bakeout{On: true, Temp: m.Goal.BakeoutC + model.ZeroCelsius, Hold: m.Goal.BakeoutMin * 60}
+	}
+	return p
 }
 
-// KeypadProgram is the result's program as the oven's keypad takes it
-// (methodfile.KeypadRound) and its simulation; when rounding would lose the
-// target that the exact program meets, the exact program is kept.
-func KeypadProgram(m *methodfile.Method, sys *model.System, r *optimizer.Result) (methodfile.Oven, model.Result, error) {
-	var res model.Result
-	oven := methodfile.KeypadRound(methodfile.ProgramFromModel(r.Program))
-	err := sys.Simulate(methodfile.ProgramToModel(oven), &res)
-	lost := err == nil && r.Feasible() && res.Critical >= 0 && res.MinResolution < m.Goal.MinResolution
-	if err != nil || lost {
-		oven = methodfile.ProgramFromModel(r.Program)
-		err = sys.Simulate(methodfile.ProgramToModel(oven), &res)
+func ovenFromFile(o methodfile.Oven) optimizer.Oven {
+	r := optimizer.Oven{InitialC: o.InitialC, InitialHoldMin: o.InitialHoldMin, Ramps: []optimizer.Ramp{}}
+	for _, rp := range o.Ramps {
+		r.Ramps = append(r.Ramps, optimizer.Ramp{RateCMin: rp.RateCMin, FinalC: rp.FinalC, HoldMin: rp.HoldMin})
 	}
-	return oven, res, err
+	return r
+}
+
+// FileOven is a result's program as a method file's oven.
+func FileOven(o optimizer.Oven) methodfile.Oven {
+	r := methodfile.Oven{InitialC: o.InitialC, InitialHoldMin: o.InitialHoldMin}
+	for _, rp := range o.Ramps {
+		r.Ramps = append(r.Ramps, methodfile.Ramp{RateCMin: rp.RateCMin, FinalC: rp.FinalC, HoldMin: rp.HoldMin})
+	}
+	return r
+}
+
+// Apply is the method m with the result's program and carrier setting,
+// exactly as the optimizer checked them (every value on the keypad steps).
+func Apply(m *methodfile.Method, r *optimizer.Result) *methodfile.Method {
+	after := m.Clone()
+	after.Oven = FileOven(r.Oven)
+	if r.Carrier.Mode == model.ConstantPressure {
+		if r.Carrier.InletKPa > 0 {
+			after.Carrier.InletKPa = r.Carrier.InletKPa
+		}
+	} else if r.Carrier.FlowMLMin > 0 {
+		after.Carrier.FlowMLMin = r.Carrier.FlowMLMin
+	}
+	return after
+}
+
+// KeypadProgram is the result's program as saved (every value on the keypad
+// steps, checked as saved) and its simulation on the result's carrier
+// setting. Use Apply to take the carrier setting too.
+func KeypadProgram(m *methodfile.Method, sys *model.System, r *optimizer.Result) (methodfile.Oven, model.Result, error) {
+	return FileOven(r.Oven), r.Sim, nil
+}
+
+// Robustness is how the method's own program fares under its
+// [goal.robust] tolerances: nominal Rs, the worst corner and which, and
+// Rs ± σ of the critical pair (for the UI; methodtol.Check).
+func Robustness(m *methodfile.Method, sys *model.System) (optimizer.RobustReport, error) {
+	return methodtol.Check(m, sys)
 }
 
 // Candidate is one column to try: a method (its phase's compounds, its

@@ -151,7 +151,9 @@ func playHabit(t testing.TB, seed uint64, maxInjections int) outcome {
 		if err != nil {
 			t.Fatal(err)
 		}
-		res, err := optimizer.Optimize(context.Background(), methodsearch.Problem(m, sys), testOptimizer)
+		prob := methodsearch.Problem(m, sys)
+		prob.Lock = append(prob.Lock, optimizer.FlowLock) // the lab injects at the method's carrier setting
+		res, err := optimizer.Optimize(context.Background(), prob, testOptimizer)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -672,6 +672,10 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 // slowest band's rate throughout (the search has one rate limit).
 func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
 	prob := methodsearch.Problem(m, sys)
+	// the plan weighs the tolerances and the parameters' uncertainty itself
+	// (evaluation) and keeps the method's carrier setting
+	prob.Robust = optimizer.Robust{}
+	prob.Lock = append(prob.Lock, optimizer.FlowLock)
 	sl := st.scoutLimits()
 	prob.Limits.MaxTemp = math.Min(prob.Limits.MaxTemp, sl.highC+model.ZeroCelsius)
 	if len(sl.bands) > 0 {

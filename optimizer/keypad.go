@@ -1,0 +1,182 @@
+package optimizer
+
+import (
+	"math"
+	"strconv"
+
+	"github.com/rampwise/rampwise/model"
+)
+
+// Ramp is one ramp in the file's units: °C/min, °C, min.
+type Ramp struct {
+	RateCMin float64
+	FinalC   float64
+	HoldMin  float64
+}
+
+// Oven is an oven program in the file's units (°C, min, °C/min), the form
+// in which it is saved and typed into an oven's keypad.
+type Oven struct {
+	InitialC       float64
+	InitialHoldMin float64
+	Ramps          []Ramp
+}
+
+// Clone returns a deep copy.
+func (o Oven) Clone() Oven {
+	c := o
+	c.Ramps = append([]Ramp(nil), o.Ramps...)
+	return c
+}
+
+// Model is the program in SI units, converted exactly as a method file's
+// oven is (°C + 273.15, min × 60, °C/min ÷ 60).
+func (o Oven) Model() model.Program {
+	p := model.Program{Initial: o.InitialC + model.ZeroCelsius, InitialHold: o.InitialHoldMin * 60}
+	for _, r := range o.Ramps {
+		p.Ramps = append(p.Ramps, model.Ramp{Rate: r.RateCMin / 60, Final: r.FinalC + model.ZeroCelsius, Hold: r.HoldMin * 60})
+	}
+	return p
+}
+
+// modelInto is Model writing into q's ramps (no allocation once q has room).
+func (o Oven) modelInto(q *model.Program) {
+	q.Initial, q.InitialHold = o.InitialC+model.ZeroCelsius, o.InitialHoldMin*60
+	q.Ramps = q.Ramps[:0]
+	for _, r := range o.Ramps {
+		q.Ramps = append(q.Ramps, model.Ramp{Rate: r.RateCMin / 60, Final: r.FinalC + model.ZeroCelsius, Hold: r.HoldMin * 60})
+	}
+}
+
+// ovenFromModel converts to file units, rounded to 12 significant digits so
+// that a value typed into a file (50.0 °C) comes back as typed.
+func ovenFromModel(p model.Program) Oven {
+	o := Oven{InitialC: sig12(p.Initial - model.ZeroCelsius), InitialHoldMin: sig12(p.InitialHold / 60)}
+	for _, r := range p.Ramps {
+		o.Ramps = append(o.Ramps, Ramp{RateCMin: sig12(r.Rate * 60), FinalC: sig12(r.Final - model.ZeroCelsius), HoldMin: sig12(r.Hold / 60)})
+	}
+	return o
+}
+
+func sig12(x float64) float64 {
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 12, 64), 64)
+	return v
+}
+
+// decimals is the number of decimals a keypad step has (0.1 → 1, 0.25 → 2).
+func decimals(step float64) int {
+	for d := 0; d < 10; d++ {
+		s := step * math.Pow(10, float64(d))
+		if math.Abs(s-math.Round(s)) < 1e-9*math.Max(1, s) {
+			return d
+		}
+	}
+	return 10
+}
+
+// gridValue is n steps as the decimal number the keypad shows (n × 0.1 is
+// 83.1, not 83.10000000000001).
+func gridValue(n, step float64) float64 {
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(n*step, 'f', decimals(step), 64), 64)
+	return v
+}
+
+// OnGrid reports whether x is exactly a keypad value of step.
+func OnGrid(x, step float64) bool { return x == gridValue(math.Round(x/step), step) }
+
+func roundGrid(x, step float64) float64 { return gridValue(math.Round(x/step), step) }
+func ceilGrid(x, step float64) float64  { return gridValue(math.Ceil(x/step-1e-9), step) }
+func floorGrid(x, step float64) float64 { return gridValue(math.Floor(x/step+1e-9), step) }
+
+// cutOven is the saved form of prog (on the grid) ending at end (s): the
+// ramp or hold the run ends in is cut, the cut rounded up to the next
+// keypad step so the run never ends before end; later steps are dropped; a
+// run past the program stretches the last hold. Locked values are never
+// changed (end is at least their locked end, see lockedEnd). ok is false
+// when the last hold would have to stretch but is locked.
+func cutOven(o Oven, end float64, st Steps, l *locks) (Oven, bool) {
+	endMin := end / 60
+	q := Oven{InitialC: o.InitialC, InitialHoldMin: o.InitialHoldMin}
+	t := o.InitialHoldMin
+	if endMin <= t+1e-12 || len(o.Ramps) == 0 {
+		if len(o.Ramps) == 0 && endMin > t+1e-12 {
+			if l.initialHold {
+				return q, false
+			}
+		}
+		if !l.initialHold {
+			q.InitialHoldMin = ceilGrid(math.Max(0, endMin), st.HoldMin)
+		}
+		return q, true
+	}
+	prev := o.InitialC
+	for i, r := range o.Ramps {
+		d := (r.FinalC - prev) / r.RateCMin
+		if t+d >= endMin-1e-12 {
+			f := ceilGrid(prev+r.RateCMin*(endMin-t), st.TempC)
+			if f <= prev {
+				f = gridValue(math.Floor(prev/st.TempC+1e-9)+1, st.TempC)
+			}
+			if f >= r.FinalC || l.final[i+1] {
+				f = r.FinalC
+			}
+			h := 0.0
+			if l.hold[i+1] {
+				h = r.HoldMin
+			}
+			q.Ramps = append(q.Ramps, Ramp{RateCMin: r.RateCMin, FinalC: f, HoldMin: h})
+			return q, true
+		}
+		t += d
+		if t+r.HoldMin >= endMin-1e-12 {
+			h := ceilGrid(endMin-t, st.HoldMin)
+			if h > r.HoldMin || l.hold[i+1] {
+				h = r.HoldMin
+			}
+			q.Ramps = append(q.Ramps, Ramp{RateCMin: r.RateCMin, FinalC: r.FinalC, HoldMin: h})
+			return q, true
+		}
+		t += r.HoldMin
+		q.Ramps = append(q.Ramps, r)
+		prev = r.FinalC
+	}
+	n := len(q.Ramps)
+	if l.hold[n] {
+		return q, false
+	}
+	q.Ramps[n-1].HoldMin = ceilGrid(q.Ramps[n-1].HoldMin+endMin-t, st.HoldMin)
+	return q, true
+}
+
+// cutModel is the continuous form of cutOven used inside the search: prog
+// cut at end (s) without rounding, a run past the program stretching the
+// last hold. It writes into q.
+func cutModel(prog model.Program, end float64, q *model.Program) {
+	q.Initial, q.InitialHold = prog.Initial, prog.InitialHold
+	q.Ramps = q.Ramps[:0]
+	if end <= prog.InitialHold || len(prog.Ramps) == 0 {
+		q.InitialHold = math.Max(0, end)
+		return
+	}
+	t := prog.InitialHold
+	prev := prog.Initial
+	for _, r := range prog.Ramps {
+		d := (r.Final - prev) / r.Rate
+		if t+d >= end {
+			f := prev + r.Rate*(end-t)
+			if f > prev {
+				q.Ramps = append(q.Ramps, model.Ramp{Rate: r.Rate, Final: f})
+			}
+			return
+		}
+		t += d
+		if t+r.Hold >= end {
+			q.Ramps = append(q.Ramps, model.Ramp{Rate: r.Rate, Final: r.Final, Hold: end - t})
+			return
+		}
+		t += r.Hold
+		q.Ramps = append(q.Ramps, r)
+		prev = r.Final
+	}
+	q.Ramps[len(q.Ramps)-1].Hold += end - t
+}
