@@ -666,21 +666,20 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 	return oven, res.Feasible(), nil
 }
 
-// problem is the optimizer's problem for m with every instrument limit the
-// scouting runs keep: the highest temperature (detector − 20 °C,
-// max_isothermal_c, inlet pressure) and, when rate bands are given, the
-// slowest band's rate throughout (the search has one rate limit).
+// problem is the optimizer's problem for m (every instrument limit is a
+// hard constraint there) with two changes: the carrier setting is locked,
+// since the planner's uncertainty, scouting runs and runs-file block are
+// for the method's carrier; and the optimizer's own robust margin is off,
+// since the planner judges the margin itself from its posterior (evaluate)
+// and searches for it by raising the target and the worst-case method.
 func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
 	prob := methodsearch.Problem(m, sys)
-	// the plan weighs the tolerances and the parameters' uncertainty itself
-	// (evaluation) and keeps the method's carrier setting
 	prob.Robust = optimizer.Robust{}
-	prob.Lock = append(prob.Lock, optimizer.FlowLock)
-	sl := st.scoutLimits()
-	prob.Limits.MaxTemp = math.Min(prob.Limits.MaxTemp, sl.highC+model.ZeroCelsius)
-	if len(sl.bands) > 0 {
-		prob.Limits.MaxRate = math.Min(prob.Limits.MaxRate, sl.rateTo(sl.highC)/60)
+	kind := model.CarrierFlow
+	if m.Carrier.Mode == model.ConstantPressure {
+		kind = model.InletPressure
 	}
+	prob.Lock = append(prob.Lock, model.ProgramValue{Kind: kind})
 	return prob
 }
 
