@@ -666,20 +666,31 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 	return oven, res.Feasible(), nil
 }
 
-// problem is the optimizer's problem for m with every instrument limit the
-// scouting runs keep: the highest temperature (detector − 20 °C,
-// max_isothermal_c, inlet pressure) and, when rate bands are given, the
-// slowest band's rate throughout (the search has one rate limit).
+// problem is the optimizer's problem for m (every instrument limit and
+// the [goal.robust] margin are constraints there) with two changes: the
+// carrier setting is locked, since the planner's uncertainty, scouting runs
+// and runs-file block are for the method's carrier; and the retention part
+// of the optimizer's margin uses the planner's posterior covariance of each
+// compound (the runs and the prior combined) instead of the file's
+// standard errors. The planner then judges the margin once more with its
+// own z and the measurement's scatter (evaluate).
 func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
 	prob := methodsearch.Problem(m, sys)
-	// the plan weighs the tolerances and the parameters' uncertainty itself
-	// (evaluation) and keeps the method's carrier setting
-	prob.Robust = optimizer.Robust{}
-	prob.Lock = append(prob.Lock, optimizer.FlowLock)
-	sl := st.scoutLimits()
-	prob.Limits.MaxTemp = math.Min(prob.Limits.MaxTemp, sl.highC+model.ZeroCelsius)
-	if len(sl.bands) > 0 {
-		prob.Limits.MaxRate = math.Min(prob.Limits.MaxRate, sl.rateTo(sl.highC)/60)
+	kind := model.CarrierFlow
+	if m.Carrier.Mode == model.ConstantPressure {
+		kind = model.InletPressure
+	}
+	prob.Lock = append(prob.Lock, model.ProgramValue{Kind: kind})
+	if prob.Robust.Z > 0 && len(st.cov) == len(sys.Compounds) {
+		prob.Robust.Retention = make([]optimizer.RetentionSE, len(st.cov))
+		for i, c := range st.cov {
+			h, sd := math.Sqrt(math.Max(c.hh, 0)), math.Sqrt(math.Max(c.ss, 0))
+			corr := 0.0
+			if h > 0 && sd > 0 {
+				corr = math.Max(-1, math.Min(1, c.hs/(h*sd)))
+			}
+			prob.Robust.Retention[i] = optimizer.RetentionSE{DH: h, DS: sd, Corr: corr}
+		}
 	}
 	return prob
 }
