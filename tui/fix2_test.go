@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -10,18 +11,21 @@ import (
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
-// newAppFrom opens a testdata method saved to a temporary file, sized w×h.
+// newAppFrom opens a copy of a testdata method file (byte for byte), sized w×h.
 func newAppFrom(t *testing.T, file string, w, h int) *App {
 	t.Helper()
-	m, err := methodfile.ReadFile(filepath.Join("..", "testdata", file))
+	data, err := os.ReadFile(filepath.Join("..", "testdata", file))
 	if err != nil {
 		t.Fatal(err)
 	}
 	path := filepath.Join(t.TempDir(), file)
-	if err := methodfile.WriteFile(path, m); err != nil {
+	if err := os.WriteFile(path, data, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	m, _ = methodfile.ReadFile(path)
+	m, err := methodfile.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
 	a, err := New(m, Options{Path: path, Name: file, NoColor: true})
 	if err != nil {
 		t.Fatal(err)
@@ -64,5 +68,47 @@ func TestResultShowsCarrierChange(t *testing.T) {
 	}
 	if got := a.Method().Carrier.FlowMLMin; got != after {
 		t.Errorf("flow taken %g, want %g", got, after)
+	}
+}
+
+// Adding a coolant moves only a defaulted lowest start: an explicit
+// limits.oven_min_c (the demo's 35.0) stays, also in the saved file, and a
+// program starting below it is said as advice; a file without it follows
+// the coolant (coolant + 10 °C).
+func TestCoolantKeepsExplicitOvenMin(t *testing.T) {
+	a, path := newApp(t, 80, 24) // the demo sets oven_min_c = 35.0
+	pickSetting(t, a, "limits.coolant_c")
+	press(a, "-")
+	if got := a.Method().Limits.OvenMinC; got != 35 {
+		t.Fatalf("explicit oven_min_c became %g (%s)", got, a.message)
+	}
+	press(a, "esc", "ctrl+s")
+	m, err := methodfile.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !m.Limits.HasCoolant || m.Limits.OvenMinC != 35 {
+		t.Fatalf("saved limits %+v, want the coolant and oven_min_c 35", m.Limits)
+	}
+	a.setFocus(paneProgram)
+	a.program.list.sel = 0
+	press(a, "enter", "ctrl+u", "-20", "enter")
+	if a.Method().Oven.InitialC != -20 {
+		t.Fatalf("start -20 °C refused with a coolant: %s", a.message)
+	}
+	pickSetting(t, a, "limits.coolant_c")
+	press(a, "-") // another coolant temperature: the start is below the lowest
+	if got := a.Method().Limits.OvenMinC; got != 35 {
+		t.Fatalf("explicit oven_min_c became %g", got)
+	}
+	if !strings.Contains(a.message, "stays 35.0 °C") || !strings.Contains(a.message, "starts below it") {
+		t.Errorf("no advice about the start below the explicit lowest: %q", a.message)
+	}
+
+	b := newAppFrom(t, "commented.toml", 80, 24) // no oven_min_c: the default
+	pickSetting(t, b, "limits.coolant_c")
+	press(b, "-")
+	if got := b.Method().Limits.OvenMinC; got != defaultCoolantC+10 {
+		t.Errorf("defaulted oven_min_c %g, want it to follow the coolant to %g (%s)", got, defaultCoolantC+10, b.message)
 	}
 }

@@ -102,8 +102,11 @@ func fieldPrompt(f field) string {
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
 	editKey := f.key
+	if f.key == "limits.oven_min_c" {
+		sh.ovenMinGiven = true // typed or stepped: no longer the default
+	}
 	if f.after != nil {
-		if more := f.after(sh.method, m); more != "" {
+		if more := f.after(sh, sh.method, m); more != "" {
 			what = strings.TrimSpace(what) + " · " + more
 			editKey = "" // it changed other keys too: check all of it
 		}
