@@ -8,6 +8,7 @@ import (
 
 	tea "github.com/charmbracelet/bubbletea"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -110,5 +111,32 @@ func TestCoolantKeepsExplicitOvenMin(t *testing.T) {
 	press(b, "-")
 	if got := b.Method().Limits.OvenMinC; got != defaultCoolantC+10 {
 		t.Errorf("defaulted oven_min_c %g, want it to follow the coolant to %g (%s)", got, defaultCoolantC+10, b.message)
+	}
+}
+
+// The cryogen caution in the settings is never cut, at any size: either
+// whole (wrapped) or one whole sentence that points to !; no line of the
+// settings ends in "…" inside safety text.
+func TestCryogenCautionWhole(t *testing.T) {
+	for _, size := range [][2]int{{80, 24}, {120, 40}, {100, 30}} {
+		a, _ := newApp(t, size[0], size[1])
+		pickSetting(t, a, "carrier.gas")
+		press(a, "+") // hydrogen too: less room
+		pickSetting(t, a, "limits.coolant_c")
+		press(a, "-", "esc")
+		a.setFocus(paneSettings)
+		a.refresh()
+		s := screen(a)
+		flat := strings.Join(strings.Fields(s), " ")
+		whole := strings.Contains(flat, strings.Join(strings.Fields(model.CryogenCaution), " "))
+		short := strings.Contains(flat, cryogenShort)
+		if !whole && !short {
+			t.Errorf("%dx%d: the cryogen caution is neither whole nor pointed to:\n%s", size[0], size[1], s)
+		}
+		for _, l := range strings.Split(s, "\n") {
+			if strings.Contains(l, "⚠") && strings.HasSuffix(strings.TrimSpace(l), "…") {
+				t.Errorf("%dx%d: safety text cut: %q", size[0], size[1], l)
+			}
+		}
 	}
 }

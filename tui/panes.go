@@ -654,6 +654,10 @@ func (p *settingsPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	return p, nil
 }
 
+// cryogenShort stands for the coolant note and model.CryogenCaution where
+// the settings have no room for them whole.
+const cryogenShort = "coolant in use: cryogens cause cold burns and can asphyxiate; ! shows the coolant and safety cautions in full"
+
 func (p *settingsPane) render() {
 	p.list.clamp()
 	sh, st := p.list.sh, p.list.sh.st
@@ -670,9 +674,11 @@ func (p *settingsPane) render() {
 				lines = append(lines, st.Warn.Render(l))
 			}
 		} else {
-			tail := " · !: in full"
-			lines = append(lines, st.Warn.Render(ansi.Truncate(" ⚠ "+note, p.w-len(tail), "…")+tail),
-				st.Warn.Render(ansi.Truncate(" ⚠ "+model.CryogenCaution, p.w, "…")))
+			// safety text is never cut: without room for it whole, one
+			// whole sentence naming the hazards and where the text is
+			for _, l := range wrap(" ⚠ "+cryogenShort, p.w) {
+				lines = append(lines, st.Warn.Render(l))
+			}
 		}
 	}
 	if m.Carrier.Gas.Flammable() {
