@@ -656,7 +656,16 @@ func (p *settingsPane) Update(msg tea.Msg) (component, tea.Cmd) {
 
 // cryogenShort stands for the coolant note and model.CryogenCaution where
 // the settings have no room for them whole.
-const cryogenShort = "coolant in use: cryogens cause cold burns and can asphyxiate; ! shows the coolant and safety cautions in full"
+const cryogenShort = "cryogens cause cold burns and can asphyxiate; ! shows the coolant and safety cautions in full"
+
+// coolantShort is the whole sentence the settings show for the coolant
+// note and the cryogen caution when they have no room for them whole.
+func coolantShort(m *methodfile.Method) string {
+	if m.Oven.InitialC <= m.Limits.AmbientC {
+		return "a coolant is needed (the program starts below ambient): " + cryogenShort
+	}
+	return "coolant in use: " + cryogenShort
+}
 
 func (p *settingsPane) render() {
 	p.list.clamp()
@@ -676,7 +685,7 @@ func (p *settingsPane) render() {
 		} else {
 			// safety text is never cut: without room for it whole, one
 			// whole sentence naming the hazards and where the text is
-			for _, l := range wrap(" ⚠ "+cryogenShort, p.w) {
+			for _, l := range wrap(" ⚠ "+coolantShort(m), p.w) {
 				lines = append(lines, st.Warn.Render(l))
 			}
 		}
