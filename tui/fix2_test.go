@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -137,6 +138,28 @@ func TestCryogenCautionWhole(t *testing.T) {
 			if strings.Contains(l, "⚠") && strings.HasSuffix(strings.TrimSpace(l), "…") {
 				t.Errorf("%dx%d: safety text cut: %q", size[0], size[1], l)
 			}
+		}
+	}
+}
+
+// After a (add ramp) at 80×24 the new ramp's rate is selected and on the
+// screen, also when the earlier ramps fill the line.
+func TestAddRampSelectsIt(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	have := len(a.Method().Oven.Ramps)
+	for n := have + 1; n <= have+3; n++ {
+		press(a, "a")
+		m := a.Method()
+		if len(m.Oven.Ramps) != n {
+			t.Fatalf("a gave %d ramps, want %d: %s", len(m.Oven.Ramps), n, a.message)
+		}
+		f := programFields(m)[a.program.list.sel]
+		if f.ramp != n || f.pv.Kind != model.RampRate {
+			t.Fatalf("after adding ramp %d the selection is %s", n, f.key)
+		}
+		want := fmt.Sprintf("%d: [", n)
+		if s := screen(a); !strings.Contains(s, want) {
+			t.Errorf("ramp %d not shown selected (%q):\n%s", n, want, s)
 		}
 	}
 }

@@ -128,6 +128,9 @@ type programPane struct {
 	list  fieldList
 	w, h  int
 	lines []string
+	// added is the ramp count an added ramp gives (0: none pending): once
+	// the root has taken the edit, the selection moves to its rate
+	added int
 }
 
 func newProgramPane(sh *shared) *programPane {
@@ -142,6 +145,12 @@ func (p *programPane) View() string              { return strings.Join(p.lines, 
 func (p *programPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
 	case refreshMsg:
+		if p.added > 0 {
+			if n := len(p.list.sh.method.Oven.Ramps); n == p.added {
+				p.list.sel = 2 + 3*(n-1) // the new ramp's first value, its rate
+			}
+			p.added = 0
+		}
 		p.list.clamp()
 		p.render()
 	case tea.KeyMsg:
@@ -191,7 +200,7 @@ func (p *programPane) addRamp() {
 	}
 	m.Oven.Ramps = append(m.Oven.Ramps, methodfile.Ramp{RateCMin: rate, FinalC: final})
 	sh.send(editMsg{m: m, what: fmt.Sprintf("added ramp %d", len(m.Oven.Ramps))})
-	p.list.sel = len(programFields(m)) - 2 // its final temperature
+	p.added = len(m.Oven.Ramps) // selected once the edit is taken
 }
 
 func (p *programPane) removeRamp() {
