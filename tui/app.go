@@ -252,7 +252,8 @@ func (a *App) apply(m *methodfile.Method, what, key string) bool {
 		a.say(msgWarn, "%s · ⚠ hydrogen is flammable: see the caution above", what)
 	}
 	if m.Limits.HasCoolant && !prev.Limits.HasCoolant {
-		a.open(newCautionDialog(&a.sh)) // the cryogen cautions, in full
+		a.cautions()
+		a.open(newCautionsDialog(&a.sh)) // the cryogen cautions, in full
 	} else if below(m) && !below(prev) {
 		a.say(msgWarn, "%s · %s", what, checks.CoolantNote(m))
 	}

@@ -413,7 +413,7 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 	a.optSettings = optimizer.Settings{Workers: 1, Starts: 1, Evaluations: 200}
 	rng := rand.New(rand.NewPCG(42, 1))
 	names := []string{"right", "left", "up", "down", "enter", "esc", "tab", "shift+tab", "backspace", "pgdown", "pgup"}
-	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCocV")
+	runes := []rune("+-[]ax0123456789.-uUtsh jkl?qynvWFCoV!")
 	w, h := 90, 28
 	runs, _ := filepath.Abs("../testdata/scouting.toml")
 	verify, _ := filepath.Abs("../testdata/lab/verify.csv")

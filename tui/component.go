@@ -105,7 +105,6 @@ var (
 	_ component = (*helpDialog)(nil)
 	_ component = (*progressDialog)(nil)
 	_ component = (*cautionsDialog)(nil)
-	_ component = (*cautionDialog)(nil)
 	_ component = (*verifyDialog)(nil)
 	_ component = (*planDialog)(nil)
 )

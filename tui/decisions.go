@@ -66,7 +66,10 @@ type resultDialog struct {
 	after   *methodfile.Method
 	afterR  model.Result
 	showNew bool // the chart shows the optimized run
-	keys    ListKeys
+	// nowRob is the current program under the [goal.robust] tolerances
+	// (the optimized one's is res.Robust)
+	nowRob optimizer.RobustReport
+	keys   ListKeys
 	off     int
 	w, h    int
 	body    []string
@@ -128,7 +131,13 @@ func (d *resultDialog) render() {
 	if !d.showNew {
 		chart = "chart: current run"
 	}
-	title := ansi.Truncate(st.Focused.Render("▸optimizer result: ")+state+st.Dim.Render(fmt.Sprintf("  %d evaluations in %.2f s · %s", res.Evaluations, res.Elapsed.Seconds(), chart)), d.w, "…")
+	extra := fmt.Sprintf("  %d evaluations in %.2f s · %s", res.Evaluations, res.Elapsed.Seconds(), chart)
+	name := "▸optimizer result: "
+	if r := res.Robust; r.On && r.Corner != "" && !math.IsNaN(r.Worst) {
+		// which corner is the worst, where even 80 columns show it
+		name, extra = "▸optimizer: ", " · worst at "+r.Corner+" ·"+extra
+	}
+	title := ansi.Truncate(st.Focused.Render(name)+state+st.Dim.Render(extra), d.w, "…")
 	o := d.after.Oven
 	left := []string{st.TableHead.Render(fmt.Sprintf(" %-5s %7s %7s %8s", "step", "°C/min", "to °C", "hold min"))}
 	left = append(left, fmt.Sprintf(" %-5s %7s %7s %8s", "start", "", fmtNum(o.InitialC, 1, 2), fmtNum(o.InitialHoldMin, 2, 3)))
@@ -154,8 +163,29 @@ func (d *resultDialog) render() {
 		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
 		row("run time", fmt.Sprintf("%.2f min", now.RunTime/60), fmt.Sprintf("%.2f min", d.afterR.RunTime/60)),
 		row("cycle time", fmt.Sprintf("%.2f min", now.CycleTime/60), fmt.Sprintf("%.2f min", d.afterR.CycleTime/60)),
-		row("min Rs", rs(now), rs(&d.afterR)),
-		row("ramps", fmt.Sprint(len(d.sh.method.Oven.Ramps)), fmt.Sprint(len(o.Ramps))),
+	}
+	robust := res.Robust.On || d.nowRob.On
+	if robust {
+		// the robust margin ([goal.robust]): nominal, worst corner, Rs ± σ
+		worst := func(r optimizer.RobustReport) string {
+			if !r.On || math.IsNaN(r.Worst) {
+				return "-"
+			}
+			return format.RsNumber(r.Worst, target) + " " + format.Verdict(r.Worst, target)
+		}
+		sigma := func(r optimizer.RobustReport) string {
+			if !r.On || math.IsNaN(r.Sigma) || math.IsInf(r.Nominal, 0) {
+				return "-"
+			}
+			return fmt.Sprintf("%.2f ± %.2f", r.Nominal, r.Sigma)
+		}
+		right = append(right,
+			row("nominal Rs", rs(now), rs(&d.afterR)),
+			row("worst Rs", worst(d.nowRob), worst(res.Robust)),
+			row("Rs ± σ", sigma(d.nowRob), sigma(res.Robust)))
+	} else {
+		right = append(right, row("min Rs", rs(now), rs(&d.afterR)),
+			row("ramps", fmt.Sprint(len(d.sh.method.Oven.Ramps)), fmt.Sprint(len(o.Ramps))))
 	}
 	var body []string
 	for i := 0; i < max(len(left), len(right)); i++ {
@@ -167,6 +197,21 @@ func (d *resultDialog) render() {
 			r = right[i]
 		}
 		body = append(body, ansi.Truncate(padRight(l, lw)+"  "+r, d.w, "…"))
+	}
+	if robust {
+		corner := func(r optimizer.RobustReport) string {
+			if !r.On || r.Corner == "" || math.IsNaN(r.Worst) {
+				return "no instrument tolerance set"
+			}
+			return r.Corner
+		}
+		s := " worst corner: optimized " + corner(res.Robust) + " · now " + corner(d.nowRob)
+		if z := res.Robust.Z; z > 0 && !math.IsNaN(res.Robust.LowZ) {
+			s += fmt.Sprintf(" · lowest Rs − %gσ optimized %.2f", z, res.Robust.LowZ)
+		}
+		for _, l := range wrap(s, d.w) {
+			body = append(body, st.Info.Render(l))
+		}
 	}
 	for _, l := range wrap(" critical pair now "+rsText(d.sh, d.sh.sys, now)+" · optimized "+rsText(d.sh, d.sh.sys, &d.afterR), d.w) {
 		body = append(body, st.Info.Render(l))

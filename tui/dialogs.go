@@ -263,8 +263,6 @@ func dialogName(d component) string {
 	case *progressDialog:
 		return "background work"
 	case *cautionsDialog:
-	case *cautionDialog:
-		return "cautions"
 	case *verifyDialog:
 		return "verification run"
 	case *planDialog:

@@ -82,7 +82,7 @@ var screens = []struct {
 		press(a, "enter", "ctrl+u", "-40", "enter")
 		pickSetting(t, a, "limits.coolant_c")
 	}},
-	{"cautions", func(t *testing.T, a *App) {
+	{"coolant-added-cautions", func(t *testing.T, a *App) {
 		pickSetting(t, a, "limits.coolant_c")
 		press(a, "-")
 	}},

@@ -52,7 +52,7 @@ var globalTitles = []string{"everywhere", "work", "file and history"}
 
 // FieldKeys edit a list of values (the program and the settings).
 type FieldKeys struct {
-	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp, Sweep, Cautions key.Binding
+	Prev, Next, Up, Down, BigUp, BigDown, Type, AddRamp, DelRamp, Sweep key.Binding
 }
 
 // DefaultProgramKeys are the program pane's bindings.
@@ -82,7 +82,6 @@ func DefaultSettingsKeys() FieldKeys {
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
 		Type:    bind([]string{"enter"}, "enter", "type value"),
 		Sweep:    bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
-		Cautions: bind([]string{"c"}, "c", "cautions in full (coolant, hydrogen)"),
 	}
 }
 
@@ -99,7 +98,7 @@ func (k FieldKeys) ShortHelp() []key.Binding {
 func (k FieldKeys) FullHelp() [][]key.Binding {
 	// the second key of each pair (→, -, [) is named with the first
 	b := []key.Binding{k.Prev, k.Up, k.BigUp, k.Type}
-	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep, k.Cautions} {
+	for _, x := range []key.Binding{k.AddRamp, k.DelRamp, k.Sweep} {
 		if len(x.Keys()) > 0 {
 			b = append(b, x)
 		}

@@ -2,14 +2,9 @@ package tui
 
 import (
 	"fmt"
-	"strings"
 
-	"github.com/charmbracelet/bubbles/key"
-	tea "github.com/charmbracelet/bubbletea"
-	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
-	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -131,79 +126,4 @@ func kindDiffusivity(k model.ColumnKind) float64 {
 		return model.DefaultLayerDs
 	}
 	return model.DefaultDs
-}
-
-// --- the cautions dialog (c in settings) ---
-
-// cautionDialog shows the method's safety cautions in full, wrapped: the
-// coolant (checks.CoolantNote and model.CryogenCaution) and hydrogen
-// (model.HydrogenCaution). It opens by itself when a coolant is added.
-type cautionDialog struct {
-	sh    *shared
-	keys  ListKeys
-	off   int
-	w, h  int
-	body  []string
-	lines []string
-}
-
-func newCautionDialog(sh *shared) *cautionDialog {
-	k := scrollKeys(ListKeys{Reject: bind([]string{"esc", "q", "c", "enter"}, "esc/q", "close")})
-	return &cautionDialog{sh: sh, keys: k}
-}
-
-// cautions are the texts the dialog shows, each a paragraph.
-func cautions(m *methodfile.Method) []string {
-	var out []string
-	if note := checks.CoolantNote(m); note != "" {
-		out = append(out, note, model.CryogenCaution)
-	}
-	if m.Carrier.Gas.Flammable() {
-		out = append(out, model.HydrogenCaution)
-	}
-	return out
-}
-
-func (d *cautionDialog) ShortHelp() []key.Binding  { return []key.Binding{d.keys.Reject, d.keys.Up} }
-func (d *cautionDialog) FullHelp() [][]key.Binding { return [][]key.Binding{{d.keys.Reject, d.keys.Up, d.keys.PageDown}} }
-func (d *cautionDialog) View() string              { return strings.Join(d.lines, "\n") }
-func (d *cautionDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
-
-func (d *cautionDialog) Update(msg tea.Msg) (component, tea.Cmd) {
-	switch msg := msg.(type) {
-	case tea.KeyMsg:
-		if key.Matches(msg, d.keys.Reject) {
-			d.sh.send(closeMsg{})
-			return d, nil
-		}
-		scroll(&d.off, msg, d.keys, len(d.body), d.h-1)
-		d.render()
-	case refreshMsg:
-		d.render()
-	}
-	return d, nil
-}
-
-func (d *cautionDialog) render() {
-	st := d.sh.st
-	var body []string
-	for _, c := range cautions(d.sh.method) {
-		for i, l := range wrap(" ⚠ "+c, d.w-2) {
-			if i > 0 {
-				l = "  " + l
-			}
-			body = append(body, st.Warn.Render(ansi.Truncate(l, d.w, "…")))
-		}
-	}
-	if len(body) == 0 {
-		body = append(body, st.Info.Render(" no coolant and no flammable carrier: nothing to caution about here"))
-	}
-	d.body = body
-	rows := max(1, d.h-1)
-	d.off = max(0, min(d.off, len(body)-rows))
-	title := dialogTitle(st, "cautions", "  esc closes", d.w)
-	if len(body) > rows {
-		title = dialogTitle(st, "cautions", fmt.Sprintf("  ↑/↓ %d more · esc closes", len(body)-rows), d.w)
-	}
-	d.lines = fill(append([]string{title}, body[d.off:min(len(body), d.off+rows)]...), d.h)
 }

@@ -1,11 +1,14 @@
 package tui
 
 import (
+	"fmt"
+	"math"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -89,7 +92,7 @@ func TestCoolantAndCryogenCautions(t *testing.T) {
 	if !m.Limits.HasCoolant || m.Limits.CoolantC != defaultCoolantC || m.Limits.OvenMinC != defaultCoolantC+10 {
 		t.Fatalf("coolant: %+v (%s)", m.Limits, a.message)
 	}
-	if _, ok := a.overlay.(*cautionDialog); !ok {
+	if _, ok := a.overlay.(*cautionsDialog); !ok {
 		t.Fatalf("adding a coolant did not show the cautions: %T", a.overlay)
 	}
 	s := strings.Join(strings.Fields(screen(a)), " ")
@@ -112,9 +115,12 @@ func TestCoolantAndCryogenCautions(t *testing.T) {
 	if s := screen(a); !strings.Contains(s, "a coolant is needed") || !strings.Contains(s, "Cryogenic coolant") {
 		t.Errorf("settings do not show the coolant need:\n%s", s)
 	}
-	press(a, "c")
-	if _, ok := a.overlay.(*cautionDialog); !ok {
-		t.Fatalf("c did not open the cautions: %T", a.overlay)
+	press(a, "!")
+	if _, ok := a.overlay.(*cautionsDialog); !ok {
+		t.Fatalf("! did not open the cautions: %T", a.overlay)
+	}
+	if s := strings.Join(strings.Fields(screen(a)), " "); !strings.Contains(s, "asphyxiate") || !strings.Contains(s, "a coolant is needed") {
+		t.Errorf("the cautions lack the coolant:\n%s", screen(a))
 	}
 	press(a, "q")
 	if a.overlay != nil {
@@ -187,5 +193,34 @@ func TestOldRunFaintUnderResult(t *testing.T) {
 	press(a, "n")
 	if a.chart.faint || a.chart.prev != nil {
 		t.Error("the faint run stays after the result closed")
+	}
+}
+
+// With [goal.robust] the optimizer result shows, at 80×24, the nominal
+// Rs, the worst corner's Rs and which corner, and Rs ± σ, for the current
+// and the optimized program, the figures the optimizer reports.
+func TestResultShowsRobustFigures(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	if rb := a.Method().Goal.Robust; rb.OvenOffsetC == 0 || rb.RetentionSigma == 0 {
+		t.Fatalf("the demo's [goal.robust] is off: %+v", rb)
+	}
+	fastOptimizer(a)
+	press(a, "o")
+	d, ok := a.overlay.(*resultDialog)
+	if !ok {
+		t.Fatalf("no result: %s", a.message)
+	}
+	r := d.res.Robust
+	if !r.On || math.IsNaN(r.Worst) || r.Corner == "" || !d.nowRob.On {
+		t.Fatalf("robust report missing: %+v now %+v", r, d.nowRob)
+	}
+	s := screen(a)
+	target := a.Method().Goal.MinResolution
+	for _, want := range []string{"nominal Rs", "worst Rs", "Rs ± σ",
+		format.RsNumber(r.Worst, target), fmt.Sprintf("%.2f ± %.2f", r.Nominal, r.Sigma),
+		fmt.Sprintf("%.2f ± %.2f", d.nowRob.Nominal, d.nowRob.Sigma), "worst at " + r.Corner} {
+		if !strings.Contains(s, want) {
+			t.Errorf("80×24 result lacks %q:\n%s", want, s)
+		}
 	}
 }

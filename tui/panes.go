@@ -642,11 +642,8 @@ func (p *settingsPane) Update(msg tea.Msg) (component, tea.Cmd) {
 		p.render()
 	case tea.KeyMsg:
 		if !p.list.key(msg) {
-			switch {
-			case key.Matches(msg, p.list.keys.Sweep):
+			if key.Matches(msg, p.list.keys.Sweep) {
 				p.list.sh.send(startSweepMsg{spec: carrierSweep(p.list.sh.method)})
-			case key.Matches(msg, p.list.keys.Cautions):
-				p.list.sh.send(openMsg{newCautionDialog(p.list.sh)})
 			}
 		}
 		p.list.clamp()
@@ -662,11 +659,18 @@ func (p *settingsPane) render() {
 	focused := sh.focus == paneSettings
 	lines := []string{heading(st, focused, "settings", p.w, "  ↑/↓ choose · +/- change · enter types · s sweeps the flow or pressure")}
 	if note := checks.CoolantNote(m); note != "" {
-		// the cautions in full are one key away (c), and open by
+		// the cautions in full are one key away (!), and open by
 		// themselves when a coolant is added
-		tail := " · c: in full"
-		lines = append(lines, st.Warn.Render(ansi.Truncate(" ⚠ "+note, p.w-len(tail), "…")+tail),
-			st.Warn.Render(ansi.Truncate(" ⚠ "+model.CryogenCaution, p.w, "…")))
+		whole := append(wrap(" ⚠ "+note, p.w), wrap(" ⚠ "+model.CryogenCaution, p.w)...)
+		if p.h-len(lines)-len(whole) >= 4 { // room for them whole and three settings
+			for _, l := range whole {
+				lines = append(lines, st.Warn.Render(l))
+			}
+		} else {
+			tail := " · !: in full"
+			lines = append(lines, st.Warn.Render(ansi.Truncate(" ⚠ "+note, p.w-len(tail), "…")+tail),
+				st.Warn.Render(ansi.Truncate(" ⚠ "+model.CryogenCaution, p.w, "…")))
+		}
 	}
 	if m.Carrier.Gas.Flammable() {
 		// safety text is never cut: it wraps

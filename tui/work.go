@@ -380,6 +380,9 @@ func (a *App) optDone(v optOutcome) {
 	}
 	after := methodsearch.Apply(a.sh.method, v.res)
 	d := newResultDialog(&a.sh, v.res, after, v.res.Sim)
+	if rob, err := methodsearch.Robustness(a.sh.method, a.sh.sys); err == nil {
+		d.nowRob = rob // the current program under the same tolerances
+	}
 	a.open(d)
 	a.chart.Update(d.preview())
 	if v.res.Feasible() {
