@@ -65,3 +65,45 @@ func TestMisspelledNameWarnedByFitCheckPlan(t *testing.T) {
 		t.Fatalf("plan --json warnings lack the misspelling: %q", j.Warnings)
 	}
 }
+
+// Every command that prints a program prints its safety cautions: plan and
+// compare as simulate does (checks.Safety), here for the porous-layer demo
+// that starts below ambient on a cryogenic coolant.
+func TestCoolantCautionInPlanAndCompare(t *testing.T) {
+	cryo := "Cryogenic coolant"
+	code, out, errs := runCmd(t, "simulate", "../../testdata/demo-porous-layer.toml")
+	if code != 0 || !strings.Contains(out, cryo) {
+		t.Fatalf("simulate: exit %d, no cryogen caution:\n%s%s", code, out, errs)
+	}
+	code, out, errs = runCmd(t, "plan", "../../testdata/demo-porous-layer.toml")
+	if code != 0 || !strings.Contains(out, "caution: a coolant is needed") || !strings.Contains(out, cryo) {
+		t.Fatalf("plan: exit %d, no coolant caution:\n%s%s", code, out, errs)
+	}
+	code, out, errs = runCmd(t, "plan", "--json", "../../testdata/demo-porous-layer.toml")
+	var pj struct {
+		Cautions []string `json:"cautions"`
+	}
+	if code != 0 || json.Unmarshal([]byte(out), &pj) != nil || len(pj.Cautions) != 2 || !strings.Contains(pj.Cautions[1], cryo) {
+		t.Fatalf("plan --json: exit %d, cautions %q\n%s", code, pj.Cautions, errs)
+	}
+	code, out, errs = runCmd(t, "compare", "../../testdata/demo-porous-layer.toml", "../../testdata/demo.toml")
+	if code != 0 || !strings.Contains(out, "caution (row 1): a coolant is needed") || !strings.Contains(out, cryo) || strings.Contains(out, "row 2") {
+		t.Fatalf("compare: exit %d, want the coolant caution for the porous-layer row only:\n%s%s", code, out, errs)
+	}
+	code, out, errs = runCmd(t, "compare", "--json", "--gas", "helium,hydrogen", "../../testdata/demo.toml")
+	var cj struct {
+		Cautions   []string `json:"cautions"`
+		Candidates []struct {
+			Gas      string   `json:"gas"`
+			Cautions []string `json:"cautions"`
+		} `json:"candidates"`
+	}
+	if code != 0 || json.Unmarshal([]byte(out), &cj) != nil || len(cj.Cautions) != 1 || !strings.Contains(cj.Cautions[0], "Hydrogen") {
+		t.Fatalf("compare --json: exit %d, cautions %q\n%s", code, cj.Cautions, errs)
+	}
+	for _, c := range cj.Candidates {
+		if (c.Gas == "hydrogen") != (len(c.Cautions) == 1) {
+			t.Errorf("compare --json: %s row has cautions %q", c.Gas, c.Cautions)
+		}
+	}
+}
