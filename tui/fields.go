@@ -94,6 +94,16 @@ func (f field) text(m *methodfile.Method) string {
 	return fmtNum(v, f.digits, f.saved())
 }
 
+// shown is the value with its unit as the panes show it: "none" alone
+// for an optional value not set (no unit on nothing).
+func (f field) shown(m *methodfile.Method) string {
+	t := f.text(m)
+	if f.unit == "" || f.absent != nil && f.absent(m) {
+		return t
+	}
+	return t + " " + f.unit
+}
+
 // saved is how many decimals the field keeps.
 func (f field) saved() int {
 	if f.save > f.digits {

@@ -163,3 +163,27 @@ func TestAddRampSelectsIt(t *testing.T) {
 		}
 	}
 }
+
+// An optional value not set shows "none" alone, never "none °C"; a set
+// coolant shows at the oven's keypad precision like the other temperatures.
+func TestNoneWithoutUnit(t *testing.T) {
+	for _, size := range [][2]int{{80, 24}, {120, 40}} {
+		a, _ := newApp(t, size[0], size[1])
+		pickSetting(t, a, "limits.coolant_c")
+		s := screen(a)
+		if strings.Contains(s, "none °C") || !strings.Contains(s, "[none]") {
+			t.Errorf("%dx%d: coolant not shown as [none]:\n%s", size[0], size[1], s)
+		}
+		press(a, "-", "esc")
+		if s := screen(a); !strings.Contains(s, "[-50.0 °C]") {
+			t.Errorf("%dx%d: coolant not at keypad precision:\n%s", size[0], size[1], s)
+		}
+		if !strings.HasPrefix(a.message, "limits.coolant_c = -50.0 °C") {
+			t.Errorf("message %q", a.message)
+		}
+		press(a, "enter", "ctrl+u", "none", "enter")
+		if a.Method().Limits.HasCoolant || !strings.HasPrefix(a.message, "limits.coolant_c = none") || strings.Contains(a.message, "none °C") {
+			t.Errorf("clearing the coolant: %+v, %q", a.Method().Limits, a.message)
+		}
+	}
+}

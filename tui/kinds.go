@@ -42,7 +42,7 @@ const defaultCoolantC = -50.0
 // Adding one lowers a default lowest start temperature (ambient + 10 °C)
 // to the coolant + 10 °C, as the method file's default does.
 func coolantField() field {
-	return field{key: "limits.coolant_c", label: "oven coolant temperature", unit: "°C", digits: 0, step: 5, big: 10, fromNone: defaultCoolantC,
+	return field{key: "limits.coolant_c", label: "oven coolant temperature", unit: "°C", digits: 1, step: 5, big: 10, fromNone: defaultCoolantC,
 		get:    func(m *methodfile.Method) float64 { return m.Limits.CoolantC },
 		set:    func(m *methodfile.Method, v float64) { m.Limits.CoolantC, m.Limits.HasCoolant = v, true },
 		absent: func(m *methodfile.Method) bool { return !m.Limits.HasCoolant },
@@ -60,10 +60,10 @@ func coolantField() field {
 			switch {
 			case l.HasCoolant && l.OvenMinC == sinkOf(before)+10 && l.OvenMinC != l.CoolantC+10:
 				l.OvenMinC = l.CoolantC + 10
-				return fmt.Sprintf("lowest start temperature follows: %s °C", trimNum(l.OvenMinC))
+				return fmt.Sprintf("lowest start temperature follows: %s °C", fmtNum(l.OvenMinC, 1, 1))
 			case !l.HasCoolant && before.Limits.HasCoolant && l.OvenMinC == before.Limits.CoolantC+10:
 				l.OvenMinC = l.AmbientC + 10
-				return fmt.Sprintf("lowest start temperature follows: %s °C", trimNum(l.OvenMinC))
+				return fmt.Sprintf("lowest start temperature follows: %s °C", fmtNum(l.OvenMinC, 1, 1))
 			}
 			return ""
 		}}

@@ -100,7 +100,7 @@ func fieldPrompt(f field) string {
 // time (under the program, as the status line shows it) stays what it was,
 // as nearly as the keypad step allows.
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
-	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
+	what := fmt.Sprintf("%s = %s", f.key, f.shown(m))
 	editKey := f.key
 	if f.key == "limits.oven_min_c" {
 		sh.ovenMinGiven = true // typed or stepped: no longer the default
@@ -233,7 +233,7 @@ func (p *programPane) render() {
 	fs := programFields(m)
 	focused := sh.focus == paneProgram
 	val := func(i int) string {
-		s := fs[i].text(m) + " " + fs[i].unit
+		s := fs[i].shown(m)
 		switch {
 		case i == p.list.sel && focused:
 			return selected(st, s)
@@ -711,7 +711,7 @@ func (p *settingsPane) render() {
 		prog := m.ModelProgram()
 		lo, hi := sh.sys.Cond.InletGauge(prog.Initial)/1000, sh.sys.Cond.InletGauge(prog.MaxTemp())/1000
 		lines = append(lines, ansi.Truncate(st.Label.Render(fmt.Sprintf("  %-30s ", "inlet pressure (gauge), derived"))+
-			st.Value.Render(fmt.Sprintf(" %.1f kPa at %s °C → %.1f kPa at %s °C", lo, trimNum(m.Oven.InitialC), hi, trimNum(prog.MaxTemp()-model.ZeroCelsius-0))), p.w, "…"))
+			st.Value.Render(fmt.Sprintf(" %.1f kPa at %s °C → %.1f kPa at %s °C", lo, fmtNum(m.Oven.InitialC, 1, 2), hi, fmtNum(prog.MaxTemp()-model.ZeroCelsius, 1, 2))), p.w, "…"))
 	}
 	rows := p.h - len(lines)
 	first := 0
@@ -720,7 +720,7 @@ func (p *settingsPane) render() {
 	}
 	for i := first; i < len(fs) && i < first+rows; i++ {
 		f := fs[i]
-		v := f.text(m) + " " + f.unit
+		v := f.shown(m)
 		mark := " "
 		if i == p.list.sel && focused {
 			v, mark = selected(st, strings.TrimSpace(v)), "›"

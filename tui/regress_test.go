@@ -364,7 +364,7 @@ func TestInletShownInConstantFlow(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
 	press(a, "shift+tab")
 	s := screen(a)
-	if !strings.Contains(s, "inlet pressure (gauge), derived") || !strings.Contains(s, "kPa at 50 °C") || !strings.Contains(s, "kPa at 240 °C") {
+	if !strings.Contains(s, "inlet pressure (gauge), derived") || !strings.Contains(s, "kPa at 50.0 °C") || !strings.Contains(s, "kPa at 240.0 °C") {
 		t.Errorf("inlet pressure not shown in constant-flow mode:\n%s", s)
 	}
 }
