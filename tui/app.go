@@ -664,7 +664,12 @@ func (a *App) View() string {
 		if a.overlay != nil && a.overlay == a.quitQ {
 			s += "\nUnsaved changes: s save and quit · d discard and quit · esc stay."
 		}
-		return s
+		// wrapped to the terminal: the terminal cuts what is wider
+		var out []string
+		for _, l := range strings.Split(s, "\n") {
+			out = append(out, wrap(l, max(a.width, 20))...)
+		}
+		return strings.Join(out, "\n")
 	}
 	v := &a.view
 	parts := []string{v.title, v.method, a.program.View()}

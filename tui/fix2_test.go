@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
@@ -184,6 +185,29 @@ func TestNoneWithoutUnit(t *testing.T) {
 		press(a, "enter", "ctrl+u", "none", "enter")
 		if a.Method().Limits.HasCoolant || !strings.HasPrefix(a.message, "limits.coolant_c = none") || strings.Contains(a.message, "none °C") {
 			t.Errorf("clearing the coolant: %+v, %q", a.Method().Limits, a.message)
+		}
+	}
+}
+
+// On a terminal smaller than 80×24 the message fits its width whole (the
+// terminal would cut a longer line): both sizes are said.
+func TestTooSmallMessageWhole(t *testing.T) {
+	for _, size := range [][2]int{{60, 20}, {40, 12}, {79, 30}} {
+		a, _ := newApp(t, 80, 24)
+		press(a, "-") // unsaved: q asks
+		a.Update(tea.WindowSizeMsg{Width: size[0], Height: size[1]})
+		press(a, "q")
+		v := a.View()
+		for _, l := range strings.Split(v, "\n") {
+			if w := ansi.StringWidth(l); w > size[0] {
+				t.Errorf("%dx%d: line %q is %d wide", size[0], size[1], l, w)
+			}
+		}
+		flat := strings.Join(strings.Fields(v), " ")
+		for _, want := range []string{fmt.Sprintf("at least %d×%d", MinWidth, MinHeight), fmt.Sprintf("this one is %d×%d.", size[0], size[1]), "q quits", "d discard and quit"} {
+			if !strings.Contains(flat, want) {
+				t.Errorf("%dx%d: %q missing:\n%s", size[0], size[1], want, v)
+			}
 		}
 	}
 }
