@@ -135,13 +135,24 @@ func (d *resultDialog) render() {
 	if !d.showNew {
 		chart = "chart: current run"
 	}
-	extra := fmt.Sprintf("  %d evaluations in %.2f s · %s", res.Evaluations, res.Elapsed.Seconds(), chart)
-	name := "▸optimizer result: "
+	// whole items only: what does not fit is left out, never cut
+	name, worst := "▸optimizer result: ", ""
 	if r := res.Robust; r.On && r.Corner != "" && !math.IsNaN(r.Worst) {
 		// which corner is the worst, where even 80 columns show it
-		name, extra = "▸optimizer: ", " · worst at "+r.Corner+" ·"+extra
+		name, worst = "▸optimizer: ", "worst at "+r.Corner
 	}
-	title := ansi.Truncate(st.Focused.Render(name)+state+st.Dim.Render(extra), d.w, "…")
+	head := st.Focused.Render(name) + state
+	title := func(more string) string {
+		items := []string{""}
+		if worst != "" {
+			items = append(items, worst)
+		}
+		if more != "" {
+			items = append(items, more)
+		}
+		items = append(items, fmt.Sprintf("%d evaluations in %.2f s", res.Evaluations, res.Elapsed.Seconds()), chart)
+		return fitTitle(head, st.Dim, strings.Join(items, " · "), d.w)
+	}
 	o := d.after.Oven
 	left := []string{st.TableHead.Render(fmt.Sprintf(" %-5s %7s %7s %8s", "step", "°C/min", "to °C", "hold min"))}
 	left = append(left, fmt.Sprintf(" %-5s %7s %7s %8s", "start", "", fmtNum(o.InitialC, 1, 2), fmtNum(o.InitialHoldMin, 2, 3)))
@@ -231,9 +242,9 @@ func (d *resultDialog) render() {
 	d.body = body
 	rows := d.h - 1
 	d.off = max(0, min(d.off, len(body)-rows))
-	lines := []string{title}
+	lines := []string{title("")}
 	if len(body) > rows && rows > 0 {
-		lines[0] = ansi.Truncate(title+st.Dim.Render(fmt.Sprintf(" · ↑/↓ %d more", len(body)-rows)), d.w, "…")
+		lines[0] = title(fmt.Sprintf("↑/↓ %d more", len(body)-rows))
 	}
 	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
 	d.lines = fill(lines, d.h)
@@ -329,7 +340,7 @@ func (d *fitDialog) render() {
 	st := d.sh.st
 	rep := d.fit.rep
 	m := rep.Method
-	title := dialogTitle(st, "calibration", fmt.Sprintf("  in elution order · diameter %s mm · plate-height factor %s · ⚠ large ± (over %g kJ/mol or %g J/(mol·K))",
+	title := dialogTitle(st, "calibration", fmt.Sprintf("  diameter %s mm · plate-height factor %s · ⚠ large ± over %g kJ/mol or %g J/(mol·K) · in elution order",
 		fmtNum(m.Column.DiameterMM, 3, 4), fmtNum(m.Column.PlateHeight, 2, 3), largeErrDH, largeErrDS), d.w)
 	rsLine := st.Info.Render(ansi.Truncate(fmt.Sprintf(" min Rs now %s → %s with the fitted values (target %.2f)", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim), m.Goal.MinResolution), d.w, "…"))
 	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH "+format.UnitDH, "±", "ΔS "+format.UnitDS, "±", "runs", "rms min"), d.w, "…"))

@@ -20,7 +20,32 @@ import (
 
 // title is a dialog's first line.
 func dialogTitle(st *Styles, name, extra string, w int) string {
-	return ansi.Truncate(st.Focused.Render("▸"+name)+st.Dim.Render(extra), w, "…")
+	return fitTitle(st.Focused.Render("▸"+name), st.Dim, extra, w)
+}
+
+// fitTitle is head followed by the " · "-separated items of extra that fit
+// in w, whole: an item that does not fit is left out (the keys are in the
+// footer and ? anyway), never cut in the middle.
+func fitTitle(head string, style lipgloss.Style, extra string, w int) string {
+	if ansi.StringWidth(head)+ansi.StringWidth(extra) <= w {
+		return head + style.Render(extra)
+	}
+	items := strings.Split(extra, " · ")
+	out := ""
+	for i, it := range items {
+		next := out + it
+		if i > 0 {
+			next = out + " · " + it
+		}
+		if ansi.StringWidth(head)+ansi.StringWidth(next) > w {
+			break
+		}
+		out = next
+	}
+	if ansi.StringWidth(head) > w {
+		return ansi.Truncate(head, w, "…")
+	}
+	return head + style.Render(out)
 }
 
 // --- confirm: a question with a few answers ---

@@ -211,3 +211,20 @@ func TestTooSmallMessageWhole(t *testing.T) {
 		}
 	}
 }
+
+// No title line of a pane or a dialog (the lines starting with ▸) is cut
+// with "…" at 80×24 or 120×40: whole items are left out instead.
+func TestTitlesNotCut(t *testing.T) {
+	for _, sc := range screens {
+		for _, size := range [][2]int{{80, 24}, {120, 40}} {
+			a, _ := newApp(t, size[0], size[1])
+			sc.setup(t, a)
+			a.refresh()
+			for _, l := range strings.Split(screen(a), "\n") {
+				if strings.HasPrefix(l, "▸") && strings.HasSuffix(strings.TrimSpace(l), "…") {
+					t.Errorf("%s %dx%d: title cut: %q", sc.name, size[0], size[1], l)
+				}
+			}
+		}
+	}
+}

@@ -143,7 +143,7 @@ func (d *verifyDialog) FullHelp() [][]key.Binding {
 }
 func (d *verifyDialog) View() string     { return strings.Join(d.lines, "\n") }
 func (d *verifyDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
-func (d *verifyDialog) rows() int        { return max(1, d.h-2) }
+func (d *verifyDialog) rows() int        { return max(1, d.h-1-len(d.title())) }
 
 func (d *verifyDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
@@ -231,6 +231,23 @@ func (d *verifyDialog) body() []string {
 }
 
 func (d *verifyDialog) render() {
+	st := d.sh.st
+	title := d.title()
+	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-20s %s %8s %8s %7s  %-15s", "#", "compound", "t", "pred min", "meas min", "Δt min", " Rs pred   meas"), d.w, "…"))
+	body := d.body()
+	rows := d.rows()
+	d.off = max(0, min(d.off, len(body)-rows))
+	if len(body) > rows {
+		head = ansi.Truncate(head+st.Dim.Render(fmt.Sprintf("  %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))), d.w, "…")
+	}
+	lines := append(title, head)
+	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
+	d.lines = fill(lines, d.h)
+}
+
+// title is the verdict and the measured critical pair, wrapped whole (at
+// most two lines); the legend follows when it fits whole.
+func (d *verifyDialog) title() []string {
 	st, ck := d.sh.st, d.v.ck
 	verdict := st.Good.Render("target met as measured")
 	if !ck.Met {
@@ -240,16 +257,15 @@ func (d *verifyDialog) render() {
 	if !math.IsNaN(ck.MinResolution) {
 		rs = fmt.Sprintf("min Rs %s %s", format.RsNumber(ck.MinResolution, ck.Target), format.CriticalPair(inert(ck.Critical[0]), inert(ck.Critical[1])))
 	}
-	title := ansi.Truncate(st.Focused.Render("▸verification "+inert(ck.Run.Name)+": ")+verdict+
-		st.Dim.Render(fmt.Sprintf(" · %s, target %s · Δt = measured − predicted · * widths predicted", rs, format.Target(ck.Target))), d.w, "…")
-	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-20s %s %8s %8s %7s  %-15s", "#", "compound", "t", "pred min", "meas min", "Δt min", " Rs pred   meas"), d.w, "…"))
-	body := d.body()
-	rows := d.rows()
-	d.off = max(0, min(d.off, len(body)-rows))
-	if len(body) > rows {
-		head = ansi.Truncate(head+st.Dim.Render(fmt.Sprintf("  %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))), d.w, "…")
+	rs += ", target " + format.Target(ck.Target)
+	head := st.Focused.Render("▸verification "+inert(ck.Run.Name)+": ") + verdict
+	legend := " · Δt = measured − predicted · * widths predicted"
+	if one := head + st.Dim.Render(" · "+rs); ansi.StringWidth(one) <= d.w {
+		return []string{fitTitle(one, st.Dim, legend, d.w)}
 	}
-	lines := []string{title, head}
-	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
-	d.lines = fill(lines, d.h)
+	second := wrapStyled(" "+rs, d.w)
+	if len(second) > 1 {
+		return []string{ansi.Truncate(head, d.w, "…"), ansi.Truncate(" "+rs, d.w, "…")}
+	}
+	return []string{ansi.Truncate(head, d.w, "…"), fitTitle(st.Dim.Render(second[0]), st.Dim, legend, d.w)}
 }
