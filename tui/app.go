@@ -512,8 +512,10 @@ func (a *App) globalKey(msg tea.KeyMsg) (tea.Cmd, bool) {
 		a.open(newPrompt(&a.sh, "verification run (peak table, .cdf chromatogram or runs .toml): ", "", func(text string) tea.Msg { return startVerifyMsg{path: strings.TrimSpace(text)} }))
 	case key.Matches(msg, k.Compare):
 		m := a.sh.method
-		a.open(newPrompt(&a.sh, "columns to compare (lengths m, diameters mm, films µm): ",
-			fmt.Sprintf("%g,%g", m.Column.LengthM/2, m.Column.LengthM), func(text string) tea.Msg { return startCompareMsg{text: text} }))
+		p := newPrompt(&a.sh, "columns to compare: ",
+			fmt.Sprintf("%g,%g", m.Column.LengthM/2, m.Column.LengthM), func(text string) tea.Msg { return startCompareMsg{text: text} })
+		p.note = " lengths m, then diameters mm, then films µm: commas within a group, a space between the groups (15,30 0.25,0.32); a group left out keeps the method's"
+		a.open(p)
 	default:
 		return nil, false
 	}

@@ -108,6 +108,7 @@ func (d *confirmDialog) render() {
 
 type promptDialog struct {
 	sh    *shared
+	note  string // how to type the value, shown whole under the title
 	ti    textinput.Model
 	done  func(text string) tea.Msg
 	keys  struct{ Enter, Cancel key.Binding }
@@ -167,7 +168,13 @@ func (d *promptDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 func (d *promptDialog) render() {
 	st := d.sh.st
 	title := strings.TrimSuffix(strings.TrimSpace(d.ti.Prompt), ":")
-	lines := []string{dialogTitle(st, title, "  enter sets · esc leaves it", d.w), ansi.Truncate(d.ti.View(), d.w, "…")}
+	lines := []string{dialogTitle(st, title, "  enter sets · esc leaves it", d.w)}
+	if d.note != "" {
+		for _, l := range wrap(d.note, d.w) { // how to type it, whole
+			lines = append(lines, st.Dim.Render(l))
+		}
+	}
+	lines = append(lines, ansi.Truncate(d.ti.View(), d.w, "…"))
 	v := inert(d.ti.Value())
 	if lipgloss.Width(v) > d.ti.Width {
 		lines = append(lines, st.Dim.Render(" in full:"))

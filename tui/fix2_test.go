@@ -228,3 +228,31 @@ func TestTitlesNotCut(t *testing.T) {
 		}
 	}
 }
+
+// The C prompt says how the groups are separated, whole at 80×24; a save
+// as refused (an existing file not written here) replaces the last message.
+func TestComparePromptAndRefusedSaveAs(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	press(a, "C")
+	flat := strings.Join(strings.Fields(screen(a)), " ")
+	if !strings.Contains(flat, "a space between the groups") {
+		t.Errorf("C prompt does not say the groups are separated by a space:\n%s", screen(a))
+	}
+	press(a, "esc")
+	other := filepath.Join(t.TempDir(), "other.toml")
+	if err := os.WriteFile(other, []byte("# someone else's\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	a.say(msgGood, "exported e.png (figure) and e.md (method sheet)")
+	press(a, "W", "ctrl+u", other, "enter")
+	if strings.Contains(a.message, "exported") || !strings.Contains(a.message, "not saved") {
+		t.Errorf("while asking to replace, the message is %q", a.message)
+	}
+	press(a, "n")
+	if strings.Contains(a.message, "exported") || !strings.Contains(a.message, "not saved") {
+		t.Errorf("after refusing, the message is %q", a.message)
+	}
+	if b, _ := os.ReadFile(other); string(b) != "# someone else's\n" {
+		t.Errorf("the other file changed: %q", b)
+	}
+}

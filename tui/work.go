@@ -201,9 +201,11 @@ func (a *App) saveAs(path string, quit bool) tea.Cmd {
 		return nil
 	}
 	if _, err := os.Stat(path); err == nil && !a.wrote[path] {
+		// the message line says this save, not what was said before
+		a.say(msgWarn, "%s exists and was not written here: not saved yet", inert(path))
 		a.open(newConfirm(&a.sh, "replace "+inert(path)+"?", "it exists and was not written here", []choice{
 			{keys: []string{"y"}, label: "replace it", msgs: []tea.Msg{saveMsg{path: path, quit: quit}}},
-			{keys: []string{"n", "esc"}, label: "choose another name", msgs: []tea.Msg{openMsg{a.saveAsPrompt(quit)}}},
+			{keys: []string{"n", "esc"}, label: "choose another name", msgs: []tea.Msg{sayMsg{msgInfo, "not saved: " + inert(path) + " kept as it was; choose another name"}, openMsg{a.saveAsPrompt(quit)}}},
 		}))
 		return nil
 	}
