@@ -14,6 +14,7 @@ import (
 	"text/tabwriter"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/textsafe"
@@ -69,6 +70,9 @@ type candidateJSON struct {
 	Program       programJSON `json:"program"`
 	Explanation   string      `json:"explanation,omitempty"`
 	Error         string      `json:"error,omitempty"`
+	// Cautions are the safety notes for this row's program and carrier
+	// (checks.Safety), as simulate prints them.
+	Cautions []string `json:"cautions,omitempty"`
 }
 
 func parseList(name, s string) ([]float64, error) {
@@ -196,6 +200,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 		oven := after.Oven
+		j.Cautions = checks.Safety(after)
 		j.Carrier = carrierToJSON(after.Carrier)
 		j.Robust = robustToJSON(r.Robust)
 		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
@@ -234,18 +239,27 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 	}
-	hydrogen := false
-	for _, j := range rows {
-		if j.Gas == "hydrogen" {
-			hydrogen = true
+	// the safety notes of every listed program: each distinct one once,
+	// with the rows it applies to
+	var cautions []string
+	cautionRows := map[string][]string{}
+	for i, j := range rows {
+		if j.Gas == "hydrogen" && j.Error != "" {
+			j.Cautions = []string{model.HydrogenCaution}
+		}
+		for _, c := range j.Cautions {
+			if _, ok := cautionRows[c]; !ok {
+				cautions = append(cautions, c)
+			}
+			cautionRows[c] = append(cautionRows[c], strconv.Itoa(i+1))
 		}
 	}
 	if *asJSON {
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
 		out := map[string]any{"candidates": rows}
-		if hydrogen {
-			out["cautions"] = []string{model.HydrogenCaution}
+		if len(cautions) > 0 {
+			out["cautions"] = cautions
 		}
 		return enc.Encode(out)
 	}
@@ -283,8 +297,15 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			fmt.Fprintf(stdout, "%d: %s\n", i+1, textsafe.Inert(j.Explanation))
 		}
 	}
-	if hydrogen {
-		fmt.Fprintf(stdout, "caution: %s\n", model.HydrogenCaution)
+	for _, c := range cautions {
+		who := "rows " + strings.Join(cautionRows[c], ", ")
+		if len(cautionRows[c]) == 1 {
+			who = "row " + cautionRows[c][0]
+		}
+		if len(cautionRows[c]) == len(rows) {
+			who = "all rows"
+		}
+		fmt.Fprintf(stdout, "caution (%s): %s\n", who, textsafe.Inert(c))
 	}
 	return nil
 }

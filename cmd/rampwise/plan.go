@@ -12,6 +12,7 @@ import (
 	"syscall"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/textsafe"
 	"github.com/rampwise/rampwise/optimizer"
@@ -66,6 +67,12 @@ type planJSON struct {
 	EstimatedFromFormula  []string    `json:"estimated_from_formula"`
 	RetentionTimeSDMin    float64     `json:"retention_time_sd_min"`
 	RunName               string      `json:"run_name,omitempty"`
+	// Warnings are the fit's warnings on the runs (a misspelled name left
+	// out, a poorly determined compound, ...), as fit prints them.
+	Warnings []string `json:"warnings"`
+	// Cautions are the safety notes for the planned program and carrier
+	// (hydrogen, coolant and cryogen), as simulate prints them.
+	Cautions []string `json:"cautions"`
 }
 
 func carrierToJSON(c methodfile.Carrier) carrierJSON {
@@ -124,6 +131,7 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 			TargetResolution: m.Goal.MinResolution, CriticalPair: []string{}, Optimized: programToJSON(p.Optimized),
 			VerifiedBy: p.VerifiedBy, EstimatedFromFormula: append([]string{}, p.Estimated...),
 			RetentionTimeSDMin: round(p.RetentionSDMin, 5), RunName: runName,
+			Warnings: planWarnings(p), Cautions: append([]string{}, checks.Safety(p.Method)...),
 		}
 		if p.Action == plan.Inject {
 			j.ExpectedSDAfter = finiteOrNil(round(p.SDAfter, 3))
@@ -194,14 +202,27 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 		}
 		fmt.Fprintf(w, "estimated from the formula only (rough, about ± 8 kJ/mol in ΔH): %s\n", strings.Join(names, ", "))
 	}
+	for _, x := range planWarnings(p) {
+		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(x))
+	}
 	if p.Action != plan.Done {
 		fmt.Fprintln(w, "\nonce the run is made, add it to the runs file with the measured times:")
 		fmt.Fprint(w, plan.RunBlock(runName, p.Oven, m.Limits, p.Compounds))
 		fmt.Fprintln(w, "\nThe oven and inlet are hot; never program above the column's maximum temperature.")
-		if p.Carrier.Gas == model.Hydrogen {
-			fmt.Fprintln(w, "Hydrogen carrier is flammable: leak-check, use a hydrogen sensor and follow the instrument maker's guidance and local codes.")
-		}
 	}
+	for _, c := range checks.Safety(p.Method) {
+		fmt.Fprintf(w, "caution: %s\n", textsafe.Inert(c))
+	}
+}
+
+// planWarnings are the warnings of the fit of the runs the plan rests on
+// (empty without runs).
+func planWarnings(p *plan.Plan) []string {
+	out := []string{}
+	if p.Fit != nil {
+		out = append(out, p.Fit.Warnings...)
+	}
+	return out
 }
 
 func describeCarrier(c methodfile.Carrier) string {

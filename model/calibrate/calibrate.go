@@ -189,7 +189,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 	}
 
 	// 2. names the method lacks
-	rep.Warnings = append(rep.Warnings, checkNames(out, runs, opt)...)
+	rep.Warnings = append(rep.Warnings, checkNames(out, runs, opt, "the fit")...)
 
 	// 3. assignment of unnamed peaks, alternating with the fit
 	start := out.Clone()

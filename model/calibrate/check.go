@@ -61,7 +61,7 @@ func Verify(m *methodfile.Method, run *methodfile.Run) (*Check, error) {
 	runs := (&methodfile.Runs{File: "", Runs: []methodfile.Run{*run}}).CloneRuns()
 	ck := &Check{Target: m.Goal.MinResolution, MinResolution: math.NaN()}
 	rep := &Report{}
-	ck.Warnings = append(ck.Warnings, checkNames(m, runs, Options{})...)
+	ck.Warnings = append(ck.Warnings, checkNames(m, runs, Options{}, "the comparison")...)
 	st, err := setups(m, runs)
 	if err != nil {
 		return nil, err

@@ -61,7 +61,10 @@ func likelyTypo(name string, d int) bool {
 // retention), in [run.retention_min] it is left out; Options.AddUnknown
 // keeps it instead. Other names stay and are added as non-targets when
 // fitted (never as targets).
-func checkNames(m *methodfile.Method, runs *methodfile.Runs, opt Options) []string {
+//
+// purpose words what a left-out name is left out of ("the fit", "the
+// comparison"); each run is named with the file and line of the name.
+func checkNames(m *methodfile.Method, runs *methodfile.Runs, opt Options, purpose string) []string {
 	type note struct {
 		runs []string
 		what string
@@ -75,9 +78,17 @@ func checkNames(m *methodfile.Method, runs *methodfile.Runs, opt Options) []stri
 		}
 		n.runs = append(n.runs, run)
 	}
+	where := func(r *methodfile.Run, name string) string {
+		q := fmt.Sprintf("%q", r.Name)
+		if w := r.NameWhere(name); w != "" {
+			q += " (" + w + ")"
+		}
+		return q
+	}
 	for ri := range runs.Runs {
 		r := &runs.Runs[ri]
 		for _, name := range append([]string(nil), r.Names()...) {
+			rn := where(r, name)
 			if compoundIndex(m, name) >= 0 {
 				continue
 			}
@@ -89,24 +100,24 @@ func checkNames(m *methodfile.Method, runs *methodfile.Runs, opt Options) []stri
 			switch {
 			case near != "" && d == 0:
 				if _, dup := r.Retention[near]; dup {
-					add(name, r.Name, fmt.Sprintf("%q is not in the method and %q is measured too; left out", name, near))
+					add(name, rn, fmt.Sprintf("%q is not in the method and %q is measured too; left out", name, near))
 					r.DeleteRetention(name)
 					continue
 				}
 				r.DeleteRetention(name)
 				r.SetRetention(near, t, w)
 				renamePeak(r, name, near)
-				add(name, r.Name, fmt.Sprintf("%q taken as the method's %q", name, near))
+				add(name, rn, fmt.Sprintf("%q taken as the method's %q", name, near))
 			case near != "" && likelyTypo(name, d) && !opt.AddUnknown:
 				r.DeleteRetention(name)
 				if r.Source != "" {
 					renamePeak(r, name, "")
-					add(name, r.Name, fmt.Sprintf("%q is not in the method; did you mean %q? treated as an unnamed peak and assigned by retention (correct the name, or give --add-unknown to add it as a non-target)", name, near))
+					add(name, rn, fmt.Sprintf("%q is not in the method; did you mean %q? treated as an unnamed peak and assigned by retention (correct the name, or give --add-unknown to add it as a non-target)", name, near))
 				} else {
-					add(name, r.Name, fmt.Sprintf("%q is not in the method; did you mean %q? left out of the fit (correct the name, or give --add-unknown to add it as a non-target)", name, near))
+					add(name, rn, fmt.Sprintf("%q is not in the method; did you mean %q? left out of "+purpose+" (correct the name, or give --add-unknown to add it as a non-target)", name, near))
 				}
 			case near != "" && likelyTypo(name, d):
-				add(name, r.Name, fmt.Sprintf("%q is not in the method (nearest %q); kept as a separate compound as --add-unknown asks: added as a non-target when seen in two runs", name, near))
+				add(name, rn, fmt.Sprintf("%q is not in the method (nearest %q); kept as a separate compound as --add-unknown asks: added as a non-target when seen in two runs", name, near))
 			}
 		}
 	}
@@ -118,7 +129,7 @@ func checkNames(m *methodfile.Method, runs *methodfile.Runs, opt Options) []stri
 	var out []string
 	for _, k := range keys {
 		n := notes[k]
-		out = append(out, fmt.Sprintf("%s %s: %s", plural(len(n.runs), "run", "runs"), quoteList(n.runs), n.what))
+		out = append(out, fmt.Sprintf("%s %s: %s", plural(len(n.runs), "run", "runs"), strings.Join(n.runs, ", "), n.what))
 	}
 	return out
 }

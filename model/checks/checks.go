@@ -156,8 +156,17 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 // hydrogen caution for a flammable carrier, the coolant note and the
 // cryogen caution). simulate prints them and the UI lists them.
 func Cautions(m *methodfile.Method, sys *model.System, res *model.Result) []string {
-	w := Warnings(m, sys, res)
-	if sys.Cond.Carrier.Gas.Flammable() {
+	return append(Warnings(m, sys, res), Safety(m)...)
+}
+
+// Safety are the safety notes that go with method m's program and carrier:
+// the hydrogen caution for a flammable carrier, the coolant note and the
+// cryogen caution for an oven with a coolant. Every command that prints a
+// program prints these with it (simulate and optimize through Cautions,
+// plan and compare directly).
+func Safety(m *methodfile.Method) []string {
+	var w []string
+	if m.Carrier.Gas.Flammable() {
 		w = append(w, model.HydrogenCaution)
 	}
 	if note := CoolantNote(m); note != "" {

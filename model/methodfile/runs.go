@@ -17,14 +17,18 @@ import (
 // that differ from the method's, and the measured retention times (and
 // optionally half-height widths) by compound name, in minutes.
 type Run struct {
-	Name       string
-	HoldupMin  float64
-	HasHoldup  bool
-	Oven       Oven
-	Carrier    rawCarrier // overrides; nil fields keep the method's
-	Retention  map[string]float64
-	Widths     map[string]float64
-	Line       int      // where the run starts in its file
+	Name      string
+	HoldupMin float64
+	HasHoldup bool
+	Oven      Oven
+	Carrier   rawCarrier // overrides; nil fields keep the method's
+	Retention map[string]float64
+	Widths    map[string]float64
+	Line      int // where the run starts in its file
+	// File is the runs file the run was read from; keyLines the line of
+	// each [run.retention_min] name in it (see NameWhere).
+	File       string
+	keyLines   map[string]int
 	names      []string // retention keys in name order
 	hasCarrier bool
 
@@ -115,6 +119,20 @@ func (r *Runs) CloneRuns() *Runs {
 		c.Runs[i] = y
 	}
 	return &c
+}
+
+// NameWhere is where the run names compound name: "file:line" of its
+// [run.retention_min] key, or of its peak-table row, or "" when unknown.
+func (r *Run) NameWhere(name string) string {
+	if n := r.keyLines[name]; n > 0 && r.File != "" {
+		return fmt.Sprintf("%s:%d", r.File, n)
+	}
+	for _, p := range r.Peaks {
+		if p.Name == name && p.Line > 0 && r.SourceFile != "" {
+			return fmt.Sprintf("%s:%d", r.SourceFile, p.Line)
+		}
+	}
+	return ""
 }
 
 // Names are the compounds measured in the run, sorted.
@@ -226,8 +244,11 @@ func ParseRuns(name string, data []byte, m *Method) (*Runs, error) {
 		if len(rr.Retention) == 0 && r.Source == "" && v.err == nil {
 			v.fail(base+".retention_min", "no measured retention times")
 		}
+		r.File = name
+		r.keyLines = map[string]int{}
 		for cname, t := range rr.Retention {
 			key := base + ".retention_min." + cname
+			r.keyLines[cname] = loc.Line(key)
 			x := t
 			tv := v.num(key, &x, true, 0, positive(10000), "min")
 			if r.HasHoldup && v.err == nil && tv <= r.HoldupMin {
