@@ -2,11 +2,14 @@ package main
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/rampwise/rampwise/model/methodfile"
 )
 
 // misspelled writes the scouting runs with the last run's "myrcene"
@@ -106,4 +109,48 @@ func TestCoolantCautionInPlanAndCompare(t *testing.T) {
 			t.Errorf("compare --json: %s row has cautions %q", c.Gas, c.Cautions)
 		}
 	}
+}
+
+// A compound whose ΔH the fit holds (ethanol, near the holdup time in the
+// lab runs) keeps standard errors in the saved method: ΔH's is the
+// method's prior (goal.robust.prior_dH_kJ_mol, 2 by default), ΔS's is
+// widened along the ridge, and the table shows what is written.
+func TestFitHeldDHWritesErrors(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "f.toml")
+	code, text, errs := runCmd(t, "fit", "../../testdata/demo.toml", "../../testdata/lab/runs.toml", "--out", out)
+	if code != 0 || !strings.Contains(text, "ΔH held") || !strings.Contains(text, "written with --out") {
+		t.Fatalf("fit: exit %d\n%s%s", code, text, errs)
+	}
+	m, err := methodfile.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	code, text, _ = runCmd(t, "fit", "--json", "../../testdata/demo.toml", "../../testdata/lab/runs.toml")
+	var j struct {
+		Compounds []struct {
+			Name   string   `json:"name"`
+			SEDH   *float64 `json:"stderr_dH_kJ_mol"`
+			SEDS   *float64 `json:"stderr_dS_J_mol_K"`
+			Corr   *float64 `json:"corr_dH_dS"`
+			HeldDH bool     `json:"dH_held"`
+		} `json:"compounds"`
+	}
+	if code != 0 || json.Unmarshal([]byte(text), &j) != nil {
+		t.Fatalf("fit --json: exit %d", code)
+	}
+	for _, c := range m.Compounds {
+		if c.Name != "ethanol" {
+			continue
+		}
+		if !c.HasSE || c.DHSE != methodfile.DefaultPriorDHkJ || c.DSSE < 1 || c.DHDSCorr < 0.9 || c.DHDSCorr > 1 {
+			t.Fatalf("ethanol saved with se %v: dH_se %g dS_se %g corr %g", c.HasSE, c.DHSE, c.DSSE, c.DHDSCorr)
+		}
+		for _, x := range j.Compounds {
+			if x.Name == "ethanol" && (!x.HeldDH || x.SEDH == nil || *x.SEDH != c.DHSE || x.SEDS == nil || math.Abs(*x.SEDS-c.DSSE) > 0.01*c.DSSE) {
+				t.Fatalf("fit --json shows ethanol %+v, the file has dH_se %g dS_se %g", x, c.DHSE, c.DSSE)
+			}
+		}
+		return
+	}
+	t.Fatal("no ethanol in the saved method")
 }
