@@ -154,3 +154,26 @@ func TestFitHeldDHWritesErrors(t *testing.T) {
 	}
 	t.Fatal("no ethanol in the saved method")
 }
+
+// optimize's table never says "met" in the after column when the verdict
+// is not met: on bench20 the first target stays below goal.min_first_k.
+func TestOptimizeTableAgreesWithVerdict(t *testing.T) {
+	code, out, errs := runCmd(t, "optimize", "../../testdata/bench20.toml")
+	if code != 3 || !strings.Contains(out, "target NOT met") {
+		t.Fatalf("exit %d, want 3 and the verdict not met:\n%s%s", code, out, errs)
+	}
+	for _, l := range strings.Split(out, "\n") {
+		if !strings.HasPrefix(l, "min resolution") {
+			continue
+		}
+		l = strings.TrimSpace(l)
+		if strings.HasSuffix(l, " met") && !strings.HasSuffix(l, "not met") {
+			t.Fatalf("the table says met while the verdict is not: %q", l)
+		}
+		if !strings.Contains(l, "first k 0.") || !strings.Contains(l, "< 0.5 not met") {
+			t.Fatalf("the table does not give the reason (first k): %q", l)
+		}
+		return
+	}
+	t.Fatalf("no min resolution row:\n%s", out)
+}
