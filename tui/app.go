@@ -123,7 +123,7 @@ func New(m *methodfile.Method, opt Options) (*App, error) {
 		path: opt.Path, name: opt.Name, saved: m, guard: opt.Guard,
 		lower: panePeaks, optSettings: opt.Optimizer, wrote: map[string]bool{},
 	}
-	a.sh = shared{st: &a.st, method: m, res: &a.res}
+	a.sh = shared{st: &a.st, method: m, res: &a.res, ovenMinGiven: givenInFile(opt.Path, "limits", "oven_min_c")}
 	if a.name == "" {
 		a.name = opt.Path
 	}

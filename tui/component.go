@@ -34,6 +34,9 @@ type shared struct {
 	// kept current by the root for the cautions list
 	cautions []string // checks.Cautions of the method, made inert
 	status   string   // the status message, whole
+	// ovenMinGiven: limits.oven_min_c is the user's (in the file or set
+	// here), not the default that follows the coolant
+	ovenMinGiven bool
 }
 
 func (s *shared) send(msgs ...tea.Msg) { s.outbox = append(s.outbox, msgs...) }

@@ -99,7 +99,11 @@ func (d *resultDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	case tea.KeyMsg:
 		switch {
 		case key.Matches(msg, d.keys.Accept):
-			d.sh.send(closeMsg{}, editMsg{m: d.after, what: "took the optimized program (u undoes)"})
+			what := "took the optimized program (u undoes)"
+			if c := carrierChange(d.sh.method.Carrier, d.after.Carrier); strings.Contains(c, "→") {
+				what = "took the optimized program and " + c + " (u undoes)"
+			}
+			d.sh.send(closeMsg{}, editMsg{m: d.after, what: what})
 		case key.Matches(msg, d.keys.Reject):
 			d.sh.send(closeMsg{}, sayMsg{msgInfo, "kept the old program"})
 		case key.Matches(msg, d.keys.Toggle):
@@ -144,6 +148,9 @@ func (d *resultDialog) render() {
 	for i, r := range o.Ramps {
 		left = append(left, fmt.Sprintf(" %-5d %7s %7s %8s", i+1, fmtNum(r.RateCMin, 1, 2), fmtNum(r.FinalC, 1, 2), fmtNum(r.HoldMin, 2, 3)))
 	}
+	// the carrier setting the optimizer varies goes with the program: say
+	// it before the user takes it
+	left = append(left, st.Info.Render(" "+carrierChange(d.sh.method.Carrier, d.after.Carrier)))
 	lw := 31
 	rw := d.w - lw - 2
 	now := d.sh.res
@@ -641,4 +648,18 @@ func valueAxis(lo, hi float64, w int, unit string) string {
 		copy(line[w-len(tail):], tail)
 	}
 	return string(line)
+}
+
+// carrierChange says the carrier setting of a result against the method's:
+// "flow 1.20 → 2.15 mL/min" (or the inlet pressure in constant pressure),
+// "flow 1.20 mL/min kept" when it did not change.
+func carrierChange(now, after methodfile.Carrier) string {
+	name, unit, a, b := "flow", "mL/min", fmtNum(now.FlowMLMin, 2, 2), fmtNum(after.FlowMLMin, 2, 2)
+	if after.Mode == model.ConstantPressure {
+		name, unit, a, b = "inlet", "kPa", fmtNum(now.InletKPa, 1, 1), fmtNum(after.InletKPa, 1, 1)
+	}
+	if a == b {
+		return name + " " + a + " " + unit + " kept"
+	}
+	return name + " " + a + " → " + b + " " + unit
 }

@@ -34,7 +34,7 @@ type field struct {
 	fromNone float64
 	// after runs once the value is set (a kind switch sets the kind's
 	// typical column); its text goes in the status line
-	after func(before, m *methodfile.Method) string
+	after func(sh *shared, before, m *methodfile.Method) string
 	// program fields: which ramp (0 = initial) and value
 	ramp int
 	pv   model.ProgramValue

@@ -1,8 +1,11 @@
 package tui
 
 import (
+	"bytes"
 	"fmt"
+	"os"
 
+	"github.com/pelletier/go-toml/v2"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
@@ -44,8 +47,16 @@ func coolantField() field {
 		set:    func(m *methodfile.Method, v float64) { m.Limits.CoolantC, m.Limits.HasCoolant = v, true },
 		absent: func(m *methodfile.Method) bool { return !m.Limits.HasCoolant },
 		clear:  func(m *methodfile.Method) { m.Limits.CoolantC, m.Limits.HasCoolant = 0, false },
-		after: func(before, m *methodfile.Method) string {
+		after: func(sh *shared, before, m *methodfile.Method) string {
 			l := &m.Limits
+			if sh.ovenMinGiven {
+				// an explicit lowest start stays what the user set; a
+				// program below it is only advice
+				if m.Oven.InitialC < l.OvenMinC {
+					return fmt.Sprintf("lowest start temperature stays %s °C (set in the file); the program starts below it at %s °C", fmtNum(l.OvenMinC, 1, 1), fmtNum(m.Oven.InitialC, 1, 2))
+				}
+				return ""
+			}
 			switch {
 			case l.HasCoolant && l.OvenMinC == sinkOf(before)+10 && l.OvenMinC != l.CoolantC+10:
 				l.OvenMinC = l.CoolantC + 10
@@ -87,7 +98,7 @@ const (
 // no packed column), the stationary-phase diffusivity its default unless
 // it was set apart from the old kind's; in constant-pressure mode the
 // inlet pressure that gives the typical flow's holdup time.
-func typicalColumn(before, m *methodfile.Method) string {
+func typicalColumn(_ *shared, before, m *methodfile.Method) string {
 	if before.Column.Kind == m.Column.Kind {
 		return ""
 	}
@@ -126,4 +137,27 @@ func kindDiffusivity(k model.ColumnKind) float64 {
 		return model.DefaultLayerDs
 	}
 	return model.DefaultDs
+}
+
+// givenInFile reports whether the method file at path sets table.key
+// itself (a default is not given). An unreadable file gives nothing.
+func givenInFile(path, table, key string) bool {
+	if path == "" {
+		return false
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return false
+	}
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	var raw map[string]any
+	if toml.Unmarshal(data, &raw) != nil {
+		return false
+	}
+	t, ok := raw[table].(map[string]any)
+	if !ok {
+		return false
+	}
+	_, ok = t[key]
+	return ok
 }

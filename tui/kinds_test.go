@@ -82,7 +82,7 @@ func TestSettingsColumnKind(t *testing.T) {
 // coolant opens the cryogen cautions (the text model.CryogenCaution has),
 // and the settings say that a coolant is needed.
 func TestCoolantAndCryogenCautions(t *testing.T) {
-	a, _ := newApp(t, 80, 24)
+	a := newAppFrom(t, "commented.toml", 80, 24) // oven_min_c defaulted: it follows
 	pickSetting(t, a, "limits.coolant_c")
 	if s := screen(a); !strings.Contains(s, "oven coolant temperature") || !strings.Contains(s, "none") {
 		t.Fatalf("coolant not shown as none:\n%s", s)

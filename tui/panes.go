@@ -102,8 +102,11 @@ func fieldPrompt(f field) string {
 func fieldEdit(sh *shared, f field, m *methodfile.Method) editMsg {
 	what := strings.TrimSpace(fmt.Sprintf("%s = %s %s", f.key, f.text(m), f.unit))
 	editKey := f.key
+	if f.key == "limits.oven_min_c" {
+		sh.ovenMinGiven = true // typed or stepped: no longer the default
+	}
 	if f.after != nil {
-		if more := f.after(sh.method, m); more != "" {
+		if more := f.after(sh, sh.method, m); more != "" {
 			what = strings.TrimSpace(what) + " · " + more
 			editKey = "" // it changed other keys too: check all of it
 		}
@@ -651,6 +654,10 @@ func (p *settingsPane) Update(msg tea.Msg) (component, tea.Cmd) {
 	return p, nil
 }
 
+// cryogenShort stands for the coolant note and model.CryogenCaution where
+// the settings have no room for them whole.
+const cryogenShort = "coolant in use: cryogens cause cold burns and can asphyxiate; ! shows the coolant and safety cautions in full"
+
 func (p *settingsPane) render() {
 	p.list.clamp()
 	sh, st := p.list.sh, p.list.sh.st
@@ -667,9 +674,11 @@ func (p *settingsPane) render() {
 				lines = append(lines, st.Warn.Render(l))
 			}
 		} else {
-			tail := " · !: in full"
-			lines = append(lines, st.Warn.Render(ansi.Truncate(" ⚠ "+note, p.w-len(tail), "…")+tail),
-				st.Warn.Render(ansi.Truncate(" ⚠ "+model.CryogenCaution, p.w, "…")))
+			// safety text is never cut: without room for it whole, one
+			// whole sentence naming the hazards and where the text is
+			for _, l := range wrap(" ⚠ "+cryogenShort, p.w) {
+				lines = append(lines, st.Warn.Render(l))
+			}
 		}
 	}
 	if m.Carrier.Gas.Flammable() {

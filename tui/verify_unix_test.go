@@ -13,7 +13,7 @@ import (
 // A FIFO given as a verification run is refused at once (opened only as a
 // regular file), never waited on.
 func TestVerificationRunFIFO(t *testing.T) {
-	for _, name := range []string{"run.csv", "run.cdf"} {
+	for _, name := range []string{"run.csv", "run.cdf", "runs.toml"} {
 		p := filepath.Join(t.TempDir(), name)
 		if err := syscall.Mkfifo(p, 0o600); err != nil {
 			t.Skip("no FIFO here:", err)
