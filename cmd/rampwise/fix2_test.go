@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -176,4 +177,43 @@ func TestOptimizeTableAgreesWithVerdict(t *testing.T) {
 		return
 	}
 	t.Fatalf("no min resolution row:\n%s", out)
+}
+
+// plan's reasons: pairs counted once (at most n(n−1)/2), singular for one,
+// z raised only for several pairs, corners named as optimize names them
+// (robust.CornerName, "plate height +10 %", the minus sign −), and the
+// margin's price as durations, never "-53 % longer".
+func TestPlanWording(t *testing.T) {
+	re := regexp.MustCompile(`\((\d+) pairs? that (is|are) or could become critical weighed\)`)
+	for _, f := range []string{"../../testdata/demo-porous-layer.toml", "../../testdata/demo-packed.toml"} {
+		m, err := methodfile.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		code, out, errs := runCmd(t, "plan", f)
+		if code != 0 {
+			t.Fatalf("%s: exit %d %s", f, code, errs)
+		}
+		g := re.FindStringSubmatch(out)
+		if g == nil {
+			t.Fatalf("%s: no pair count in:\n%s", f, out)
+		}
+		n, _ := strconv.Atoi(g[1])
+		if most := len(m.Compounds) * (len(m.Compounds) - 1) / 2; n < 1 || n > most || (n == 1) != (g[2] == "is") {
+			t.Errorf("%s: %q: %d pairs counted, at most %d exist", f, g[0], n, most)
+		}
+	}
+	code, out, errs := runCmd(t, "plan", "../../testdata/demo.toml")
+	if code != 0 {
+		t.Fatalf("exit %d %s", code, errs)
+	}
+	why := strings.SplitN(strings.SplitN(out, "why: ", 2)[1], "\n", 2)[0]
+	for _, bad := range []string{"raised for 0", "raised for 1 ", "1 pairs", "efficiency", "% longer", "-2 %", "-1 °C", "+-"} {
+		if strings.Contains(why, bad) {
+			t.Errorf("plan says %q: %s", bad, why)
+		}
+	}
+	if !strings.Contains(why, "plate height +") || !strings.Contains(why, " min against ") {
+		t.Errorf("plan's reason lacks the corner's plate height or the durations: %s", why)
+	}
 }
