@@ -217,3 +217,28 @@ func TestPlanWording(t *testing.T) {
 		t.Errorf("plan's reason lacks the corner's plate height or the durations: %s", why)
 	}
 }
+
+// Flows are printed at the flow keypad step (0.01 mL/min by default) in
+// simulate, optimize and compare alike, and JSON times carry no binary
+// noise (optimize: 1e-4 min).
+func TestFlowAtKeypadStepAndRoundedJSON(t *testing.T) {
+	_, out, _ := runCmd(t, "simulate", "../../testdata/demo.toml")
+	if !strings.Contains(out, "helium 1.20 mL/min") {
+		t.Errorf("simulate: flow not at the keypad step:\n%s", out)
+	}
+	_, out, _ = runCmd(t, "compare", "../../testdata/demo.toml")
+	if !regexp.MustCompile(`helium \d+\.\d\d mL/min`).MatchString(out) {
+		t.Errorf("compare: flow not at the keypad step:\n%s", out)
+	}
+	_, out, _ = runCmd(t, "optimize", "--json", "../../testdata/demo.toml")
+	var j map[string]any
+	if err := json.Unmarshal([]byte(out), &j); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"run_time_min", "cycle_time_min"} {
+		x, _ := j[k].(float64)
+		if x <= 0 || math.Abs(x*1e4-math.Round(x*1e4)) > 1e-6 {
+			t.Errorf("optimize --json %s = %v, want at most 4 decimals", k, j[k])
+		}
+	}
+}
