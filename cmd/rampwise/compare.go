@@ -265,7 +265,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		return enc.Encode(out)
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "#\tphase\tcolumn\tcarrier\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
+	fmt.Fprintln(tw, "#\tphase\tcolumn\tcarrier\tobjective: best time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
 	for i, j := range rows {
 		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
 		if j.Kind != kindOfLists.String() {
@@ -286,13 +286,22 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		if len(j.CriticalPair) == 2 {
 			cp = format.CriticalPair(textsafe.Inert(j.CriticalPair[0]), textsafe.Inert(j.CriticalPair[1]))
 		}
-		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
+		t := fmt.Sprintf("%s %.2f min", strings.ReplaceAll(j.Objective, "-", " "), j.Time) // each row names its own objective
 		if !j.Feasible {
 			t = "not reached"
 		}
 		fmt.Fprintf(tw, "%d\t%s\t%s\t%s %s\t%s\t%s\t%s\t%.0f → %.0f\t%.0f\t\n", i+1, phase, col, j.Gas, carrierText(j.Carrier, j.limits), t, rs, cp, j.InletStart, j.InletEnd, j.MaxTemp)
 	}
 	tw.Flush()
+	objectives := map[string]bool{}
+	for _, j := range rows {
+		if j.Error == "" {
+			objectives[j.Objective] = true
+		}
+	}
+	if len(objectives) > 1 {
+		fmt.Fprintln(stdout, "note: the methods' goals differ (run time, cycle time): each row's time is its own objective's, so the ranking mixes the two")
+	}
 	for i, j := range rows {
 		if !j.Feasible && j.Explanation != "" {
 			fmt.Fprintf(stdout, "%d: %s\n", i+1, textsafe.Inert(j.Explanation))

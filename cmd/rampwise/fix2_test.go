@@ -242,3 +242,33 @@ func TestFlowAtKeypadStepAndRoundedJSON(t *testing.T) {
 		}
 	}
 }
+
+// sweep suggests the value meant; compare names each row's objective and
+// says when the ranking mixes run time and cycle time; the README's
+// first-session sweep gives no invalid point on the optimized demo.
+func TestSweepSuggestsAndCompareObjectives(t *testing.T) {
+	code, _, errs := runCmd(t, "sweep", "../../testdata/demo.toml", "--vary", "initil_c", "--from", "40", "--to", "60")
+	if code != 2 || !strings.Contains(errs, "did you mean initial_c?") {
+		t.Errorf("sweep --vary initil_c: exit %d, %s", code, errs)
+	}
+	code, out, errs := runCmd(t, "compare", "../../testdata/demo.toml", "../../testdata/demo-porous-layer.toml")
+	if code != 0 || !strings.Contains(out, "run time 11.90 min") || !strings.Contains(out, "cycle time ") || !strings.Contains(out, "the ranking mixes the two") {
+		t.Errorf("compare: exit %d, rows do not name their objective:\n%s%s", code, out, errs)
+	}
+	fast := filepath.Join(t.TempDir(), "fast.toml")
+	if code, _, errs := runCmd(t, "optimize", "--out", fast); code != 0 {
+		t.Fatalf("optimize: exit %d %s", code, errs)
+	}
+	readme, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	g := regexp.MustCompile(`sweep /tmp/fast.toml --vary initial_c --from (\S+) --to (\S+)`).FindSubmatch(readme)
+	if g == nil {
+		t.Fatal("README has no first-session sweep")
+	}
+	code, out, errs = runCmd(t, "sweep", fast, "--vary", "initial_c", "--from", string(g[1]), "--to", string(g[2]))
+	if code != 0 || strings.Contains(out, "not valid") || strings.Contains(out, "invalid") {
+		t.Errorf("README's sweep: exit %d, invalid points:\n%s%s", code, out, errs)
+	}
+}
