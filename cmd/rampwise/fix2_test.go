@@ -217,3 +217,58 @@ func TestPlanWording(t *testing.T) {
 		t.Errorf("plan's reason lacks the corner's plate height or the durations: %s", why)
 	}
 }
+
+// Flows are printed at the flow keypad step (0.01 mL/min by default) in
+// simulate, optimize and compare alike, and JSON times carry no binary
+// noise (optimize: 1e-4 min).
+func TestFlowAtKeypadStepAndRoundedJSON(t *testing.T) {
+	_, out, _ := runCmd(t, "simulate", "../../testdata/demo.toml")
+	if !strings.Contains(out, "helium 1.20 mL/min") {
+		t.Errorf("simulate: flow not at the keypad step:\n%s", out)
+	}
+	_, out, _ = runCmd(t, "compare", "../../testdata/demo.toml")
+	if !regexp.MustCompile(`helium \d+\.\d\d mL/min`).MatchString(out) {
+		t.Errorf("compare: flow not at the keypad step:\n%s", out)
+	}
+	_, out, _ = runCmd(t, "optimize", "--json", "../../testdata/demo.toml")
+	var j map[string]any
+	if err := json.Unmarshal([]byte(out), &j); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"run_time_min", "cycle_time_min"} {
+		x, _ := j[k].(float64)
+		if x <= 0 || math.Abs(x*1e4-math.Round(x*1e4)) > 1e-6 {
+			t.Errorf("optimize --json %s = %v, want at most 4 decimals", k, j[k])
+		}
+	}
+}
+
+// sweep suggests the value meant; compare names each row's objective and
+// says when the ranking mixes run time and cycle time; the README's
+// first-session sweep gives no invalid point on the optimized demo.
+func TestSweepSuggestsAndCompareObjectives(t *testing.T) {
+	code, _, errs := runCmd(t, "sweep", "../../testdata/demo.toml", "--vary", "initil_c", "--from", "40", "--to", "60")
+	if code != 2 || !strings.Contains(errs, "did you mean initial_c?") {
+		t.Errorf("sweep --vary initil_c: exit %d, %s", code, errs)
+	}
+	code, out, errs := runCmd(t, "compare", "../../testdata/demo.toml", "../../testdata/demo-porous-layer.toml")
+	if code != 0 || !strings.Contains(out, "run time 11.90 min") || !strings.Contains(out, "cycle time ") || !strings.Contains(out, "the ranking mixes the two") {
+		t.Errorf("compare: exit %d, rows do not name their objective:\n%s%s", code, out, errs)
+	}
+	fast := filepath.Join(t.TempDir(), "fast.toml")
+	if code, _, errs := runCmd(t, "optimize", "--out", fast); code != 0 {
+		t.Fatalf("optimize: exit %d %s", code, errs)
+	}
+	readme, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	g := regexp.MustCompile(`sweep /tmp/fast.toml --vary initial_c --from (\S+) --to (\S+)`).FindSubmatch(readme)
+	if g == nil {
+		t.Fatal("README has no first-session sweep")
+	}
+	code, out, errs = runCmd(t, "sweep", fast, "--vary", "initial_c", "--from", string(g[1]), "--to", string(g[2]))
+	if code != 0 || strings.Contains(out, "not valid") || strings.Contains(out, "invalid") {
+		t.Errorf("README's sweep: exit %d, invalid points:\n%s%s", code, out, errs)
+	}
+}

@@ -206,8 +206,8 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 			Program:     programToJSON(after.Oven),
 			Carrier:     carrierToJSON(after.Carrier),
 			Robust:      robustToJSON(res.Robust),
-			RunTime:     afterSim.Result.RunTime / 60,
-			CycleTime:   afterSim.Result.CycleTime / 60,
+			RunTime:     round(afterSim.Result.RunTime/60, 4), // 0.006 s: below any timer's reading
+			CycleTime:   round(afterSim.Result.CycleTime/60, 4),
 			Evaluations: res.Evaluations,
 			Elapsed:     res.Elapsed.Seconds(),
 			TargetRs:    m.Goal.MinResolution,
