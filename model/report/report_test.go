@@ -3,9 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/csv"
-	"encoding/xml"
 	"image/png"
-	"io"
 	"math"
 	"reflect"
 	"strconv"
@@ -18,15 +16,8 @@ import (
 )
 
 func demoSim(t *testing.T) *Sim {
-	m, err := methodfile.ReadFile("../../testdata/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := Simulate(m)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
+	t.Helper()
+	return simOf(t, "../../testdata/demo.toml")
 }
 
 func TestPNGSize(t *testing.T) {
@@ -50,16 +41,7 @@ func TestSVGParsesWithLabels(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	dec := xml.NewDecoder(bytes.NewReader(data))
-	for {
-		_, err := dec.Token()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			t.Fatalf("SVG does not parse: %v", err)
-		}
-	}
+	mustParseSVG(t, data)
 	for _, name := range []string{"limonene", "myrcene", "nootkatone"} {
 		if !bytes.Contains(data, []byte(name)) {
 			t.Errorf("SVG lacks the label %s", name)
