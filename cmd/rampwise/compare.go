@@ -47,29 +47,30 @@ Flags:
 `
 
 type candidateJSON struct {
-	Method        string      `json:"method"`
-	Phase         string      `json:"phase"`
-	Kind          string      `json:"kind"`
-	Length        float64     `json:"length_m"`
-	Diameter      float64     `json:"diameter_mm"`
-	Film          float64     `json:"film_um"`
-	Gas           string      `json:"gas"`
-	Carrier       carrierJSON `json:"carrier"`
-	Robust        *robustJSON `json:"robust,omitempty"`
-	Feasible      bool        `json:"feasible"`
-	Objective     string      `json:"objective"`
-	target        float64     // the candidate's goal.min_resolution, for the table
-	Time          float64     `json:"time_min"`
-	RunTime       float64     `json:"run_time_min"`
-	CycleTime     float64     `json:"cycle_time_min"`
-	MinResolution *float64    `json:"min_resolution"`
-	CriticalPair  []string    `json:"critical_pair"`
-	InletStart    float64     `json:"inlet_kpa_start"`
-	InletEnd      float64     `json:"inlet_kpa_end"`
-	MaxTemp       float64     `json:"max_temp_c"`
-	Program       programJSON `json:"program"`
-	Explanation   string      `json:"explanation,omitempty"`
-	Error         string      `json:"error,omitempty"`
+	Method        string            `json:"method"`
+	Phase         string            `json:"phase"`
+	Kind          string            `json:"kind"`
+	Length        float64           `json:"length_m"`
+	Diameter      float64           `json:"diameter_mm"`
+	Film          float64           `json:"film_um"`
+	Gas           string            `json:"gas"`
+	Carrier       carrierJSON       `json:"carrier"`
+	Robust        *robustJSON       `json:"robust,omitempty"`
+	Feasible      bool              `json:"feasible"`
+	Objective     string            `json:"objective"`
+	target        float64           // the candidate's goal.min_resolution, for the table
+	limits        methodfile.Limits // the candidate's keypad steps, for the table
+	Time          float64           `json:"time_min"`
+	RunTime       float64           `json:"run_time_min"`
+	CycleTime     float64           `json:"cycle_time_min"`
+	MinResolution *float64          `json:"min_resolution"`
+	CriticalPair  []string          `json:"critical_pair"`
+	InletStart    float64           `json:"inlet_kpa_start"`
+	InletEnd      float64           `json:"inlet_kpa_end"`
+	MaxTemp       float64           `json:"max_temp_c"`
+	Program       programJSON       `json:"program"`
+	Explanation   string            `json:"explanation,omitempty"`
+	Error         string            `json:"error,omitempty"`
 	// Cautions are the safety notes for this row's program and carrier
 	// (checks.Safety), as simulate prints them.
 	Cautions []string `json:"cautions,omitempty"`
@@ -182,7 +183,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	var rows []candidateJSON
 	for _, o := range out {
 		m := o.Method
-		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Gas: m.Carrier.Gas.String(), Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution, Carrier: carrierToJSON(m.Carrier)}
+		j := candidateJSON{Method: o.Source, Phase: m.Column.Phase, Kind: kindName(m.Column.Kind), Length: m.Column.LengthM, Diameter: m.Column.DiameterMM, Film: m.Column.FilmUM, Gas: m.Carrier.Gas.String(), Objective: m.Goal.Objective.String(), target: m.Goal.MinResolution, limits: m.Limits, Carrier: carrierToJSON(m.Carrier)}
 		if o.Err != nil {
 			j.Error = o.Err.Error()
 			rows = append(rows, j)
@@ -204,7 +205,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		j.Carrier = carrierToJSON(after.Carrier)
 		j.Robust = robustToJSON(r.Robust)
 		j.Feasible = r.Feasible() && (sim.Critical < 0 || sim.MinResolution >= m.Goal.MinResolution)
-		j.RunTime, j.CycleTime = sim.RunTime/60, sim.CycleTime/60
+		j.RunTime, j.CycleTime = round(sim.RunTime/60, 4), round(sim.CycleTime/60, 4)
 		j.Time = j.RunTime
 		if m.Goal.Objective == model.CycleTime {
 			j.Time = j.CycleTime
@@ -232,7 +233,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 			if len(j.CriticalPair) == 2 {
 				c1, c2 = j.CriticalPair[0], j.CriticalPair[1]
 			}
-			recs = append(recs, []string{strconv.Itoa(i + 1), textsafe.CSVCell(j.Method), textsafe.CSVCell(j.Phase), j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), j.Gas, carrierText(j.Carrier), fmt.Sprint(j.Feasible), j.Objective,
+			recs = append(recs, []string{strconv.Itoa(i + 1), textsafe.CSVCell(j.Method), textsafe.CSVCell(j.Phase), j.Kind, fmtNum(j.Length), fmtNum(j.Diameter), fmtNum(j.Film), j.Gas, carrierText(j.Carrier, j.limits), fmt.Sprint(j.Feasible), j.Objective,
 				fmtNum(j.Time), rs, textsafe.CSVCell(c1), textsafe.CSVCell(c2), fmtNum(j.InletStart), fmtNum(j.InletEnd), fmtNum(j.MaxTemp), textsafe.CSVCell(j.Explanation + j.Error)})
 		}
 		if err := writeCSVFile(*csvF, recs, stderr); err != nil {
@@ -264,7 +265,7 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		return enc.Encode(out)
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "#\tphase\tcolumn\tcarrier\tbest time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
+	fmt.Fprintln(tw, "#\tphase\tcolumn\tcarrier\tobjective: best time\tmin Rs\tcritical pair\tinlet kPa start→end\tmax °C\t")
 	for i, j := range rows {
 		col := fmt.Sprintf("%g m × %g mm × %g µm", j.Length, j.Diameter, j.Film)
 		if j.Kind != kindOfLists.String() {
@@ -285,13 +286,22 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 		if len(j.CriticalPair) == 2 {
 			cp = format.CriticalPair(textsafe.Inert(j.CriticalPair[0]), textsafe.Inert(j.CriticalPair[1]))
 		}
-		t := fmt.Sprintf("%.2f min (%s)", j.Time, j.Objective)
+		t := fmt.Sprintf("%s %.2f min", strings.ReplaceAll(j.Objective, "-", " "), j.Time) // each row names its own objective
 		if !j.Feasible {
 			t = "not reached"
 		}
-		fmt.Fprintf(tw, "%d\t%s\t%s\t%s %s\t%s\t%s\t%s\t%.0f → %.0f\t%.0f\t\n", i+1, phase, col, j.Gas, carrierText(j.Carrier), t, rs, cp, j.InletStart, j.InletEnd, j.MaxTemp)
+		fmt.Fprintf(tw, "%d\t%s\t%s\t%s %s\t%s\t%s\t%s\t%.0f → %.0f\t%.0f\t\n", i+1, phase, col, j.Gas, carrierText(j.Carrier, j.limits), t, rs, cp, j.InletStart, j.InletEnd, j.MaxTemp)
 	}
 	tw.Flush()
+	objectives := map[string]bool{}
+	for _, j := range rows {
+		if j.Error == "" {
+			objectives[j.Objective] = true
+		}
+	}
+	if len(objectives) > 1 {
+		fmt.Fprintln(stdout, "note: the methods' goals differ (run time, cycle time): each row's time is its own objective's, so the ranking mixes the two")
+	}
 	for i, j := range rows {
 		if !j.Feasible && j.Explanation != "" {
 			fmt.Fprintf(stdout, "%d: %s\n", i+1, textsafe.Inert(j.Explanation))
@@ -310,12 +320,14 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-func carrierText(c carrierJSON) string {
+// carrierText is the carrier setting at the keypad step of l (the flow
+// "1.20" beside "2.15", as the instrument takes them).
+func carrierText(c carrierJSON, l methodfile.Limits) string {
 	if c.InletKPa != nil {
-		return fmtNum(*c.InletKPa) + " kPa"
+		return format.OnStep(*c.InletKPa, l.Step(model.InletPressure)) + " kPa"
 	}
 	if c.FlowMLMin != nil {
-		return fmtNum(*c.FlowMLMin) + " mL/min"
+		return format.OnStep(*c.FlowMLMin, l.Step(model.CarrierFlow)) + " mL/min"
 	}
 	return ""
 }

@@ -290,7 +290,15 @@ func sweepValue(m *methodfile.Method, name string) (model.ProgramValue, error) {
 		err = sweep.Check(m, pv)
 	}
 	if err != nil {
-		return pv, badf("sweep: %v (this method has %s)", err, model.ValueNames(m.Values()))
+		var names []string
+		for _, v := range m.Values() {
+			names = append(names, v.String())
+		}
+		hint := ""
+		if near := methodfile.Suggest(name, names); near != "" {
+			hint = "did you mean " + near + "? "
+		}
+		return pv, badf("sweep: %v (%sthis method has %s)", err, hint, model.ValueNames(m.Values()))
 	}
 	return pv, nil
 }

@@ -52,7 +52,9 @@ is reported with the suggestion and left out (in a peak table: treated as
 unnamed), other names are added as non-targets. Standard errors (±) use the
 residual variance pooled over all compounds, with Σ(runs − parameters)
 degrees of freedom. A residual trend with temperature that an unfitted ΔCp
-leaves is reported. --out writes dH_se_kJ_mol, dS_se_J_mol_K and dH_dS_corr.
+leaves is reported. --out writes dH_se_kJ_mol, dS_se_J_mol_K and dH_dS_corr
+(for a compound whose ΔH is held: ΔH's is goal.robust.prior_dH_kJ_mol, ΔS's
+widened along the ΔH–ΔS ridge that keeps the measured times).
 
 Flags:
 `
@@ -74,6 +76,8 @@ type fitCompoundJSON struct {
 	// NotWritten: outside the method file's ranges, not saved (warned).
 	NotWritten bool `json:"not_written,omitempty"`
 	LargeError bool `json:"large_error,omitempty"`
+	// HeldDH: ΔH held (not separable from ΔS); its ± is the method's prior.
+	HeldDH bool `json:"dH_held,omitempty"`
 }
 
 type fitJSON struct {
@@ -161,7 +165,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 				StdErrDH: finiteOrNil(c.StdErrDH), StdErrDS: finiteOrNil(c.StdErrDS), StdErrDCp: finiteOrNil(c.StdErrDCp),
 				Corr: finiteOrNil(c.CorrDHDS),
 				Runs: c.Runs, RMS: c.RMS, Max: c.Max, Residuals: c.Residuals, Added: c.Added,
-				NotWritten: c.NotWritten, LargeError: c.LargeError(),
+				NotWritten: c.NotWritten, LargeError: c.LargeError(), HeldDH: c.HeldDH,
 			})
 		}
 		for _, a := range rep.Assignments {
@@ -195,6 +199,8 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 		switch {
 		case c.NotWritten:
 			mark, marked = "  ✗ not written", true
+		case c.HeldDH:
+			mark, marked = "  ΔH held", true
 		case c.LargeError():
 			mark, marked = "  ⚠ large ±", true
 		}
@@ -202,7 +208,7 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	}
 	tw.Flush()
 	if marked {
-		fmt.Fprintf(stdout, "\n⚠ large ±: a standard error over %g %s (ΔH) or %g %s (ΔS); ✗ not written: outside the method file's ranges, the method keeps its values\n", calibrate.LargeSEDHkJ, format.UnitDH, calibrate.LargeSEDS, format.UnitDS)
+		fmt.Fprintf(stdout, "\n⚠ large ±: a standard error over %g %s (ΔH) or %g %s (ΔS); ✗ not written: outside the method file's ranges, the method keeps its values; ΔH held: the runs cannot tell ΔH from ΔS, ΔH's ± is goal.robust.prior_dH_kJ_mol and ΔS's is widened to match (these are written)\n", calibrate.LargeSEDHkJ, format.UnitDH, calibrate.LargeSEDS, format.UnitDS)
 	}
 	how := fmt.Sprintf("pooled over the compounds: %.4f min with %d degrees of freedom", rep.ResidualSDMin, rep.DOF)
 	if rep.SDAssumed {

@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/textsafe"
@@ -205,8 +206,8 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 			Program:     programToJSON(after.Oven),
 			Carrier:     carrierToJSON(after.Carrier),
 			Robust:      robustToJSON(res.Robust),
-			RunTime:     afterSim.Result.RunTime / 60,
-			CycleTime:   afterSim.Result.CycleTime / 60,
+			RunTime:     round(afterSim.Result.RunTime/60, 4), // 0.006 s: below any timer's reading
+			CycleTime:   round(afterSim.Result.CycleTime/60, 4),
 			Evaluations: res.Evaluations,
 			Elapsed:     res.Elapsed.Seconds(),
 			TargetRs:    m.Goal.MinResolution,
@@ -251,7 +252,7 @@ func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, afte
 	fmt.Fprintf(tw, "carrier\t%s\t%s\t\n", describeCarrier(m.Carrier), describeCarrier(after.Carrier))
 	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.Result.RunTime/60, afterSim.Result.RunTime/60)
 	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.Result.CycleTime/60, afterSim.Result.CycleTime/60)
-	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRs(before, m.Goal.MinResolution), fmtRs(afterSim, m.Goal.MinResolution))
+	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRsGoal(before, m, true), fmtRsGoal(afterSim, m, met))
 	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
 	tw.Flush()
 	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %s)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, format.Target(m.Goal.MinResolution))
@@ -277,6 +278,24 @@ func fmtRs(s *simulation, target float64) string {
 		return format.RsNumber(r.MinResolution, target) + " not met (" + format.NotEluted(missing) + ")"
 	}
 	return format.RsNumber(r.MinResolution, target) + " " + format.Verdict(r.MinResolution, target)
+}
+
+// fmtRsGoal is fmtRs that never says "met" where the goal is not: a
+// first target below goal.min_first_k is named, and a program the verdict
+// does not accept (met false) for another reason says so.
+func fmtRsGoal(s *simulation, m *methodfile.Method, met bool) string {
+	txt := fmtRs(s, m.Goal.MinResolution)
+	if !strings.HasSuffix(txt, " "+format.Verdict(s.Result.MinResolution, m.Goal.MinResolution)) || s.Result.MinResolution < m.Goal.MinResolution || s.Result.Critical < 0 {
+		return txt
+	}
+	rs := format.RsNumber(s.Result.MinResolution, m.Goal.MinResolution)
+	if _, k, ok := checks.FirstTargetK(s.System, &s.Result); ok && k < m.Goal.MinFirstK {
+		return fmt.Sprintf("%s, first k %.2f < %g not met", rs, k, m.Goal.MinFirstK)
+	}
+	if !met {
+		return rs + ", target not met (see below)"
+	}
+	return txt
 }
 
 func critName(s *simulation) string {

@@ -109,8 +109,8 @@ func (s *simulation) json(prog model.Program) simulateJSON {
 	r := &s.Result
 	out := simulateJSON{
 		HoldupTime: r.HoldupTime / 60,
-		RunTime:    r.RunTime / 60,
-		CycleTime:  r.CycleTime / 60,
+		RunTime:    round(r.RunTime/60, 4), // as optimize and compare: no binary noise
+		CycleTime:  round(r.CycleTime/60, 4),
 		Peaks:      []peakJSON{},
 		Pairs:      []pairJSON{},
 		Warnings:   s.warnings(prog),

@@ -46,7 +46,10 @@ type CompoundFit struct {
 	Added              bool // was in the runs, not in the method (added as a non-target)
 	// NotWritten: the fitted values are outside the method file's ranges
 	// and were not written to the method (a warning says so).
-	NotWritten     bool
+	NotWritten bool
+	// HeldDH: ΔH was held (the runs cannot tell it from ΔS); its ± is the
+	// method's prior uncertainty, carried into ΔS's.
+	HeldDH         bool
 	ElutionSpreadC float64
 	Condition      float64 // condition number of the scaled normal matrix
 	withDCp        bool
@@ -255,7 +258,18 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 			rep.Warnings = append(rep.Warnings, w)
 		}
 		if f.onlyDS {
-			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: elutes too close to the holdup time to tell ΔH from ΔS; ΔH held at the homologous rule's −(9 + 4.9 n) kJ/mol = %.2f kJ/mol with n = %.2f, the (fractional) carbon number at which the rule's ΔH and ΔS reproduce run %q's time; then ΔS alone fitted to all runs (%.2f J/(mol·K), the rule's would be %.2f)", cf.Name, cf.DHkJ, f.ruleN, st[f.ruleRun].name, cf.DS, -(44+6.0*f.ruleN)))
+			w := fmt.Sprintf("%s: elutes too close to the holdup time to tell ΔH from ΔS; ΔH held at the homologous rule's −(9 + 4.9 n) kJ/mol = %.2f kJ/mol with n = %.2f, the (fractional) carbon number at which the rule's ΔH and ΔS reproduce run %q's time; then ΔS alone fitted to all runs (%.2f J/(mol·K), the rule's would be %.2f)", cf.Name, cf.DHkJ, f.ruleN, st[f.ruleRun].name, cf.DS, -(44 + 6.0*f.ruleN))
+			// The held ΔH has no standard error from the runs: it gets the
+			// uncertainty of a value not measured (goal.robust
+			// prior_dH_kJ_mol), carried into ΔS along the ridge that keeps
+			// the measured times; what is shown is what --out writes.
+			if sH := out.Goal.Robust.PriorDHkJ; finite(cf.StdErrDS) && sH > 0 {
+				given := cf.StdErrDS
+				sS := math.Hypot(given, f.ridgeSlope*sH)
+				cf.StdErrDH, cf.StdErrDS, cf.CorrDHDS, cf.HeldDH = sH, sS, f.ridgeSlope*sH/sS, true
+				w += fmt.Sprintf("; its errors: ΔH ± %.2f kJ/mol (the held value's uncertainty, goal.robust.prior_dH_kJ_mol), ΔS ± %.2f J/(mol·K) (± %.2f with ΔH fixed, widened along the ΔH–ΔS ridge that keeps the measured times), correlation %.3f: written with --out", sH, sS, given, cf.CorrDHDS)
+			}
+			rep.Warnings = append(rep.Warnings, w)
 		}
 		if !f.onlyDS && (cf.ElutionSpreadC < 3 || cf.Condition > 1e10) {
 			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: the runs elute it at nearly the same temperature (spread %.1f °C): too similar to separate ΔH from ΔS reliably (ill-conditioned); add a run with a clearly different ramp rate", cf.Name, cf.ElutionSpreadC))
@@ -295,7 +309,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		if finite(cf.StdErrDH) && finite(cf.StdErrDS) && (cf.StdErrDH > 500 || cf.StdErrDS > 1000) {
 			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: standard errors ±%.3g kJ/mol, ±%.3g J/(mol·K): the runs hardly determine it; errors not written to the method", cf.Name, cf.StdErrDH, cf.StdErrDS))
 		} else if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
-			if cf.LargeError() {
+			if cf.LargeError() && !cf.HeldDH {
 				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: large standard errors ±%.2f kJ/mol on ΔH, ±%.2f J/(mol·K) on ΔS (large: over %g kJ/mol or %g J/(mol·K)): the runs determine it poorly; predictions away from the scouted programs are uncertain; add a run with a clearly different ramp or starting temperature", cf.Name, cf.StdErrDH, cf.StdErrDS, LargeSEDHkJ, LargeSEDS))
 			}
 			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true
@@ -424,13 +438,16 @@ type fitResult struct {
 	// ΔH is held at −(9 + 4.9 n) kJ/mol.
 	ruleN   float64
 	ruleRun int
-	obs     []obsPoint
-	base    model.Compound
-	th      []float64  // ΔH J/mol, ΔS, (ΔCp)
-	free    []int      // fitted entries of th
-	jac     *mat.Dense // ∂t/∂θ_free at the solution, s per unit
-	cov     *mat.Dense // (JᵀJ)⁻¹, nil when singular
-	ssr     float64    // s²
+	// ridgeSlope (onlyDS) is dΔS/dΔH along the ridge that keeps the
+	// measured times, J/(mol·K) per kJ/mol.
+	ridgeSlope float64
+	obs        []obsPoint
+	base       model.Compound
+	th         []float64  // ΔH J/mol, ΔS, (ΔCp)
+	free       []int      // fitted entries of th
+	jac        *mat.Dense // ∂t/∂θ_free at the solution, s per unit
+	cov        *mat.Dense // (JᵀJ)⁻¹, nil when singular
+	ssr        float64    // s²
 }
 
 // paramCompound builds the compound for parameter vector θ = (ΔH J/mol, ΔS, ΔCp).
@@ -534,6 +551,13 @@ func fitCompoundFrom(st []runSetup, obs []obsPoint, base model.Compound, withDCp
 	res.onlyDS = true
 	res.ruleN = n
 	res.ruleRun = obs[0].run
+	// the ΔH–ΔS ridge: how much the fitted ΔS moves when the held ΔH is
+	// 1 kJ/mol higher (the held value's uncertainty carries into ΔS)
+	th2 := append([]float64(nil), res.th...)
+	th2[0] += 1000
+	if r2, err := fitFree(st, obs, base, th2, []int{1}); err == nil {
+		res.ridgeSlope = r2.DS - res.DS
+	}
 	return res, nil
 }
 

@@ -44,14 +44,7 @@ func runsText(t *testing.T, truth *methodfile.Method, scouts []scout, sd float64
 	for i, s := range scouts {
 		m := truth.Clone()
 		m.Oven = s.prog
-		sys, err := m.System()
-		if err != nil {
-			t.Fatal(err)
-		}
-		var res model.Result
-		if err := sys.Simulate(m.ModelProgram(), &res); err != nil {
-			t.Fatal(err)
-		}
+		sys, res := simulateMethod(t, m)
 		fmt.Fprintf(&b, "[[run]]\nname = %q\n", s.name)
 		if s.holdup {
 			fmt.Fprintf(&b, "holdup_min = %.5f\n", res.HoldupTime/60)
@@ -155,7 +148,9 @@ func TestRoundTripRecoversParameters(t *testing.T) {
 	}
 }
 
-func simulateByName(t *testing.T, m *methodfile.Method) map[string]float64 {
+// simulateMethod runs m's own program on m's system.
+func simulateMethod(t *testing.T, m *methodfile.Method) (*model.System, *model.Result) {
+	t.Helper()
 	sys, err := m.System()
 	if err != nil {
 		t.Fatal(err)
@@ -164,6 +159,11 @@ func simulateByName(t *testing.T, m *methodfile.Method) map[string]float64 {
 	if err := sys.Simulate(m.ModelProgram(), &res); err != nil {
 		t.Fatal(err)
 	}
+	return sys, &res
+}
+
+func simulateByName(t *testing.T, m *methodfile.Method) map[string]float64 {
+	sys, res := simulateMethod(t, m)
 	out := map[string]float64{}
 	for _, pk := range res.Peaks {
 		out[sys.Compounds[pk.Compound].Name] = pk.RetentionTime
@@ -242,11 +242,7 @@ func fitText(t *testing.T, start *methodfile.Method, text string, opt Options) *
 	if err != nil {
 		t.Fatal(err)
 	}
-	rep, err := Fit(start, runs, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return rep
+	return mustFit(t, start, runs, opt)
 }
 
 func anyWarning(rep *Report, s string) bool {

@@ -11,7 +11,6 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/andi"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
@@ -54,14 +53,7 @@ func hiddenTruth(t *testing.T, seed uint64) *methodfile.Method { return hiddenTr
 
 func hiddenTruthK(t *testing.T, seed uint64, indS float64) *methodfile.Method {
 	m := demo(t)
-	sys, err := m.System()
-	if err != nil {
-		t.Fatal(err)
-	}
-	var res model.Result
-	if err := sys.Simulate(m.ModelProgram(), &res); err != nil {
-		t.Fatal(err)
-	}
+	sys, res := simulateMethod(t, m)
 	te := map[string]float64{}
 	for _, pk := range res.Peaks {
 		te[sys.Compounds[pk.Compound].Name] = pk.ElutionTemp
@@ -81,14 +73,7 @@ func hiddenTruthK(t *testing.T, seed uint64, indS float64) *methodfile.Method {
 func simulatePeaks(t *testing.T, truth *methodfile.Method, oven methodfile.Oven, sd float64, rng *rand.Rand) ([]truePeak, float64) {
 	m := truth.Clone()
 	m.Oven = oven
-	sys, err := m.System()
-	if err != nil {
-		t.Fatal(err)
-	}
-	var res model.Result
-	if err := sys.Simulate(m.ModelProgram(), &res); err != nil {
-		t.Fatal(err)
-	}
+	sys, res := simulateMethod(t, m)
 	var out []truePeak
 	for _, pk := range res.Peaks {
 		if !pk.Eluted {
@@ -262,11 +247,7 @@ func labFit(t *testing.T, start *methodfile.Method, runsPath string, opt Options
 	if err != nil {
 		t.Fatal(err)
 	}
-	rep, err := Fit(start, runs, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return rep
+	return mustFit(t, start, runs, opt)
 }
 
 func checkAssignments(t *testing.T, rep *Report, truth *methodfile.Method) {

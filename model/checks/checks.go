@@ -114,6 +114,22 @@ func CoolantNote(m *methodfile.Method) string {
 	return fmt.Sprintf("the oven cools toward its coolant (%g °C, limits.coolant_c) after every run, so the cycle time assumes the coolant is on", m.Limits.CoolantC)
 }
 
+// FirstTargetK is the first eluting target of res and its retention
+// factor (ok false when no target elutes): goal.min_first_k bounds it.
+func FirstTargetK(sys *model.System, res *model.Result) (name string, k float64, ok bool) {
+	first := -1
+	for i, pk := range res.Peaks {
+		if pk.Eluted && sys.Compounds[pk.Compound].Target && (first < 0 || pk.RetentionTime < res.Peaks[first].RetentionTime) {
+			first = i
+		}
+	}
+	if first < 0 {
+		return "", 0, false
+	}
+	pk := res.Peaks[first]
+	return sys.Compounds[pk.Compound].Name, pk.RetentionFactor, true
+}
+
 // Warnings are the cautions for method m whose program simulated to res.
 func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []string {
 	var w []string
@@ -133,16 +149,9 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 	}
 	// the first target must be retained enough to stand clear of the
 	// unretained peak and the solvent (goal.min_first_k, a search bound)
-	first := -1
-	for i, pk := range res.Peaks {
-		if pk.Eluted && sys.Compounds[pk.Compound].Target && (first < 0 || pk.RetentionTime < res.Peaks[first].RetentionTime) {
-			first = i
-		}
-	}
-	if first >= 0 && res.Peaks[first].RetentionFactor < m.Goal.MinFirstK {
-		pk := res.Peaks[first]
+	if name, k, ok := FirstTargetK(sys, res); ok && k < m.Goal.MinFirstK {
 		w = append(w, fmt.Sprintf("goal.min_first_k: the first target, %s, elutes with k = %.2f, below %g: it may not stand clear of the unretained peak and the solvent (start cooler or slower)",
-			sys.Compounds[pk.Compound].Name, pk.RetentionFactor, m.Goal.MinFirstK))
+			name, k, m.Goal.MinFirstK))
 	}
 	// search bounds and rules of thumb the program breaks (never refused)
 	for _, n := range m.Advice() {

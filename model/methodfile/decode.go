@@ -113,16 +113,7 @@ func (l Locations) Line(path string) int {
 // It stops quietly at a syntax error (the decoder reports that one).
 func locate(data []byte) Locations {
 	loc := Locations{}
-	// Line numbers from a table of line starts: the parser's Shape counts
-	// lines from the top for every call, which made locating the keys of a
-	// 2000-compound method quadratic (seconds per parse).
-	starts := []int{0}
-	for i, c := range data {
-		if c == '\n' {
-			starts = append(starts, i+1)
-		}
-	}
-	lineOf := func(off int) int { return sort.SearchInts(starts, off+1) }
+	lineOf := lineTable(data)
 	var p unstable.Parser
 	p.Reset(data)
 	table := ""
@@ -140,24 +131,7 @@ func locate(data []byte) Locations {
 		}
 		return parts, line
 	}
-	// canon numbers every array of tables on the path by its current
-	// element: [run.oven] after the second [[run]] is run[2].oven.
-	canon := func(parts []string, arrayHeader bool) string {
-		cur := ""
-		for i, part := range parts {
-			if cur != "" {
-				cur += "."
-			}
-			cur += part
-			if i == len(parts)-1 && arrayHeader {
-				break
-			}
-			if n := counts[cur]; n > 0 {
-				cur = fmt.Sprintf("%s[%d]", cur, n)
-			}
-		}
-		return cur
-	}
+	canon := func(parts []string, arrayHeader bool) string { return canonPath(parts, counts, arrayHeader) }
 	for p.NextExpression() {
 		e := p.Expression()
 		switch e.Kind {

@@ -3,7 +3,6 @@ package methodfile
 import (
 	"fmt"
 	"reflect"
-	"sort"
 	"strings"
 
 	"github.com/pelletier/go-toml/v2/unstable"
@@ -20,33 +19,19 @@ import (
 // stops quietly at a syntax error (the decoder reports that one).
 func checkExactKeys(name string, data []byte, target any) error {
 	root := reflect.TypeOf(target)
-	starts := []int{0}
-	for i, c := range data {
-		if c == '\n' {
-			starts = append(starts, i+1)
-		}
-	}
-	lineOf := func(off int) int { return sort.SearchInts(starts, off+1) }
+	lineOf := lineTable(data)
 	var p unstable.Parser
 	p.Reset(data)
 	table := root
 	tablePath := ""
 	counts := map[string]int{} // element count of each array of tables, by canonical path
-	// canon numbers every array of tables on the path by its current
-	// element, as locate does: [run.oven] after the second [[run]] is
-	// run[2].oven.
+	// canon is the path as locate numbers it (see canonPath).
 	canon := func(parts []keyPart, arrayHeader bool) string {
-		cur := ""
+		keys := make([]string, len(parts))
 		for i, part := range parts {
-			cur = joinKey(cur, part.key)
-			if i == len(parts)-1 && arrayHeader {
-				break
-			}
-			if n := counts[cur]; n > 0 {
-				cur = fmt.Sprintf("%s[%d]", cur, n)
-			}
+			keys[i] = part.key
 		}
-		return cur
+		return canonPath(keys, counts, arrayHeader)
 	}
 	for p.NextExpression() {
 		e := p.Expression()

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 )
 
 // kindRules are the [column] ranges of one column kind (MODEL.md §10-11).
@@ -141,10 +142,20 @@ func (c Column) Describe() string {
 // Describe is the carrier in a few words: "helium 1.2 mL/min constant
 // flow" or "hydrogen 80 kPa constant pressure", with ", vacuum outlet" for a
 // vacuum outlet.
-func (g Carrier) Describe() string {
-	s := fmt.Sprintf("%s %s mL/min constant flow", g.Gas, fmtNum(g.FlowMLMin))
+func (g Carrier) Describe() string { return g.describe(fmtNum(g.FlowMLMin), fmtNum(g.InletKPa)) }
+
+// DescribeAt is Describe with the flow and pressure written at the keypad
+// step of limits l (flow_step_ml_min, pressure_step_kpa): "helium 1.20
+// mL/min constant flow" beside an optimized "2.15", as the instrument
+// takes them.
+func (g Carrier) DescribeAt(l Limits) string {
+	return g.describe(format.OnStep(g.FlowMLMin, l.Step(model.CarrierFlow)), format.OnStep(g.InletKPa, l.Step(model.InletPressure)))
+}
+
+func (g Carrier) describe(flow, kpa string) string {
+	s := fmt.Sprintf("%s %s mL/min constant flow", g.Gas, flow)
 	if g.Mode == model.ConstantPressure {
-		s = fmt.Sprintf("%s %s kPa constant pressure", g.Gas, fmtNum(g.InletKPa))
+		s = fmt.Sprintf("%s %s kPa constant pressure", g.Gas, kpa)
 	}
 	if g.Outlet == "vacuum" {
 		s += ", vacuum outlet"
@@ -173,5 +184,5 @@ func (m *Method) Describe() string {
 	if phase == "" {
 		phase = "phase not named"
 	}
-	return fmt.Sprintf("%s %s (max %s °C) · %s", m.Column.Describe(), phase, fmtNum(m.Column.MaxTempC), m.Carrier.Describe())
+	return fmt.Sprintf("%s %s (max %s °C) · %s", m.Column.Describe(), phase, fmtNum(m.Column.MaxTempC), m.Carrier.DescribeAt(m.Limits))
 }

@@ -178,22 +178,7 @@ func scan(data []byte) (*tdoc, bool) {
 		}
 		return
 	}
-	canon := func(parts []string, arrayHeader bool) string {
-		c := ""
-		for i, part := range parts {
-			if c != "" {
-				c += "."
-			}
-			c += part
-			if i == len(parts)-1 && arrayHeader {
-				break
-			}
-			if n := counts[c]; n > 0 {
-				c = fmt.Sprintf("%s[%d]", c, n)
-			}
-		}
-		return c
-	}
+	canon := func(parts []string, arrayHeader bool) string { return canonPath(parts, counts, arrayHeader) }
 	for p.NextExpression() {
 		e := p.Expression()
 		switch e.Kind {

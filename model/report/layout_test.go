@@ -9,22 +9,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
-
-	"github.com/rampwise/rampwise/model/methodfile"
 )
-
-func simOf(t *testing.T, path string) *Sim {
-	t.Helper()
-	m, err := methodfile.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := Simulate(m)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
 
 // The chromatogram and the oven panel put every tick of the time axis at
 // the same x, at every figure size.

@@ -2,29 +2,12 @@ package report
 
 import (
 	"bytes"
-	"encoding/xml"
-	"io"
 	"os"
 	"regexp"
 	"strconv"
 	"strings"
 	"testing"
-
-	"github.com/rampwise/rampwise/model/methodfile"
 )
-
-func simText(t *testing.T, text string) *Sim {
-	t.Helper()
-	m, err := methodfile.Parse("m.toml", []byte(text))
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := Simulate(m)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
 
 func demoText(t *testing.T) string {
 	t.Helper()
@@ -50,16 +33,7 @@ func TestFigureInertTitle(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	dec := xml.NewDecoder(bytes.NewReader(data))
-	for {
-		_, err := dec.Token()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			t.Fatalf("SVG does not parse: %v", err)
-		}
-	}
+	mustParseSVG(t, data)
 	if bytes.ContainsAny(data, "\x1b\x07") {
 		t.Error("raw control characters in the SVG")
 	}

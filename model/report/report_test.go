@@ -3,9 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/csv"
-	"encoding/xml"
 	"image/png"
-	"io"
 	"math"
 	"reflect"
 	"strconv"
@@ -13,20 +11,12 @@ import (
 	"testing"
 
 	"github.com/rampwise/rampwise/model"
-	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/sweep"
 )
 
 func demoSim(t *testing.T) *Sim {
-	m, err := methodfile.ReadFile("../../testdata/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := Simulate(m)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
+	t.Helper()
+	return simOf(t, "../../testdata/demo.toml")
 }
 
 func TestPNGSize(t *testing.T) {
@@ -50,16 +40,7 @@ func TestSVGParsesWithLabels(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	dec := xml.NewDecoder(bytes.NewReader(data))
-	for {
-		_, err := dec.Token()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			t.Fatalf("SVG does not parse: %v", err)
-		}
-	}
+	mustParseSVG(t, data)
 	for _, name := range []string{"limonene", "myrcene", "nootkatone"} {
 		if !bytes.Contains(data, []byte(name)) {
 			t.Errorf("SVG lacks the label %s", name)
@@ -185,14 +166,7 @@ func TestSheetKindsAndCoolant(t *testing.T) {
 		{"../../testdata/demo-packed.toml", []string{"packed 3 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 6)"}, false},
 		{"../../testdata/demo-porous-layer.toml", []string{"porous-layer 30 m × 0.32 mm × 10 µm layer", "| phase ratio | 7.3 |", "A coolant is needed", "cold burns", "asphyxiate"}, true},
 	} {
-		m, err := methodfile.ReadFile(c.file)
-		if err != nil {
-			t.Fatal(err)
-		}
-		s, err := Simulate(m)
-		if err != nil {
-			t.Fatal(err)
-		}
+		s := simOf(t, c.file)
 		sheet := string(s.Sheet())
 		for _, w := range c.want {
 			if !strings.Contains(sheet, w) {
@@ -208,14 +182,7 @@ func TestSheetKindsAndCoolant(t *testing.T) {
 // The sheet reports the robust margin of the demo: nominal, worst corner
 // and Rs ± σ.
 func TestSheetRobustSection(t *testing.T) {
-	m, err := methodfile.ReadFile("../../testdata/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := Simulate(m)
-	if err != nil {
-		t.Fatal(err)
-	}
+	s := simOf(t, "../../testdata/demo.toml")
 	sheet := string(s.Sheet())
 	for _, want := range []string{"## Robust margin", "| nominal |", "worst corner (oven", "Rs ± σ", "NOT met"} {
 		if !strings.Contains(sheet, want) {

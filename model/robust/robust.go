@@ -285,7 +285,7 @@ func (rg *Set) Evaluate(q model.Program, nom *model.Result, sc *Scratch, stopBel
 		// the corner is named only for a full report (no allocation while searching)
 		defer func() {
 			if math.IsInf(stopBelow, -1) && !math.IsInf(rep.Worst, 1) {
-				rep.Corner = cornerName(rb, worst[0], worst[1], worst[2])
+				rep.Corner = CornerName(rb, worst[0], worst[1], worst[2])
 			}
 		}()
 		for _, oven := range []float64{1, -1} {
@@ -338,7 +338,11 @@ func (rg *Set) Evaluate(q model.Program, nom *model.Result, sc *Scratch, stopBel
 	return nil
 }
 
-func cornerName(rb Tolerances, oven, flow, eff float64) string {
+// CornerName names a tolerance corner, e.g. "oven +1 °C, flow −2 %,
+// plate height +10 %": oven and flow by their sign, eff the plate-height
+// factor applied (above 1: raised). Every command and the planner name
+// corners with it (one wording, one minus sign).
+func CornerName(rb Tolerances, oven, flow, eff float64) string {
 	sign := func(x float64) string {
 		if x < 0 {
 			return "−"

@@ -88,6 +88,12 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 	if len(pairs) == 0 {
 		return nil, nil
 	}
+	// the distinct pairs weighed (a pair critical at several of the
+	// programs is counted once)
+	distinct := map[[2]int]bool{}
+	for _, p := range pairs {
+		distinct[[2]int{min(p.a, p.b), max(p.a, p.b)}] = true
+	}
 	s := st.sens
 	s2 := st.sigmaT * st.sigmaT
 	type scored struct {
@@ -130,7 +136,7 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 				critSD = math.Sqrt(math.Max(v, 0))
 			}
 		}
-		all = append(all, scored{designChoice{oven: cand, score: score, sdAfter: critSD, pairs: len(pairs)}, prog.RunTime()})
+		all = append(all, scored{designChoice{oven: cand, score: score, sdAfter: critSD, pairs: len(distinct)}, prog.RunTime()})
 	}
 	if len(all) == 0 {
 		return nil, nil

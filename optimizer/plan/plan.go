@@ -38,6 +38,7 @@ import (
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/robust"
 	"github.com/rampwise/rampwise/optimizer"
 	"github.com/rampwise/rampwise/optimizer/methodsearch"
 )
@@ -329,11 +330,14 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	}
 	if robust != nil && (gain(robust) <= s.MarginGain*target || st.duration(robustOven) <= (1+s.Slower)*st.duration(nomOven)) {
 		p.Action, p.Oven = Verify, robustOven
-		p.Reason = fmt.Sprintf("the optimized program's predicted min Rs %.2f (%s) clears the target %.2f by %.1f standard deviations (± %.2f, of which the parameters ± %.2f; z = %.1f raised for %d pairs near the target)%s: inject it once to verify",
-			robust.minRs, strings.Join(robust.pair[:], " / "), target, robust.z, robust.sd, robust.sp, z, robust.near, robust.cornerText)
+		zText := fmt.Sprintf("z = %.1f", z)
+		if robust.near > 1 {
+			zText = fmt.Sprintf("z = %.1f raised to %.1f for the %d pairs near the target", z, robust.z, robust.near)
+		}
+		p.Reason = fmt.Sprintf("the optimized program's predicted min Rs %.2f (%s) clears the target %.2f by %.1f standard deviations (± %.2f, of which the parameters ± %.2f; %s)%s: inject it once to verify",
+			robust.minRs, strings.Join(robust.pair[:], " / "), target, robust.z, robust.sd, robust.sp, zText, robust.cornerText)
 		if robust != nominal {
-			p.Reason += fmt.Sprintf("; it is %.0f %% longer than the program that only just meets the target, the price of the margin",
-				100*(st.duration(robustOven)/st.duration(nomOven)-1))
+			p.Reason += marginPrice(st.duration(robustOven), st.duration(nomOven))
 		}
 		p.Method = st.withOven(robustOven)
 		return p, nil
@@ -378,8 +382,8 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	} else if best.sdOK && best.cornerText != "" {
 		why = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f does not hold at every instrument tolerance%s", best.minRs, best.sd, best.cornerText)
 	}
-	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%d pairs that are or could become critical weighed)",
-		why, robustNote, d.sdAfter, d.pairs)
+	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%s that %s or could become critical weighed)",
+		why, robustNote, d.sdAfter, pairsText(d.pairs), isAre(d.pairs))
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
 	}
@@ -640,10 +644,37 @@ func (st *state) build() error {
 			}
 			st.corners = append(st.corners, cs)
 			st.cornerSh = append(st.cornerSh, dT)
-			st.cornerTag = append(st.cornerTag, fmt.Sprintf("oven %+g °C, flow %+g %%, efficiency −%g %%", dT, df, rb.EfficiencyPct))
+			st.cornerTag = append(st.cornerTag, robust.CornerName(robust.Tolerances{OvenOffset: rb.OvenOffsetC, FlowPct: rb.FlowPct, EfficiencyPct: rb.EfficiencyPct},
+				dT, df, 1+rb.EfficiencyPct/100))
 		}
 	}
 	return nil
+}
+
+// marginPrice says what the margin costs: the robust program's duration
+// against the one that only just meets the target (seconds), as durations
+// (a percentage of a short program reads as an alarm; a robust program
+// found shorter is said so, not "-53 % longer").
+func marginPrice(robustS, nominalS float64) string {
+	if robustS > nominalS {
+		return fmt.Sprintf("; it takes %.2f min against %.2f min for the program that only just meets the target (%.1f× as long), the price of the margin",
+			robustS/60, nominalS/60, robustS/nominalS)
+	}
+	return fmt.Sprintf("; it takes %.2f min (the nominal optimum found takes %.2f min)", robustS/60, nominalS/60)
+}
+
+func pairsText(n int) string {
+	if n == 1 {
+		return "1 pair"
+	}
+	return fmt.Sprintf("%d pairs", n)
+}
+
+func isAre(n int) string {
+	if n == 1 {
+		return "is"
+	}
+	return "are"
 }
 
 func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
