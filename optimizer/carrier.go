@@ -346,8 +346,43 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 		}
 		x, f := sh.stage(ctx, best.rg, best.sp, seeds, sh.s.Starts/2, sh.s.Evaluations, sh.s.Restarts, 99)
 		best = candidate{rg: chosen.rg, sp: chosen.sp, x: x, f: f, prog: chosen.sp.program(x)}
+		best = sh.neighbourSearch(ctx, best, lo, hi)
 		if best.f >= start.f && start.f < infeasibleBase {
 			return start
+		}
+	}
+	return best
+}
+
+// neighbourSearch runs the same fuller program search (from the best
+// program rescaled, and the plateau seeds) at the settings a few per cent
+// either side of the chosen one, walking on while that improves: the short
+// probes of the hill-climb can miss a better plateau at a nearby setting
+// that a fuller search finds.
+func (sh *shared) neighbourSearch(ctx context.Context, best candidate, lo, hi float64) candidate {
+	st := sh.carrierStep()
+	done := map[float64]bool{best.rg.value: true}
+	for _, fac := range []float64{1.03, 1 / 1.03} {
+		for k := 0; k < 3 && ctx.Err() == nil; k++ {
+			v := roundGrid(math.Min(math.Max(best.rg.value*fac, lo), hi), st)
+			if done[v] {
+				break
+			}
+			done[v] = true
+			rg, err := sh.rigFor(v)
+			if err != nil {
+				break
+			}
+			sp := newSpace(sh.p, best.sp.n)
+			seeds := [][]float64{sp.invert(rescaled(best.prog, best.rg.sys, rg.sys, &sh.p)), append([]float64(nil), best.x...)}
+			if sp.n >= 2 {
+				seeds = append(seeds, sp.plateauSeeds()...)
+			}
+			x, f := sh.stage(ctx, rg, sp, seeds, 0, sh.s.Evaluations/3, sh.s.Restarts, 98)
+			if f >= best.f {
+				break
+			}
+			best = candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
 		}
 	}
 	return best

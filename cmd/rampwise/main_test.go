@@ -193,23 +193,7 @@ func limonene(t *testing.T, demo string) string {
 	return rest[a:b]
 }
 
-func TestBadRunsCorpus(t *testing.T) {
-	data, err := os.ReadFile("../../testdata/bad-runs/expect.tsv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n") {
-		if strings.HasPrefix(line, "#") {
-			continue
-		}
-		name, frag, _ := strings.Cut(line, "\t")
-		path := filepath.Join("../../testdata/bad-runs", name)
-		code, _, errs := runCmd(t, "fit", "../../testdata/demo.toml", path)
-		if code != 2 || !strings.Contains(errs, path) || !strings.Contains(errs, frag) {
-			t.Errorf("%s: exit %d, message %q (want %q)", name, code, errs, frag)
-		}
-	}
-}
+func TestBadRunsCorpus(t *testing.T) { checkBadRunsCorpus(t, "fit") }
 
 func TestFitOutAndIndex(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "fitted.toml")
@@ -306,16 +290,10 @@ func TestExportCSVEqualsSimulateJSON(t *testing.T) {
 
 // compare's rows equal optimize run on each candidate alone.
 func TestCompareRowsEqualOptimize(t *testing.T) {
-	code, out, errs := runCmd(t, "compare", "--json", "--length", "20,40", DemoArg)
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, errs)
-	}
 	var j struct {
 		Candidates []candidateJSON `json:"candidates"`
 	}
-	if err := json.Unmarshal([]byte(out), &j); err != nil {
-		t.Fatal(err)
-	}
+	runJSON(t, &j, "compare", "--json", "--length", "20,40", DemoArg)
 	if len(j.Candidates) != 2 {
 		t.Fatalf("%d candidates", len(j.Candidates))
 	}

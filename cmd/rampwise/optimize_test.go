@@ -96,17 +96,11 @@ func TestOptimizeJSONCarrierAndRobust(t *testing.T) {
 // compare --gas tries each carrier gas with its own optimized flow and
 // cautions about hydrogen whenever it appears.
 func TestCompareGasAxis(t *testing.T) {
-	code, out, errs := runCmd(t, "compare", "--json", "--gas", "helium,hydrogen", DemoArg)
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, errs)
-	}
 	var j struct {
 		Candidates []candidateJSON `json:"candidates"`
 		Cautions   []string        `json:"cautions"`
 	}
-	if err := json.Unmarshal([]byte(out), &j); err != nil {
-		t.Fatal(err)
-	}
+	runJSON(t, &j, "compare", "--json", "--gas", "helium,hydrogen", DemoArg)
 	gases := map[string]bool{}
 	for _, c := range j.Candidates {
 		gases[c.Gas] = true

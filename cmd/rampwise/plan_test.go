@@ -168,21 +168,7 @@ func TestPlanBadInput(t *testing.T) {
 			t.Errorf("plan %s: exit %d, message %q (want 2, the file and %q)", name, code, errs, frag)
 		}
 	}
-	runsExpect, err := os.ReadFile("../../testdata/bad-runs/expect.tsv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, line := range strings.Split(strings.TrimSpace(string(runsExpect)), "\n") {
-		if strings.HasPrefix(line, "#") {
-			continue
-		}
-		name, frag, _ := strings.Cut(line, "\t")
-		path := filepath.Join("../../testdata/bad-runs", name)
-		code, _, errs := runCmd(t, "plan", "../../testdata/demo.toml", path)
-		if code != 2 || !strings.Contains(errs, path) || !strings.Contains(errs, frag) {
-			t.Errorf("plan demo %s: exit %d, message %q (want %q)", name, code, errs, frag)
-		}
-	}
+	checkBadRunsCorpus(t, "plan")
 	for _, args := range [][]string{{"plan"}, {"plan", "a", "b", "c"}, {"plan", "--bogus", DemoArg}} {
 		if code, _, _ := runCmd(t, args...); code != 2 {
 			t.Errorf("%v: exit %d, want 2", args, code)

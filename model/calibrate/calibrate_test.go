@@ -242,11 +242,7 @@ func fitText(t *testing.T, start *methodfile.Method, text string, opt Options) *
 	if err != nil {
 		t.Fatal(err)
 	}
-	rep, err := Fit(start, runs, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return rep
+	return mustFit(t, start, runs, opt)
 }
 
 func anyWarning(rep *Report, s string) bool {

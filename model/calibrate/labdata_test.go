@@ -247,11 +247,7 @@ func labFit(t *testing.T, start *methodfile.Method, runsPath string, opt Options
 	if err != nil {
 		t.Fatal(err)
 	}
-	rep, err := Fit(start, runs, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return rep
+	return mustFit(t, start, runs, opt)
 }
 
 func checkAssignments(t *testing.T, rep *Report, truth *methodfile.Method) {

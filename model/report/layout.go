@@ -57,33 +57,36 @@ func useNiceTicks(p *plot.Plot) {
 // them start and end at the same x: the panels then share one time axis,
 // every tick at the same position (what plot.Align does for a grid of
 // equal tiles, here for panels of different heights).
-func alignX(plots []*plot.Plot, cs []draw.Canvas) []draw.Canvas {
-	var left, right vg.Length
-	for i, p := range plots {
-		d := p.DataCanvas(cs[i])
-		left = max(left, d.Min.X-cs[i].Min.X)
-		right = max(right, cs[i].Max.X-d.Max.X)
-	}
-	out := make([]draw.Canvas, len(cs))
-	for i, p := range plots {
-		d := p.DataCanvas(cs[i])
-		out[i] = draw.Crop(cs[i], left-(d.Min.X-cs[i].Min.X), -(right - (cs[i].Max.X - d.Max.X)), 0, 0)
-	}
-	return out
-}
+func alignX(plots []*plot.Plot, cs []draw.Canvas) []draw.Canvas { return align(plots, cs, false) }
 
 // alignY is alignX for plots side by side (a map and its colour bar).
-func alignY(plots []*plot.Plot, cs []draw.Canvas) []draw.Canvas {
-	var bottom, top vg.Length
+func alignY(plots []*plot.Plot, cs []draw.Canvas) []draw.Canvas { return align(plots, cs, true) }
+
+// align is alignX (vertical false) or alignY (vertical true).
+func align(plots []*plot.Plot, cs []draw.Canvas, vertical bool) []draw.Canvas {
+	span := func(c draw.Canvas) (lo, hi vg.Length) {
+		if vertical {
+			return c.Min.Y, c.Max.Y
+		}
+		return c.Min.X, c.Max.X
+	}
+	var low, high vg.Length
 	for i, p := range plots {
-		d := p.DataCanvas(cs[i])
-		bottom = max(bottom, d.Min.Y-cs[i].Min.Y)
-		top = max(top, cs[i].Max.Y-d.Max.Y)
+		dlo, dhi := span(p.DataCanvas(cs[i]))
+		clo, chi := span(cs[i])
+		low = max(low, dlo-clo)
+		high = max(high, chi-dhi)
 	}
 	out := make([]draw.Canvas, len(cs))
 	for i, p := range plots {
-		d := p.DataCanvas(cs[i])
-		out[i] = draw.Crop(cs[i], 0, 0, bottom-(d.Min.Y-cs[i].Min.Y), -(top - (cs[i].Max.Y - d.Max.Y)))
+		dlo, dhi := span(p.DataCanvas(cs[i]))
+		clo, chi := span(cs[i])
+		lo, hi := low-(dlo-clo), -(high - (chi - dhi))
+		if vertical {
+			out[i] = draw.Crop(cs[i], 0, 0, lo, hi)
+		} else {
+			out[i] = draw.Crop(cs[i], lo, hi, 0, 0)
+		}
 	}
 	return out
 }

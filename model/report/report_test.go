@@ -11,7 +11,6 @@ import (
 	"testing"
 
 	"github.com/rampwise/rampwise/model"
-	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/sweep"
 )
 
@@ -167,14 +166,7 @@ func TestSheetKindsAndCoolant(t *testing.T) {
 		{"../../testdata/demo-packed.toml", []string{"packed 3 m × 2 mm (165 µm particles, porosity 0.4, phase ratio 6)"}, false},
 		{"../../testdata/demo-porous-layer.toml", []string{"porous-layer 30 m × 0.32 mm × 10 µm layer", "| phase ratio | 7.3 |", "A coolant is needed", "cold burns", "asphyxiate"}, true},
 	} {
-		m, err := methodfile.ReadFile(c.file)
-		if err != nil {
-			t.Fatal(err)
-		}
-		s, err := Simulate(m)
-		if err != nil {
-			t.Fatal(err)
-		}
+		s := simOf(t, c.file)
 		sheet := string(s.Sheet())
 		for _, w := range c.want {
 			if !strings.Contains(sheet, w) {
@@ -190,14 +182,7 @@ func TestSheetKindsAndCoolant(t *testing.T) {
 // The sheet reports the robust margin of the demo: nominal, worst corner
 // and Rs ± σ.
 func TestSheetRobustSection(t *testing.T) {
-	m, err := methodfile.ReadFile("../../testdata/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := Simulate(m)
-	if err != nil {
-		t.Fatal(err)
-	}
+	s := simOf(t, "../../testdata/demo.toml")
 	sheet := string(s.Sheet())
 	for _, want := range []string{"## Robust margin", "| nominal |", "worst corner (oven", "Rs ± σ", "NOT met"} {
 		if !strings.Contains(sheet, want) {

@@ -245,15 +245,6 @@ func newSample(t testing.TB, seed uint64) (truth, rough *methodfile.Method) {
 // °C/min to 300 °C.
 func rampRs(t testing.TB, m *methodfile.Method, rate float64) float64 {
 	t.Helper()
-	mm := m.Clone()
-	mm.Oven = methodfile.Oven{InitialC: 35, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: rate, FinalC: 300, HoldMin: 10}}}
-	sys, err := mm.System()
-	if err != nil {
-		t.Fatal(err)
-	}
-	var res model.Result
-	if err := sys.Simulate(mm.ModelProgram(), &res); err != nil {
-		t.Fatal(err)
-	}
+	res := simulateOven(t, m, methodfile.Oven{InitialC: 35, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: rate, FinalC: 300, HoldMin: 10}}})
 	return res.MinResolution
 }

@@ -176,8 +176,9 @@ func playHabit(t testing.TB, seed uint64, maxInjections int) outcome {
 	return out
 }
 
-// rampRsOf is the noise-free minimum resolution of a program on the truth.
-func rampRsOf(t testing.TB, m *methodfile.Method, o methodfile.Oven) float64 {
+// simulateOven is the noise-free result of program o on a copy of m.
+func simulateOven(t testing.TB, m *methodfile.Method, o methodfile.Oven) model.Result {
+	t.Helper()
 	mm := m.Clone()
 	mm.Oven = o
 	sys, err := mm.System()
@@ -188,6 +189,12 @@ func rampRsOf(t testing.TB, m *methodfile.Method, o methodfile.Oven) float64 {
 	if err := sys.Simulate(mm.ModelProgram(), &res); err != nil {
 		t.Fatal(err)
 	}
+	return res
+}
+
+// rampRsOf is the noise-free minimum resolution of a program on the truth.
+func rampRsOf(t testing.TB, m *methodfile.Method, o methodfile.Oven) float64 {
+	res := simulateOven(t, m, o)
 	if res.TargetsNotEluted > 0 {
 		return 0
 	}
