@@ -272,3 +272,16 @@ func TestSweepSuggestsAndCompareObjectives(t *testing.T) {
 		t.Errorf("README's sweep: exit %d, invalid points:\n%s%s", code, out, errs)
 	}
 }
+
+// fit warns of the scouting file's wide peaks (plate-height factor 1.438)
+// and not of the lab runs' (about 1).
+func TestFitWarnsFarPlateHeight(t *testing.T) {
+	_, out, _ := runCmd(t, "fit", "../../testdata/demo.toml", "../../testdata/scouting.toml")
+	if !strings.Contains(out, "warning: plate-height factor 1.438") || !strings.Contains(out, "common practice") {
+		t.Errorf("no plate-height warning:\n%s", out)
+	}
+	_, out, _ = runCmd(t, "fit", "../../testdata/demo.toml", "../../testdata/lab/runs.toml")
+	if strings.Contains(out, "warning: plate-height factor") {
+		t.Errorf("plate-height warning on the lab runs:\n%s", out)
+	}
+}

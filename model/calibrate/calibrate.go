@@ -329,6 +329,9 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 	} else if ok {
 		out.Column.PlateHeight = phi
 		rep.PlateHeightFactor, rep.PlateFitted = phi, true
+		if w := plateHeightWarning(phi); w != "" {
+			rep.Warnings = append(rep.Warnings, w)
+		}
 	}
 	rep.Method = out
 	return rep, nil
@@ -828,6 +831,24 @@ func fitPlateHeight(m *methodfile.Method, runs *methodfile.Runs) (float64, bool,
 		return 0, false, errors.New("the measured widths are narrower than the injection band alone; check initial_band_s")
 	}
 	return phi, true, nil
+}
+
+// Plate-height factors outside PlateHeightLow..PlateHeightHigh are warned:
+// a column in good condition, at its optimum-ish flow, usually comes within
+// about −20 %..+30 % of the model's plate height (common practice, no
+// published bound).
+const (
+	PlateHeightLow  = 0.8
+	PlateHeightHigh = 1.3
+)
+
+// plateHeightWarning warns a fitted plate-height factor far from 1.
+func plateHeightWarning(phi float64) string {
+	if phi >= PlateHeightLow && phi <= PlateHeightHigh {
+		return ""
+	}
+	return fmt.Sprintf("plate-height factor %.3f from the measured widths is outside the usual %g–%g (common practice): columns usually come close to the model's plate height; the peaks are %.0f %% %s than predicted: check the widths are at half height and in minutes, the column's condition (an old or overloaded column broadens peaks), the flow and the injection band; the factor is written as fitted",
+		phi, PlateHeightLow, PlateHeightHigh, 100*math.Abs(math.Sqrt(phi)-1), map[bool]string{true: "wider", false: "narrower"}[phi > 1])
 }
 
 func compoundIndex(m *methodfile.Method, name string) int {
