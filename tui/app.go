@@ -102,8 +102,8 @@ type App struct {
 	// the keys came from a pipe or a file and it ended (InputEndedMsg)
 	inputEnded, endedUnsaved bool
 
-	view cachedView
-	rows rowCount // of the root's own lines, as last drawn
+	view       cachedView
+	rows       rowCount           // of the root's own lines, as last drawn
 	cautionsOf *methodfile.Method // the method sh.cautions belong to
 	quitQ      component          // the last quit question
 }

@@ -45,7 +45,7 @@ type chart struct {
 	cv    *canvas.Canvas
 	ys    []float64
 	ms    []float64 // a measured run's apexes per dot column
-	label []int8 // per cell: 0 none, 1 label, 2 critical label
+	label []int8    // per cell: 0 none, 1 label, 2 critical label
 }
 
 func (c *chart) render(in chartInput, w, h int, st *Styles) []string {

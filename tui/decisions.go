@@ -70,10 +70,10 @@ type resultDialog struct {
 	// (the optimized one's is res.Robust)
 	nowRob optimizer.RobustReport
 	keys   ListKeys
-	off     int
-	w, h    int
-	body    []string
-	lines   []string
+	off    int
+	w, h   int
+	body   []string
+	lines  []string
 }
 
 func newResultDialog(sh *shared, res *optimizer.Result, after *methodfile.Method, afterR model.Result) *resultDialog {
@@ -91,8 +91,8 @@ func (d *resultDialog) ShortHelp() []key.Binding {
 	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Toggle, d.keys.Up}
 }
 func (d *resultDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
-func (d *resultDialog) View() string     { return strings.Join(d.lines, "\n") }
-func (d *resultDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
+func (d *resultDialog) View() string              { return strings.Join(d.lines, "\n") }
+func (d *resultDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
 
 func (d *resultDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
@@ -291,8 +291,8 @@ func (d *fitDialog) ShortHelp() []key.Binding {
 	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Up, d.keys.PageDown}
 }
 func (d *fitDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
-func (d *fitDialog) View() string     { return strings.Join(d.lines, "\n") }
-func (d *fitDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
+func (d *fitDialog) View() string              { return strings.Join(d.lines, "\n") }
+func (d *fitDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
 
 func (d *fitDialog) rows() int { return max(1, d.h-3) }
 
@@ -394,8 +394,8 @@ func (d *rankingDialog) ShortHelp() []key.Binding {
 	return []key.Binding{d.keys.Up, d.keys.Accept, d.keys.Reject}
 }
 func (d *rankingDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
-func (d *rankingDialog) View() string     { return strings.Join(d.lines, "\n") }
-func (d *rankingDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
+func (d *rankingDialog) View() string              { return strings.Join(d.lines, "\n") }
+func (d *rankingDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
 
 func (d *rankingDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	if km, ok := msg.(tea.KeyMsg); ok && len(d.out) > 0 {

@@ -81,7 +81,7 @@ func DefaultSettingsKeys() FieldKeys {
 		BigUp:   bind([]string{"]", "pgup"}, "]/[", "big step"),
 		BigDown: bind([]string{"[", "pgdown"}, "[", "big step down"),
 		Type:    bind([]string{"enter"}, "enter", "type value"),
-		Sweep:    bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
+		Sweep:   bind([]string{"s"}, "s", "window diagram (flow, pressure)"),
 	}
 }
 

@@ -470,7 +470,9 @@ type peaksPane struct {
 	lines []string
 }
 
-func newPeaksPane(sh *shared) *peaksPane { return &peaksPane{sh: sh, keys: DefaultPeakKeys(), comp: -1} }
+func newPeaksPane(sh *shared) *peaksPane {
+	return &peaksPane{sh: sh, keys: DefaultPeakKeys(), comp: -1}
+}
 
 func (p *peaksPane) ShortHelp() []key.Binding  { return p.keys.ShortHelp() }
 func (p *peaksPane) FullHelp() [][]key.Binding { return p.keys.FullHelp() }
