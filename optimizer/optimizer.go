@@ -1,8 +1,9 @@
 // Package optimizer searches oven temperature programs for the shortest run
 // (or oven cycle) in which every counted pair reaches the target resolution,
 // within the column's and the oven's limits. It uses gonum's Nelder–Mead
-// simplex method from several seeded starts in parallel, over variables
-// mapped so that every point tried is a valid program.
+// simplex method (stepped in the calling goroutine, nelder.go) from several
+// seeded starts in parallel, over variables mapped so that every point
+// tried is a valid program.
 package optimizer
 
 import (
@@ -16,8 +17,6 @@ import (
 	"sync"
 	"sync/atomic"
 	"time"
-
-	"gonum.org/v1/gonum/optimize"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/robust"
@@ -320,11 +319,7 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 		}
 		starts = append(starts, x)
 	}
-	type outcome struct {
-		x []float64
-		f float64
-	}
-	out := make([]outcome, len(starts))
+	out := make([]*search, len(starts))
 	jobs := make(chan int)
 	var wg sync.WaitGroup
 	for w := 0; w < sh.s.Workers; w++ {
@@ -332,8 +327,9 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				x, f := sh.run(ctx, rg, sp, starts[i], 0.25, evals)
-				out[i] = outcome{x, f}
+				s := sh.newSearch(ctx, rg, sp, starts[i], 0.25, evals)
+				s.run(evals)
+				out[i] = s
 			}
 		}()
 	}
@@ -345,16 +341,19 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 	}
 	close(jobs)
 	wg.Wait()
-	bi := -1
-	for i, o := range out {
-		if o.x != nil && (bi < 0 || o.f < out[bi].f) {
-			bi = i
+	bi, f := -1, math.Inf(1)
+	var x []float64
+	for i, s := range out {
+		if s == nil {
+			continue // not started: stopped
+		}
+		if sx, sf := s.best(); bi < 0 || sf < f {
+			bi, x, f = i, sx, sf
 		}
 	}
 	if bi < 0 {
 		return starts[0], math.Inf(1)
 	}
-	x, f := out[bi].x, out[bi].f
 	for r := 0; r < restarts && ctx.Err() == nil; r++ {
 		x2, f2 := sh.run(ctx, rg, sp, x, 0.05/float64(r+1), evals)
 		if f2 < f {
@@ -364,32 +363,45 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 	return x, f
 }
 
-// run is one Nelder–Mead search from x0 with the given simplex size.
-func (sh *shared) run(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) ([]float64, float64) {
+// search is one Nelder–Mead search from a start on one rig.
+type search struct {
+	ev *evaluator
+	nm *nelderMead // nil when the space has no variables
+	x0 []float64
+}
+
+func (sh *shared) newSearch(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) *search {
 	ev := newEvaluator(sh, rg, sp)
 	ev.approx = sh.approx
+	s := &search{ev: ev, x0: x0}
 	if sp.dim == 0 {
-		return x0, ev.f(x0)
+		ev.f(x0)
+		return s
 	}
-	prob := optimize.Problem{
-		Func: ev.f,
-		Status: func() (optimize.Status, error) {
-			if ctx.Err() != nil {
-				return optimize.Failure, ctx.Err()
-			}
-			return optimize.NotTerminated, nil
-		},
+	s.nm = newNelderMead(ev.f, func() bool { return ctx.Err() != nil }, x0, size, evals)
+	return s
+}
+
+// run goes on until the search ends or has made until evaluations.
+func (s *search) run(until int) {
+	if s.nm != nil {
+		s.nm.run(until)
 	}
-	settings := &optimize.Settings{
-		FuncEvaluations: evals,
-		Converger:       &optimize.FunctionConverge{Absolute: 1e-4, Relative: 1e-9, Iterations: 60},
-		Concurrent:      1,
+}
+
+// best is the best point so far and its score.
+func (s *search) best() ([]float64, float64) {
+	if s.ev.bestX == nil {
+		return s.x0, math.Inf(1)
 	}
-	optimize.Minimize(prob, append([]float64(nil), x0...), settings, &optimize.NelderMead{SimplexSize: size})
-	if ev.bestX == nil {
-		return x0, math.Inf(1)
-	}
-	return ev.bestX, ev.bestF
+	return s.ev.bestX, s.ev.bestF
+}
+
+// run is one Nelder–Mead search from x0 with the given simplex size.
+func (sh *shared) run(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) ([]float64, float64) {
+	s := sh.newSearch(ctx, rg, sp, x0, size, evals)
+	s.run(evals)
+	return s.best()
 }
 
 // finish simulates the saved program afresh, reports the robust margin and
