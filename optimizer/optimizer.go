@@ -179,7 +179,7 @@ func (sh *shared) programStages(ctx context.Context, rg *rig) (candidate, []cand
 		if n >= 2 {
 			seeds = append(seeds, sp.plateauSeeds()...)
 		}
-		x, f := sh.stage(ctx, rg, sp, seeds, sh.s.Starts, sh.s.Evaluations, sh.s.Restarts, uint64(n))
+		x, f := sh.stage(ctx, rg, sp, seeds, sh.s.Starts, sh.s.Evaluations, sh.s.Restarts, uint64(n), screen{})
 		c := candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
 		stages = append(stages, c)
 		if f < best.f || best.sp == nil {
@@ -307,9 +307,16 @@ func (sh *shared) startProgress(ctx context.Context) func() {
 	return func() { once.Do(func() { close(done); wg.Wait() }) }
 }
 
+// screen is how a stage screens its starts: every search makes its first
+// at evaluations and is held there; then the first starts (the seeds
+// carried over from earlier searches) and the keep best of the others go
+// on, exactly as if never held (nelderMead.run), and the rest stop. The
+// zero value runs every start to its end.
+type screen struct{ at, keep, first int }
+
 // stage runs the seeded starts of one space in parallel, then restarts from
 // the best point; it returns the best point and its score.
-func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float64, nStarts, evals, restarts int, stage uint64) ([]float64, float64) {
+func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float64, nStarts, evals, restarts int, stage uint64, sc screen) ([]float64, float64) {
 	rng := rand.New(rand.NewPCG(sh.s.Seed, stage^uint64(math.Float64bits(rg.value))))
 	starts := append([][]float64(nil), seeds...)
 	for len(starts) < nStarts+len(seeds) {
@@ -320,27 +327,59 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 		starts = append(starts, x)
 	}
 	out := make([]*search, len(starts))
-	jobs := make(chan int)
-	var wg sync.WaitGroup
-	for w := 0; w < sh.s.Workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range jobs {
-				s := sh.newSearch(ctx, rg, sp, starts[i], 0.25, evals)
-				s.run(evals)
-				out[i] = s
-			}
-		}()
-	}
-	for i := range starts {
-		if ctx.Err() != nil {
-			break
+	// each worker takes one search at a time
+	parallel := func(idx []int, do func(i int)) {
+		jobs := make(chan int)
+		var wg sync.WaitGroup
+		for w := 0; w < sh.s.Workers; w++ {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				for i := range jobs {
+					do(i)
+				}
+			}()
 		}
-		jobs <- i
+		for _, i := range idx {
+			if ctx.Err() != nil {
+				break
+			}
+			jobs <- i
+		}
+		close(jobs)
+		wg.Wait()
 	}
-	close(jobs)
-	wg.Wait()
+	if sc.at <= 0 || sc.at >= evals || len(starts) <= sc.first+sc.keep {
+		sc = screen{at: evals}
+	}
+	all := make([]int, len(starts))
+	for i := range all {
+		all[i] = i
+	}
+	parallel(all, func(i int) {
+		s := sh.newSearch(ctx, rg, sp, starts[i], 0.25, evals)
+		s.run(sc.at)
+		out[i] = s
+	})
+	if sc.at < evals {
+		var rest []int
+		for i := sc.first; i < len(out); i++ {
+			if out[i] != nil && !out[i].ended() {
+				rest = append(rest, i)
+			}
+		}
+		score := func(i int) float64 { _, f := out[i].best(); return f }
+		sort.SliceStable(rest, func(a, b int) bool { return score(rest[a]) < score(rest[b]) })
+		rest = rest[:min(len(rest), sc.keep)]
+		var goOn []int
+		for i := 0; i < sc.first && i < len(out); i++ {
+			if out[i] != nil && !out[i].ended() {
+				goOn = append(goOn, i)
+			}
+		}
+		sort.Ints(rest)
+		parallel(append(goOn, rest...), func(i int) { out[i].run(evals) })
+	}
 	bi, f := -1, math.Inf(1)
 	var x []float64
 	for i, s := range out {
@@ -381,6 +420,8 @@ func (sh *shared) newSearch(ctx context.Context, rg *rig, sp *space, x0 []float6
 	s.nm = newNelderMead(ev.f, func() bool { return ctx.Err() != nil }, x0, size, evals)
 	return s
 }
+
+func (s *search) ended() bool { return s.nm == nil || s.nm.done() }
 
 // run goes on until the search ends or has made until evaluations.
 func (s *search) run(until int) {
