@@ -303,7 +303,7 @@ func (rg *Set) Evaluate(q model.Program, nom *model.Result, sc *Scratch, stopBel
 			if k >= 2 {
 				oven = -1
 			}
-			flow := []float64{-1, 1}[fi]
+			flow := float64(2*fi - 1) // −1, +1
 			if (rb.OvenOffset == 0 && oven < 0) || (rb.FlowPct == 0 && fi > 0) {
 				continue
 			}
