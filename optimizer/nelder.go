@@ -12,9 +12,10 @@ import (
 // order and the same floating-point operations) as optimize.Minimize runs
 // it with one evaluation at a time, a FunctionConverge converger, a limit
 // on evaluations and a Status callback, but stepped in the calling
-// goroutine: Minimize hands every evaluation between three goroutines,
-// which cost about as much as a simulation of a small method. A search
-// can also be held after some evaluations and taken up again later (run).
+// goroutine: Minimize hands every evaluation between goroutines over
+// channels, about 1.4 µs an evaluation with a trivial objective on the
+// 2-core CI machine (a third of a 20-compound simulation). A search can
+// also be held after some evaluations and taken up again later (run).
 // TestNelderMeadAsGonum checks that it visits exactly the points Minimize
 // does.
 type nelderMead struct {
