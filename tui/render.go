@@ -99,9 +99,11 @@ func (a *App) methodLines(w int) []string {
 		col = fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
 	}
 	// the target resolution is in the summary below
-	s := fmt.Sprintf(" %s, max %s °C · %s %s · goal %s, %d ramps · %s",
+	// goal.ramps is how many ramps the optimizer may use, not how many the
+	// program has: said so, so that it cannot be read as the program's count
+	s := fmt.Sprintf(" %s, max %s °C · %s %s · optimizer: %s, up to %d %s · %s",
 		col, v("column.max_temp_c"), g.Gas, flow,
-		m.Goal.Objective, m.Goal.Ramps, phase)
+		m.Goal.Objective, m.Goal.Ramps, plural(m.Goal.Ramps, "ramp", "ramps"), phase)
 	const h2 = " ⚠ H₂ flammable ·"
 	if g.Gas.Flammable() {
 		s = h2 + s
