@@ -695,13 +695,20 @@ func (a *App) View() string {
 	return strings.Join(parts, "\n")
 }
 
-// The rows around the panes: the title, the method lines, the two program
+// The rows around the panes: the title, the method lines, the program
 // lines, the summary, the status message (as many lines as it needs, none
 // when there is none) and the footer. They wrap rather than cut; the chart
 // keeps its height whatever the message, the lower pane takes the rest.
-type rowCount struct{ title, method, summary, message int }
+type rowCount struct{ title, method, program, summary, message int }
 
-func (r rowCount) fixed() int { return r.title + r.method + r.summary + 2 + 1 }
+func (r rowCount) fixed() int { return r.title + r.method + r.program + r.summary + 1 }
+
+// programRows is the program's rows: as many as its steps need, at least
+// 2, at most 3 on a 24-row terminal and more on a taller one; steps
+// beyond them are reached with ←/→, which the hints say.
+func (a *App) programRows(w int) int {
+	return min(a.program.rowsFor(w), max(3, (a.height-16)/4))
+}
 
 // maxMessageRows is the most the status message takes; a longer one ends
 // with a pointer to the list of cautions, which shows it whole.
@@ -736,7 +743,7 @@ func (a *App) layout() {
 	}
 	a.measure()
 	chartH, lowerH := a.heights()
-	a.program.SetSize(a.width, 2)
+	a.program.SetSize(a.width, a.rows.program)
 	a.chart.SetSize(a.width, chartH)
 	a.peaks.SetSize(a.width, lowerH)
 	a.settings.SetSize(a.width, lowerH)
@@ -770,7 +777,7 @@ func (a *App) measure() bool {
 	v := &a.view
 	title, method, summary := a.titleLines(w), a.methodLines(w), a.summaryLines(w)
 	was := a.rows
-	a.rows = rowCount{title: len(title), method: len(method), summary: len(summary)}
+	a.rows = rowCount{title: len(title), method: len(method), program: a.programRows(w), summary: len(summary)}
 	base := a.height - a.rows.fixed()
 	chartH := chartRows(base)
 	n := max(0, min(maxMessageRows, base-chartH-minLowerRows))

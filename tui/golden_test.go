@@ -17,6 +17,7 @@ var screens = []struct {
 	setup func(t *testing.T, a *App)
 }{
 	{"program", func(t *testing.T, a *App) {}},
+	{"program-two-ramps", func(t *testing.T, a *App) { press(a, "a") }},
 	{"chart", func(t *testing.T, a *App) { press(a, "tab", "+") }},
 	{"peaks", func(t *testing.T, a *App) { press(a, "tab", "tab", "down", "right") }},
 	{"settings", func(t *testing.T, a *App) { press(a, "shift+tab", "down") }},
