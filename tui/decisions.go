@@ -91,8 +91,20 @@ func (d *resultDialog) ShortHelp() []key.Binding {
 	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Toggle, d.keys.Up}
 }
 func (d *resultDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
-func (d *resultDialog) View() string              { return strings.Join(d.lines, "\n") }
-func (d *resultDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
+
+// resultKeyRows is how many rows of the result's body hold what decides:
+// the carrier and the run time, the minimum Rs, the worst corner and
+// Rs − z·σ (the body's first rows).
+const resultKeyRows = 5
+
+// wantRows is the rows the dialog needs to show its title, its key rows
+// and the whole program; on a small terminal the chart gives up rows for
+// them (App.heights).
+func (d *resultDialog) wantRows() int {
+	return 1 + max(resultKeyRows, 3+len(d.after.Oven.Ramps)) // carrier, head, start, ramps
+}
+func (d *resultDialog) View() string     { return strings.Join(d.lines, "\n") }
+func (d *resultDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
 
 func (d *resultDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
@@ -154,21 +166,22 @@ func (d *resultDialog) render() {
 		return fitTitle(head, st.Dim, strings.Join(items, " · "), d.w)
 	}
 	o := d.after.Oven
-	left := []string{st.TableHead.Render(fmt.Sprintf(" %-5s %7s %7s %8s", "step", "°C/min", "to °C", "hold min"))}
+	// the carrier setting the optimizer varies goes with the program: say
+	// it first, before the user takes it, where 80×24 shows it
+	left := []string{st.Info.Render(" " + carrierChange(d.sh.method.Carrier, d.after.Carrier))}
+	left = append(left, st.TableHead.Render(fmt.Sprintf(" %-5s %7s %7s %8s", "step", "°C/min", "to °C", "hold min")))
 	left = append(left, fmt.Sprintf(" %-5s %7s %7s %8s", "start", "", fmtNum(o.InitialC, 1, 2), fmtNum(o.InitialHoldMin, 2, 3)))
 	for i, r := range o.Ramps {
 		left = append(left, fmt.Sprintf(" %-5d %7s %7s %8s", i+1, fmtNum(r.RateCMin, 1, 2), fmtNum(r.FinalC, 1, 2), fmtNum(r.HoldMin, 2, 3)))
 	}
-	// the carrier setting the optimizer varies goes with the program: say
-	// it before the user takes it
-	left = append(left, st.Info.Render(" "+carrierChange(d.sh.method.Carrier, d.after.Carrier)))
 	lw := 31
 	rw := d.w - lw - 2
 	now := d.sh.res
 	cell := func(s string, n int) string { return padRight(ansi.Truncate(s, n, "…"), n) }
-	half := min(20, (rw-12)/2)
+	const labelW = 13 // "worst corner" and a space
+	half := min(20, (rw-labelW-1)/2)
 	row := func(label, a, b string) string {
-		return st.Label.Render(fmt.Sprintf("%-11s", label)) + st.Value.Render(cell(a, half)+" "+cell(b, half))
+		return st.Label.Render(fmt.Sprintf("%-*s", labelW, label)) + st.Value.Render(cell(a, half)+" "+cell(b, half))
 	}
 	target := d.sh.method.Goal.MinResolution
 	rs := func(r *model.Result) string {
@@ -177,32 +190,46 @@ func (d *resultDialog) render() {
 		}
 		return format.RsNumber(r.MinResolution, target) + " " + format.VerdictAll(r.MinResolution, target, r.TargetsNotEluted)
 	}
+	// the figures that decide come first (run time, minimum Rs, the worst
+	// corner, Rs − z·σ), so that 80×24 shows them without scrolling
 	right := []string{
-		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
+		st.TableHead.Render(fmt.Sprintf("%-*s", labelW, "") + cell("now", half) + " " + cell("optimized", half)),
 		row("run time", fmt.Sprintf("%.2f min", now.RunTime/60), fmt.Sprintf("%.2f min", d.afterR.RunTime/60)),
-		row("cycle time", fmt.Sprintf("%.2f min", now.CycleTime/60), fmt.Sprintf("%.2f min", d.afterR.CycleTime/60)),
 	}
+	cycle := row("cycle time", fmt.Sprintf("%.2f min", now.CycleTime/60), fmt.Sprintf("%.2f min", d.afterR.CycleTime/60))
 	robust := res.Robust.On || d.nowRob.On
 	if robust {
-		// the robust margin ([goal.robust]): nominal, worst corner, Rs ± σ
-		worst := func(r optimizer.RobustReport) string {
-			if !r.On || math.IsNaN(r.Worst) {
+		// the robust margin ([goal.robust]): nominal, worst corner, Rs − z·σ
+		verdict := func(on bool, x float64) string {
+			if !on || math.IsNaN(x) || math.IsInf(x, 0) {
 				return "-"
 			}
-			return format.RsNumber(r.Worst, target) + " " + format.Verdict(r.Worst, target)
+			return format.RsNumber(x, target) + " " + format.Verdict(x, target)
 		}
+		worst := func(r optimizer.RobustReport) string { return verdict(r.On, r.Worst) }
+		lowZ := func(r optimizer.RobustReport) string { return verdict(r.On && r.Z > 0, r.LowZ) }
 		sigma := func(r optimizer.RobustReport) string {
 			if !r.On || math.IsNaN(r.Sigma) || math.IsInf(r.Nominal, 0) {
 				return "-"
 			}
 			return fmt.Sprintf("%.2f ± %.2f", r.Nominal, r.Sigma)
 		}
+		z := res.Robust.Z
+		if z == 0 {
+			z = d.nowRob.Z
+		}
 		right = append(right,
 			row("nominal Rs", rs(now), rs(&d.afterR)),
-			row("worst Rs", worst(d.nowRob), worst(res.Robust)),
-			row("Rs ± σ", sigma(d.nowRob), sigma(res.Robust)))
+			row("worst corner", worst(d.nowRob), worst(res.Robust)))
+		if z > 0 {
+			right = append(right, row("Rs − "+format.Clean(z)+"σ", lowZ(d.nowRob), lowZ(res.Robust)))
+		}
+		right = append(right, cycle)
+		if z > 0 {
+			right = append(right, row("Rs ± σ", sigma(d.nowRob), sigma(res.Robust)))
+		}
 	} else {
-		right = append(right, row("min Rs", rs(now), rs(&d.afterR)),
+		right = append(right, row("min Rs", rs(now), rs(&d.afterR)), cycle,
 			row("ramps", fmt.Sprint(len(d.sh.method.Oven.Ramps)), fmt.Sprint(len(o.Ramps))))
 	}
 	var body []string
@@ -223,11 +250,7 @@ func (d *resultDialog) render() {
 			}
 			return r.Corner
 		}
-		s := " worst corner: optimized " + corner(res.Robust) + " · now " + corner(d.nowRob)
-		if z := res.Robust.Z; z > 0 && !math.IsNaN(res.Robust.LowZ) {
-			s += fmt.Sprintf(" · lowest Rs − %gσ optimized %.2f", z, res.Robust.LowZ)
-		}
-		for _, l := range wrap(s, d.w) {
+		for _, l := range wrap(" worst corner: optimized "+corner(res.Robust)+" · now "+corner(d.nowRob), d.w) {
 			body = append(body, st.Info.Render(l))
 		}
 	}

@@ -2,13 +2,19 @@ package tui
 
 import (
 	"fmt"
+	"math"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
 
+	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/model/robust"
+	"github.com/rampwise/rampwise/model/robust/methodtol"
+	"github.com/rampwise/rampwise/optimizer"
 )
 
 // The method line says goal.ramps is the optimizer's limit, not the
@@ -108,5 +114,137 @@ func TestProgramHintsReachHiddenRamps(t *testing.T) {
 	b := appWith(t, rampsUpTo(6), 80, 44)
 	if s := strings.Join(b.program.lines, "\n"); strings.Contains(s, "more") || !strings.Contains(s, "│ 6:") {
 		t.Errorf("80×44 should show all 6 ramps:\n%s", s)
+	}
+}
+
+// The optimizer's result at 80×24, with a two-ramp current program (the
+// program then takes 3 rows) and the status message: the run time, the
+// nominal, worst-corner and Rs − 2σ figures of both programs, the carrier
+// and every step of the new program show without scrolling.
+func TestResultKeyRowsWithoutScrolling(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	a.name = "demo (built in, a name long enough to wrap the title).toml"
+	press(a, "a") // a second ramp: the program takes 3 rows
+	if a.rows.title != 2 || a.rows.program != 3 {
+		t.Fatalf("want a 2-row title and a 3-row program: %+v", a.rows)
+	}
+	fastOptimizer(a)
+	press(a, "o")
+	d, ok := a.overlay.(*resultDialog)
+	if !ok {
+		t.Fatalf("no result: %s", a.message)
+	}
+	s := screen(a)
+	if n := strings.Count(s, "\n") + 1; n != 24 {
+		t.Fatalf("%d lines", n)
+	}
+	target := a.Method().Goal.MinResolution
+	r, now := d.res.Robust, d.nowRob
+	want := []string{
+		"run time", fmt.Sprintf("%.2f min", a.res.RunTime/60), fmt.Sprintf("%.2f min", d.afterR.RunTime/60),
+		"nominal Rs", format.RsNumber(a.res.MinResolution, target), format.RsNumber(d.afterR.MinResolution, target),
+		"worst corner", format.RsNumber(now.Worst, target) + " " + format.Verdict(now.Worst, target), format.RsNumber(r.Worst, target) + " " + format.Verdict(r.Worst, target),
+		"Rs − 2σ", format.RsNumber(now.LowZ, target), format.RsNumber(r.LowZ, target),
+		carrierChange(a.Method().Carrier, d.after.Carrier),
+	}
+	for i, rp := range d.after.Oven.Ramps {
+		want = append(want, fmt.Sprintf(" %-5d %7s %7s", i+1, fmtNum(rp.RateCMin, 1, 2), fmtNum(rp.FinalC, 1, 2)))
+	}
+	for _, w := range want {
+		if !strings.Contains(s, w) {
+			t.Errorf("80×24 result lacks %q:\n%s", w, s)
+		}
+	}
+	if d.off != 0 {
+		t.Errorf("scrolled by %d", d.off)
+	}
+}
+
+// A result that needs more rows than the lower pane has (five ramps) takes
+// them from the chart, which keeps minChartRows and has them back once the
+// result closes; the screen keeps its height throughout.
+func TestResultTakesRowsFromChart(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	a.name = "demo (built in, a name long enough to wrap the title).toml"
+	a.refresh()
+	chartRowsNow := func() int { return len(strings.Split(a.chart.View(), "\n")) }
+	before := chartRowsNow()
+	after := a.Method().Clone()
+	after.Oven.Ramps = rampsUpTo(5)
+	sys, _ := after.System()
+	var sim model.Result
+	if err := sys.Simulate(after.ModelProgram(), &sim); err != nil {
+		t.Fatal(err)
+	}
+	d := newResultDialog(&a.sh, &optimizer.Result{Status: optimizer.Met}, after, sim)
+	a.open(d)
+	a.refresh()
+	with := chartRowsNow()
+	if with >= before || with < minChartRows {
+		t.Errorf("chart rows %d before, %d with the result", before, with)
+	}
+	s := screen(a)
+	if n := strings.Count(s, "\n") + 1; n != 24 {
+		t.Fatalf("%d lines", n)
+	}
+	for i := range after.Oven.Ramps {
+		if !strings.Contains(s, fmt.Sprintf(" %-5d %7s", i+1, fmtNum(after.Oven.Ramps[i].RateCMin, 1, 2))) {
+			t.Errorf("ramp %d not shown:\n%s", i+1, s)
+		}
+	}
+	press(a, "n")
+	if got := chartRowsNow(); got != before {
+		t.Errorf("chart rows %d after closing, want %d", got, before)
+	}
+	if n := strings.Count(screen(a), "\n") + 1; n != 24 {
+		t.Fatalf("%d lines after closing", n)
+	}
+}
+
+// After the optimizer's program is taken, the summary gives its worst
+// corner and lowest Rs − 2σ, as model/robust computes them for the method
+// now (methodtol.Check, a separate path), equal to what the optimizer
+// reported; a hand edit changes them with the program.
+func TestSummaryRobustAfterTaking(t *testing.T) {
+	a, _ := newApp(t, 80, 24)
+	fastOptimizer(a)
+	press(a, "o")
+	d, ok := a.overlay.(*resultDialog)
+	if !ok {
+		t.Fatalf("no result: %s", a.message)
+	}
+	opt := d.res.Robust
+	press(a, "y")
+	target := a.Method().Goal.MinResolution
+	check := func(when string) robust.Report {
+		t.Helper()
+		rep, err := methodtol.Check(a.Method(), a.sh.sys)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := unwrap(screen(a))
+		w := "worst corner " + format.RsNumber(rep.Worst, target) + ", Rs − 2σ " + format.RsNumber(rep.LowZ, target)
+		if !strings.Contains(s, w) {
+			t.Errorf("%s: the summary lacks %q:\n%s", when, w, screen(a))
+		}
+		return rep
+	}
+	rep := check("taken")
+	if format.RsNumber(rep.Worst, target) != format.RsNumber(opt.Worst, target) || format.RsNumber(rep.LowZ, target) != format.RsNumber(opt.LowZ, target) {
+		t.Errorf("the method's robust figures %v / %v differ from the optimizer's %v / %v", rep.Worst, rep.LowZ, opt.Worst, opt.LowZ)
+	}
+	if format.Met(math.Min(rep.Worst, rep.LowZ), target) && !strings.Contains(unwrap(screen(a)), format.RsNumber(rep.LowZ, target)+" met") {
+		t.Errorf("no verdict on the margin:\n%s", screen(a))
+	}
+	a.setFocus(paneProgram)
+	a.program.list.sel = 0
+	undo := len(a.undo)
+	press(a, "[") // the start 10 °C lower
+	if len(a.undo) != undo+1 {
+		t.Fatalf("the edit was refused: %s", a.message)
+	}
+	after := check("edited")
+	if after.Worst == rep.Worst {
+		t.Errorf("the worst corner did not change with the program: %v", after.Worst)
 	}
 }

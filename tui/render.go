@@ -137,6 +137,15 @@ func (a *App) summaryLines(w int) []string {
 			format.CriticalPair(inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name)) +
 			" (target " + format.Target(target) + ")"
 	}
+	// the worst corner and Rs − z·σ of the program as it stands
+	robust := ""
+	robustStyle := a.st.Good
+	if text, met := a.robustSummary(); text != "" {
+		robust = " · " + text
+		if !met {
+			robustStyle = a.st.Warn
+		}
+	}
 	late := 0
 	for _, pk := range r.Peaks {
 		if !pk.Eluted {
@@ -155,7 +164,7 @@ func (a *App) summaryLines(w int) []string {
 	if n := len(a.cautions()); n > 0 {
 		tail += fmt.Sprintf(" · %d %s (! lists)", n, plural(n, "caution", "cautions"))
 	}
-	return capRows(wrapStyled(a.st.Info.Render(s)+style.Render(rs)+a.st.Warn.Render(tail), w), w)
+	return capRows(wrapStyled(a.st.Info.Render(s)+style.Render(rs)+robustStyle.Render(robust)+a.st.Warn.Render(tail), w), w)
 }
 
 func plural(n int, one, many string) string {
