@@ -8,6 +8,7 @@ import (
 
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
@@ -537,8 +538,23 @@ func (d *sweepDialog) render() {
 	target := d.sh.method.Goal.MinResolution
 	lines := []string{dialogTitle(st, "window diagram ", fmt.Sprintf("%s (%s) · │ now %s · ┄ target Rs %.2f", sv.label, sv.unit, trimNum(sv.current), target), d.w)}
 	lines[0] = ansi.Truncate(lines[0], d.w, "…")
+	reason := ""
+	for _, p := range d.pts {
+		if !p.Valid && p.Reason != "" {
+			reason = "gaps: " + inert(p.Reason)
+			break
+		}
+	}
+	// the legend and the range, whole items on as many lines as they need
+	// (two at 80 columns), never cut
+	foot := packItems([]styledItem{
+		{st.Peak, "left: min Rs (solid)"},
+		{st.Label, "right: run time, min (dotted)"},
+		{st.Dim, fmt.Sprintf("%s %s–%s %s, within the method's limits", sv.label, trimNum(round(d.lo(), 3)), trimNum(round(d.hi(), 3)), sv.unit)},
+		{st.Dim, reason},
+	}, d.w)
 	const lw, rw = 6, 7
-	ph, pw := d.h-3, d.w-lw-rw-1
+	ph, pw := d.h-2-len(foot), d.w-lw-rw-1
 	if ph < 2 || pw < 10 || len(d.pts) < 2 {
 		d.lines = fill(lines, d.h)
 		return
@@ -618,16 +634,61 @@ func (d *sweepDialog) render() {
 		lines = append(lines, ansi.Truncate(b.String(), d.w, ""))
 	}
 	lines = append(lines, st.Axis.Render(strings.Repeat(" ", lw)+valueAxis(lo, hi, pw, sv.unit)))
-	reason := ""
-	for _, p := range d.pts {
-		if !p.Valid && p.Reason != "" {
-			reason = " · gaps: " + p.Reason
-			break
-		}
-	}
-	lines = append(lines, ansi.Truncate(st.Peak.Render(" left: min Rs (solid)")+st.Label.Render(" · right: run time, min (dotted)")+
-		st.Dim.Render(fmt.Sprintf(" · %s %s–%s %s, within the method's limits%s", sv.label, trimNum(round(lo, 3)), trimNum(round(hi, 3)), sv.unit, inert(reason))), d.w, "…"))
+	lines = append(lines, foot...)
 	d.lines = fill(lines, d.h)
+}
+
+// lo and hi are the ends of the swept range (0 without points).
+func (d *sweepDialog) lo() float64 {
+	if len(d.pts) == 0 {
+		return 0
+	}
+	return d.pts[0].Value
+}
+
+func (d *sweepDialog) hi() float64 {
+	if len(d.pts) == 0 {
+		return 0
+	}
+	return d.pts[len(d.pts)-1].Value
+}
+
+// styledItem is one item of a legend and its style.
+type styledItem struct {
+	style lipgloss.Style
+	text  string
+}
+
+// packItems puts the non-empty items on lines of w columns, " · " between
+// them, each whole on one line (an item wider than a line is wrapped at
+// its spaces), each line starting with a space.
+func packItems(items []styledItem, w int) []string {
+	var lines []string
+	cur, curW := "", 0
+	for _, it := range items {
+		if it.text == "" {
+			continue
+		}
+		iw := ansi.StringWidth(it.text)
+		switch {
+		case curW > 0 && curW+3+iw <= w:
+			cur += it.style.Render(" · " + it.text)
+			curW += 3 + iw
+			continue
+		case curW > 0:
+			lines = append(lines, cur)
+		}
+		parts := wrap(" "+it.text, w)
+		for _, l := range parts[:len(parts)-1] {
+			lines = append(lines, it.style.Render(l))
+		}
+		last := parts[len(parts)-1]
+		cur, curW = it.style.Render(last), ansi.StringWidth(last)
+	}
+	if curW > 0 {
+		lines = append(lines, cur)
+	}
+	return lines
 }
 
 // tickRows labels the rows of an axis from 0 (bottom row) to top (top

@@ -248,3 +248,73 @@ func TestSummaryRobustAfterTaking(t *testing.T) {
 		t.Errorf("the worst corner did not change with the program: %v", after.Worst)
 	}
 }
+
+// At 80×24 the verification list and the window diagrams cut nothing:
+// every row keeps its last column (the confidence of an assigned peak),
+// the window diagram's legend and range stand whole, and where the list is
+// scrolled is said; at 120×40 too.
+func TestVerificationAndWindowDiagramUncut(t *testing.T) {
+	run, _ := filepath.Abs("../testdata/lab/verify.csv")
+	for _, size := range [][2]int{{80, 24}, {120, 40}} {
+		a, _ := newApp(t, size[0], size[1])
+		press(a, "V", run, "enter")
+		d, ok := a.overlay.(*verifyDialog)
+		if !ok {
+			t.Fatalf("no verification dialog: %s", a.message)
+		}
+		s := screen(a)
+		noCut(t, fmt.Sprintf("verification %dx%d", size[0], size[1]), s)
+		if !strings.Contains(s, "assigned") || !strings.Contains(s, "rows 1–") {
+			t.Errorf("%dx%d: no assigned column or no row position:\n%s", size[0], size[1], s)
+		}
+		// every assigned row shows its confidence
+		for i, c := range d.v.ck.Compounds {
+			if i >= d.rows() {
+				break
+			}
+			if c.Assigned && !strings.Contains(s, fmt.Sprintf("%.2f\n", c.AssignedConfidence)) && !strings.Contains(s, fmt.Sprintf("%.2f \n", c.AssignedConfidence)) {
+				t.Errorf("%dx%d: %s's confidence %.2f not shown:\n%s", size[0], size[1], c.Name, c.AssignedConfidence, s)
+			}
+		}
+		press(a, "pgdown", "pgdown", "pgdown")
+		noCut(t, "verification scrolled", screen(a))
+
+		for _, keys := range [][]string{{"right", "right", "s"}, {"shift+tab", "s"}} {
+			b, _ := newApp(t, size[0], size[1])
+			press(b, keys...)
+			sd, ok := b.overlay.(*sweepDialog)
+			if !ok {
+				t.Fatalf("no window diagram: %s", b.message)
+			}
+			s := screen(b)
+			noCut(t, "window diagram", s)
+			rng := fmt.Sprintf("%s %s–%s %s, within the method's limits", sd.spec.label, trimNum(round(sd.lo(), 3)), trimNum(round(sd.hi(), 3)), sd.spec.unit)
+			for _, want := range []string{"left: min Rs (solid)", "right: run time, min (dotted)", rng} {
+				if !strings.Contains(s, want) {
+					t.Errorf("%dx%d window diagram lacks %q:\n%s", size[0], size[1], want, s)
+				}
+			}
+		}
+	}
+}
+
+// noCut fails on a line that ends in "…" (a cut) and on a screen that is
+// wider than it should be.
+func noCut(t *testing.T, what, s string) {
+	t.Helper()
+	for i, l := range strings.Split(s, "\n") {
+		if strings.HasSuffix(strings.TrimRight(l, " "), "…") {
+			t.Errorf("%s: line %d cut: %q", what, i, l)
+		}
+	}
+}
+
+func TestPackItems(t *testing.T) {
+	st := DefaultStyles(true)
+	items := []styledItem{{st.Dim, "alpha beta"}, {st.Dim, ""}, {st.Dim, "gamma"}, {st.Dim, strings.TrimSpace(strings.Repeat("long words ", 3))}}
+	got := packItems(items, 20)
+	want := []string{" alpha beta · gamma", " long words long", " words long words"}
+	if strings.Join(got, "|") != strings.Join(want, "|") {
+		t.Errorf("packItems = %q, want %q", got, want)
+	}
+}

@@ -470,11 +470,13 @@ func (c *chartPane) render() {
 	case c.prev != nil:
 		extra += " · the current program"
 	}
+	legend := []string{" · numbers are elution order", " · oven temperature at right"}
 	if c.meas != nil {
-		extra += " · below: measured " + inert(c.meas.Label) + ", ╱ joins matched peaks"
+		extra += " · below: measured " + inert(c.meas.Label)
+		legend = append([]string{" · ╱ joins matched peaks"}, legend...)
 	}
-	// the legend, as much of it as fits whole
-	for _, l := range []string{" · numbers are elution order", " · oven temperature at right"} {
+	// the legend, each item whole or not at all
+	for _, l := range legend {
 		if ansi.StringWidth(" chromatogram"+extra+l) <= c.w {
 			extra += l
 		}
