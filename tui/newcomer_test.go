@@ -236,6 +236,17 @@ func TestSummaryRobustAfterTaking(t *testing.T) {
 	if format.Met(math.Min(rep.Worst, rep.LowZ), target) && !strings.Contains(unwrap(screen(a)), format.RsNumber(rep.LowZ, target)+" met") {
 		t.Errorf("no verdict on the margin:\n%s", screen(a))
 	}
+	// the figures are never split from their names by the wrap
+	for w := 80; w <= 140; w++ {
+		for _, l := range a.summaryLines(w) {
+			if strings.HasSuffix(l, " Rs") || strings.HasSuffix(l, " worst") || strings.HasPrefix(l, " − ") || strings.HasPrefix(l, " corner") {
+				t.Errorf("width %d: a robust figure split: %q", w, a.summaryLines(w))
+			}
+			if strings.Contains(l, nbsp) {
+				t.Errorf("width %d: a no-break space left in %q", w, l)
+			}
+		}
+	}
 	a.setFocus(paneProgram)
 	a.program.list.sel = 0
 	undo := len(a.undo)

@@ -174,6 +174,10 @@ func plural(n int, one, many string) string {
 	return many
 }
 
+// nbsp joins words that wrapStyled keeps on one line ("Rs − 2σ 1.50");
+// it is shown as a space.
+const nbsp = "\u00a0"
+
 // wrapStyled wraps styled text at spaces into lines of at most w columns,
 // the lines after the first indented by one.
 func wrapStyled(s string, w int) []string {
@@ -182,7 +186,7 @@ func wrapStyled(s string, w int) []string {
 	const nbh = "\u2011"
 	lines := strings.Split(ansi.Wrap(strings.ReplaceAll(s, "-", nbh), w-1, ""), "\n")
 	for i := range lines {
-		lines[i] = strings.ReplaceAll(lines[i], nbh, "-")
+		lines[i] = strings.ReplaceAll(strings.ReplaceAll(lines[i], nbh, "-"), nbsp, " ")
 		if i > 0 {
 			lines[i] = " " + strings.TrimLeft(lines[i], " ")
 		}

@@ -62,11 +62,11 @@ func (a *App) robustSummary() (text string, met bool) {
 	var parts []string
 	low := math.Inf(1)
 	if !math.IsNaN(r.Worst) && !math.IsInf(r.Worst, 0) {
-		parts = append(parts, "worst corner "+format.RsNumber(r.Worst, target))
+		parts = append(parts, strings.ReplaceAll("worst corner "+format.RsNumber(r.Worst, target), " ", nbsp))
 		low = math.Min(low, r.Worst)
 	}
 	if r.Z > 0 && !math.IsNaN(r.LowZ) && !math.IsInf(r.LowZ, 0) {
-		parts = append(parts, fmt.Sprintf("Rs − %sσ %s", format.Clean(r.Z), format.RsNumber(r.LowZ, target)))
+		parts = append(parts, strings.ReplaceAll(fmt.Sprintf("Rs − %sσ %s", format.Clean(r.Z), format.RsNumber(r.LowZ, target)), " ", nbsp))
 		low = math.Min(low, r.LowZ)
 	}
 	if len(parts) == 0 {
