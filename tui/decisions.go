@@ -318,7 +318,13 @@ func (d *fitDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
 func (d *fitDialog) View() string              { return strings.Join(d.lines, "\n") }
 func (d *fitDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
 
-func (d *fitDialog) rows() int { return max(1, d.h-3) }
+func (d *fitDialog) rows() int { return max(1, d.h-2-len(d.rsLines())) }
+
+// rsLines are the minimum Rs now and with the fitted values, wrapped
+// whole (one line at 80 columns for the demo).
+func (d *fitDialog) rsLines() []string {
+	return wrapStyled(d.sh.st.Info.Render(fmt.Sprintf(" min Rs now %s → fitted %s", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim))), d.w)
+}
 
 // body is the table rows, then the fit's warnings.
 func (d *fitDialog) body() []string {
@@ -366,16 +372,23 @@ func (d *fitDialog) render() {
 	m := rep.Method
 	title := dialogTitle(st, "calibration", fmt.Sprintf("  diameter %s mm · plate-height factor %s · ⚠ large ± over %g kJ/mol or %g J/(mol·K) · in elution order",
 		fmtNum(m.Column.DiameterMM, 3, 4), fmtNum(m.Column.PlateHeight, 2, 3), largeErrDH, largeErrDS), d.w)
-	rsLine := st.Info.Render(ansi.Truncate(fmt.Sprintf(" min Rs now %s → %s with the fitted values (target %.2f)", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim), m.Goal.MinResolution), d.w, "…"))
 	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH "+format.UnitDH, "±", "ΔS "+format.UnitDS, "±", "runs", "rms min"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
-	lines := []string{title, rsLine, head}
-	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
 	if len(body) > rows {
-		lines[2] = ansi.Truncate(lines[2]+st.Dim.Render(fmt.Sprintf("  %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))), d.w, "…")
+		// where the rows are, whole on the first line it fits
+		pos := st.Dim.Render(fmt.Sprintf(" · rows %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body)))
+		switch {
+		case ansi.StringWidth(head+pos) <= d.w:
+			head += pos
+		case ansi.StringWidth(title+pos) <= d.w:
+			title += pos
+		}
 	}
+	lines := append([]string{title}, d.rsLines()...)
+	lines = append(lines, head)
+	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
 	d.lines = fill(lines, d.h)
 }
 
