@@ -299,7 +299,7 @@ func TestFitReview(t *testing.T) {
 		t.Error("no ± column")
 	}
 	want := rsShort(&d.fit.sim)
-	if !strings.Contains(screen(a), "→ "+want) {
+	if !strings.Contains(screen(a), "→ fitted "+want) {
 		t.Errorf("new min Rs %s not shown before taking:\n%s", want, screen(a))
 	}
 	press(a, "y")
