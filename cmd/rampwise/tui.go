@@ -60,7 +60,11 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	guard := tui.NewGuard(file)
-	app, err := tui.New(m, tui.Options{Path: file, Name: name, Guard: guard, NoColor: *noColor})
+	var text []byte // the file's text is read by the UI; the demo's is built in
+	if file == "" {
+		text = demoMethod
+	}
+	app, err := tui.New(m, tui.Options{Path: file, Name: name, Text: text, Guard: guard, NoColor: *noColor})
 	if err != nil {
 		return bad(fmt.Errorf("%s: %v", name, err))
 	}

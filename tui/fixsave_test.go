@@ -1,0 +1,132 @@
+package tui
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	tea "github.com/charmbracelet/bubbletea"
+
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// openFile opens a copy of the test file name (in testdata/) at 80×24 and
+// returns the App, the copy's path and its text.
+func openFile(t *testing.T, name string) (*App, string, string) {
+	t.Helper()
+	orig, err := os.ReadFile(filepath.Join("..", "testdata", name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), name)
+	if err := os.WriteFile(path, orig, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	m, err := methodfile.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := New(m, Options{Path: path, Name: name, NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	return a, path, string(orig)
+}
+
+// lineDiff lists the lines of a and b that differ, position by position
+// (the texts must have as many lines).
+func lineDiff(t *testing.T, a, b string) []string {
+	t.Helper()
+	la, lb := strings.Split(a, "\n"), strings.Split(b, "\n")
+	if len(la) != len(lb) {
+		t.Fatalf("%d lines became %d:\n%s", len(la), len(lb), b)
+	}
+	var out []string
+	for i := range la {
+		if la[i] != lb[i] {
+			out = append(out, la[i]+" → "+lb[i])
+		}
+	}
+	return out
+}
+
+// W writes the user's text with only the change placed, as ctrl+s does in
+// the file itself: comments, quotes, numbers and layout kept.
+func TestSaveAsKeepsTheText(t *testing.T) {
+	a, path, orig := openFile(t, "commented.toml")
+	press(a, "+") // start 50 → 51 °C
+	other := filepath.Join(filepath.Dir(path), "copy.toml")
+	press(a, "W", "ctrl+u", other, "enter")
+	if a.Dirty() || a.path != other {
+		t.Fatalf("not saved to %s: %s", other, a.message)
+	}
+	got, err := os.ReadFile(other)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := lineDiff(t, orig, string(got))
+	if len(d) != 1 || !strings.Contains(d[0], "initial_c = 51          # start") {
+		t.Errorf("save as changed more than the start temperature: %q", d)
+	}
+	if b, _ := os.ReadFile(path); string(b) != orig {
+		t.Error("save as changed the original file")
+	}
+	// A second save as starts from the text written last.
+	press(a, "+")
+	third := filepath.Join(filepath.Dir(path), "third.toml")
+	press(a, "W", "ctrl+u", third, "enter")
+	got3, _ := os.ReadFile(third)
+	if d := lineDiff(t, orig, string(got3)); len(d) != 1 || !strings.Contains(d[0], "initial_c = 52          # start") {
+		t.Errorf("second save as: %q", d)
+	}
+	if m, err := methodfile.ReadFile(third); err != nil || m.Oven.InitialC != 52 {
+		t.Errorf("the copy does not read back as saved: %v", err)
+	}
+}
+
+// Replacing another file (y to the question) writes the method's own text,
+// not the replaced file's with the method's values.
+func TestSaveAsReplaceWritesOwnText(t *testing.T) {
+	a, path, orig := openFile(t, "commented.toml")
+	other := filepath.Join(filepath.Dir(path), "other.toml")
+	demo, _ := os.ReadFile(filepath.Join("..", "testdata", "demo.toml"))
+	os.WriteFile(other, demo, 0o644)
+	press(a, "+", "W", "ctrl+u", other, "enter", "y")
+	got, _ := os.ReadFile(other)
+	if d := lineDiff(t, orig, string(got)); len(d) != 1 {
+		t.Errorf("the replaced file is not the method's text with the change: %q", d)
+	}
+}
+
+// The built-in demo saved under a name is the demo's own text with the
+// change placed.
+func TestSaveAsDemoKeepsItsText(t *testing.T) {
+	text, err := os.ReadFile(filepath.Join("..", "testdata", "demo.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := methodfile.Parse("demo.toml (built in)", text)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := New(m, Options{Name: "demo.toml (built in)", Text: text, NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	out := filepath.Join(t.TempDir(), "mine.toml")
+	press(a, "+", "ctrl+s") // no file yet: ctrl+s asks for a name too
+	if _, ok := a.overlay.(*promptDialog); !ok {
+		t.Fatalf("ctrl+s on the demo did not ask for a name: %T", a.overlay)
+	}
+	press(a, "ctrl+u", out, "enter")
+	got, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatalf("not saved: %v (%s)", err, a.message)
+	}
+	if d := lineDiff(t, string(text), string(got)); len(d) != 1 || !strings.Contains(d[0], "initial_c") {
+		t.Errorf("the demo saved as is not its text with the change: %q", d)
+	}
+}
