@@ -711,7 +711,7 @@ func keepSpelling(old, new string, crlf bool) string {
 // quote style of the value it replaces, wherever the new text can be
 // written so: gas = "helium" becomes gas = "hydrogen", not 'hydrogen'. The
 // styles are basic ("..."), literal ('...') and their multi-line forms
-// ("""...""", ”'...”'). A value the old style cannot hold keeps the new
+// (three quotes of either kind). A value the old style cannot hold keeps the new
 // text as it is. In a file with CRLF line ends a multi-line string gets
 // no raw newline (the file's line end would become part of the value).
 func keepQuotes(old, new string, crlf bool) string {
