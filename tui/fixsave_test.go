@@ -130,3 +130,48 @@ func TestSaveAsDemoKeepsItsText(t *testing.T) {
 		t.Errorf("the demo saved as is not its text with the change: %q", d)
 	}
 }
+
+// W opens with the current name selected: a typed path replaces it (it
+// used to be appended: esc.toml/tmp/x.toml); an arrow key edits it. The
+// demo offers its own name the same way.
+func TestSaveAsPromptReplacesName(t *testing.T) {
+	a, path, _ := openFile(t, "commented.toml")
+	other := filepath.Join(filepath.Dir(path), "typed.toml")
+	press(a, "W")
+	if s := screen(a); !strings.Contains(s, "["+path+"]") && !strings.Contains(s, "["+filepath.Base(path)) {
+		t.Errorf("the current name is not shown selected:\n%s", s)
+	}
+	press(a, other, "enter")
+	if _, err := os.Stat(other); err != nil || a.path != other {
+		t.Fatalf("typing a path did not replace the name: %v, %s", err, a.message)
+	}
+	// ← then typing edits the name instead
+	press(a, "W", "left", "left", "left", "left", "left", "2")
+	if d, ok := a.overlay.(*promptDialog); !ok || d.ti.Value() != strings.TrimSuffix(other, ".toml")+"2.toml" {
+		t.Errorf("← did not start editing the name: %T %v", a.overlay, a.overlay)
+	}
+	press(a, "esc")
+	// backspace clears it
+	press(a, "W", "backspace", "x.toml")
+	if d, ok := a.overlay.(*promptDialog); !ok || d.ti.Value() != "x.toml" {
+		t.Errorf("backspace did not clear the name")
+	}
+	press(a, "esc")
+
+	text, _ := os.ReadFile(filepath.Join("..", "testdata", "demo.toml"))
+	m, _ := methodfile.Parse("demo.toml (built in)", text)
+	b, err := New(m, Options{Name: "demo.toml (built in)", Text: text, NoColor: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	press(b, "W")
+	if s := screen(b); !strings.Contains(s, "save as: [demo.toml]") {
+		t.Errorf("the demo's save as does not offer its name selected:\n%s", s)
+	}
+	out := filepath.Join(t.TempDir(), "d.toml")
+	press(b, out, "enter")
+	if _, err := os.Stat(out); err != nil {
+		t.Errorf("demo save as: %v (%s)", err, b.message)
+	}
+}

@@ -182,12 +182,21 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 
 // --- save ---
 
+// demoFileName is the name the save-as prompt offers for the built-in demo.
+const demoFileName = "demo.toml"
+
 func (a *App) saveAsPrompt(quit bool) component {
 	prompt := "save as: "
 	if quit {
 		prompt = "save as (then quit): "
 	}
-	return newPrompt(&a.sh, prompt, a.path, func(text string) tea.Msg { return saveAsMsg{path: strings.TrimSpace(text), quit: quit} })
+	// The current file's name (the demo's own for the built-in demo),
+	// selected: typing a path replaces it, an arrow key edits it.
+	name := a.path
+	if name == "" {
+		name = demoFileName
+	}
+	return newPrompt(&a.sh, prompt, name, func(text string) tea.Msg { return saveAsMsg{path: strings.TrimSpace(text), quit: quit} })
 }
 
 // saveAs saves to a typed path, asking first when that is an existing file
