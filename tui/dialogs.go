@@ -107,16 +107,16 @@ func (d *confirmDialog) render() {
 // --- prompt: one line of text ---
 
 type promptDialog struct {
-	sh    *shared
-	note  string // how to type the value, shown whole under the title
-	ti    textinput.Model
+	sh   *shared
+	note string // how to type the value, shown whole under the title
+	ti   textinput.Model
 	// the text it opened with is selected: the first key typed replaces
 	// it (backspace clears it), an arrow key starts editing it
 	selected bool
-	done  func(text string) tea.Msg
-	keys  struct{ Enter, Cancel key.Binding }
-	w, h  int
-	lines []string
+	done     func(text string) tea.Msg
+	keys     struct{ Enter, Cancel key.Binding }
+	w, h     int
+	lines    []string
 }
 
 // maxPrompt is the longest text a prompt takes (a path can be long).
