@@ -175,3 +175,66 @@ func TestSaveAsPromptReplacesName(t *testing.T) {
 		t.Errorf("demo save as: %v (%s)", err, b.message)
 	}
 }
+
+// A program value typed off the oven's keypad step is put on it (decimal
+// rounding, half-way values away from zero), shown and saved so, and the
+// status line says it.
+func TestTypedProgramValueOnKeypadStep(t *testing.T) {
+	a, path := newApp(t, 80, 24)
+	ramp := func() methodfile.Ramp { return a.Method().Oven.Ramps[0] }
+	typeAt := func(moves int, text string) {
+		t.Helper()
+		for i := 0; i < moves; i++ {
+			press(a, "right")
+		}
+		press(a, "enter", text, "enter")
+		for i := 0; i < moves; i++ {
+			press(a, "left")
+		}
+	}
+	typeAt(2, "12.345")
+	if got := ramp().RateCMin; got != 12.3 {
+		t.Errorf("rate 12.345 set as %v, want 12.3", got)
+	}
+	if !strings.Contains(unwrap(a.message), "12.345 → 12.3 °C/min (the oven's step is 0.1)") {
+		t.Errorf("the status line does not say the step: %q", a.message)
+	}
+	if s := screen(a); !strings.Contains(s, "12.3 °C/min") || strings.Contains(s, "12.35") {
+		t.Errorf("the screen does not show 12.3:\n%s", s)
+	}
+	typeAt(2, "12.35") // 12.3499… in binary: a float rounding gives 12.3
+	if got := ramp().RateCMin; got != 12.4 {
+		t.Errorf("rate 12.35 set as %v, want 12.4", got)
+	}
+	typeAt(0, "50.04")
+	if got := a.Method().Oven.InitialC; got != 50 {
+		t.Errorf("start 50.04 set as %v, want 50", got)
+	}
+	typeAt(1, "1.005")
+	if got := a.Method().Oven.InitialHoldMin; got != 1.01 {
+		t.Errorf("hold 1.005 set as %v, want 1.01", got)
+	}
+	typeAt(3, "240.06")
+	if got := ramp().FinalC; got != 240.1 {
+		t.Errorf("final 240.06 set as %v, want 240.1", got)
+	}
+	// on the step already: no note
+	typeAt(2, "13.5")
+	if strings.Contains(a.message, "→") {
+		t.Errorf("a value on the step got a note: %q", a.message)
+	}
+	// what is saved is what is shown, and no keypad caution is left
+	press(a, "ctrl+s")
+	m, err := methodfile.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r := m.Oven.Ramps[0]; r.RateCMin != 13.5 || r.FinalC != 240.1 || m.Oven.InitialHoldMin != 1.01 {
+		t.Errorf("saved %+v, hold %v", r, m.Oven.InitialHoldMin)
+	}
+	for _, n := range m.Advice() {
+		if strings.Contains(n.Msg, "step") {
+			t.Errorf("a keypad caution remains: %s", n)
+		}
+	}
+}
