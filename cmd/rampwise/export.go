@@ -11,6 +11,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
@@ -113,7 +114,18 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 	}
+	// the sheet carries the safety notes; the figure and the CSV cannot,
+	// so they go to stderr (stdout lists only what was written)
+	printCautions(stderr, m)
 	return nil
+}
+
+// printCautions prints the safety notes of method m's program and carrier
+// (checks.Safety), one "caution:" line each.
+func printCautions(w io.Writer, m *methodfile.Method) {
+	for _, c := range checks.Safety(m) {
+		fmt.Fprintf(w, "caution: %s\n", textsafe.Inert(c))
+	}
 }
 
 const sweepHelp = `Usage: rampwise sweep METHOD --vary NAME --from A --to B [--steps N]
@@ -216,6 +228,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 			}
 			fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 		}
+		printCautions(stdout, m)
 		return nil
 	}
 	pts, err := sweep.One(m, pv, keypadSteps(m, pv, *from, *to, *steps), progress)
@@ -261,6 +274,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		}
 		fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 	}
+	printCautions(stdout, m)
 	return nil
 }
 

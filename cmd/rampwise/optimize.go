@@ -93,6 +93,9 @@ type optimizeJSON struct {
 	Limiting      [][]string  `json:"limiting_pairs"`
 	Explanation   string      `json:"explanation,omitempty"`
 	Canceled      bool        `json:"canceled"`
+	// Cautions are the safety notes for the program and carrier found
+	// (checks.Safety), as plan --json and compare --json carry them.
+	Cautions []string `json:"cautions"`
 }
 
 func programToJSON(o methodfile.Oven) programJSON {
@@ -214,6 +217,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 			Limiting:    [][]string{},
 			Explanation: res.Explanation,
 			Canceled:    res.Canceled,
+			Cautions:    append([]string{}, checks.Safety(after)...),
 		}
 		sj := afterSim.json(after.ModelProgram())
 		j.MinResolution, j.CriticalPair = sj.MinResolution, sj.CriticalPair

@@ -273,6 +273,10 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 		enc.SetIndent("", "  ")
 		return enc.Encode(s.json(m.ModelProgram()))
 	case *asCSV:
+		// stdout stays pure CSV: the cautions go to stderr
+		for _, warn := range s.warnings(m.ModelProgram()) {
+			fmt.Fprintf(stderr, "warning: %s\n", textsafe.Inert(warn))
+		}
 		return s.writeCSV(stdout)
 	}
 	s.writeTable(stdout, name)

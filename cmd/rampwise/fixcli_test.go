@@ -1,0 +1,78 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/rampwise/rampwise/model"
+)
+
+// hydrogenDemo writes the demo method with hydrogen as its carrier and
+// returns its path.
+func hydrogenDemo(t *testing.T) string {
+	t.Helper()
+	text := strings.Replace(string(demoMethod), `gas = "helium"`, `gas = "hydrogen"`, 1)
+	if text == string(demoMethod) {
+		t.Fatal("the demo names no helium carrier to replace")
+	}
+	path := filepath.Join(t.TempDir(), "h2.toml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// Every command that prints a program carries the hydrogen caution, in
+// JSON as in text, and a CSV on stdout stays pure CSV with the caution on
+// stderr.
+func TestHydrogenCautionEverywhere(t *testing.T) {
+	h2 := hydrogenDemo(t)
+	var oj struct {
+		Cautions []string `json:"cautions"`
+	}
+	code, out, errs := runCmd(t, "optimize", "--json", h2)
+	if code != 0 && code != 3 {
+		t.Fatalf("optimize --json: exit %d: %s", code, errs)
+	}
+	if err := jsonUnmarshal(out, &oj); err != nil {
+		t.Fatal(err)
+	}
+	if len(oj.Cautions) == 0 || oj.Cautions[0] != model.HydrogenCaution {
+		t.Errorf("optimize --json cautions = %q, want the hydrogen caution", oj.Cautions)
+	}
+	// a helium method has an empty array, not null
+	code, out, _ = runCmd(t, "optimize", "--json", DemoArg)
+	if code != 0 && code != 3 || !strings.Contains(out, `"cautions": []`) {
+		t.Errorf("optimize --json on helium: exit %d, cautions not an empty array", code)
+	}
+
+	code, out, errs = runCmd(t, "simulate", "--csv", h2)
+	if code != 0 {
+		t.Fatalf("simulate --csv: exit %d: %s", code, errs)
+	}
+	if !strings.Contains(errs, model.HydrogenCaution) {
+		t.Errorf("simulate --csv: no hydrogen caution on stderr: %q", errs)
+	}
+	if strings.Contains(out, "flammable") || strings.Contains(out, "warning") {
+		t.Errorf("simulate --csv: caution on stdout (not pure CSV):\n%s", out)
+	}
+
+	dir := t.TempDir()
+	code, _, errs = runCmd(t, "export", h2, "--csv", filepath.Join(dir, "p.csv"))
+	if code != 0 || !strings.Contains(errs, model.HydrogenCaution) {
+		t.Errorf("export --csv: exit %d, no hydrogen caution on stderr: %q", code, errs)
+	}
+	code, out, errs = runCmd(t, "sweep", h2, "--vary", "rate_1", "--from", "5", "--to", "15", "--steps", "3", "--csv", filepath.Join(dir, "s.csv"))
+	if code != 0 || !strings.Contains(out, "caution: "+model.HydrogenCaution) {
+		t.Errorf("sweep: exit %d, no hydrogen caution: %q %q", code, out, errs)
+	}
+	code, out, errs = runCmd(t, "sweep", h2, "--vary", "rate_1", "--from", "5", "--to", "15", "--steps", "2", "--vary2", "initial_c", "--from2", "40", "--to2", "50", "--steps2", "2")
+	if code != 0 || !strings.Contains(out, "caution: "+model.HydrogenCaution) {
+		t.Errorf("sweep map: exit %d, no hydrogen caution: %q %q", code, out, errs)
+	}
+}
+
+func jsonUnmarshal(s string, v any) error { return json.Unmarshal([]byte(s), v) }
