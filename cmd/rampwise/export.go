@@ -57,6 +57,9 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	if *width < 200 || *width > 10000 || *height < 150 || *height > 10000 {
 		return badf("export: --width must be 200..10000 and --height 150..10000")
 	}
+	if err := checkWritable(*pngF, *svgF, *pdfF, *csvF, *sheetF); err != nil {
+		return err
+	}
 	m, name, err := loadMethod(files[0])
 	if err != nil {
 		return err
@@ -173,6 +176,9 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	}
 	if *vary2 == "" && *steps > *maxPoints {
 		return badf("sweep: %d points is more than --max-points %d; use fewer steps or raise --max-points", *steps, *maxPoints)
+	}
+	if err := checkWritable(*csvF, *pngF); err != nil { // before the sweep
+		return err
 	}
 	m, name, err := loadMethod(files[0])
 	if err != nil {

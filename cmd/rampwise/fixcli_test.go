@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"os"
 	"path/filepath"
@@ -8,6 +9,7 @@ import (
 	"testing"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/optimizer"
 )
 
 // hydrogenDemo writes the demo method with hydrogen as its carrier and
@@ -76,3 +78,49 @@ func TestHydrogenCautionEverywhere(t *testing.T) {
 }
 
 func jsonUnmarshal(s string, v any) error { return json.Unmarshal([]byte(s), v) }
+
+// An output path that cannot be written is refused before the long work,
+// exit 2, the message naming the path, and nothing is written.
+func TestOutputPathCheckedFirst(t *testing.T) {
+	dir := t.TempDir()
+	missing := filepath.Join(dir, "nonexist", "x.toml")
+	notDir := filepath.Join(dir, "plain")
+	if err := os.WriteFile(notDir, []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	searched := false
+	saved := optimizeSearch
+	optimizeSearch = func(ctx context.Context, p optimizer.Problem, s optimizer.Settings) (*optimizer.Result, error) {
+		searched = true
+		return saved(ctx, p, s)
+	}
+	defer func() { optimizeSearch = saved }()
+	for _, bad := range []string{missing, dir, filepath.Join(notDir, "x.toml")} {
+		searched = false
+		code, out, errs := runCmd(t, "optimize", "--out", bad, DemoArg)
+		if code != 2 || !strings.Contains(errs, bad) || searched || out != "" {
+			t.Errorf("optimize --out %s: exit %d, searched %v, stdout %q, stderr %q", bad, code, searched, out, errs)
+		}
+	}
+	// every other output path of every command
+	png := filepath.Join(dir, "fig.png")
+	cases := [][]string{
+		{"export", DemoArg, "--png", png, "--csv", missing},
+		{"export", DemoArg, "--png", png, "--sheet", dir},
+		{"sweep", DemoArg, "--vary", "rate_1", "--from", "5", "--to", "15", "--steps", "3", "--png", png, "--csv", missing},
+		{"sweep", DemoArg, "--vary", "rate_1", "--from", "5", "--to", "15", "--steps", "3", "--png", missing},
+		{"compare", DemoArg, "--csv", missing},
+		{"fit", DemoArg, "../../testdata/scouting.toml", "--out", missing},
+		{"check", DemoArg, "../../testdata/scouting.toml", "--refit", "--out", missing},
+	}
+	for _, args := range cases {
+		code, out, errs := runCmd(t, args...)
+		if code != 2 || !strings.Contains(errs, missing) && !strings.Contains(errs, dir) || out != "" || strings.Contains(errs, "candidates optimized") {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q", args, code, out, errs)
+		}
+		if _, err := os.Stat(png); err == nil {
+			t.Errorf("%v: wrote %s before refusing", args, png)
+			os.Remove(png)
+		}
+	}
+}

@@ -144,6 +144,9 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if err := checkWritable(*out); err != nil { // before the search, not after it
+		return err
+	}
 	m, name, err := loadMethod(file)
 	if err != nil {
 		return err
@@ -179,7 +182,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	settings := optimizer.Settings{Seed: *seed, Progress: progressPrinter(stderr)}
-	res, err := optimizer.Optimize(ctx, prob, settings)
+	res, err := optimizeSearch(ctx, prob, settings)
 	endProgress(stderr)
 	if err != nil {
 		return bad(fmt.Errorf("%s: %v", name, strings.TrimPrefix(err.Error(), "optimizer: ")))
@@ -243,6 +246,10 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	}
 	return nil
 }
+
+// optimizeSearch is the search optimize runs (a variable for tests that
+// must know whether it ran).
+var optimizeSearch = optimizer.Optimize
 
 func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, after *methodfile.Method, afterSim *simulation, res *optimizer.Result, met bool) {
 	title := m.Title
