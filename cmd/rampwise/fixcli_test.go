@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/optimizer"
@@ -122,5 +123,53 @@ func TestOutputPathCheckedFirst(t *testing.T) {
 			t.Errorf("%v: wrote %s before refusing", args, png)
 			os.Remove(png)
 		}
+	}
+}
+
+// Progress on a file or pipe is complete lines only, and the last line
+// says the search is over (never a stale "best" of the unfinished
+// search); on a terminal the bar is erased at the end.
+func TestProgressNotTerminal(t *testing.T) {
+	var b strings.Builder
+	pp := newProgress(&b)
+	if pp.tty {
+		t.Fatal("a strings.Builder taken for a terminal")
+	}
+	for i := 0; i <= 60; i++ {
+		pp.update(optimizer.Progress{Evaluations: 1000 * i, Feasible: true, Objective: float64(900 - 5*i), MinResolution: 1.6, Elapsed: time.Duration(i) * 250 * time.Millisecond})
+	}
+	pp.end()
+	out := b.String()
+	lines := strings.Split(strings.TrimSuffix(out, "\n"), "\n")
+	if strings.Contains(out, "\r") || !strings.HasSuffix(out, "\n") {
+		t.Errorf("not complete lines: %q", out)
+	}
+	if len(lines) < 2 || len(lines) > 4 {
+		t.Errorf("%d lines for 15 s of search (one every 5 s and the end): %q", len(lines), out)
+	}
+	if last := lines[len(lines)-1]; strings.Contains(last, "best") || !strings.Contains(last, "search over") {
+		t.Errorf("last line %q: stale or not the end", last)
+	}
+	// a short search prints nothing at all
+	b.Reset()
+	pp = newProgress(&b)
+	pp.update(optimizer.Progress{Evaluations: 10, Elapsed: time.Second})
+	pp.end()
+	if b.Len() != 0 {
+		t.Errorf("a 1 s search printed %q", b.String())
+	}
+	// a terminal: the bar is redrawn in place and erased at the end
+	b.Reset()
+	pp = newProgress(&b)
+	pp.tty = true
+	pp.update(optimizer.Progress{Evaluations: 10, Elapsed: time.Second})
+	pp.end()
+	if out := b.String(); !strings.HasPrefix(out, "\r") || !strings.HasSuffix(out, "\r\033[K") {
+		t.Errorf("terminal progress %q", out)
+	}
+	// the whole command on a buffer (not a terminal): no carriage return
+	code, _, errs := runCmd(t, "optimize", DemoArg)
+	if code != 0 || strings.Contains(errs, "\r") || errs != "" && !strings.HasSuffix(errs, "search over; the result follows on standard output\n") {
+		t.Errorf("optimize: exit %d, stderr %q", code, errs)
 	}
 }

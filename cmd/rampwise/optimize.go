@@ -181,9 +181,10 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	settings := optimizer.Settings{Seed: *seed, Progress: progressPrinter(stderr)}
+	pp := newProgress(stderr)
+	settings := optimizer.Settings{Seed: *seed, Progress: pp.update}
 	res, err := optimizeSearch(ctx, prob, settings)
-	endProgress(stderr)
+	pp.end()
 	if err != nil {
 		return bad(fmt.Errorf("%s: %v", name, strings.TrimPrefix(err.Error(), "optimizer: ")))
 	}
@@ -317,35 +318,61 @@ func critName(s *simulation) string {
 	return format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name))
 }
 
-// progressPrinter reports progress on stderr: a bar redrawn in place on a
-// terminal, plain lines at most once a second otherwise.
-func progressPrinter(stderr io.Writer) func(optimizer.Progress) {
-	tty := isTerminal(stderr)
-	var last time.Time
-	return func(p optimizer.Progress) {
-		state := "searching for a program that meets the target"
-		if p.Feasible {
-			state = fmt.Sprintf("best %.2f min", p.Objective/60)
-		}
-		if tty {
-			n := int(p.Elapsed / (100 * time.Millisecond) % 20)
-			bar := strings.Repeat("█", n) + strings.Repeat("░", 20-n)
-			fmt.Fprintf(stderr, "\r%s %7d evaluations · %s · Rs %.2f   ", bar, p.Evaluations, state, p.MinResolution)
-			return
-		}
-		if time.Since(last) >= time.Second {
-			last = time.Now()
-			fmt.Fprintf(stderr, "optimize: %d evaluations, %s, Rs %.2f\n", p.Evaluations, state, p.MinResolution)
-		}
+// progressLineEvery is how often, in search time, a plain progress line
+// is printed when stderr is not a terminal.
+const progressLineEvery = 5 * time.Second
+
+// progress reports the search on stderr. On a terminal it is one bar
+// redrawn in place with a carriage return and erased at the end. Anywhere
+// else (a file, a pipe) a carriage return would leave a stale line, so it
+// prints complete lines only: none for a search shorter than
+// progressLineEvery, then one every progressLineEvery of search time, and
+// at the end a line saying the search is over (so the last line is never
+// a stale "best" of an unfinished search).
+type progress struct {
+	w       io.Writer
+	tty     bool
+	next    time.Duration // search time of the next plain line
+	drawn   bool          // a bar is on the terminal line
+	printed bool          // a plain line was printed
+}
+
+func newProgress(stderr io.Writer) *progress {
+	return &progress{w: stderr, tty: isTerminal(stderr), next: progressLineEvery}
+}
+
+func (pp *progress) update(p optimizer.Progress) {
+	state := "searching for a program that meets the target"
+	if p.Feasible {
+		state = fmt.Sprintf("best so far %.2f min", p.Objective/60)
+	}
+	if pp.tty {
+		n := int(p.Elapsed / (100 * time.Millisecond) % 20)
+		bar := strings.Repeat("█", n) + strings.Repeat("░", 20-n)
+		fmt.Fprintf(pp.w, "\r%s %7d evaluations · %s · Rs %.2f   ", bar, p.Evaluations, state, p.MinResolution)
+		pp.drawn = true
+		return
+	}
+	if p.Elapsed >= pp.next {
+		pp.next = p.Elapsed + progressLineEvery
+		pp.printed = true
+		fmt.Fprintf(pp.w, "optimize: %d evaluations, %s, Rs %.2f\n", p.Evaluations, state, p.MinResolution)
 	}
 }
 
-func endProgress(stderr io.Writer) {
-	if isTerminal(stderr) {
-		fmt.Fprint(stderr, "\r\033[K")
+// end erases the bar, or closes the plain lines with the search's end.
+func (pp *progress) end() {
+	switch {
+	case pp.drawn:
+		fmt.Fprint(pp.w, "\r\033[K")
+	case pp.printed:
+		fmt.Fprintln(pp.w, "optimize: search over; the result follows on standard output")
 	}
+	pp.drawn, pp.printed = false, false
 }
 
+// isTerminal reports whether w is a terminal (a character device: a
+// console on Windows too). Only os.File is ever one.
 func isTerminal(w io.Writer) bool {
 	f, ok := w.(*os.File)
 	if !ok {
