@@ -8,8 +8,10 @@ import (
 	"strings"
 	"testing"
 	"time"
+	"unicode/utf8"
 
 	"github.com/rampwise/rampwise/model"
+	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
 
@@ -172,4 +174,44 @@ func TestProgressNotTerminal(t *testing.T) {
 	if code != 0 || strings.Contains(errs, "\r") || errs != "" && !strings.HasSuffix(errs, "search over; the result follows on standard output\n") {
 		t.Errorf("optimize: exit %d, stderr %q", code, errs)
 	}
+}
+
+// optimize's text fits an 80-column terminal (warnings, one line each, may
+// run on), and the programs are all there.
+func TestOptimizeTextFits80(t *testing.T) {
+	for _, args := range [][]string{{"optimize", DemoArg}, {"optimize", "--ramps", "5", DemoArg}} {
+		code, out, errs := runCmd(t, args...)
+		if code != 0 && code != 3 {
+			t.Fatalf("%v: exit %d: %s", args, code, errs)
+		}
+		for _, l := range strings.Split(out, "\n") {
+			if n := utf8.RuneCountInString(l); n > 80 && !strings.HasPrefix(l, "warning: ") {
+				t.Errorf("%v: a line of %d columns: %q", args, n, l)
+			}
+		}
+		if !strings.Contains(out, "program before: "+describeProgram(mustDemo(t).Oven)) {
+			t.Errorf("%v: the program before is not on its own line:\n%s", args, out)
+		}
+	}
+	// a row too wide for the table becomes two labelled lines
+	var b strings.Builder
+	long := strings.Repeat("a-very-long-compound-name ", 3)
+	writeBeforeAfter(&b, [][3]string{{"run time (min)", "1.00", "2.00"}, {"critical pair", long, long}}, 80)
+	for _, l := range strings.Split(strings.TrimSpace(b.String()), "\n") {
+		if utf8.RuneCountInString(l) > 80 {
+			t.Errorf("a line of %d columns: %q", utf8.RuneCountInString(l), l)
+		}
+	}
+	if !strings.Contains(b.String(), "critical pair after:") || !strings.Contains(b.String(), "run time (min) before: 1.00") {
+		t.Errorf("fallback layout:\n%s", b.String())
+	}
+}
+
+func mustDemo(t *testing.T) *methodfile.Method {
+	t.Helper()
+	m, _, err := loadMethod(DemoArg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
 }

@@ -10,8 +10,8 @@ import (
 	"os/signal"
 	"strings"
 	"syscall"
-	"text/tabwriter"
 	"time"
+	"unicode/utf8"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
@@ -252,33 +252,131 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 // must know whether it ran).
 var optimizeSearch = optimizer.Optimize
 
+// textWidth is the width the text output fits: an 80-column terminal.
+const textWidth = 80
+
 func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, after *methodfile.Method, afterSim *simulation, res *optimizer.Result, met bool) {
 	title := m.Title
 	if title == "" {
 		title = "method"
 	}
-	fmt.Fprintf(w, "%s\n%s\n\n", textsafe.Inert(title), describeColumn(m))
-	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "\tbefore\tafter\t")
-	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
-	fmt.Fprintf(tw, "carrier\t%s\t%s\t\n", describeCarrier(m.Carrier), describeCarrier(after.Carrier))
-	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.Result.RunTime/60, afterSim.Result.RunTime/60)
-	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.Result.CycleTime/60, afterSim.Result.CycleTime/60)
-	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRsGoal(before, m, true), fmtRsGoal(afterSim, m, met))
-	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
-	tw.Flush()
+	fmt.Fprintf(w, "%s\n", textsafe.Inert(title))
+	writeWrapped(w, "", describeColumn(m), textWidth)
+	fmt.Fprintln(w)
+	// a program is too long for a table column at 80 columns: each on its
+	// own lines, wrapped under its label
+	writeWrapped(w, "program before: ", describeProgram(m.Oven), textWidth)
+	writeWrapped(w, "program after:  ", describeProgram(after.Oven), textWidth)
+	writeWrapped(w, "carrier before: ", describeCarrier(m.Carrier), textWidth)
+	writeWrapped(w, "carrier after:  ", describeCarrier(after.Carrier), textWidth)
+	fmt.Fprintln(w)
+	writeBeforeAfter(w, [][3]string{
+		{"run time (min)", fmt.Sprintf("%.2f", before.Result.RunTime/60), fmt.Sprintf("%.2f", afterSim.Result.RunTime/60)},
+		{"cycle time (min)", fmt.Sprintf("%.2f", before.Result.CycleTime/60), fmt.Sprintf("%.2f", afterSim.Result.CycleTime/60)},
+		{"min resolution", fmtRsGoal(before, m, true), fmtRsGoal(afterSim, m, met)},
+		{"critical pair", critName(before), critName(afterSim)},
+	}, textWidth)
 	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %s)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, format.Target(m.Goal.MinResolution))
 	if line := describeRobust(res.Robust); line != "" {
-		fmt.Fprintln(w, line)
+		writeWrapped(w, "", line, textWidth)
 	}
 	if met {
-		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
+		writeWrapped(w, "", "target met. Verify the new program with a standard injection before using it for samples.", textWidth)
 	} else {
-		fmt.Fprintf(w, "target NOT met within the limits: %s\n", textsafe.Inert(res.Explanation))
+		writeWrapped(w, "", "target NOT met within the limits: "+textsafe.Inert(res.Explanation), textWidth)
 	}
 	for _, warn := range afterSim.warnings(after.ModelProgram()) {
 		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
+}
+
+// writeBeforeAfter prints rows of label, before and after as a table when
+// it fits width; a row too wide for it is printed as two labelled lines
+// ("label before: ...", "label after: ..."), wrapped at width.
+func writeBeforeAfter(w io.Writer, rows [][3]string, width int) {
+	var lw, bw, aw int
+	for _, r := range rows {
+		lw, bw, aw = max(lw, textLen(r[0])), max(bw, textLen(r[1])), max(aw, textLen(r[2]))
+	}
+	const gap = 2
+	if lw+gap+bw+gap+aw <= width {
+		pad := func(s string, n int) string { return s + strings.Repeat(" ", n-textLen(s)) }
+		fmt.Fprintln(w, strings.TrimRight(pad("", lw)+"  "+pad("before", bw)+"  after", " "))
+		for _, r := range rows {
+			fmt.Fprintln(w, strings.TrimRight(pad(r[0], lw)+"  "+pad(r[1], bw)+"  "+r[2], " "))
+		}
+		return
+	}
+	lw = 0
+	for _, r := range rows {
+		lw = max(lw, textLen(r[0]+" before: "))
+	}
+	for _, r := range rows {
+		b, a := r[0]+" before: ", r[0]+" after: "
+		writeWrapped(w, b+strings.Repeat(" ", lw-textLen(b)), r[1], width)
+		writeWrapped(w, a+strings.Repeat(" ", lw-textLen(a)), r[2], width)
+	}
+}
+
+// wrapWords are the pieces writeWrapped may break between: a program's
+// steps whole (an arrow ends its line, never starts one), elsewhere the
+// words, a number kept with the unit after it ("1.20 mL/min", "−1 °C").
+func wrapWords(text string) []string {
+	if strings.Contains(text, " → ") {
+		steps := strings.Split(text, " → ")
+		for i := range steps[:len(steps)-1] {
+			steps[i] += " →"
+		}
+		return steps
+	}
+	var words []string
+	for _, f := range strings.Fields(text) {
+		if n := len(words); n > 0 && unitAfterNumber(words[n-1], f) {
+			words[n-1] += " " + f
+			continue
+		}
+		words = append(words, f)
+	}
+	return words
+}
+
+// unitAfterNumber: next is a short unit-like word after a number.
+func unitAfterNumber(prev, next string) bool {
+	last, _ := utf8.DecodeLastRuneInString(prev)
+	first, _ := utf8.DecodeRuneInString(next)
+	return last >= '0' && last <= '9' && textLen(next) <= 8 && !(first >= '0' && first <= '9') && first != '(' && first != '−' && first != '-'
+}
+
+// textLen is the width of s on a terminal: its runes (the text output
+// holds no wide characters of its own).
+func textLen(s string) int { return utf8.RuneCountInString(s) }
+
+// writeWrapped prints label and text, the text broken at spaces so that no
+// line is wider than width, continuation lines indented under the text
+// (by two spaces when there is no label). A word wider than the room left
+// stays whole.
+func writeWrapped(w io.Writer, label, text string, width int) {
+	indent := strings.Repeat(" ", textLen(label))
+	if label == "" {
+		indent = "  "
+	}
+	line, n := label, textLen(label)
+	empty := true
+	words := wrapWords(text)
+	for _, word := range words {
+		if !empty && n+1+textLen(word) > width {
+			fmt.Fprintln(w, line)
+			line, n, empty = indent, textLen(indent), true
+		}
+		if !empty {
+			line += " "
+			n++
+		}
+		line += word
+		n += textLen(word)
+		empty = false
+	}
+	fmt.Fprintln(w, line)
 }
 
 func fmtRs(s *simulation, target float64) string {
