@@ -215,3 +215,18 @@ func mustDemo(t *testing.T) *methodfile.Method {
 	}
 	return m
 }
+
+// The simulate table labels its k column as the first-target caution
+// names its k: k(Te), at the elution temperature.
+func TestKLabelsAgree(t *testing.T) {
+	code, out, errs := runCmd(t, "simulate", "../../testdata/bench20.toml")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "  k(Te)  ") {
+		t.Errorf("the table's k column is not labelled k(Te):\n%s", out)
+	}
+	if !strings.Contains(out, "elutes with k(Te) = ") || !strings.Contains(out, "k at its elution temperature") {
+		t.Errorf("the caution does not say which k:\n%s", out)
+	}
+}

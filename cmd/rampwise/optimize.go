@@ -400,7 +400,7 @@ func fmtRsGoal(s *simulation, m *methodfile.Method, met bool) string {
 	}
 	rs := format.RsNumber(s.Result.MinResolution, m.Goal.MinResolution)
 	if _, k, ok := checks.FirstTargetK(s.System, &s.Result); ok && k < m.Goal.MinFirstK {
-		return fmt.Sprintf("%s, first k %.2f < %g not met", rs, k, m.Goal.MinFirstK)
+		return fmt.Sprintf("%s, first k(Te) %.2f < %g not met", rs, k, m.Goal.MinFirstK)
 	}
 	if !met {
 		return rs + ", target not met (see below)"
