@@ -230,3 +230,29 @@ func TestKLabelsAgree(t *testing.T) {
 		t.Errorf("the caution does not say which k:\n%s", out)
 	}
 }
+
+// fit --json and fit's text carry the warning of a fitted diameter far
+// from the column's (helium runs against a method switched to hydrogen).
+func TestFitDiameterFarWarned(t *testing.T) {
+	text := strings.Replace(string(demoMethod), `gas = "helium"`, `gas = "hydrogen"`, 1)
+	text = strings.Replace(text, "flow_ml_min = 1.2", "flow_ml_min = 2.0", 1)
+	path := filepath.Join(t.TempDir(), "h2.toml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var j struct {
+		Warnings []string `json:"warnings"`
+	}
+	runJSON(t, &j, "fit", "--json", path, "../../testdata/scouting.toml")
+	found := false
+	for _, w := range j.Warnings {
+		found = found || strings.HasPrefix(w, "column diameter") && strings.Contains(w, "[run.carrier]")
+	}
+	if !found {
+		t.Errorf("fit --json warnings %q", j.Warnings)
+	}
+	_, out, _ := runCmd(t, "fit", path, "../../testdata/scouting.toml")
+	if !strings.Contains(out, "warning: column diameter ") {
+		t.Errorf("fit text:\n%s", out)
+	}
+}
