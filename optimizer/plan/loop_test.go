@@ -27,6 +27,9 @@ var testOptimizer = optimizer.Settings{Starts: 8, Evaluations: 1200, Restarts: 1
 // verification (a study of the injections-against-run-time trade).
 func testSettings() Settings {
 	s := Settings{Optimizer: testOptimizer}
+	if os.Getenv("RAMPWISE_PLAN_FULL") != "" {
+		s.Optimizer = optimizer.Settings{Workers: 1} // the command's effort
+	}
 	if v, err := strconv.ParseFloat(os.Getenv("RAMPWISE_PLAN_GAIN"), 64); err == nil && v > 0 {
 		s.MarginGain, s.Slower = v, v
 	}
@@ -76,6 +79,9 @@ func playPlan(t testing.TB, seed uint64, maxInjections int, confirm bool, preset
 			out.runTime = methodfile.ProgramToModel(p.Oven).RunTime() / 60
 			out.trueRs = rampRsOf(t, truth, p.Oven)
 			return out
+		}
+		if os.Getenv("RAMPWISE_PLAN_TRACE") != "" {
+			t.Logf("seed %d step %d: %s exp %.3f sd %.3f sdAfter %.3f oven %+v: %s", seed, k, p.Action, p.ExpectedMinResolution, p.ExpectedSD, p.SDAfter, p.Oven, p.Reason)
 		}
 		ms, err := l.inject(fmt.Sprintf("run-%d", k), p.Oven)
 		if err != nil {
@@ -239,7 +245,10 @@ func TestLoopFewestInjections(t *testing.T) {
 	for i := 0; i < n; i++ {
 		seed := base + uint64(i)
 		p := playPlan(t, seed, maxInjections, true)
-		h := playHabit(t, seed, maxInjections)
+		var h outcome
+		if os.Getenv("RAMPWISE_PLAN_NOHABIT") == "" {
+			h = playHabit(t, seed, maxInjections)
+		}
 		var hp outcome
 		if withRampsPlan {
 			// the habit's three ramps, then the planner's verify decision

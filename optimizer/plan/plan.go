@@ -32,6 +32,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
 	"sort"
 	"strings"
 
@@ -87,11 +88,21 @@ type Settings struct {
 	Draws int
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
-	// is at most (1 + Tolerance) times that of the program now predicted
-	// to hold the margin. Default 1: after a passing verification a
-	// program predicted faster is mentioned, not demanded; a slow scouting
-	// ramp that happens to meet the target is not taken for the method.
+	// is at most (1 + Tolerance) times that of the fastest program the
+	// current parameters allow (the bare target with the instrument
+	// tolerances alone), or within 5 % of the program now predicted to
+	// hold the margin. Default 1: after a passing verification a program
+	// predicted faster is mentioned, not demanded; a slow scouting ramp
+	// that happens to meet the target is not taken for the method.
 	Tolerance float64
+	// Injections is the injection budget, the verification run included:
+	// with the runs made so far one short of it, a program that holds the
+	// margin is advised for verification however much knowing the
+	// parameters better would shorten it, and while two or more scouting
+	// runs remain, each is designed together with the next. Default 3
+	// (two scouting runs at different elution temperatures determine both
+	// parameters of every compound; the third injection verifies).
+	Injections int
 }
 
 func (s Settings) withDefaults() Settings {
@@ -115,6 +126,9 @@ func (s Settings) withDefaults() Settings {
 	}
 	if s.Tolerance <= 0 {
 		s.Tolerance = 1
+	}
+	if s.Injections <= 0 {
+		s.Injections = 3
 	}
 	return s
 }
@@ -167,9 +181,14 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	z := math.Max(s.MinZ, m.Goal.Robust.RetentionSigma)
 	target := m.Goal.MinResolution
 
-	// the optimized program at the bare target, then with the target
-	// raised until the margin fits: the robust program
-	nomOven, feasible, err := st.optimize(ctx, target, s.Optimizer)
+	// the optimized program at the bare target (the file's own margin),
+	// then the optimizer with the planner's margin as its constraint (the
+	// posterior SD of every pair's Rs and one run's measurement scatter, z
+	// raised for the pairs near the target at the bare optimum), then, if
+	// the program found still falls short (the count of pairs near the
+	// target changed, or first order was not enough), the target raised
+	// until the margin fits: the robust program
+	nomOven, feasible, err := st.optimize(ctx, target, s.Optimizer, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -178,16 +197,18 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		return nil, err
 	}
 	nominal.feasible = feasible
+	dbg("nominal feasible %v minRs %.3f sd %.3f sp %.3f deficit %.3f %s dur %.2f", feasible, nominal.minRs, nominal.sd, nominal.sp, nominal.deficit, nominal.cornerText, st.duration(nomOven)/60)
 	var robust *evaluation
 	var robustOven methodfile.Oven
 	tried := []methodfile.Oven{nomOven} // programs the search went to
+	vm := &verifyMargin{z: nominal.z, widthScatter: s.WidthScatter}
 	if nominal.ok {
 		robust, robustOven = nominal, nomOven
 	} else if feasible {
 		// raise by the shortfall; when the raised target cannot be met
 		// within the limits, halve the raise
-		lo, step := 0.0, nominal.deficit+0.01
-		for iter := 0; iter < 12 && ctx.Err() == nil && step >= 0.01; iter++ {
+		lo, step := 0.0, 0.0
+		for iter := 0; iter < 12 && ctx.Err() == nil && (iter == 0 || step >= 0.01); iter++ {
 			extra := lo + step
 			if extra > s.MaxMargin*target {
 				step = s.MaxMargin*target - lo
@@ -196,11 +217,15 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				}
 				continue
 			}
-			oven, ok, err := st.optimize(ctx, target+extra, s.Optimizer)
+			oven, ok, err := st.optimize(ctx, target+extra, s.Optimizer, vm)
 			if err != nil {
 				return nil, err
 			}
 			if !ok {
+				dbg("raise %.3f: infeasible", extra)
+				if iter == 0 {
+					break // the margin itself cannot be met: raising will not help
+				}
 				step /= 2
 				continue
 			}
@@ -208,6 +233,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			if err != nil {
 				return nil, err
 			}
+			dbg("raise %.3f: minRs %.3f sd %.3f sp %.3f deficit %.3f corner %s dur %.2f", extra, ev.minRs, ev.sd, ev.sp, ev.deficit, ev.cornerText, st.duration(oven)/60)
 			tried = append(tried, oven)
 			if ev.ok {
 				robust, robustOven = ev, oven
@@ -216,7 +242,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				hi := extra
 				for b := 0; b < 3 && hi-lo > 0.02 && ctx.Err() == nil; b++ {
 					mid := (lo + hi) / 2
-					mo, ok, err := st.optimize(ctx, target+mid, s.Optimizer)
+					mo, ok, err := st.optimize(ctx, target+mid, s.Optimizer, vm)
 					if err != nil {
 						return nil, err
 					}
@@ -240,9 +266,16 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				}
 				break
 			}
+			if ev.z > vm.z {
+				vm.z = ev.z // more pairs near the target here
+			}
 			// a raised target may lead where the parameters are less
 			// known: never raise by more than the last step
-			lo, step = extra, math.Min(ev.deficit+0.01, step)
+			if iter == 0 {
+				step = ev.deficit + 0.01
+			} else {
+				lo, step = extra, math.Min(ev.deficit+0.01, step)
+			}
 		}
 	}
 	// A raised target can lead where the parameters are less known. The
@@ -297,6 +330,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	// done: a measured run meets the target, and no robust program is
 	// clearly faster
 	if st.runs != nil {
+		bareS := -1.0
 		for i := len(st.runs.Runs) - 1; i >= 0; i-- {
 			r := &st.runs.Runs[i]
 			j := st.judge(r)
@@ -310,7 +344,30 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			if err != nil || !(ev.ok || ev.lowestParam >= target) {
 				continue
 			}
-			if dr := st.duration(r.Oven); dr <= (1+s.Tolerance)*ref {
+			// the run's program is the method when it is at most
+			// (1 + Tolerance) times as long as the program optimized at the
+			// bare target (the fastest the current knowledge allows), or
+			// is the robust program itself (within 5 %, the keypad and a
+			// refit moving it a little): a slow scouting ramp that happens
+			// to separate everything is not taken for a method run for
+			// months
+			if bareS < 0 {
+				// the fastest program the current parameters allow: the
+				// bare target with the instrument tolerances alone
+				bo, ok, err := st.optimize(ctx, target, s.Optimizer, &verifyMargin{bare: true})
+				if err != nil {
+					return nil, err
+				}
+				bareS = st.duration(nomOven)
+				if ok {
+					bareS = math.Min(bareS, st.duration(bo))
+				}
+			}
+			limit := (1 + s.Tolerance) * bareS
+			if robust != nil {
+				limit = math.Max(limit, 1.05*ref)
+			}
+			if dr := st.duration(r.Oven); dr <= limit {
 				p.Action, p.Oven = Done, r.Oven
 				p.VerifiedBy, p.MeasuredMinResolution = r.Name, j.minRs
 				p.Reason = fmt.Sprintf("run %q meets the target as measured (min Rs %.2f ≥ %.2f, %s): its program is verified; no further injection is needed",
@@ -328,7 +385,12 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	gain := func(e *evaluation) float64 {
 		return e.z * (e.sd - math.Sqrt(math.Max(0, e.sd*e.sd-e.sp*e.sp)))
 	}
-	if robust != nil && (gain(robust) <= s.MarginGain*target || st.duration(robustOven) <= (1+s.Slower)*st.duration(nomOven)) {
+	made := 0
+	if st.runs != nil {
+		made = len(st.runs.Runs)
+	}
+	last := made+1 >= s.Injections // the verification is the budget's last injection
+	if robust != nil && (last || gain(robust) <= s.MarginGain*target || st.duration(robustOven) <= (1+s.Slower)*st.duration(nomOven)) {
 		p.Action, p.Oven = Verify, robustOven
 		zText := fmt.Sprintf("z = %.1f", z)
 		if robust.near > 1 {
@@ -354,7 +416,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	// the parameters from their uncertainty, so that the pairs critical
 	// there are weighed too
 	for k := 0; k < s.Draws && ctx.Err() == nil; k++ {
-		o, ok, err := st.optimizeDraw(ctx, target, s.Optimizer, uint64(k+1))
+		o, ok, err := st.optimizeDraw(ctx, target, s.Optimizer, uint64(k+1), vm.known())
 		if err != nil {
 			return nil, err
 		}
@@ -362,7 +424,24 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			tried = append(tried, o)
 		}
 	}
-	d, err := st.design(tried, target, z)
+	// and the program that would hold the margin were the parameters
+	// known (the measurement's scatter and the instrument tolerances
+	// alone): where the verified program will be once they are, often
+	// slower or colder than the bare optimum, so that the run pins the
+	// parameters there too
+	{
+		o, ok, err := st.optimize(ctx, target, s.Optimizer, vm.known())
+		if err != nil {
+			return nil, err
+		}
+		if ok {
+			tried = append(tried, o)
+		}
+	}
+	// scouting runs left in the budget after this one, before the
+	// verification
+	ahead := s.Injections - 2 - made
+	d, err := st.design(tried, target, z, s.WidthScatter, ahead)
 	if err != nil {
 		return nil, err
 	}
@@ -384,6 +463,9 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	}
 	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%s that %s or could become critical weighed)",
 		why, robustNote, d.sdAfter, pairsText(d.pairs), isAre(d.pairs))
+	if ahead > 0 && len(d.next.Ramps) > 0 {
+		p.Reason += fmt.Sprintf(", and with the scouting run planned after it (%s) to ± %.2f", rampText(d.next), d.nextSDAfter)
+	}
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
 	}
@@ -684,16 +766,50 @@ func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
 	return m
 }
 
-// optimize runs the optimizer on the current parameters for target rs and
-// returns its program on the keypad steps.
-func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
+// verifyMargin is the planner's margin given to the optimizer as its
+// robust constraint: every pair's Rs − z·SD ≥ the target, the SD the
+// posterior SD of the parameters' part and one measured run's scatter.
+type verifyMargin struct {
+	z, widthScatter float64
+	// exact: the parameters taken as known (the measurement's scatter
+	// alone)
+	exact bool
+	// bare: no retention margin at all (the instrument tolerances alone)
+	bare bool
+}
+
+// known is the margin with the parameters taken as known.
+func (vm *verifyMargin) known() *verifyMargin {
+	k := *vm
+	k.exact = true
+	return &k
+}
+
+// optimize runs the optimizer on the current parameters for target rs
+// (with the planner's margin vm when not nil) and returns its program on
+// the keypad steps.
+func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings, vm *verifyMargin) (methodfile.Oven, bool, error) {
 	m := st.m.Clone()
 	m.Goal.MinResolution = rs
-	res, err := optimizer.Optimize(ctx, st.problem(m, st.sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, st.sys, vm), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
 	oven := onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits)
+	if vm != nil && os.Getenv("RAMPWISE_PLAN_DEBUG") != "" {
+		prob := st.problem(m, st.sys, vm)
+		set := robust.NewSet(st.sys, prob.Robust)
+		q := methodfile.ProgramToModel(oven)
+		var nom model.Result
+		_ = st.sys.Simulate(q, &nom)
+		var sc robust.Scratch
+		var rep robust.Report
+		err := set.Evaluate(q, &nom, &sc, math.Inf(-1), &rep)
+		dbg("  re-evaluated: %v %+v; ret[0] %+v cov0 %+v", err, rep, prob.Robust.Retention[0], st.cov[0])
+	}
+	if vm != nil {
+		dbg("  optimizer vm z %.2f exact %v: feasible %v minRs %.3f robust %+v", vm.z, vm.exact, res.Feasible(), res.Sim.MinResolution, res.Robust)
+	}
 	return oven, res.Feasible(), nil
 }
 
@@ -705,14 +821,28 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 // compound (the runs and the prior combined) instead of the file's
 // standard errors. The planner then judges the margin once more with its
 // own z and the measurement's scatter (evaluate).
-func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
+func (st *state) problem(m *methodfile.Method, sys *model.System, vm *verifyMargin) optimizer.Problem {
 	prob := methodsearch.Problem(m, sys)
+	if vm != nil && vm.bare {
+		prob.Robust.Z = 0
+		return prob
+	}
+	if vm != nil {
+		prob.Robust.Z = vm.z
+		prob.Robust.MeasureSD = st.sigmaT
+		prob.Robust.WidthScatter = vm.widthScatter
+	}
 	kind := model.CarrierFlow
 	if m.Carrier.Mode == model.ConstantPressure {
 		kind = model.InletPressure
 	}
 	prob.Lock = append(prob.Lock, model.ProgramValue{Kind: kind})
-	if prob.Robust.Z > 0 && len(st.cov) == len(sys.Compounds) {
+	if vm != nil && vm.exact {
+		prob.Robust.Retention = make([]optimizer.RetentionSE, len(sys.Compounds))
+		for i := range prob.Robust.Retention {
+			prob.Robust.Retention[i] = optimizer.RetentionSE{DH: 1e-3, DS: 1e-6}
+		}
+	} else if prob.Robust.Z > 0 && len(st.cov) == len(sys.Compounds) {
 		prob.Robust.Retention = make([]optimizer.RetentionSE, len(st.cov))
 		for i, c := range st.cov {
 			h, sd := math.Sqrt(math.Max(c.hh, 0)), math.Sqrt(math.Max(c.ss, 0))
@@ -735,7 +865,7 @@ func (st *state) optimizeMethod(ctx context.Context, m *methodfile.Method, rs fl
 	if err != nil {
 		return methodfile.Oven{}, false, nil // an implausible shift: no program
 	}
-	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys, nil), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
@@ -806,7 +936,7 @@ func (st *state) pessimistic(o methodfile.Oven, z, widthScatter float64) (*metho
 // optimizeDraw optimizes, at the target, the method with every compound's
 // parameters drawn from their uncertainty (Gaussian, seeded by the
 // optimizer's seed and draw, so that a plan repeats exactly).
-func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.Settings, draw uint64) (methodfile.Oven, bool, error) {
+func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.Settings, draw uint64, vm *verifyMargin) (methodfile.Oven, bool, error) {
 	seed := s.Seed
 	if seed == 0 {
 		seed = 1
@@ -838,7 +968,7 @@ func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.S
 	if err != nil {
 		return methodfile.Oven{}, false, nil // an implausible draw: skip it
 	}
-	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys, vm), s)
 	if err != nil {
 		return methodfile.Oven{}, false, nil
 	}
@@ -914,6 +1044,9 @@ func (st *state) evaluate(o methodfile.Oven, z, widthScatter float64) (*evaluati
 		sp := rsSD(ga, gb, st.cov[a], st.cov[b])
 		sd := math.Hypot(sp, st.measurementSD(rs, a, b, widthScatter))
 		ps = append(ps, pairSD{rs, sd, sp})
+		if rs < 2 {
+			dbg("  pair %s/%s rs %.3f sp %.3f sd %.3f sigT %.3f sa %.3f sb %.3f", st.sys.Compounds[a].Name, st.sys.Compounds[b].Name, rs, sp, sd, st.sigmaT, st.sens.sigma[a], st.sens.sigma[b])
+		}
 		if math.IsNaN(ev.minRs) || rs < ev.minRs {
 			ev.minRs = rs
 			ev.pair = [2]string{st.sys.Compounds[a].Name, st.sys.Compounds[b].Name}
@@ -999,4 +1132,10 @@ func pm(sd float64) string {
 		return "± more than 10 (the parameters are only rough)"
 	}
 	return fmt.Sprintf("± %.2f", sd)
+}
+
+func dbg(f string, a ...any) {
+	if os.Getenv("RAMPWISE_PLAN_DEBUG") != "" {
+		fmt.Fprintf(os.Stderr, f+"\n", a...)
+	}
 }
