@@ -90,10 +90,12 @@ type Settings struct {
 	// verification of the optimized program when its run (or cycle) time
 	// is at most (1 + Tolerance) times that of the fastest program the
 	// current parameters allow (the bare target with the instrument
-	// tolerances alone), or within 5 % of the program now predicted to
-	// hold the margin. Default 1: after a passing verification a program
-	// predicted faster is mentioned, not demanded; a slow scouting ramp
-	// that happens to meet the target is not taken for the method.
+	// tolerances alone), or, when the model now judges that its program
+	// holds the margin, that of the program now predicted to hold it (1.25
+	// times while two or more injections are left in the budget).
+	// Default 1: after a passing verification a program predicted faster
+	// is mentioned, not demanded; a slow scouting ramp that happens to
+	// meet the target is not taken for the method.
 	Tolerance float64
 	// Injections is the injection budget, the verification run included:
 	// with the runs made so far one short of it, a program that holds the
@@ -345,10 +347,11 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				continue
 			}
 			// the run's program is the method when it is at most
-			// (1 + Tolerance) times as long as the program optimized at the
-			// bare target (the fastest the current knowledge allows), or
-			// is the robust program itself (within 5 %, the keypad and a
-			// refit moving it a little): a slow scouting ramp that happens
+			// (1 + Tolerance) times as long as the fastest program the
+			// current parameters allow, or when it holds the margin as the
+			// model now sees it (a verification of the then optimized
+			// program) and is at most (1 + Tolerance) times as long as the
+			// program now predicted to: a slow scouting ramp that happens
 			// to separate everything is not taken for a method run for
 			// months
 			if bareS < 0 {
@@ -364,8 +367,16 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				}
 			}
 			limit := (1 + s.Tolerance) * bareS
-			if robust != nil {
-				limit = math.Max(limit, 1.05*ref)
+			if robust != nil && ev.ok {
+				// with injections left in the budget, a verified program
+				// much slower than the one now predicted to hold the margin
+				// is worth one more injection; at the budget's end it is
+				// the method
+				f := 1 + s.Tolerance
+				if len(st.runs.Runs) < s.Injections-1 {
+					f = 1.25
+				}
+				limit = math.Max(limit, f*ref)
 			}
 			if dr := st.duration(r.Oven); dr <= limit {
 				p.Action, p.Oven = Done, r.Oven
