@@ -282,7 +282,7 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 		}
 		sp := newSpace(sh.p, from.sp.n)
 		seeds := [][]float64{sp.invert(rescaled(from.prog, from.rg.sys, rg.sys, &sh.p)), append([]float64(nil), from.x...)}
-		x, f := sh.stage(ctx, rg, sp, seeds, 1, sh.s.Evaluations/3, 1, uint64(100+len(tried)))
+		x, f := sh.stage(ctx, rg, sp, seeds, 1, sh.s.Evaluations/3, 1, uint64(100+len(tried)), screen{})
 		c := candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
 		tried[v] = c
 		if c.f < best.f {
@@ -344,7 +344,7 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 		if best.sp.n >= 2 {
 			seeds = append(seeds, best.sp.plateauSeeds()...)
 		}
-		x, f := sh.stage(ctx, best.rg, best.sp, seeds, sh.s.Starts/2, sh.s.Evaluations, sh.s.Restarts, 99)
+		x, f := sh.stage(ctx, best.rg, best.sp, seeds, sh.s.Starts/2, sh.s.Evaluations, sh.s.Restarts, 99, screen{})
 		best = candidate{rg: chosen.rg, sp: chosen.sp, x: x, f: f, prog: chosen.sp.program(x)}
 		best = sh.neighbourSearch(ctx, best, lo, hi)
 		if best.f >= start.f && start.f < infeasibleBase {
@@ -358,7 +358,8 @@ func (sh *shared) carrierSearch(ctx context.Context, best candidate) candidate {
 // program rescaled, and the plateau seeds) at the settings a few per cent
 // either side of the chosen one, walking on while that improves: the short
 // probes of the hill-climb can miss a better plateau at a nearby setting
-// that a fuller search finds.
+// that a fuller search finds. The plateau seeds are screened there (a
+// quarter of the budget each, then the best six go on).
 func (sh *shared) neighbourSearch(ctx context.Context, best candidate, lo, hi float64) candidate {
 	st := sh.carrierStep()
 	done := map[float64]bool{best.rg.value: true}
@@ -378,7 +379,8 @@ func (sh *shared) neighbourSearch(ctx context.Context, best candidate, lo, hi fl
 			if sp.n >= 2 {
 				seeds = append(seeds, sp.plateauSeeds()...)
 			}
-			x, f := sh.stage(ctx, rg, sp, seeds, 0, sh.s.Evaluations/3, sh.s.Restarts, 98)
+			evals := sh.s.Evaluations / 3
+			x, f := sh.stage(ctx, rg, sp, seeds, 0, evals, sh.s.Restarts, 98, screen{at: evals / 4, keep: 6, first: 2})
 			if f >= best.f {
 				break
 			}

@@ -8,55 +8,27 @@ import (
 )
 
 // Ramp is one ramp in the file's units: °C/min, °C, min.
-type Ramp struct {
-	RateCMin float64
-	FinalC   float64
-	HoldMin  float64
-}
+type Ramp = model.FileRamp
 
 // Oven is an oven program in the file's units (°C, min, °C/min), the form
-// in which it is saved and typed into an oven's keypad.
-type Oven struct {
-	InitialC       float64
-	InitialHoldMin float64
-	Ramps          []Ramp
-}
+// in which it is saved and typed into an oven's keypad: model.FileProgram,
+// converted as a method file's oven is.
+type Oven model.FileProgram
 
 // Clone returns a deep copy.
-func (o Oven) Clone() Oven {
-	c := o
-	c.Ramps = append([]Ramp(nil), o.Ramps...)
-	return c
-}
+func (o Oven) Clone() Oven { return Oven(model.FileProgram(o).Clone()) }
 
 // Model is the program in SI units, converted exactly as a method file's
-// oven is (°C + 273.15, min × 60, °C/min ÷ 60).
-func (o Oven) Model() model.Program {
-	p := model.Program{Initial: o.InitialC + model.ZeroCelsius, InitialHold: o.InitialHoldMin * 60}
-	for _, r := range o.Ramps {
-		p.Ramps = append(p.Ramps, model.Ramp{Rate: r.RateCMin / 60, Final: r.FinalC + model.ZeroCelsius, Hold: r.HoldMin * 60})
-	}
-	return p
-}
+// oven is (model.FileProgram.Program: °C + 273.15, min × 60, °C/min ÷ 60).
+func (o Oven) Model() model.Program { return model.FileProgram(o).Program() }
 
 // modelInto is Model writing into q's ramps (no allocation once q has room).
-func (o Oven) modelInto(q *model.Program) {
-	q.Initial, q.InitialHold = o.InitialC+model.ZeroCelsius, o.InitialHoldMin*60
-	q.Ramps = q.Ramps[:0]
-	for _, r := range o.Ramps {
-		q.Ramps = append(q.Ramps, model.Ramp{Rate: r.RateCMin / 60, Final: r.FinalC + model.ZeroCelsius, Hold: r.HoldMin * 60})
-	}
-}
+func (o Oven) modelInto(q *model.Program) { model.FileProgram(o).ProgramInto(q) }
 
-// ovenFromModel converts to file units, rounded to 12 significant digits so
-// that a value typed into a file (50.0 °C) comes back as typed.
-func ovenFromModel(p model.Program) Oven {
-	o := Oven{InitialC: sig12(p.Initial - model.ZeroCelsius), InitialHoldMin: sig12(p.InitialHold / 60)}
-	for _, r := range p.Ramps {
-		o.Ramps = append(o.Ramps, Ramp{RateCMin: sig12(r.Rate * 60), FinalC: sig12(r.Final - model.ZeroCelsius), HoldMin: sig12(r.Hold / 60)})
-	}
-	return o
-}
+// ovenFromModel converts to file units as a method file's oven is
+// (model.FileProgramOf: rounded to 12 significant digits so that a value
+// typed into a file comes back as typed).
+func ovenFromModel(p model.Program) Oven { return Oven(model.FileProgramOf(p)) }
 
 func sig12(x float64) float64 {
 	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 12, 64), 64)

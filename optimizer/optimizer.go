@@ -1,8 +1,9 @@
 // Package optimizer searches oven temperature programs for the shortest run
 // (or oven cycle) in which every counted pair reaches the target resolution,
 // within the column's and the oven's limits. It uses gonum's Nelder–Mead
-// simplex method from several seeded starts in parallel, over variables
-// mapped so that every point tried is a valid program.
+// simplex method (stepped in the calling goroutine, nelder.go) from several
+// seeded starts in parallel, over variables mapped so that every point
+// tried is a valid program.
 package optimizer
 
 import (
@@ -16,8 +17,6 @@ import (
 	"sync"
 	"sync/atomic"
 	"time"
-
-	"gonum.org/v1/gonum/optimize"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/robust"
@@ -180,7 +179,7 @@ func (sh *shared) programStages(ctx context.Context, rg *rig) (candidate, []cand
 		if n >= 2 {
 			seeds = append(seeds, sp.plateauSeeds()...)
 		}
-		x, f := sh.stage(ctx, rg, sp, seeds, sh.s.Starts, sh.s.Evaluations, sh.s.Restarts, uint64(n))
+		x, f := sh.stage(ctx, rg, sp, seeds, sh.s.Starts, sh.s.Evaluations, sh.s.Restarts, uint64(n), screen{})
 		c := candidate{rg: rg, sp: sp, x: x, f: f, prog: sp.program(x)}
 		stages = append(stages, c)
 		if f < best.f || best.sp == nil {
@@ -308,9 +307,16 @@ func (sh *shared) startProgress(ctx context.Context) func() {
 	return func() { once.Do(func() { close(done); wg.Wait() }) }
 }
 
+// screen is how a stage screens its starts: every search makes its first
+// at evaluations and is held there; then the first starts (the seeds
+// carried over from earlier searches) and the keep best of the others go
+// on, exactly as if never held (nelderMead.run), and the rest stop. The
+// zero value runs every start to its end.
+type screen struct{ at, keep, first int }
+
 // stage runs the seeded starts of one space in parallel, then restarts from
 // the best point; it returns the best point and its score.
-func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float64, nStarts, evals, restarts int, stage uint64) ([]float64, float64) {
+func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float64, nStarts, evals, restarts int, stage uint64, sc screen) ([]float64, float64) {
 	rng := rand.New(rand.NewPCG(sh.s.Seed, stage^uint64(math.Float64bits(rg.value))))
 	starts := append([][]float64(nil), seeds...)
 	for len(starts) < nStarts+len(seeds) {
@@ -320,41 +326,73 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 		}
 		starts = append(starts, x)
 	}
-	type outcome struct {
-		x []float64
-		f float64
-	}
-	out := make([]outcome, len(starts))
-	jobs := make(chan int)
-	var wg sync.WaitGroup
-	for w := 0; w < sh.s.Workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range jobs {
-				x, f := sh.run(ctx, rg, sp, starts[i], 0.25, evals)
-				out[i] = outcome{x, f}
-			}
-		}()
-	}
-	for i := range starts {
-		if ctx.Err() != nil {
-			break
+	out := make([]*search, len(starts))
+	// each worker takes one search at a time
+	parallel := func(idx []int, do func(i int)) {
+		jobs := make(chan int)
+		var wg sync.WaitGroup
+		for w := 0; w < sh.s.Workers; w++ {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				for i := range jobs {
+					do(i)
+				}
+			}()
 		}
-		jobs <- i
+		for _, i := range idx {
+			if ctx.Err() != nil {
+				break
+			}
+			jobs <- i
+		}
+		close(jobs)
+		wg.Wait()
 	}
-	close(jobs)
-	wg.Wait()
-	bi := -1
-	for i, o := range out {
-		if o.x != nil && (bi < 0 || o.f < out[bi].f) {
-			bi = i
+	if sc.at <= 0 || sc.at >= evals || len(starts) <= sc.first+sc.keep {
+		sc = screen{at: evals}
+	}
+	all := make([]int, len(starts))
+	for i := range all {
+		all[i] = i
+	}
+	parallel(all, func(i int) {
+		s := sh.newSearch(ctx, rg, sp, starts[i], 0.25, evals)
+		s.run(sc.at)
+		out[i] = s
+	})
+	if sc.at < evals {
+		var rest []int
+		for i := sc.first; i < len(out); i++ {
+			if out[i] != nil && !out[i].ended() {
+				rest = append(rest, i)
+			}
+		}
+		score := func(i int) float64 { _, f := out[i].best(); return f }
+		sort.SliceStable(rest, func(a, b int) bool { return score(rest[a]) < score(rest[b]) })
+		rest = rest[:min(len(rest), sc.keep)]
+		var goOn []int
+		for i := 0; i < sc.first && i < len(out); i++ {
+			if out[i] != nil && !out[i].ended() {
+				goOn = append(goOn, i)
+			}
+		}
+		sort.Ints(rest)
+		parallel(append(goOn, rest...), func(i int) { out[i].run(evals) })
+	}
+	bi, f := -1, math.Inf(1)
+	var x []float64
+	for i, s := range out {
+		if s == nil {
+			continue // not started: stopped
+		}
+		if sx, sf := s.best(); bi < 0 || sf < f {
+			bi, x, f = i, sx, sf
 		}
 	}
 	if bi < 0 {
 		return starts[0], math.Inf(1)
 	}
-	x, f := out[bi].x, out[bi].f
 	for r := 0; r < restarts && ctx.Err() == nil; r++ {
 		x2, f2 := sh.run(ctx, rg, sp, x, 0.05/float64(r+1), evals)
 		if f2 < f {
@@ -364,32 +402,47 @@ func (sh *shared) stage(ctx context.Context, rg *rig, sp *space, seeds [][]float
 	return x, f
 }
 
-// run is one Nelder–Mead search from x0 with the given simplex size.
-func (sh *shared) run(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) ([]float64, float64) {
+// search is one Nelder–Mead search from a start on one rig.
+type search struct {
+	ev *evaluator
+	nm *nelderMead // nil when the space has no variables
+	x0 []float64
+}
+
+func (sh *shared) newSearch(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) *search {
 	ev := newEvaluator(sh, rg, sp)
 	ev.approx = sh.approx
+	s := &search{ev: ev, x0: x0}
 	if sp.dim == 0 {
-		return x0, ev.f(x0)
+		ev.f(x0)
+		return s
 	}
-	prob := optimize.Problem{
-		Func: ev.f,
-		Status: func() (optimize.Status, error) {
-			if ctx.Err() != nil {
-				return optimize.Failure, ctx.Err()
-			}
-			return optimize.NotTerminated, nil
-		},
+	s.nm = newNelderMead(ev.f, func() bool { return ctx.Err() != nil }, x0, size, evals)
+	return s
+}
+
+func (s *search) ended() bool { return s.nm == nil || s.nm.done() }
+
+// run goes on until the search ends or has made until evaluations.
+func (s *search) run(until int) {
+	if s.nm != nil {
+		s.nm.run(until)
 	}
-	settings := &optimize.Settings{
-		FuncEvaluations: evals,
-		Converger:       &optimize.FunctionConverge{Absolute: 1e-4, Relative: 1e-9, Iterations: 60},
-		Concurrent:      1,
+}
+
+// best is the best point so far and its score.
+func (s *search) best() ([]float64, float64) {
+	if s.ev.bestX == nil {
+		return s.x0, math.Inf(1)
 	}
-	optimize.Minimize(prob, append([]float64(nil), x0...), settings, &optimize.NelderMead{SimplexSize: size})
-	if ev.bestX == nil {
-		return x0, math.Inf(1)
-	}
-	return ev.bestX, ev.bestF
+	return s.ev.bestX, s.ev.bestF
+}
+
+// run is one Nelder–Mead search from x0 with the given simplex size.
+func (sh *shared) run(ctx context.Context, rg *rig, sp *space, x0 []float64, size float64, evals int) ([]float64, float64) {
+	s := sh.newSearch(ctx, rg, sp, x0, size, evals)
+	s.run(evals)
+	return s.best()
 }
 
 // finish simulates the saved program afresh, reports the robust margin and

@@ -73,7 +73,8 @@ type App struct {
 	saved      *methodfile.Method
 	undo, redo []*methodfile.Method
 	res        model.Result
-	sysk       string // systemKey of the method the tables were built for
+	sysk       string      // systemKey of the method the tables were built for
+	rob        robustState // the program under [goal.robust] (robust.go)
 	guard      *Guard
 	wrote      map[string]bool // files this session wrote or opened: replaced without asking
 	files      fileWatch       // the file on disk and the recovery file (filesafety.go)
@@ -207,7 +208,11 @@ func (a *App) resimulate() error {
 		a.sh.sys = sys
 		a.sysk = k
 	}
-	return a.sh.sys.Simulate(m.ModelProgram(), &a.res)
+	if err := a.sh.sys.Simulate(m.ModelProgram(), &a.res); err != nil {
+		return err
+	}
+	a.updateRobust()
+	return nil
 }
 
 // apply makes m the method if it is valid: the previous one goes on the
@@ -434,7 +439,7 @@ func (a *App) dialogHelp() bool {
 	d := a.overlay
 	a.pending = append([]component{d}, a.pending...)
 	a.overlay = newDialogHelp(&a.sh, &a.help, d, dialogName(d), a.keys)
-	a.sizeOverlay()
+	a.resizeFor(d)
 	return true
 }
 
@@ -542,7 +547,9 @@ func (a *App) interrupt() tea.Cmd {
 		a.job = nil
 	}
 	a.queued = nil // keys typed before ctrl+c never answer its question
+	was := a.overlay
 	a.overlay, a.pending = nil, nil
+	a.resizeFor(was)
 	a.chart.Update(previewMsg{})
 	if !a.Dirty() {
 		return tea.Quit
@@ -641,16 +648,30 @@ func (a *App) open(d component) {
 			return
 		}
 	}
+	was := a.overlay
 	a.overlay = d
+	a.resizeFor(was)
+}
+
+// resizeFor sizes the open dialog after was had the slot; when either
+// takes rows from the chart, every child gets its size again.
+func (a *App) resizeFor(was component) {
+	if (was != nil && wantsRows(was)) || (a.overlay != nil && wantsRows(a.overlay)) {
+		if a.ready {
+			a.layout()
+		}
+		return
+	}
 	a.sizeOverlay()
 }
 
 func (a *App) closeOverlay() {
+	was := a.overlay
 	a.overlay = nil
 	if len(a.pending) > 0 {
 		a.overlay, a.pending = a.pending[0], a.pending[1:]
-		a.sizeOverlay()
 	}
+	a.resizeFor(was)
 	if _, ok := a.overlay.(*resultDialog); !ok {
 		a.chart.Update(previewMsg{})
 	}
@@ -695,13 +716,20 @@ func (a *App) View() string {
 	return strings.Join(parts, "\n")
 }
 
-// The rows around the panes: the title, the method lines, the two program
+// The rows around the panes: the title, the method lines, the program
 // lines, the summary, the status message (as many lines as it needs, none
 // when there is none) and the footer. They wrap rather than cut; the chart
 // keeps its height whatever the message, the lower pane takes the rest.
-type rowCount struct{ title, method, summary, message int }
+type rowCount struct{ title, method, program, summary, message int }
 
-func (r rowCount) fixed() int { return r.title + r.method + r.summary + 2 + 1 }
+func (r rowCount) fixed() int { return r.title + r.method + r.program + r.summary + 1 }
+
+// programRows is the program's rows: as many as its steps need, at least
+// 2, at most 3 on a 24-row terminal and more on a taller one; steps
+// beyond them are reached with ←/→, which the hints say.
+func (a *App) programRows(w int) int {
+	return min(a.program.rowsFor(w), max(3, (a.height-16)/4))
+}
 
 // maxMessageRows is the most the status message takes; a longer one ends
 // with a pointer to the list of cautions, which shows it whole.
@@ -712,10 +740,28 @@ const maxMessageRows = 4
 const minLowerRows = 3
 
 // heights are the chart's and the lower pane's (dialog's) rows.
+// A dialog that needs more rows than the lower pane has (the optimizer's
+// result on 80×24) takes them from the chart, which keeps minChartRows.
 func (a *App) heights() (chartH, lowerH int) {
 	base := a.height - a.rows.fixed()
 	chartH = chartRows(base)
-	return chartH, max(minLowerRows, base-chartH-a.rows.message)
+	lowerH = max(minLowerRows, base-chartH-a.rows.message)
+	if w, ok := a.overlay.(interface{ wantRows() int }); ok {
+		if give := min(w.wantRows()-lowerH, chartH-minChartRows); give > 0 {
+			chartH, lowerH = chartH-give, lowerH+give
+		}
+	}
+	return chartH, lowerH
+}
+
+// minChartRows is the least the chart keeps when a dialog needs its rows:
+// its heading, three rows of plot and the time axis.
+const minChartRows = 5
+
+// wantsRows reports whether d takes rows from the chart when it needs them.
+func wantsRows(d component) bool {
+	_, ok := d.(interface{ wantRows() int })
+	return ok
 }
 
 // chartRows is the chart's share of the base rows left by the fixed ones.
@@ -736,7 +782,7 @@ func (a *App) layout() {
 	}
 	a.measure()
 	chartH, lowerH := a.heights()
-	a.program.SetSize(a.width, 2)
+	a.program.SetSize(a.width, a.rows.program)
 	a.chart.SetSize(a.width, chartH)
 	a.peaks.SetSize(a.width, lowerH)
 	a.settings.SetSize(a.width, lowerH)
@@ -770,7 +816,7 @@ func (a *App) measure() bool {
 	v := &a.view
 	title, method, summary := a.titleLines(w), a.methodLines(w), a.summaryLines(w)
 	was := a.rows
-	a.rows = rowCount{title: len(title), method: len(method), summary: len(summary)}
+	a.rows = rowCount{title: len(title), method: len(method), program: a.programRows(w), summary: len(summary)}
 	base := a.height - a.rows.fixed()
 	chartH := chartRows(base)
 	n := max(0, min(maxMessageRows, base-chartH-minLowerRows))

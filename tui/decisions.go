@@ -8,6 +8,7 @@ import (
 
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
@@ -91,8 +92,20 @@ func (d *resultDialog) ShortHelp() []key.Binding {
 	return []key.Binding{d.keys.Accept, d.keys.Reject, d.keys.Toggle, d.keys.Up}
 }
 func (d *resultDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
-func (d *resultDialog) View() string              { return strings.Join(d.lines, "\n") }
-func (d *resultDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
+
+// resultKeyRows is how many rows of the result's body hold what decides:
+// the carrier and the run time, the minimum Rs, the worst corner and
+// Rs − z·σ (the body's first rows).
+const resultKeyRows = 5
+
+// wantRows is the rows the dialog needs to show its title, its key rows
+// and the whole program; on a small terminal the chart gives up rows for
+// them (App.heights).
+func (d *resultDialog) wantRows() int {
+	return 1 + max(resultKeyRows, 3+len(d.after.Oven.Ramps)) // carrier, head, start, ramps
+}
+func (d *resultDialog) View() string     { return strings.Join(d.lines, "\n") }
+func (d *resultDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
 
 func (d *resultDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
@@ -154,21 +167,22 @@ func (d *resultDialog) render() {
 		return fitTitle(head, st.Dim, strings.Join(items, " · "), d.w)
 	}
 	o := d.after.Oven
-	left := []string{st.TableHead.Render(fmt.Sprintf(" %-5s %7s %7s %8s", "step", "°C/min", "to °C", "hold min"))}
+	// the carrier setting the optimizer varies goes with the program: say
+	// it first, before the user takes it, where 80×24 shows it
+	left := []string{st.Info.Render(" " + carrierChange(d.sh.method.Carrier, d.after.Carrier))}
+	left = append(left, st.TableHead.Render(fmt.Sprintf(" %-5s %7s %7s %8s", "step", "°C/min", "to °C", "hold min")))
 	left = append(left, fmt.Sprintf(" %-5s %7s %7s %8s", "start", "", fmtNum(o.InitialC, 1, 2), fmtNum(o.InitialHoldMin, 2, 3)))
 	for i, r := range o.Ramps {
 		left = append(left, fmt.Sprintf(" %-5d %7s %7s %8s", i+1, fmtNum(r.RateCMin, 1, 2), fmtNum(r.FinalC, 1, 2), fmtNum(r.HoldMin, 2, 3)))
 	}
-	// the carrier setting the optimizer varies goes with the program: say
-	// it before the user takes it
-	left = append(left, st.Info.Render(" "+carrierChange(d.sh.method.Carrier, d.after.Carrier)))
 	lw := 31
 	rw := d.w - lw - 2
 	now := d.sh.res
 	cell := func(s string, n int) string { return padRight(ansi.Truncate(s, n, "…"), n) }
-	half := min(20, (rw-12)/2)
+	const labelW = 13 // "worst corner" and a space
+	half := min(20, (rw-labelW-1)/2)
 	row := func(label, a, b string) string {
-		return st.Label.Render(fmt.Sprintf("%-11s", label)) + st.Value.Render(cell(a, half)+" "+cell(b, half))
+		return st.Label.Render(fmt.Sprintf("%-*s", labelW, label)) + st.Value.Render(cell(a, half)+" "+cell(b, half))
 	}
 	target := d.sh.method.Goal.MinResolution
 	rs := func(r *model.Result) string {
@@ -177,32 +191,46 @@ func (d *resultDialog) render() {
 		}
 		return format.RsNumber(r.MinResolution, target) + " " + format.VerdictAll(r.MinResolution, target, r.TargetsNotEluted)
 	}
+	// the figures that decide come first (run time, minimum Rs, the worst
+	// corner, Rs − z·σ), so that 80×24 shows them without scrolling
 	right := []string{
-		st.TableHead.Render(fmt.Sprintf("%-11s", "") + cell("now", half) + " " + cell("optimized", half)),
+		st.TableHead.Render(fmt.Sprintf("%-*s", labelW, "") + cell("now", half) + " " + cell("optimized", half)),
 		row("run time", fmt.Sprintf("%.2f min", now.RunTime/60), fmt.Sprintf("%.2f min", d.afterR.RunTime/60)),
-		row("cycle time", fmt.Sprintf("%.2f min", now.CycleTime/60), fmt.Sprintf("%.2f min", d.afterR.CycleTime/60)),
 	}
+	cycle := row("cycle time", fmt.Sprintf("%.2f min", now.CycleTime/60), fmt.Sprintf("%.2f min", d.afterR.CycleTime/60))
 	robust := res.Robust.On || d.nowRob.On
 	if robust {
-		// the robust margin ([goal.robust]): nominal, worst corner, Rs ± σ
-		worst := func(r optimizer.RobustReport) string {
-			if !r.On || math.IsNaN(r.Worst) {
+		// the robust margin ([goal.robust]): nominal, worst corner, Rs − z·σ
+		verdict := func(on bool, x float64) string {
+			if !on || math.IsNaN(x) || math.IsInf(x, 0) {
 				return "-"
 			}
-			return format.RsNumber(r.Worst, target) + " " + format.Verdict(r.Worst, target)
+			return format.RsNumber(x, target) + " " + format.Verdict(x, target)
 		}
+		worst := func(r optimizer.RobustReport) string { return verdict(r.On, r.Worst) }
+		lowZ := func(r optimizer.RobustReport) string { return verdict(r.On && r.Z > 0, r.LowZ) }
 		sigma := func(r optimizer.RobustReport) string {
 			if !r.On || math.IsNaN(r.Sigma) || math.IsInf(r.Nominal, 0) {
 				return "-"
 			}
 			return fmt.Sprintf("%.2f ± %.2f", r.Nominal, r.Sigma)
 		}
+		z := res.Robust.Z
+		if z == 0 {
+			z = d.nowRob.Z
+		}
 		right = append(right,
 			row("nominal Rs", rs(now), rs(&d.afterR)),
-			row("worst Rs", worst(d.nowRob), worst(res.Robust)),
-			row("Rs ± σ", sigma(d.nowRob), sigma(res.Robust)))
+			row("worst corner", worst(d.nowRob), worst(res.Robust)))
+		if z > 0 {
+			right = append(right, row("Rs − "+format.Clean(z)+"σ", lowZ(d.nowRob), lowZ(res.Robust)))
+		}
+		right = append(right, cycle)
+		if z > 0 {
+			right = append(right, row("Rs ± σ", sigma(d.nowRob), sigma(res.Robust)))
+		}
 	} else {
-		right = append(right, row("min Rs", rs(now), rs(&d.afterR)),
+		right = append(right, row("min Rs", rs(now), rs(&d.afterR)), cycle,
 			row("ramps", fmt.Sprint(len(d.sh.method.Oven.Ramps)), fmt.Sprint(len(o.Ramps))))
 	}
 	var body []string
@@ -223,11 +251,7 @@ func (d *resultDialog) render() {
 			}
 			return r.Corner
 		}
-		s := " worst corner: optimized " + corner(res.Robust) + " · now " + corner(d.nowRob)
-		if z := res.Robust.Z; z > 0 && !math.IsNaN(res.Robust.LowZ) {
-			s += fmt.Sprintf(" · lowest Rs − %gσ optimized %.2f", z, res.Robust.LowZ)
-		}
-		for _, l := range wrap(s, d.w) {
+		for _, l := range wrap(" worst corner: optimized "+corner(res.Robust)+" · now "+corner(d.nowRob), d.w) {
 			body = append(body, st.Info.Render(l))
 		}
 	}
@@ -294,7 +318,13 @@ func (d *fitDialog) FullHelp() [][]key.Binding { return d.keys.FullHelp() }
 func (d *fitDialog) View() string              { return strings.Join(d.lines, "\n") }
 func (d *fitDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
 
-func (d *fitDialog) rows() int { return max(1, d.h-3) }
+func (d *fitDialog) rows() int { return max(1, d.h-2-len(d.rsLines())) }
+
+// rsLines are the minimum Rs now and with the fitted values, wrapped
+// whole (one line at 80 columns for the demo).
+func (d *fitDialog) rsLines() []string {
+	return wrapStyled(d.sh.st.Info.Render(fmt.Sprintf(" min Rs now %s → fitted %s", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim))), d.w)
+}
 
 // body is the table rows, then the fit's warnings.
 func (d *fitDialog) body() []string {
@@ -342,16 +372,23 @@ func (d *fitDialog) render() {
 	m := rep.Method
 	title := dialogTitle(st, "calibration", fmt.Sprintf("  diameter %s mm · plate-height factor %s · ⚠ large ± over %g kJ/mol or %g J/(mol·K) · in elution order",
 		fmtNum(m.Column.DiameterMM, 3, 4), fmtNum(m.Column.PlateHeight, 2, 3), largeErrDH, largeErrDS), d.w)
-	rsLine := st.Info.Render(ansi.Truncate(fmt.Sprintf(" min Rs now %s → %s with the fitted values (target %.2f)", rsShort(d.sh.res), rsText(d.sh, d.fit.sys, &d.fit.sim), m.Goal.MinResolution), d.w, "…"))
 	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %-20s %9s  %-6s %9s  %-6s %4s %8s", "compound", "ΔH "+format.UnitDH, "±", "ΔS "+format.UnitDS, "±", "runs", "rms min"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
-	lines := []string{title, rsLine, head}
-	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
 	if len(body) > rows {
-		lines[2] = ansi.Truncate(lines[2]+st.Dim.Render(fmt.Sprintf("  %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))), d.w, "…")
+		// where the rows are, whole on the first line it fits
+		pos := st.Dim.Render(fmt.Sprintf(" · rows %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body)))
+		switch {
+		case ansi.StringWidth(head+pos) <= d.w:
+			head += pos
+		case ansi.StringWidth(title+pos) <= d.w:
+			title += pos
+		}
 	}
+	lines := append([]string{title}, d.rsLines()...)
+	lines = append(lines, head)
+	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
 	d.lines = fill(lines, d.h)
 }
 
@@ -514,8 +551,23 @@ func (d *sweepDialog) render() {
 	target := d.sh.method.Goal.MinResolution
 	lines := []string{dialogTitle(st, "window diagram ", fmt.Sprintf("%s (%s) · │ now %s · ┄ target Rs %.2f", sv.label, sv.unit, trimNum(sv.current), target), d.w)}
 	lines[0] = ansi.Truncate(lines[0], d.w, "…")
+	reason := ""
+	for _, p := range d.pts {
+		if !p.Valid && p.Reason != "" {
+			reason = "gaps: " + inert(p.Reason)
+			break
+		}
+	}
+	// the legend and the range, whole items on as many lines as they need
+	// (two at 80 columns), never cut
+	foot := packItems([]styledItem{
+		{st.Peak, "left: min Rs (solid)"},
+		{st.Label, "right: run time, min (dotted)"},
+		{st.Dim, fmt.Sprintf("%s %s–%s %s, within the method's limits", sv.label, trimNum(round(d.lo(), 3)), trimNum(round(d.hi(), 3)), sv.unit)},
+		{st.Dim, reason},
+	}, d.w)
 	const lw, rw = 6, 7
-	ph, pw := d.h-3, d.w-lw-rw-1
+	ph, pw := d.h-2-len(foot), d.w-lw-rw-1
 	if ph < 2 || pw < 10 || len(d.pts) < 2 {
 		d.lines = fill(lines, d.h)
 		return
@@ -595,16 +647,61 @@ func (d *sweepDialog) render() {
 		lines = append(lines, ansi.Truncate(b.String(), d.w, ""))
 	}
 	lines = append(lines, st.Axis.Render(strings.Repeat(" ", lw)+valueAxis(lo, hi, pw, sv.unit)))
-	reason := ""
-	for _, p := range d.pts {
-		if !p.Valid && p.Reason != "" {
-			reason = " · gaps: " + p.Reason
-			break
-		}
-	}
-	lines = append(lines, ansi.Truncate(st.Peak.Render(" left: min Rs (solid)")+st.Label.Render(" · right: run time, min (dotted)")+
-		st.Dim.Render(fmt.Sprintf(" · %s %s–%s %s, within the method's limits%s", sv.label, trimNum(round(lo, 3)), trimNum(round(hi, 3)), sv.unit, inert(reason))), d.w, "…"))
+	lines = append(lines, foot...)
 	d.lines = fill(lines, d.h)
+}
+
+// lo and hi are the ends of the swept range (0 without points).
+func (d *sweepDialog) lo() float64 {
+	if len(d.pts) == 0 {
+		return 0
+	}
+	return d.pts[0].Value
+}
+
+func (d *sweepDialog) hi() float64 {
+	if len(d.pts) == 0 {
+		return 0
+	}
+	return d.pts[len(d.pts)-1].Value
+}
+
+// styledItem is one item of a legend and its style.
+type styledItem struct {
+	style lipgloss.Style
+	text  string
+}
+
+// packItems puts the non-empty items on lines of w columns, " · " between
+// them, each whole on one line (an item wider than a line is wrapped at
+// its spaces), each line starting with a space.
+func packItems(items []styledItem, w int) []string {
+	var lines []string
+	cur, curW := "", 0
+	for _, it := range items {
+		if it.text == "" {
+			continue
+		}
+		iw := ansi.StringWidth(it.text)
+		switch {
+		case curW > 0 && curW+3+iw <= w:
+			cur += it.style.Render(" · " + it.text)
+			curW += 3 + iw
+			continue
+		case curW > 0:
+			lines = append(lines, cur)
+		}
+		parts := wrap(" "+it.text, w)
+		for _, l := range parts[:len(parts)-1] {
+			lines = append(lines, it.style.Render(l))
+		}
+		last := parts[len(parts)-1]
+		cur, curW = it.style.Render(last), ansi.StringWidth(last)
+	}
+	if curW > 0 {
+		lines = append(lines, cur)
+	}
+	return lines
 }
 
 // tickRows labels the rows of an axis from 0 (bottom row) to top (top

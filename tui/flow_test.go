@@ -95,7 +95,7 @@ func TestFlowFitInBackground(t *testing.T) {
 	waitScreen(t, tm, "scouting runs file")
 	tm.Send(tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune(runs)})
 	tm.Send(tea.KeyMsg{Type: tea.KeyEnter})
-	waitScreen(t, tm, "with the fitted values")
+	waitScreen(t, tm, "→ fitted")
 	tm.Send(keyRune('y'))
 	waitScreen(t, tm, "took the fitted parameters")
 	tm.Send(tea.KeyMsg{Type: tea.KeyCtrlC})

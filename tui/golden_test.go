@@ -17,6 +17,7 @@ var screens = []struct {
 	setup func(t *testing.T, a *App)
 }{
 	{"program", func(t *testing.T, a *App) {}},
+	{"program-two-ramps", func(t *testing.T, a *App) { press(a, "a") }},
 	{"chart", func(t *testing.T, a *App) { press(a, "tab", "+") }},
 	{"peaks", func(t *testing.T, a *App) { press(a, "tab", "tab", "down", "right") }},
 	{"settings", func(t *testing.T, a *App) { press(a, "shift+tab", "down") }},
@@ -113,7 +114,8 @@ var screens = []struct {
 }
 
 // Every pane and dialog at 80×24 and 120×40, drawn without colour (as
-// NO_COLOR asks): lines fit the width, the screen has exactly the height.
+// NO_COLOR asks): lines fit the width and end uncut, the screen has
+// exactly the height.
 func TestGoldenScreens(t *testing.T) {
 	for _, sc := range screens {
 		for _, size := range [][2]int{{80, 24}, {120, 40}} {
@@ -131,6 +133,7 @@ func TestGoldenScreens(t *testing.T) {
 				if n := strings.Count(out, "\n") + 1; n != size[1] {
 					t.Errorf("%d lines, want %d", n, size[1])
 				}
+				noCut(t, sc.name, out) // nothing ends cut with "…"
 				golden.RequireEqual(t, []byte(out))
 			})
 		}

@@ -196,9 +196,10 @@ func TestOldRunFaintUnderResult(t *testing.T) {
 	}
 }
 
-// With [goal.robust] the optimizer result shows, at 80×24, the nominal
-// Rs, the worst corner's Rs and which corner, and Rs ± σ, for the current
-// and the optimized program, the figures the optimizer reports.
+// With [goal.robust] the optimizer result shows, at 80×24 and without
+// scrolling, the nominal Rs, the worst corner's Rs and which corner, and
+// the lowest Rs − z·σ, for the current and the optimized program, the
+// figures the optimizer reports; Rs ± σ is a row further down.
 func TestResultShowsRobustFigures(t *testing.T) {
 	a, _ := newApp(t, 80, 24)
 	if rb := a.Method().Goal.Robust; rb.OvenOffsetC == 0 || rb.RetentionSigma == 0 {
@@ -216,11 +217,20 @@ func TestResultShowsRobustFigures(t *testing.T) {
 	}
 	s := screen(a)
 	target := a.Method().Goal.MinResolution
-	for _, want := range []string{"nominal Rs", "worst Rs", "Rs ± σ",
-		format.RsNumber(r.Worst, target), fmt.Sprintf("%.2f ± %.2f", r.Nominal, r.Sigma),
-		fmt.Sprintf("%.2f ± %.2f", d.nowRob.Nominal, d.nowRob.Sigma), "worst at " + r.Corner} {
+	for _, want := range []string{"nominal Rs", "worst corner", "Rs − 2σ",
+		format.RsNumber(r.Worst, target), format.RsNumber(r.LowZ, target), format.RsNumber(d.nowRob.LowZ, target),
+		"worst at " + r.Corner} {
 		if !strings.Contains(s, want) {
 			t.Errorf("80×24 result lacks %q:\n%s", want, s)
+		}
+	}
+	for i := 0; i < 8 && !strings.Contains(screen(a), "Rs ± σ"); i++ {
+		press(a, "down")
+	}
+	s = screen(a)
+	for _, want := range []string{fmt.Sprintf("%.2f ± %.2f", r.Nominal, r.Sigma), fmt.Sprintf("%.2f ± %.2f", d.nowRob.Nominal, d.nowRob.Sigma)} {
+		if !strings.Contains(s, want) {
+			t.Errorf("80×24 result lacks %q after scrolling:\n%s", want, s)
 		}
 	}
 }

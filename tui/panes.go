@@ -222,11 +222,8 @@ func (p *programPane) removeRamp() {
 	sh.send(editMsg{m: m, what: fmt.Sprintf("removed ramp %d", r)})
 }
 
-// render lays the program out on its two lines, one step (the start, then
-// each ramp) never split; when the steps do not all fit, the lines show the
-// steps around the selection, with how many more there are at each side.
-func (p *programPane) render() {
-	p.list.clamp()
+// steps are the program's steps as drawn: the start, then each ramp.
+func (p *programPane) steps() []string {
 	sh := p.list.sh
 	st := sh.st
 	m := sh.method
@@ -248,52 +245,91 @@ func (p *programPane) render() {
 		i := 2 + 3*r
 		steps = append(steps, lab(fmt.Sprintf(" │ %d: ", r+1))+val(i)+lab(" → ")+val(i+1)+lab(" hold ")+val(i+2))
 	}
+	return steps
+}
+
+func (p *programPane) head() string {
+	sh := p.list.sh
+	return heading(sh.st, sh.focus == paneProgram, "program", p.w, "") + " "
+}
+
+// The hints where steps are left out: how many, and the key that
+// reaches them.
+func moreBefore(n int) string { return fmt.Sprintf("← %d more ", n) }
+func moreAfter(n int) string  { return fmt.Sprintf(" %d more →", n) }
+
+// placeSteps lays steps first..last out on at most rows lines of w
+// columns, one step never split, with the hints for the steps left out at
+// either side; ok is false when they do not fit.
+func placeSteps(st *Styles, head string, steps []string, first, last, rows, w int) (lines []string, ok bool) {
+	lines = []string{head}
+	if first > 0 {
+		lines[0] += st.Dim.Render(moreBefore(first))
+	}
+	for i := first; i <= last; i++ {
+		s := steps[i]
+		reserve := 0
+		if i == last && last < len(steps)-1 {
+			reserve = ansi.StringWidth(moreAfter(len(steps) - 1 - last))
+		}
+		cur := lines[len(lines)-1]
+		if ansi.StringWidth(cur)+ansi.StringWidth(s)+reserve > w {
+			if len(lines) >= rows || ansi.StringWidth("   "+s)+reserve > w {
+				return nil, false
+			}
+			lines = append(lines, "   "+s)
+			continue
+		}
+		lines[len(lines)-1] = cur + s
+	}
+	if last < len(steps)-1 {
+		lines[len(lines)-1] += st.Dim.Render(moreAfter(len(steps) - 1 - last))
+	}
+	return lines, true
+}
+
+// rowsFor is how many lines of w columns the whole program takes (at
+// least 2, the pane's height before programs had many ramps).
+func (p *programPane) rowsFor(w int) int {
+	save := p.w
+	p.w = w
+	steps, head := p.steps(), p.head()
+	p.w = save
+	for rows := 2; ; rows++ {
+		if _, ok := placeSteps(p.list.sh.st, head, steps, 0, len(steps)-1, rows, w); ok || rows > len(steps) {
+			return rows
+		}
+	}
+}
+
+// render lays the program out on the pane's lines, one step (the start,
+// then each ramp) never split; when the steps do not all fit, the lines
+// show the steps around the selection, with how many more there are at
+// each side and the arrow that reaches them ("← 2 more", "3 more →").
+func (p *programPane) render() {
+	p.list.clamp()
+	st := p.list.sh.st
+	steps := p.steps()
 	selStep := 0
 	if p.list.sel >= 2 {
 		selStep = (p.list.sel-2)/3 + 1
 	}
-	head := heading(st, focused, "program", p.w, "") + " "
-	w := p.w
-	place := func(first, last int) ([]string, bool) {
-		lines := []string{head}
-		if first > 0 {
-			lines[0] += st.Dim.Render(fmt.Sprintf("‹%d ", first))
-		}
-		for i := first; i <= last; i++ {
-			s := steps[i]
-			reserve := 0
-			if i == last && last < len(steps)-1 {
-				reserve = 5 // " 12›"
-			}
-			cur := lines[len(lines)-1]
-			if ansi.StringWidth(cur)+ansi.StringWidth(s)+reserve > w {
-				if len(lines) == 2 || ansi.StringWidth("   "+s)+reserve > w {
-					return nil, false
-				}
-				lines = append(lines, "   "+s)
-				continue
-			}
-			lines[len(lines)-1] = cur + s
-		}
-		if last < len(steps)-1 {
-			lines[len(lines)-1] += st.Dim.Render(fmt.Sprintf(" %d›", len(steps)-1-last))
-		}
-		return lines, true
-	}
+	head := p.head()
+	w, rows := p.w, max(1, p.h)
 	first := 0
 	for first < selStep {
-		if _, ok := place(first, selStep); ok {
+		if _, ok := placeSteps(st, head, steps, first, selStep, rows, w); ok {
 			break
 		}
 		first++
 	}
 	last := selStep
-	lines, ok := place(first, last)
+	lines, ok := placeSteps(st, head, steps, first, last, rows, w)
 	if !ok {
 		lines = []string{head, "   " + steps[selStep]}
 	}
 	for last+1 < len(steps) {
-		next, ok := place(first, last+1)
+		next, ok := placeSteps(st, head, steps, first, last+1, rows, w)
 		if !ok {
 			break
 		}
@@ -434,11 +470,13 @@ func (c *chartPane) render() {
 	case c.prev != nil:
 		extra += " · the current program"
 	}
+	legend := []string{" · numbers are elution order", " · oven temperature at right"}
 	if c.meas != nil {
-		extra += " · below: measured " + inert(c.meas.Label) + ", ╱ joins matched peaks"
+		extra += " · below: measured " + inert(c.meas.Label)
+		legend = append([]string{" · ╱ joins matched peaks"}, legend...)
 	}
-	// the legend, as much of it as fits whole
-	for _, l := range []string{" · numbers are elution order", " · oven temperature at right"} {
+	// the legend, each item whole or not at all
+	for _, l := range legend {
 		if ansi.StringWidth(" chromatogram"+extra+l) <= c.w {
 			extra += l
 		}

@@ -299,7 +299,7 @@ func TestFitReview(t *testing.T) {
 		t.Error("no ± column")
 	}
 	want := rsShort(&d.fit.sim)
-	if !strings.Contains(screen(a), "→ "+want) {
+	if !strings.Contains(screen(a), "→ fitted "+want) {
 		t.Errorf("new min Rs %s not shown before taking:\n%s", want, screen(a))
 	}
 	press(a, "y")
@@ -395,8 +395,8 @@ func TestProgramLineScrolls(t *testing.T) {
 	if !strings.Contains(s, "[270.0 °C]") {
 		t.Errorf("the selected 8th ramp is off the line:\n%s", s)
 	}
-	if !strings.Contains(s, "‹") {
-		t.Error("no mark of the steps scrolled off to the left")
+	if !strings.Contains(s, "← 6 more") {
+		t.Errorf("no mark of the steps scrolled off to the left:\n%s", s)
 	}
 }
 

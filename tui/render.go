@@ -99,9 +99,11 @@ func (a *App) methodLines(w int) []string {
 		col = fmt.Sprintf("porous-layer %s m × %s mm × %s µm layer", v("column.length_m"), v("column.diameter_mm"), v("column.film_um"))
 	}
 	// the target resolution is in the summary below
-	s := fmt.Sprintf(" %s, max %s °C · %s %s · goal %s, %d ramps · %s",
+	// goal.ramps is how many ramps the optimizer may use, not how many the
+	// program has: said so, so that it cannot be read as the program's count
+	s := fmt.Sprintf(" %s, max %s °C · %s %s · optimizer: %s, up to %d %s · %s",
 		col, v("column.max_temp_c"), g.Gas, flow,
-		m.Goal.Objective, m.Goal.Ramps, phase)
+		m.Goal.Objective, m.Goal.Ramps, plural(m.Goal.Ramps, "ramp", "ramps"), phase)
 	const h2 = " ⚠ H₂ flammable ·"
 	if g.Gas.Flammable() {
 		s = h2 + s
@@ -135,6 +137,15 @@ func (a *App) summaryLines(w int) []string {
 			format.CriticalPair(inert(a.sh.sys.Compounds[cp.First].Name), inert(a.sh.sys.Compounds[cp.Second].Name)) +
 			" (target " + format.Target(target) + ")"
 	}
+	// the worst corner and Rs − z·σ of the program as it stands
+	robust := ""
+	robustStyle := a.st.Good
+	if text, met := a.robustSummary(); text != "" {
+		robust = " · " + text
+		if !met {
+			robustStyle = a.st.Warn
+		}
+	}
 	late := 0
 	for _, pk := range r.Peaks {
 		if !pk.Eluted {
@@ -153,7 +164,7 @@ func (a *App) summaryLines(w int) []string {
 	if n := len(a.cautions()); n > 0 {
 		tail += fmt.Sprintf(" · %d %s (! lists)", n, plural(n, "caution", "cautions"))
 	}
-	return capRows(wrapStyled(a.st.Info.Render(s)+style.Render(rs)+a.st.Warn.Render(tail), w), w)
+	return capRows(wrapStyled(a.st.Info.Render(s)+style.Render(rs)+robustStyle.Render(robust)+a.st.Warn.Render(tail), w), w)
 }
 
 func plural(n int, one, many string) string {
@@ -163,6 +174,10 @@ func plural(n int, one, many string) string {
 	return many
 }
 
+// nbsp joins words that wrapStyled keeps on one line ("Rs − 2σ 1.50");
+// it is shown as a space.
+const nbsp = "\u00a0"
+
 // wrapStyled wraps styled text at spaces into lines of at most w columns,
 // the lines after the first indented by one.
 func wrapStyled(s string, w int) []string {
@@ -171,7 +186,7 @@ func wrapStyled(s string, w int) []string {
 	const nbh = "\u2011"
 	lines := strings.Split(ansi.Wrap(strings.ReplaceAll(s, "-", nbh), w-1, ""), "\n")
 	for i := range lines {
-		lines[i] = strings.ReplaceAll(lines[i], nbh, "-")
+		lines[i] = strings.ReplaceAll(strings.ReplaceAll(lines[i], nbh, "-"), nbsp, " ")
 		if i > 0 {
 			lines[i] = " " + strings.TrimLeft(lines[i], " ")
 		}

@@ -197,20 +197,24 @@ func (d *verifyDialog) body() []string {
 		if !math.IsNaN(c.DeltaMin) {
 			delta = fmt.Sprintf("%+.3f", c.DeltaMin)
 		}
+		// the last column: the confidence of a peak assigned here (an
+		// unnamed peak), or a target the run lacks
 		how := ""
+		missing := math.IsNaN(c.MeasuredMin) && c.Target
 		switch {
 		case c.Assigned:
-			how = fmt.Sprintf("assigned %.2f", c.AssignedConfidence)
-		case math.IsNaN(c.MeasuredMin) && c.Target:
-			how = "target not found"
+			how = fmt.Sprintf("%.2f", c.AssignedConfidence)
+		case missing:
+			how = verifyMissing
 		}
 		tgt := " "
 		if c.Target {
 			tgt = "t"
 		}
-		line := fmt.Sprintf(" %2d %s %s %8s %8s %7s  %s  %s", i+1, padRight(ansi.Truncate(inert(c.Name), 20, "…"), 20), tgt, num3(c.PredictedMin), num3(c.MeasuredMin), delta, padRight(rs, 15), how)
+		nw := d.nameWidth()
+		line := fmt.Sprintf(" %2d %s %s %8s %8s %7s  %s  %s", i+1, padRight(ansi.Truncate(inert(c.Name), nw, "…"), nw), tgt, num3(c.PredictedMin), num3(c.MeasuredMin), delta, padRight(rs, 15), how)
 		s := st.TableRow
-		if how == "target not found" {
+		if missing {
 			s = st.Warn
 		}
 		out = append(out, s.Render(ansi.Truncate(line, d.w, "…")))
@@ -230,15 +234,44 @@ func (d *verifyDialog) body() []string {
 	return out
 }
 
+// verifyMissing is the last column of a target the run lacks; the
+// column's heading, "assigned", is as wide.
+const verifyMissing = "not found"
+
+// verifyFixed is the width of a row without the compound's name: the
+// columns from # to the assigned one (9 wide).
+const verifyFixed = 60
+
+// nameWidth is the compound column's width: the longest name, at least
+// "compound", at most what leaves the other columns whole (20 at 80
+// columns; a longer name is cut there, with "…").
+func (d *verifyDialog) nameWidth() int {
+	n := len("compound")
+	for _, c := range d.v.ck.Compounds {
+		n = max(n, ansi.StringWidth(inert(c.Name)))
+	}
+	return max(8, min(n, 40, d.w-verifyFixed))
+}
+
 func (d *verifyDialog) render() {
 	st := d.sh.st
 	title := d.title()
-	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-20s %s %8s %8s %7s  %-15s", "#", "compound", "t", "pred min", "meas min", "Δt min", " Rs pred   meas"), d.w, "…"))
+	nw := d.nameWidth()
+	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-*s %s %8s %8s %7s  %-15s  %-9s", "#", nw, "compound", "t", "pred min", "meas min", "Δt min", " Rs pred   meas", "assigned"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
 	if len(body) > rows {
-		head = ansi.Truncate(head+st.Dim.Render(fmt.Sprintf("  %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))), d.w, "…")
+		// where the rows are, on the first line it fits whole
+		pos := st.Dim.Render(fmt.Sprintf(" · rows %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body)))
+		switch {
+		case ansi.StringWidth(strings.TrimRight(head, " ")+pos) <= d.w:
+			head = strings.TrimRight(head, " ") + pos
+		case ansi.StringWidth(title[0]+pos) <= d.w:
+			title[0] += pos
+		case ansi.StringWidth(title[len(title)-1]+pos) <= d.w:
+			title[len(title)-1] += pos
+		}
 	}
 	lines := append(title, head)
 	lines = append(lines, body[d.off:min(len(body), d.off+rows)]...)
@@ -259,7 +292,7 @@ func (d *verifyDialog) title() []string {
 	}
 	rs += ", target " + format.Target(ck.Target)
 	head := st.Focused.Render("▸verification "+inert(ck.Run.Name)+": ") + verdict
-	legend := " · Δt = measured − predicted · * widths predicted"
+	legend := " · Δt = measured − predicted · * widths predicted · assigned: the confidence of an unnamed peak's match"
 	if one := head + st.Dim.Render(" · "+rs); ansi.StringWidth(one) <= d.w {
 		return []string{fitTitle(one, st.Dim, legend, d.w)}
 	}

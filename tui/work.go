@@ -382,13 +382,13 @@ func (a *App) optDone(v optOutcome) {
 	}
 	after := methodsearch.Apply(a.sh.method, v.res)
 	d := newResultDialog(&a.sh, v.res, after, v.res.Sim)
-	if rob, err := methodsearch.Robustness(a.sh.method, a.sh.sys); err == nil {
-		d.nowRob = rob // the current program under the same tolerances
+	if a.rob.ok {
+		d.nowRob = a.rob.rep // the current program under the same tolerances
 	}
 	a.open(d)
 	a.chart.Update(d.preview())
 	if v.res.Feasible() {
-		a.say(msgGood, "target met: enter or y takes the new program, n or esc keeps the old one; v shows the old run")
+		a.say(msgGood, "target met: y takes the new program, n keeps the old one, v shows the old run")
 	} else {
 		a.say(msgWarn, "target not met: %s. y takes the best program anyway, n keeps the old one", inert(v.res.Explanation))
 	}

@@ -58,19 +58,12 @@ type Carrier struct {
 	InitialBand float64 // s
 }
 
-// Ramp is one [[oven.ramp]].
-type Ramp struct {
-	RateCMin float64
-	FinalC   float64
-	HoldMin  float64
-}
+// Ramp is one [[oven.ramp]] (°C/min, °C, min).
+type Ramp = model.FileRamp
 
-// Oven is the [oven] table.
-type Oven struct {
-	InitialC       float64
-	InitialHoldMin float64
-	Ramps          []Ramp
-}
+// Oven is the [oven] table: a program in the file's units
+// (model.FileProgram, the one conversion to and from model.Program).
+type Oven model.FileProgram
 
 // Limits is the [limits] table, defaults applied.
 type Limits struct {
@@ -249,23 +242,14 @@ func (m *Method) ModelProgram() model.Program {
 	return ProgramToModel(m.Oven)
 }
 
-// ProgramToModel converts an oven program to SI units.
-func ProgramToModel(o Oven) model.Program {
-	p := model.Program{Initial: o.InitialC + model.ZeroCelsius, InitialHold: o.InitialHoldMin * 60}
-	for _, r := range o.Ramps {
-		p.Ramps = append(p.Ramps, model.Ramp{Rate: r.RateCMin / 60, Final: r.FinalC + model.ZeroCelsius, Hold: r.HoldMin * 60})
-	}
-	return p
-}
+// ProgramToModel converts an oven program to SI units
+// (model.FileProgram.Program, not rounded).
+func ProgramToModel(o Oven) model.Program { return model.FileProgram(o).Program() }
 
-// ProgramFromModel converts a model program to file units.
-func ProgramFromModel(p model.Program) Oven {
-	o := Oven{InitialC: p.Initial - model.ZeroCelsius, InitialHoldMin: p.InitialHold / 60}
-	for _, r := range p.Ramps {
-		o.Ramps = append(o.Ramps, Ramp{RateCMin: r.Rate * 60, FinalC: r.Final - model.ZeroCelsius, HoldMin: r.Hold / 60})
-	}
-	return o
-}
+// ProgramFromModel converts a model program to file units
+// (model.FileProgramOf: each value to 12 significant digits, so that a
+// value typed or on a keypad step comes back exactly as typed).
+func ProgramFromModel(p model.Program) Oven { return Oven(model.FileProgramOf(p)) }
 
 // ModelOven is the cool-down behaviour in SI units; with a coolant the oven
 // cools toward it (MODEL.md §12).

@@ -247,6 +247,8 @@ type Scratch struct {
 	prog   model.Program
 	byComp []int // position of each compound in a Result's peaks
 	byH    []int
+	// lastFail is the corner (0–3) that last fell below stopBelow
+	lastFail int
 }
 
 func positions(res *model.Result, dst []int) []int {
@@ -296,37 +298,46 @@ func (rg *Set) Evaluate(q model.Program, nom *model.Result, sc *Scratch, stopBel
 				rep.Corner = CornerName(rb, worst[0], worst[1], worst[2])
 			}
 		}()
-		for _, oven := range []float64{1, -1} {
-			if rb.OvenOffset == 0 && oven < 0 {
+		// the corners (oven +, flow −), (+, +), (−, −), (−, +); a partial
+		// report starts with the corner that failed last with this scratch
+		// (neighbouring programs mostly fail at the same corner)
+		first := 0
+		if !math.IsInf(stopBelow, -1) {
+			first = sc.lastFail
+		}
+		for j := 0; j < 4; j++ {
+			k := (first + j) % 4
+			oven, fi := 1.0, k%2
+			if k >= 2 {
+				oven = -1
+			}
+			flow := float64(2*fi - 1) // −1, +1
+			if (rb.OvenOffset == 0 && oven < 0) || (rb.FlowPct == 0 && fi > 0) {
 				continue
 			}
-			for fi, flow := range []float64{-1, 1} {
-				if rb.FlowPct == 0 && fi > 0 {
-					continue
+			shifted(q, oven*rb.OvenOffset, &sc.prog)
+			if err := rg.corner[fi].Simulate(sc.prog, &sc.res); err != nil {
+				return err
+			}
+			for _, e := range []float64{eff, 1} {
+				rs, _, late := MinCounted(sc.res.Peaks, comps, end, e, s0)
+				if late > 0 {
+					rs = 0
 				}
-				shifted(q, oven*rb.OvenOffset, &sc.prog)
-				if err := rg.corner[fi].Simulate(sc.prog, &sc.res); err != nil {
-					return err
+				if rs < rep.Worst {
+					rep.Worst = rs
+					worst = [3]float64{oven, flow, e}
 				}
-				for _, e := range []float64{eff, 1} {
-					rs, _, late := MinCounted(sc.res.Peaks, comps, end, e, s0)
-					if late > 0 {
-						rs = 0
-					}
-					if rs < rep.Worst {
-						rep.Worst = rs
-						worst = [3]float64{oven, flow, e}
-					}
-					if rb.EfficiencyPct == 0 {
-						break
-					}
+				if rb.EfficiencyPct == 0 {
+					break
 				}
-				if rep.Worst < rep.Margin {
-					rep.Margin = rep.Worst
-				}
-				if rep.Worst < stopBelow {
-					return nil
-				}
+			}
+			if rep.Worst < rep.Margin {
+				rep.Margin = rep.Worst
+			}
+			if rep.Worst < stopBelow {
+				sc.lastFail = k
+				return nil
 			}
 		}
 	}
