@@ -91,7 +91,7 @@ func (sl scoutLimits) rateTo(finalC float64) float64 {
 // the one the next optimum needs open. Pairs are searched exhaustively
 // over the candidates (a few dozen): one look ahead is enough, as two runs
 // at different elution temperatures determine both parameters.
-func (st *state) design(progs []methodfile.Oven, target, z, widthScatter float64, ahead int) (*designChoice, error) {
+func (st *state) design(progs []methodfile.Oven, target, z, widthScatter float64, made, ahead int) (*designChoice, error) {
 	var pairs []pairSens
 	for pi, o := range progs {
 		ps, err := st.criticalPairs(o, target, widthScatter, pi == 0)
@@ -118,11 +118,12 @@ func (st *state) design(progs []methodfile.Oven, target, z, widthScatter float64
 	cands := st.candidates(starts)
 	sl := st.scoutLimits()
 	// the optimized programs continued to the top measure where the
-	// optimum is; with runs still to come, linear ramps only (common
+	// optimum is; for the first two scouting runs linear ramps only (common
 	// practice for scouting): a step program's elution temperatures move
 	// with the parameters, so its predicted information is the less
-	// reliable the rougher they are
-	if ahead <= 0 {
+	// reliable the rougher they are, and two linear ramps already tell ΔH
+	// from ΔS
+	if made >= 2 && ahead <= 0 {
 		for _, o := range progs {
 			cands = append(cands, st.continued(o, sl)...)
 		}
@@ -133,6 +134,7 @@ func (st *state) design(progs []methodfile.Oven, target, z, widthScatter float64
 		oven methodfile.Oven
 		dur  float64
 		dt   [][2]float64
+		low  bool // starts at the lowest oven start
 	}
 	var cs []candidate
 	for _, cand := range cands {
@@ -149,7 +151,7 @@ func (st *state) design(progs []methodfile.Oven, target, z, widthScatter float64
 				dt[i] = s.dt[i]
 			}
 		}
-		cs = append(cs, candidate{oven: cand, dur: prog.RunTime(), dt: dt})
+		cs = append(cs, candidate{oven: cand, dur: prog.RunTime(), dt: dt, low: cand.InitialC <= sl.lowC})
 	}
 	if len(cs) == 0 {
 		return nil, nil
@@ -209,18 +211,34 @@ func (st *state) design(progs []methodfile.Oven, target, z, widthScatter float64
 	type pairRuns struct{ a, b int }
 	var prs []pairRuns
 	var pairScore, pairSD []float64
+	// the first run of all starts at the lowest oven start (common
+	// practice: nothing is lost in the solvent front, and the early
+	// compounds are measured at the low temperatures a method may hold)
+	first := made == 0
 	for a := range cs {
 		for b := a + 1; b < len(cs); b++ {
+			if first && !cs[a].low && !cs[b].low {
+				continue
+			}
 			v, sd := score(cs[a].dt, cs[b].dt)
 			prs = append(prs, pairRuns{a, b})
 			pairScore = append(pairScore, v)
 			pairSD = append(pairSD, sd)
 		}
 	}
+	if len(prs) == 0 {
+		i := choose(single, func(i int) float64 { return cs[i].dur })
+		return &designChoice{oven: cs[i].oven, score: single[i], sdAfter: singleSD[i], pairs: len(distinct)}, nil
+	}
 	k := choose(pairScore, func(i int) float64 { return cs[prs[i].a].dur + cs[prs[i].b].dur })
 	a, b := prs[k].a, prs[k].b
 	// the run of the pair that is the more informative alone goes first
-	if single[b] < single[a] || (single[b] == single[a] && cs[b].dur < cs[a].dur) {
+	// (the one from the lowest start, for the first run of all)
+	if first {
+		if !cs[a].low || (cs[b].low && single[b] < single[a]) {
+			a, b = b, a
+		}
+	} else if single[b] < single[a] || (single[b] == single[a] && cs[b].dur < cs[a].dur) {
 		a, b = b, a
 	}
 	return &designChoice{oven: cs[a].oven, score: single[a], sdAfter: singleSD[a], pairs: len(distinct),

@@ -32,7 +32,6 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"os"
 	"sort"
 	"strings"
 
@@ -71,31 +70,25 @@ type Settings struct {
 	// above the goal to make room for the margin, as a fraction of the
 	// target. Default 1 (a robust program up to twice the target).
 	MaxMargin float64
-	// Slower: a robust program is also advised for verification when it
-	// is at most (1 + Slower) times as long as the program optimized at
-	// the bare target (then a scouting run would save little). Default 0.25.
+	// Slower: before the budget's last injection, a robust program is
+	// advised for verification when it is at most (1 + Slower) times as
+	// long as the program that would hold the margin were the parameters
+	// known (the measurement's scatter and the instrument tolerances
+	// alone); otherwise a scouting run is expected to buy a faster method.
+	// Default 0.25.
 	Slower float64
-	// MarginGain: a robust program is advised for verification when
-	// knowing the parameters exactly would lower the resolution its margin
-	// needs by at most this fraction of the target. Default 0.3: the margin
-	// still covers the parameters' uncertainty in full, so a larger value
-	// trades a slower verified program for fewer injections, never a
-	// likelier failed verification.
-	MarginGain float64
 	// Draws is how many draws of the parameters from their uncertainty
 	// are optimized to find the pairs that could become critical near the
 	// optimum, for the design of a scouting run. Default 3.
 	Draws int
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
-	// is at most (1 + Tolerance) times that of the fastest program the
-	// current parameters allow (the bare target with the instrument
-	// tolerances alone), or, when the model now judges that its program
-	// holds the margin, that of the program now predicted to hold it (1.25
-	// times while two or more injections are left in the budget).
-	// Default 1: after a passing verification a program predicted faster
-	// is mentioned, not demanded; a slow scouting ramp that happens to
-	// meet the target is not taken for the method.
+	// is at most (1 + Tolerance) times that of the program now optimized
+	// (at the target, or holding the margin when one does; at most 1.25
+	// times while two or more injections are left in the budget). Default
+	// 1: after a passing verification a program predicted faster is
+	// mentioned, not demanded; a slow scouting ramp that happens to meet
+	// the target is not taken for the method.
 	Tolerance float64
 	// Injections is the injection budget, the verification run included:
 	// with the runs made so far one short of it, a program that holds the
@@ -116,9 +109,6 @@ func (s Settings) withDefaults() Settings {
 	}
 	if s.MaxMargin <= 0 {
 		s.MaxMargin = 1
-	}
-	if s.MarginGain <= 0 {
-		s.MarginGain = 0.3
 	}
 	if s.Slower <= 0 {
 		s.Slower = 0.25
@@ -199,7 +189,6 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		return nil, err
 	}
 	nominal.feasible = feasible
-	dbg("nominal feasible %v minRs %.3f sd %.3f sp %.3f deficit %.3f %s dur %.2f", feasible, nominal.minRs, nominal.sd, nominal.sp, nominal.deficit, nominal.cornerText, st.duration(nomOven)/60)
 	var robust *evaluation
 	var robustOven methodfile.Oven
 	tried := []methodfile.Oven{nomOven} // programs the search went to
@@ -224,7 +213,6 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				return nil, err
 			}
 			if !ok {
-				dbg("raise %.3f: infeasible", extra)
 				if iter == 0 {
 					break // the margin itself cannot be met: raising will not help
 				}
@@ -235,7 +223,6 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			if err != nil {
 				return nil, err
 			}
-			dbg("raise %.3f: minRs %.3f sd %.3f sp %.3f deficit %.3f corner %s dur %.2f", extra, ev.minRs, ev.sd, ev.sp, ev.deficit, ev.cornerText, st.duration(oven)/60)
 			tried = append(tried, oven)
 			if ev.ok {
 				robust, robustOven = ev, oven
@@ -332,7 +319,6 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	// done: a measured run meets the target, and no robust program is
 	// clearly faster
 	if st.runs != nil {
-		bareS := -1.0
 		for i := len(st.runs.Runs) - 1; i >= 0; i-- {
 			r := &st.runs.Runs[i]
 			j := st.judge(r)
@@ -346,38 +332,19 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			if err != nil || !(ev.ok || ev.lowestParam >= target) {
 				continue
 			}
-			// the run's program is the method when it is at most
-			// (1 + Tolerance) times as long as the fastest program the
-			// current parameters allow, or when it holds the margin as the
-			// model now sees it (a verification of the then optimized
-			// program) and is at most (1 + Tolerance) times as long as the
-			// program now predicted to: a slow scouting ramp that happens
-			// to separate everything is not taken for a method run for
-			// months
-			if bareS < 0 {
-				// the fastest program the current parameters allow: the
-				// bare target with the instrument tolerances alone
-				bo, ok, err := st.optimize(ctx, target, s.Optimizer, &verifyMargin{bare: true})
-				if err != nil {
-					return nil, err
-				}
-				bareS = st.duration(nomOven)
-				if ok {
-					bareS = math.Min(bareS, st.duration(bo))
-				}
+			// the run's program is the method when it is at most f times
+			// as long as the program now optimized (at the target, or
+			// holding the margin when one does): f = 1 + Tolerance at the
+			// budget's last injection, 1.25 while more are left (a
+			// verified program much slower than the one now predicted is
+			// then worth one more injection); a slow scouting ramp that
+			// happens to separate everything is not taken for a method run
+			// for months
+			f := 1 + s.Tolerance
+			if len(st.runs.Runs) < s.Injections-1 {
+				f = math.Min(f, 1.25)
 			}
-			limit := (1 + s.Tolerance) * bareS
-			if robust != nil && ev.ok {
-				// with injections left in the budget, a verified program
-				// much slower than the one now predicted to hold the margin
-				// is worth one more injection; at the budget's end it is
-				// the method
-				f := 1 + s.Tolerance
-				if len(st.runs.Runs) < s.Injections-1 {
-					f = 1.25
-				}
-				limit = math.Max(limit, f*ref)
-			}
+			limit := f * math.Max(ref, st.duration(nomOven))
 			if dr := st.duration(r.Oven); dr <= limit {
 				p.Action, p.Oven = Done, r.Oven
 				p.VerifiedBy, p.MeasuredMinResolution = r.Name, j.minRs
@@ -392,16 +359,26 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		}
 	}
 
-	// what knowing the parameters exactly would take off the margin
-	gain := func(e *evaluation) float64 {
-		return e.z * (e.sd - math.Sqrt(math.Max(0, e.sd*e.sd-e.sp*e.sp)))
-	}
 	made := 0
 	if st.runs != nil {
 		made = len(st.runs.Runs)
 	}
 	last := made+1 >= s.Injections // the verification is the budget's last injection
-	if robust != nil && (last || gain(robust) <= s.MarginGain*target || st.duration(robustOven) <= (1+s.Slower)*st.duration(nomOven)) {
+	// the program that would hold the margin were the parameters known
+	// (the measurement's scatter and the instrument tolerances alone):
+	// what scouting could at best bring the robust program down to, and
+	// where the verified program will be once the parameters are known
+	// (often slower or colder than the bare optimum), so that a scouting
+	// run pins them there too
+	var knownOven methodfile.Oven
+	knownOK := false
+	if !last || robust == nil {
+		knownOven, knownOK, err = st.optimize(ctx, target, s.Optimizer, vm.known())
+		if err != nil {
+			return nil, err
+		}
+	}
+	if robust != nil && (last || !knownOK || st.duration(robustOven) <= (1+s.Slower)*st.duration(knownOven)) {
 		p.Action, p.Oven = Verify, robustOven
 		zText := fmt.Sprintf("z = %.1f", z)
 		if robust.near > 1 {
@@ -417,8 +394,8 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	}
 	robustNote := ""
 	if robust != nil {
-		robustNote = fmt.Sprintf("; a program that holds the margin exists (%.2f min against %.2f min, min Rs %.2f ± %.2f, the parameters ± %.2f), and knowing the parameters better would shorten it",
-			st.duration(robustOven)/60, st.duration(nomOven)/60, robust.minRs, robust.sd, robust.sp)
+		robustNote = fmt.Sprintf("; a program that holds the margin exists (%.2f min, min Rs %.2f ± %.2f, the parameters ± %.2f), but with the parameters known one would take %.2f min: a scouting run is expected to buy the faster method",
+			st.duration(robustOven)/60, robust.minRs, robust.sd, robust.sp, st.duration(knownOven)/60)
 	}
 	bestOven, best = nomOven, nominal
 
@@ -435,24 +412,13 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			tried = append(tried, o)
 		}
 	}
-	// and the program that would hold the margin were the parameters
-	// known (the measurement's scatter and the instrument tolerances
-	// alone): where the verified program will be once they are, often
-	// slower or colder than the bare optimum, so that the run pins the
-	// parameters there too
-	{
-		o, ok, err := st.optimize(ctx, target, s.Optimizer, vm.known())
-		if err != nil {
-			return nil, err
-		}
-		if ok {
-			tried = append(tried, o)
-		}
+	if knownOK {
+		tried = append(tried, knownOven)
 	}
 	// scouting runs left in the budget after this one, before the
 	// verification
 	ahead := s.Injections - 2 - made
-	d, err := st.design(tried, target, z, s.WidthScatter, ahead)
+	d, err := st.design(tried, target, z, s.WidthScatter, made, ahead)
 	if err != nil {
 		return nil, err
 	}
@@ -785,8 +751,6 @@ type verifyMargin struct {
 	// exact: the parameters taken as known (the measurement's scatter
 	// alone)
 	exact bool
-	// bare: no retention margin at all (the instrument tolerances alone)
-	bare bool
 }
 
 // known is the margin with the parameters taken as known.
@@ -807,20 +771,6 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings,
 		return methodfile.Oven{}, false, err
 	}
 	oven := onSteps(methodfile.ProgramFromModel(res.Program), st.m.Limits)
-	if vm != nil && os.Getenv("RAMPWISE_PLAN_DEBUG") != "" {
-		prob := st.problem(m, st.sys, vm)
-		set := robust.NewSet(st.sys, prob.Robust)
-		q := methodfile.ProgramToModel(oven)
-		var nom model.Result
-		_ = st.sys.Simulate(q, &nom)
-		var sc robust.Scratch
-		var rep robust.Report
-		err := set.Evaluate(q, &nom, &sc, math.Inf(-1), &rep)
-		dbg("  re-evaluated: %v %+v; ret[0] %+v cov0 %+v", err, rep, prob.Robust.Retention[0], st.cov[0])
-	}
-	if vm != nil {
-		dbg("  optimizer vm z %.2f exact %v: feasible %v minRs %.3f robust %+v", vm.z, vm.exact, res.Feasible(), res.Sim.MinResolution, res.Robust)
-	}
 	return oven, res.Feasible(), nil
 }
 
@@ -834,10 +784,6 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings,
 // own z and the measurement's scatter (evaluate).
 func (st *state) problem(m *methodfile.Method, sys *model.System, vm *verifyMargin) optimizer.Problem {
 	prob := methodsearch.Problem(m, sys)
-	if vm != nil && vm.bare {
-		prob.Robust.Z = 0
-		return prob
-	}
 	if vm != nil {
 		prob.Robust.Z = vm.z
 		prob.Robust.MeasureSD = st.sigmaT
@@ -1055,9 +1001,6 @@ func (st *state) evaluate(o methodfile.Oven, z, widthScatter float64) (*evaluati
 		sp := rsSD(ga, gb, st.cov[a], st.cov[b])
 		sd := math.Hypot(sp, st.measurementSD(rs, a, b, widthScatter))
 		ps = append(ps, pairSD{rs, sd, sp})
-		if rs < 2 {
-			dbg("  pair %s/%s rs %.3f sp %.3f sd %.3f sigT %.3f sa %.3f sb %.3f", st.sys.Compounds[a].Name, st.sys.Compounds[b].Name, rs, sp, sd, st.sigmaT, st.sens.sigma[a], st.sens.sigma[b])
-		}
 		if math.IsNaN(ev.minRs) || rs < ev.minRs {
 			ev.minRs = rs
 			ev.pair = [2]string{st.sys.Compounds[a].Name, st.sys.Compounds[b].Name}
@@ -1143,10 +1086,4 @@ func pm(sd float64) string {
 		return "± more than 10 (the parameters are only rough)"
 	}
 	return fmt.Sprintf("± %.2f", sd)
-}
-
-func dbg(f string, a ...any) {
-	if os.Getenv("RAMPWISE_PLAN_DEBUG") != "" {
-		fmt.Fprintf(os.Stderr, f+"\n", a...)
-	}
 }
