@@ -133,7 +133,7 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	}
 	runName := ""
 	if p.Action != plan.Done {
-		runName = nextRunName(p.Action, runs)
+		runName = p.RunName
 	}
 	if *asJSON {
 		j := planJSON{
@@ -161,27 +161,6 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-// nextRunName is a name for the planned run that the runs file does not
-// use yet: scout-N or verify-N.
-func nextRunName(a plan.Action, runs *methodfile.Runs) string {
-	base := "scout"
-	if a == plan.Verify {
-		base = "verify"
-	}
-	used := map[string]bool{}
-	n := 0
-	if runs != nil {
-		n = len(runs.Runs)
-		for _, r := range runs.Runs {
-			used[r.Name] = true
-		}
-	}
-	for i := n + 1; ; i++ {
-		if s := fmt.Sprintf("%s-%d", base, i); !used[s] {
-			return s
-		}
-	}
-}
 
 func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) {
 	switch p.Action {
@@ -218,7 +197,7 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 	}
 	if p.Action != plan.Done {
 		fmt.Fprintln(w, "\nonce the run is made, add it to the runs file with the measured times:")
-		fmt.Fprint(w, plan.RunBlock(runName, p.Oven, m.Limits, p.Compounds))
+		fmt.Fprint(w, plan.RunBlock(runName, p.Oven, &p.Carrier, m.Limits, p.Compounds))
 		fmt.Fprintln(w, "\nThe oven and inlet are hot; never program above the column's maximum temperature.")
 	}
 	for _, c := range checks.Safety(p.Method) {

@@ -157,9 +157,13 @@ type Plan struct {
 	MeasuredMinResolution float64
 	// RetentionSDMin is the retention-time SD used (min).
 	RetentionSDMin float64
-	// Compounds are the method's compound names, in method order (for a
-	// runs-file block to paste).
+	// Compounds are the method's compound names in the order the program
+	// is predicted to elute them (those not predicted to elute last, in
+	// method order), for a runs-file block to paste.
 	Compounds []string
+	// RunName names the planned run (inject, verify): scout-N or
+	// verify-N, not taken by a run so far.
+	RunName string
 }
 
 // Next plans the next injection for method m and its runs (nil or empty
@@ -354,7 +358,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 					p.Reason += fmt.Sprintf(" (a program predicted to hold the margin in %.2f min instead of %.2f exists; verify it too if the time matters)", ref/60, dr/60)
 				}
 				p.Method = st.withOven(r.Oven)
-				return p, nil
+				return st.complete(p, runs), nil
 			}
 		}
 	}
@@ -390,7 +394,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			p.Reason += marginPrice(st.duration(robustOven), st.duration(nomOven))
 		}
 		p.Method = st.withOven(robustOven)
-		return p, nil
+		return st.complete(p, runs), nil
 	}
 	robustNote := ""
 	if robust != nil {
@@ -427,7 +431,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		p.Reason = fmt.Sprintf("no program within the limits meets the target %.2f (best min Rs %.2f ± %.2f, %s), and further scouting runs would not change that: change the column, the carrier or the goal",
 			target, best.minRs, best.sd, strings.Join(best.pair[:], " / "))
 		p.Method = st.withOven(bestOven)
-		return p, nil
+		return st.complete(p, runs), nil
 	}
 	p.Action, p.Oven, p.SDAfter = Inject, d.oven, d.sdAfter
 	why := fmt.Sprintf("the predicted min Rs %.2f of the optimized program is uncertain by %s (%s): it must clear the target %.2f by %.1f standard deviations",
@@ -447,7 +451,30 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
 	}
 	p.Method = st.withOven(d.oven)
-	return p, nil
+	return st.complete(p, runs), nil
+}
+
+// complete names the planned run and orders the compounds as the program
+// is predicted to elute them.
+func (st *state) complete(p *Plan, runs *methodfile.Runs) *Plan {
+	if p.Action != Done {
+		p.RunName = NextRunName(p.Action, runs)
+	}
+	if err := st.sens.eval(methodfile.ProgramToModel(p.Oven)); err == nil {
+		s := st.sens
+		idx := map[string]int{}
+		for i := 0; i < s.n; i++ {
+			idx[st.sys.Compounds[i].Name] = i
+		}
+		at := func(name string) float64 {
+			if i, ok := idx[name]; ok && s.eluted[i] {
+				return s.t[i]
+			}
+			return math.Inf(1)
+		}
+		sort.SliceStable(p.Compounds, func(a, b int) bool { return at(p.Compounds[a]) < at(p.Compounds[b]) })
+	}
+	return p
 }
 
 // state is the current knowledge: the method with updated parameters, each
