@@ -161,7 +161,6 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-
 func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) {
 	switch p.Action {
 	case plan.Inject:

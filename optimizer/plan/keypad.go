@@ -3,7 +3,7 @@ package plan
 import (
 	"fmt"
 	"math"
-		"strconv"
+	"strconv"
 	"strings"
 	"unicode"
 
