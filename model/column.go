@@ -248,6 +248,45 @@ func ParsePressureMode(s string) (PressureMode, error) {
 	return ConstantFlow, fmt.Errorf("%q is not one of constant-flow, constant-pressure", s)
 }
 
+// Outlet is what the column's outlet opens into: the ambient pressure of
+// an atmospheric detector or the vacuum of a mass spectrometer.
+type Outlet int
+
+// The outlets.
+const (
+	// AtmosphericOutlet is an outlet at the ambient pressure (FID, TCD, ...).
+	AtmosphericOutlet Outlet = iota
+	// VacuumOutlet is an outlet into a vacuum (mass spectrometer), po = 0.
+	VacuumOutlet
+)
+
+var outletNames = [...]string{AtmosphericOutlet: "atmospheric", VacuumOutlet: "vacuum"}
+
+// Outlets lists every outlet, in the order a choice cycles.
+var Outlets = []Outlet{AtmosphericOutlet, VacuumOutlet}
+
+// String is the outlet as written in a method file.
+func (o Outlet) String() string {
+	if o < 0 || int(o) >= len(outletNames) {
+		return fmt.Sprintf("Outlet(%d)", int(o))
+	}
+	return outletNames[o]
+}
+
+// Vacuum reports whether the outlet is a vacuum (Carrier.Vacuum).
+func (o Outlet) Vacuum() bool { return o == VacuumOutlet }
+
+// ParseOutlet reads an outlet as written in a method file (exactly, lower
+// case).
+func ParseOutlet(s string) (Outlet, error) {
+	for i, n := range outletNames {
+		if s == n {
+			return Outlet(i), nil
+		}
+	}
+	return AtmosphericOutlet, fmt.Errorf("%q is not one of atmospheric, vacuum", s)
+}
+
 // Carrier is the carrier gas and its control. Pressures are in Pa, flows in
 // m³/s at the reference conditions Tn = 298.15 K, pn = 101.325 kPa.
 type Carrier struct {

@@ -59,6 +59,17 @@ func TestModeNames(t *testing.T) {
 			t.Errorf("%v: %v %v", o, back, err)
 		}
 	}
+	for _, o := range Outlets {
+		if back, err := ParseOutlet(o.String()); err != nil || back != o {
+			t.Errorf("%v: %v %v", o, back, err)
+		}
+	}
+	if AtmosphericOutlet.String() != "atmospheric" || VacuumOutlet.String() != "vacuum" || !VacuumOutlet.Vacuum() || AtmosphericOutlet.Vacuum() {
+		t.Errorf("outlet words %q, %q", AtmosphericOutlet, VacuumOutlet)
+	}
+	if _, err := ParseOutlet("Vacuum"); err == nil {
+		t.Error("Vacuum accepted")
+	}
 	if _, err := ParseGas("argon"); err == nil {
 		t.Error("argon accepted")
 	}

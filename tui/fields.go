@@ -76,10 +76,6 @@ func choiceField[T fmt.Stringer](key, label string, all []T, p func(m *methodfil
 		}}
 }
 
-type outlet string
-
-func (o outlet) String() string { return string(o) }
-
 func (f field) text(m *methodfile.Method) string {
 	if f.str != nil {
 		return f.str(m)
@@ -284,7 +280,7 @@ func settingsFields(m *methodfile.Method) []field {
 		fs = append(fs, n("carrier.flow_ml_min", "column flow", "mL/min", 2, 0.05, 0.5, func(m *methodfile.Method) *float64 { return &m.Carrier.FlowMLMin }))
 	}
 	fs = append(fs,
-		choiceField("carrier.outlet", "outlet", []outlet{"atmospheric", "vacuum"}, func(m *methodfile.Method) *outlet { return (*outlet)(&m.Carrier.Outlet) }),
+		choiceField("carrier.outlet", "outlet", model.Outlets, func(m *methodfile.Method) *model.Outlet { return &m.Carrier.Outlet }),
 		n("goal.min_resolution", "target resolution", "", 2, 0.05, 0.5, func(m *methodfile.Method) *float64 { return &m.Goal.MinResolution }),
 		choiceField("goal.objective", "objective", model.Objectives, func(m *methodfile.Method) *model.Objective { return &m.Goal.Objective }),
 		field{key: "goal.ramps", label: "ramps the optimizer may use", digits: 0, step: 1, big: 1, integer: true,

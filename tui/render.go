@@ -84,7 +84,7 @@ func (a *App) methodLines(w int) []string {
 	} else {
 		flow = fmt.Sprintf("%s mL/min constant flow", v("carrier.flow_ml_min"))
 	}
-	if g.Outlet == "vacuum" {
+	if g.Outlet == model.VacuumOutlet {
 		flow += ", vacuum outlet"
 	}
 	phase := inert(c.Phase)

@@ -349,6 +349,19 @@ func choice[T any](v *validator, path string, p *string, required bool, def T, p
 	return x
 }
 
+// parseOutlet is model.ParseOutlet with the file's word quoted as every
+// methodfile message quotes text from a file (inert, not Go's %q).
+func parseOutlet(s string) (model.Outlet, error) {
+	o, err := model.ParseOutlet(s)
+	if err != nil {
+		return o, fmt.Errorf("%s %s", quoted(s), outletChoices)
+	}
+	return o, nil
+}
+
+// outletChoices is the end of the message for a word that is not an outlet.
+const outletChoices = "is not one of atmospheric, vacuum"
+
 func (v *validator) str(path string, p *string, required bool, def string, choices ...string) string {
 	if p == nil {
 		if required {
@@ -471,7 +484,7 @@ func (v *validator) carrier(r *rawMethod, m *Method) {
 	m.Carrier.Mode = choice(v, "carrier.mode", c.Mode, true, model.ConstantFlow, model.ParsePressureMode)
 	m.Carrier.FlowMLMin = v.opt("carrier.flow_ml_min", c.FlowMLMin, m.Carrier.Mode == model.ConstantFlow, 0)
 	m.Carrier.InletKPa = v.opt("carrier.inlet_kpa", c.InletKPa, m.Carrier.Mode == model.ConstantPressure, 0)
-	m.Carrier.Outlet = v.str("carrier.outlet", c.Outlet, false, "atmospheric", "atmospheric", "vacuum")
+	m.Carrier.Outlet = choice(v, "carrier.outlet", c.Outlet, false, model.AtmosphericOutlet, parseOutlet)
 	m.Carrier.AmbientKPa = v.opt("carrier.ambient_kpa", c.AmbientKPa, false, 101.325)
 	m.Carrier.InitialBand = v.opt("carrier.initial_band_s", c.InitialBand, false, 0)
 }

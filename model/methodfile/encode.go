@@ -28,7 +28,7 @@ func Marshal(m *Method) ([]byte, error) {
 		Carrier: &rawCarrier{
 			Gas:         ptr(m.Carrier.Gas.String()),
 			Mode:        ptr(m.Carrier.Mode.String()),
-			Outlet:      ptr(m.Carrier.Outlet),
+			Outlet:      ptr(m.Carrier.Outlet.String()),
 			AmbientKPa:  ptr(m.Carrier.AmbientKPa),
 			InitialBand: ptr(m.Carrier.InitialBand),
 		},

@@ -157,7 +157,7 @@ func (g Carrier) describe(flow, kpa string) string {
 	if g.Mode == model.ConstantPressure {
 		s = fmt.Sprintf("%s %s kPa constant pressure", g.Gas, kpa)
 	}
-	if g.Outlet == "vacuum" {
+	if g.Outlet == model.VacuumOutlet {
 		s += ", vacuum outlet"
 	}
 	return s

@@ -53,7 +53,7 @@ type Carrier struct {
 	Mode        model.PressureMode
 	FlowMLMin   float64
 	InletKPa    float64 // gauge
-	Outlet      string  // atmospheric | vacuum
+	Outlet      model.Outlet
 	AmbientKPa  float64
 	InitialBand float64 // s
 }
@@ -230,7 +230,7 @@ func (m *Method) ModelCarrier() (model.Carrier, error) {
 		Mode:        m.Carrier.Mode,
 		Flow:        m.Carrier.FlowMLMin * 1e-6 / 60,
 		InletGauge:  m.Carrier.InletKPa * kPa,
-		Vacuum:      m.Carrier.Outlet == "vacuum",
+		Vacuum:      m.Carrier.Outlet.Vacuum(),
 		Ambient:     m.Carrier.AmbientKPa * kPa,
 		InitialBand: m.Carrier.InitialBand,
 	}

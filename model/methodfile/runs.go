@@ -324,7 +324,7 @@ func overlayCarrier(r, o *rawCarrier) *rawCarrier {
 }
 
 func carrierRaw(c Carrier) *rawCarrier {
-	r := &rawCarrier{Gas: ptr(c.Gas.String()), Mode: ptr(c.Mode.String()), Outlet: ptr(c.Outlet), AmbientKPa: ptr(c.AmbientKPa), InitialBand: ptr(c.InitialBand)}
+	r := &rawCarrier{Gas: ptr(c.Gas.String()), Mode: ptr(c.Mode.String()), Outlet: ptr(c.Outlet.String()), AmbientKPa: ptr(c.AmbientKPa), InitialBand: ptr(c.InitialBand)}
 	if c.FlowMLMin > 0 {
 		r.FlowMLMin = ptr(c.FlowMLMin)
 	}

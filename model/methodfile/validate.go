@@ -181,8 +181,8 @@ func (v *validator) checkCarrier(m *Method) {
 	if c.Mode == model.ConstantPressure || c.InletKPa != 0 {
 		v.in("carrier.inlet_kpa", c.InletKPa, inlet, "gauge")
 	}
-	if v.err == nil && c.Outlet != "atmospheric" && c.Outlet != "vacuum" {
-		v.fail("carrier.outlet", "%s is not one of atmospheric, vacuum", quoted(c.Outlet))
+	if v.err == nil && !validChoice(c.Outlet, model.Outlets) {
+		v.fail("carrier.outlet", "%s %s", quoted(c.Outlet.String()), outletChoices)
 	}
 	v.in("carrier.ambient_kpa", c.AmbientKPa, closed(20, 200, "kPa"), "")
 	v.in("carrier.initial_band_s", c.InitialBand, closed(0, 600, "s"), "")

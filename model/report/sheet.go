@@ -54,7 +54,7 @@ func (s *Sim) Sheet() []byte {
 	}
 	fmt.Fprintf(&b, "| inlet pressure at the start (%s °C) | %.1f kPa (gauge) |\n", num(m.Oven.InitialC), cond.InletGauge(t0)/1000)
 	fmt.Fprintf(&b, "| holdup time at the start | %.3f min |\n", cond.HoldupTimeAt(t0)/60)
-	fmt.Fprintf(&b, "| outlet | %s |\n\n", m.Carrier.Outlet)
+	fmt.Fprintf(&b, "| outlet | %s |\n\n", m.Carrier.Outlet.String())
 
 	fmt.Fprintf(&b, "## Heated zones\n\n| zone | temperature |\n|---|---|\n")
 	in := m.Injection
