@@ -49,7 +49,11 @@ Shows the program before and after; --out writes the whole method with the
 new program and carrier setting (atomically). Exit 0 when the target is met,
 3 when no program within the limits meets it (the best program found and the
 limiting pair are still reported; --out then writes nothing unless
---write-best is given). Without FILE the built-in demo method is used.
+--write-best is given). --out is checked before the search: a path that
+cannot be written stops at once (exit 2). --json carries the safety
+cautions (hydrogen, coolant) as cautions. Progress goes to standard error:
+a bar on a terminal, otherwise a line every 5 s of search and a closing
+line. Without FILE the built-in demo method is used.
 
 Flags override the file's [goal]:
 `
