@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -236,5 +237,68 @@ func TestTypedProgramValueOnKeypadStep(t *testing.T) {
 		if strings.Contains(n.Msg, "step") {
 			t.Errorf("a keypad caution remains: %s", n)
 		}
+	}
+}
+
+// lineOfNth is the 1-based line of the n-th line of text starting with
+// prefix.
+func lineOfNth(text, prefix string, n int) int {
+	for i, l := range strings.Split(text, "\n") {
+		if strings.HasPrefix(strings.TrimSpace(l), prefix) {
+			if n--; n == 0 {
+				return i + 1
+			}
+		}
+	}
+	return 0
+}
+
+// An error about a ramp the file does not have names its key, no line of
+// another ramp; a ramp's line after a removal is its own in the file, and
+// after a save it is the line in the file written.
+func TestErrorLinesOfRampsNotInFile(t *testing.T) {
+	a, path, orig := openFile(t, "commented.toml")
+	name := filepath.Base(path)
+	// ramp 1's rate is on its own line
+	press(a, "right", "right", "enter", "150", "enter")
+	want := fmt.Sprintf("%s:%d: oven.ramp[1].rate_c_min:", name, lineOfNth(orig, "rate_c_min", 1))
+	if !strings.Contains(unwrap(a.message), want) {
+		t.Errorf("ramp 1: want %q in %q", want, a.message)
+	}
+	// a ramp added here: no line (the file has two ramps)
+	press(a, "left", "left", "a") // ramp 3's rate is selected
+	press(a, "enter", "150", "enter")
+	msg := unwrap(a.message)
+	if !strings.Contains(msg, name+": oven.ramp[3].rate_c_min: 150 °C/min") {
+		t.Errorf("added ramp: %q", msg)
+	}
+	press(a, "u") // back to two ramps
+	// ramp 1 removed: ramp 1 is now the file's second ramp, on its lines
+	a.program.list.sel = 2 // ramp 1's rate
+	press(a, "x")
+	if got := a.Method().Oven.Ramps[0].RateCMin; got != 20 {
+		t.Fatalf("x removed the wrong ramp: rate %v left", got)
+	}
+	if n := len(a.Method().Oven.Ramps); n != 1 {
+		t.Fatalf("%d ramps after x", n)
+	}
+	a.program.list.sel = 2 // ramp 1's rate
+	press(a, "enter", "150", "enter")
+	want = fmt.Sprintf("%s:%d: oven.ramp[1].rate_c_min:", name, lineOfNth(orig, "rate_c_min", 2))
+	if !strings.Contains(unwrap(a.message), want) {
+		t.Errorf("after removing ramp 1: want %q in %q", want, a.message)
+	}
+	// saved under another name: its name and its lines
+	other := filepath.Join(filepath.Dir(path), "saved.toml")
+	press(a, "W", other, "enter")
+	saved, err := os.ReadFile(other)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.program.list.sel = 2
+	press(a, "enter", "150", "enter")
+	want = fmt.Sprintf("%s:%d: oven.ramp[1].rate_c_min:", other, lineOfNth(string(saved), "rate_c_min", 1))
+	if !strings.Contains(unwrap(a.message), want) {
+		t.Errorf("after save as: want %q in %q", want, a.message)
 	}
 }

@@ -220,6 +220,7 @@ func (p *programPane) removeRamp() {
 	}
 	m := sh.method.Clone()
 	m.Oven.Ramps = append(m.Oven.Ramps[:r-1], m.Oven.Ramps[r:]...)
+	m.ElementRemoved("oven.ramp", r) // messages name the later ramps' own lines
 	if len(m.Oven.Ramps) == 0 && m.Oven.InitialHoldMin == 0 {
 		m.Oven.InitialHoldMin = 10
 	}

@@ -264,6 +264,11 @@ func (a *App) saveDone(v saveOutcome) tea.Cmd {
 	}
 	a.path, a.name, a.saved = v.path, v.path, v.m
 	a.text, a.textOf = v.data, v.path
+	if a.sh.method == v.m && v.data != nil {
+		// messages name the file as it now is: its name and its lines
+		a.sh.method = v.m.Located(v.path, v.data)
+		a.saved = a.sh.method
+	}
 	a.wrote[v.path] = true
 	a.savedFile(v.path)
 	a.guard.update(a.path, a.sh.method, a.Dirty())

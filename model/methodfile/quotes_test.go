@@ -85,3 +85,30 @@ func lineOf(s, prefix string) string {
 	}
 	return ""
 }
+
+// A ramp the file does not have gets no line of another ramp, from
+// Validate and ValidateKey alike; after ElementRemoved the later ramps
+// keep their own lines.
+func TestLinesOfElementsNotInFile(t *testing.T) {
+	data, m := readCommented(t)
+	m.Oven.Ramps = append(m.Oven.Ramps, Ramp{RateCMin: 500, FinalC: 300})
+	for _, err := range []error{m.Validate(), m.ValidateKey("oven.ramp[3].rate_c_min")} {
+		e, ok := err.(*Error)
+		if !ok || e.Key != "oven.ramp[3].rate_c_min" || e.Line != 0 {
+			t.Errorf("added ramp: %v", err)
+		}
+	}
+	_, m = readCommented(t)
+	m.Oven.Ramps = m.Oven.Ramps[1:]
+	m.ElementRemoved("oven.ramp", 1)
+	m.Oven.Ramps[0].RateCMin = 500
+	want := 0
+	for i, l := range strings.Split(string(data), "\n") {
+		if strings.HasPrefix(l, "rate_c_min = 20.0") {
+			want = i + 1
+		}
+	}
+	if e, ok := m.ValidateKey("oven.ramp[1].rate_c_min").(*Error); !ok || e.Line != want || want == 0 {
+		t.Errorf("after removing ramp 1: %v, want line %d", e, want)
+	}
+}
