@@ -33,8 +33,10 @@ the recovery file is kept until the method is saved. The ctrl+c key is like
 q: with unsaved changes it asks (s save and quit, d discard and quit, esc
 stay).
 
-A save changes only what changed, in the file's own text (comments and
-layout kept), and writes through a symlink to its target. If the file was
+A save changes only what changed, in the file's own text (comments,
+layout and quotes kept), and writes through a symlink to its target; W
+(save as) writes that text, so changed, to the new name (the demo's own
+text for the demo). If the file was
 changed on disk since it was loaded, a save asks: overwrite, save as, or
 reload.
 `
