@@ -112,3 +112,35 @@ func TestLinesOfElementsNotInFile(t *testing.T) {
 		t.Errorf("after removing ramp 1: %v, want line %d", e, want)
 	}
 }
+
+// Awkward titles in every quote style, LF and CRLF: always placed in the
+// file (never written anew) and read back as set.
+func TestUpdateQuotesAwkwardStrings(t *testing.T) {
+	data, _ := readCommented(t)
+	titles := []string{`plain`, `it's`, `say "hi"`, `back\slash`, "tab\there", "two\nlines", `'''`, `"""`, "\x01ctl", "ünï ✓", `'`, `"`, "ends with '", `ends with "`, "\nlead"}
+	styles := []string{`'Citrus check mix (commented copy)'`, `"Citrus check mix (commented copy)"`, `"""Citrus check mix (commented copy)"""`, `'''Citrus check mix (commented copy)'''`, "'''\nCitrus'''", "\"\"\"\nCitrus\"\"\""}
+	for _, crlf := range []bool{false, true} {
+		for _, st := range styles {
+			base := strings.Replace(string(data), `'Citrus check mix (commented copy)'`, st, 1)
+			if crlf {
+				base = strings.ReplaceAll(base, "\n", "\r\n")
+			}
+			for _, ti := range titles {
+				m, err := Parse("q.toml", []byte(base))
+				if err != nil {
+					t.Fatalf("%s: %v", st, err)
+				}
+				m.Title = ti
+				out, kept, err := Update("q.toml", []byte(base), m)
+				if err != nil || !kept {
+					t.Errorf("style %s, title %q, crlf %v: not kept (%v)", st, ti, crlf, err)
+					continue
+				}
+				back, err := Parse("q.toml", out)
+				if err != nil || back.Title != ti {
+					t.Errorf("style %s, title %q: read back %q (%v)", st, ti, back.Title, err)
+				}
+			}
+		}
+	}
+}
