@@ -221,7 +221,15 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 func planWarnings(p *plan.Plan) []string {
 	out := []string{}
 	if p.Fit != nil {
-		out = append(out, p.Fit.Warnings...)
+		for _, w := range p.Fit.Warnings {
+			// the fit leaves such a compound as it was; the planner
+			// does not: it updates it from that one run, the method's
+			// value as the prior
+			if strings.HasSuffix(w, ": seen in one run only; parameters not fitted") {
+				w += " (plan updates them from that run, with the method's values as the prior)"
+			}
+			out = append(out, w)
+		}
 	}
 	return out
 }
