@@ -417,6 +417,9 @@ func TestRandomKeysNeverPanic(t *testing.T) {
 	w, h := 90, 28
 	runs, _ := filepath.Abs("../testdata/scouting.toml")
 	verify, _ := filepath.Abs("../testdata/lab/verify.csv")
+	// random keys reach W (save as) with random names: whatever they
+	// write lands in a folder of the test's own, never in the source tree
+	t.Chdir(t.TempDir())
 	dialogs := map[string]bool{}
 	for i := 0; i < 3000; i++ {
 		if rng.IntN(3) == 0 {
