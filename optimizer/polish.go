@@ -202,7 +202,7 @@ func (sh *shared) explainMiss(ev *evaluator, r *Result) string {
 			for _, pk := range res.Peaks {
 				if r.System.Compounds[pk.Compound].Target {
 					if pk.RetentionFactor < p.MinFirstK {
-						return fmt.Sprintf("the first target %s elutes with k = %.2f, below goal.min_first_k = %g, in every program found: start cooler (lower limits.oven_min_c) or use a thicker film",
+						return fmt.Sprintf("the first target %s elutes with k(Te) = %.2f (k at its elution temperature), below goal.min_first_k = %g, in every program found: start cooler (lower limits.oven_min_c) or use a thicker film",
 							r.System.Compounds[pk.Compound].Name, pk.RetentionFactor, p.MinFirstK)
 					}
 					break

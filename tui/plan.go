@@ -251,7 +251,7 @@ func (d *planDialog) body() []string {
 	}
 	if p.Action != plan.Done {
 		put(st.TableHead, " once the run is made, add it to the runs file (then F fits it and the plan updates):")
-		for _, l := range strings.Split(strings.TrimRight(plan.RunBlock(d.runName(), p.Oven, d.v.limit, p.Compounds), "\n"), "\n") {
+		for _, l := range strings.Split(strings.TrimRight(plan.RunBlock(d.runName(), p.Oven, &p.Carrier, d.v.limit, p.Compounds), "\n"), "\n") {
 			for _, l := range wrapTOML("   "+inert(l), w) {
 				out = append(out, st.Dim.Render(l))
 			}
@@ -260,14 +260,9 @@ func (d *planDialog) body() []string {
 	return out
 }
 
-// runName names the planned run after the runs so far: scout-N or verify-N.
-func (d *planDialog) runName() string {
-	base := "scout"
-	if d.v.p.Action == plan.Verify {
-		base = "verify"
-	}
-	return fmt.Sprintf("%s-%d", base, d.v.runs+1)
-}
+// runName names the planned run as the planner does (scout-N or
+// verify-N, a name the runs file does not have yet).
+func (d *planDialog) runName() string { return d.v.p.RunName }
 
 func (d *planDialog) render() {
 	st, p := d.sh.st, d.v.p

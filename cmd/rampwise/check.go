@@ -81,6 +81,9 @@ func runCheck(args []string, stdout, stderr io.Writer) error {
 	if (*runsFile != "" || *out != "") && !*refit {
 		return badf("check: --runs and --out go with --refit")
 	}
+	if err := checkWritable(*out); err != nil {
+		return err
+	}
 	m, _, err := loadMethod(files[0]) // - and @demo as every command reads them
 	if err != nil {
 		return err

@@ -104,6 +104,9 @@ func runCompare(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if err := checkWritable(*csvF); err != nil { // before the searches
+		return err
+	}
 	ls, err := parseList("length", *lengths)
 	if err != nil {
 		return bad(err)

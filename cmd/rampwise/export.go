@@ -11,6 +11,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/calibrate"
+	"github.com/rampwise/rampwise/model/checks"
 	"github.com/rampwise/rampwise/model/format"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/model/report"
@@ -55,6 +56,9 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	}
 	if *width < 200 || *width > 10000 || *height < 150 || *height > 10000 {
 		return badf("export: --width must be 200..10000 and --height 150..10000")
+	}
+	if err := checkWritable(*pngF, *svgF, *pdfF, *csvF, *sheetF); err != nil {
+		return err
 	}
 	m, name, err := loadMethod(files[0])
 	if err != nil {
@@ -113,7 +117,18 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 	}
+	// the sheet carries the safety notes; the figure and the CSV cannot,
+	// so they go to stderr (stdout lists only what was written)
+	printCautions(stderr, m)
 	return nil
+}
+
+// printCautions prints the safety notes of method m's program and carrier
+// (checks.Safety), one "caution:" line each.
+func printCautions(w io.Writer, m *methodfile.Method) {
+	for _, c := range checks.Safety(m) {
+		fmt.Fprintf(w, "caution: %s\n", textsafe.Inert(c))
+	}
 }
 
 const sweepHelp = `Usage: rampwise sweep METHOD --vary NAME --from A --to B [--steps N]
@@ -161,6 +176,9 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 	}
 	if *vary2 == "" && *steps > *maxPoints {
 		return badf("sweep: %d points is more than --max-points %d; use fewer steps or raise --max-points", *steps, *maxPoints)
+	}
+	if err := checkWritable(*csvF, *pngF); err != nil { // before the sweep
+		return err
 	}
 	m, name, err := loadMethod(files[0])
 	if err != nil {
@@ -216,6 +234,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 			}
 			fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 		}
+		printCautions(stdout, m)
 		return nil
 	}
 	pts, err := sweep.One(m, pv, keypadSteps(m, pv, *from, *to, *steps), progress)
@@ -261,6 +280,7 @@ func runSweep(args []string, stdout, stderr io.Writer) error {
 		}
 		fmt.Fprintf(stdout, "wrote %s\n", textsafe.Inert(*pngF))
 	}
+	printCautions(stdout, m)
 	return nil
 }
 

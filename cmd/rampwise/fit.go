@@ -132,6 +132,9 @@ func runFit(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if err := checkWritable(*out); err != nil {
+		return err
+	}
 	m, _, err := loadMethod(files[0])
 	if err != nil {
 		return err

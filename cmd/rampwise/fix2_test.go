@@ -171,7 +171,7 @@ func TestOptimizeTableAgreesWithVerdict(t *testing.T) {
 		if strings.HasSuffix(l, " met") && !strings.HasSuffix(l, "not met") {
 			t.Fatalf("the table says met while the verdict is not: %q", l)
 		}
-		if !strings.Contains(l, "first k 0.") || !strings.Contains(l, "< 0.5 not met") {
+		if !strings.Contains(l, "first k(Te) 0.") || !strings.Contains(l, "< 0.5 not met") {
 			t.Fatalf("the table does not give the reason (first k): %q", l)
 		}
 		return

@@ -10,8 +10,8 @@ import (
 	"os/signal"
 	"strings"
 	"syscall"
-	"text/tabwriter"
 	"time"
+	"unicode/utf8"
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
@@ -49,7 +49,11 @@ Shows the program before and after; --out writes the whole method with the
 new program and carrier setting (atomically). Exit 0 when the target is met,
 3 when no program within the limits meets it (the best program found and the
 limiting pair are still reported; --out then writes nothing unless
---write-best is given). Without FILE the built-in demo method is used.
+--write-best is given). --out is checked before the search: a path that
+cannot be written stops at once (exit 2). --json carries the safety
+cautions (hydrogen, coolant) as cautions. Progress goes to standard error:
+a bar on a terminal, otherwise a line every 5 s of search and a closing
+line. Without FILE the built-in demo method is used.
 
 Flags override the file's [goal]:
 `
@@ -93,6 +97,9 @@ type optimizeJSON struct {
 	Limiting      [][]string  `json:"limiting_pairs"`
 	Explanation   string      `json:"explanation,omitempty"`
 	Canceled      bool        `json:"canceled"`
+	// Cautions are the safety notes for the program and carrier found
+	// (checks.Safety), as plan --json and compare --json carry them.
+	Cautions []string `json:"cautions"`
 }
 
 func programToJSON(o methodfile.Oven) programJSON {
@@ -141,6 +148,9 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if err := checkWritable(*out); err != nil { // before the search, not after it
+		return err
+	}
 	m, name, err := loadMethod(file)
 	if err != nil {
 		return err
@@ -175,9 +185,10 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	settings := optimizer.Settings{Seed: *seed, Progress: progressPrinter(stderr)}
-	res, err := optimizer.Optimize(ctx, prob, settings)
-	endProgress(stderr)
+	pp := newProgress(stderr)
+	settings := optimizer.Settings{Seed: *seed, Progress: pp.update}
+	res, err := optimizeSearch(ctx, prob, settings)
+	pp.end()
 	if err != nil {
 		return bad(fmt.Errorf("%s: %v", name, strings.TrimPrefix(err.Error(), "optimizer: ")))
 	}
@@ -214,6 +225,7 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 			Limiting:    [][]string{},
 			Explanation: res.Explanation,
 			Canceled:    res.Canceled,
+			Cautions:    append([]string{}, checks.Safety(after)...),
 		}
 		sj := afterSim.json(after.ModelProgram())
 		j.MinResolution, j.CriticalPair = sj.MinResolution, sj.CriticalPair
@@ -240,33 +252,135 @@ func runOptimize(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
+// optimizeSearch is the search optimize runs (a variable for tests that
+// must know whether it ran).
+var optimizeSearch = optimizer.Optimize
+
+// textWidth is the width the text output fits: an 80-column terminal.
+const textWidth = 80
+
 func writeComparison(w io.Writer, m *methodfile.Method, before *simulation, after *methodfile.Method, afterSim *simulation, res *optimizer.Result, met bool) {
 	title := m.Title
 	if title == "" {
 		title = "method"
 	}
-	fmt.Fprintf(w, "%s\n%s\n\n", textsafe.Inert(title), describeColumn(m))
-	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "\tbefore\tafter\t")
-	fmt.Fprintf(tw, "program\t%s\t%s\t\n", describeProgram(m.Oven), describeProgram(after.Oven))
-	fmt.Fprintf(tw, "carrier\t%s\t%s\t\n", describeCarrier(m.Carrier), describeCarrier(after.Carrier))
-	fmt.Fprintf(tw, "run time (min)\t%.2f\t%.2f\t\n", before.Result.RunTime/60, afterSim.Result.RunTime/60)
-	fmt.Fprintf(tw, "cycle time (min)\t%.2f\t%.2f\t\n", before.Result.CycleTime/60, afterSim.Result.CycleTime/60)
-	fmt.Fprintf(tw, "min resolution\t%s\t%s\t\n", fmtRsGoal(before, m, true), fmtRsGoal(afterSim, m, met))
-	fmt.Fprintf(tw, "critical pair\t%s\t%s\t\n", critName(before), critName(afterSim))
-	tw.Flush()
+	fmt.Fprintf(w, "%s\n", textsafe.Inert(title))
+	writeWrapped(w, "", describeColumn(m), textWidth)
+	fmt.Fprintln(w)
+	// a program is too long for a table column at 80 columns: each on its
+	// own lines, wrapped under its label
+	writeWrapped(w, "program before: ", describeProgram(m.Oven), textWidth)
+	writeWrapped(w, "program after:  ", describeProgram(after.Oven), textWidth)
+	writeWrapped(w, "carrier before: ", describeCarrier(m.Carrier), textWidth)
+	writeWrapped(w, "carrier after:  ", describeCarrier(after.Carrier), textWidth)
+	fmt.Fprintln(w)
+	writeBeforeAfter(w, [][3]string{
+		{"run time (min)", fmt.Sprintf("%.2f", before.Result.RunTime/60), fmt.Sprintf("%.2f", afterSim.Result.RunTime/60)},
+		{"cycle time (min)", fmt.Sprintf("%.2f", before.Result.CycleTime/60), fmt.Sprintf("%.2f", afterSim.Result.CycleTime/60)},
+		{"min resolution", fmtRsGoal(before, m, true), fmtRsGoal(afterSim, m, met)},
+		{"critical pair", critName(before), critName(afterSim)},
+	}, textWidth)
 	fmt.Fprintf(w, "\n%d evaluations in %.2f s (objective %s, target Rs %s)\n", res.Evaluations, res.Elapsed.Seconds(), m.Goal.Objective, format.Target(m.Goal.MinResolution))
 	if line := describeRobust(res.Robust); line != "" {
-		fmt.Fprintln(w, line)
+		writeWrapped(w, "", line, textWidth)
 	}
 	if met {
-		fmt.Fprintln(w, "target met. Verify the new program with a standard injection before using it for samples.")
+		writeWrapped(w, "", "target met. Verify the new program with a standard injection before using it for samples.", textWidth)
 	} else {
-		fmt.Fprintf(w, "target NOT met within the limits: %s\n", textsafe.Inert(res.Explanation))
+		writeWrapped(w, "", "target NOT met within the limits: "+textsafe.Inert(res.Explanation), textWidth)
 	}
 	for _, warn := range afterSim.warnings(after.ModelProgram()) {
 		fmt.Fprintf(w, "warning: %s\n", textsafe.Inert(warn))
 	}
+}
+
+// writeBeforeAfter prints rows of label, before and after as a table when
+// it fits width; a row too wide for it is printed as two labelled lines
+// ("label before: ...", "label after: ..."), wrapped at width.
+func writeBeforeAfter(w io.Writer, rows [][3]string, width int) {
+	var lw, bw, aw int
+	for _, r := range rows {
+		lw, bw, aw = max(lw, textLen(r[0])), max(bw, textLen(r[1])), max(aw, textLen(r[2]))
+	}
+	const gap = 2
+	if lw+gap+bw+gap+aw <= width {
+		pad := func(s string, n int) string { return s + strings.Repeat(" ", n-textLen(s)) }
+		fmt.Fprintln(w, strings.TrimRight(pad("", lw)+"  "+pad("before", bw)+"  after", " "))
+		for _, r := range rows {
+			fmt.Fprintln(w, strings.TrimRight(pad(r[0], lw)+"  "+pad(r[1], bw)+"  "+r[2], " "))
+		}
+		return
+	}
+	lw = 0
+	for _, r := range rows {
+		lw = max(lw, textLen(r[0]+" before: "))
+	}
+	for _, r := range rows {
+		b, a := r[0]+" before: ", r[0]+" after: "
+		writeWrapped(w, b+strings.Repeat(" ", lw-textLen(b)), r[1], width)
+		writeWrapped(w, a+strings.Repeat(" ", lw-textLen(a)), r[2], width)
+	}
+}
+
+// wrapWords are the pieces writeWrapped may break between: a program's
+// steps whole (an arrow ends its line, never starts one), elsewhere the
+// words, a number kept with the unit after it ("1.20 mL/min", "−1 °C").
+func wrapWords(text string) []string {
+	if strings.Contains(text, " → ") {
+		steps := strings.Split(text, " → ")
+		for i := range steps[:len(steps)-1] {
+			steps[i] += " →"
+		}
+		return steps
+	}
+	var words []string
+	for _, f := range strings.Fields(text) {
+		if n := len(words); n > 0 && unitAfterNumber(words[n-1], f) {
+			words[n-1] += " " + f
+			continue
+		}
+		words = append(words, f)
+	}
+	return words
+}
+
+// unitAfterNumber: next is a short unit-like word after a number.
+func unitAfterNumber(prev, next string) bool {
+	last, _ := utf8.DecodeLastRuneInString(prev)
+	first, _ := utf8.DecodeRuneInString(next)
+	return last >= '0' && last <= '9' && textLen(next) <= 8 && !(first >= '0' && first <= '9') && first != '(' && first != '−' && first != '-'
+}
+
+// textLen is the width of s on a terminal: its runes (the text output
+// holds no wide characters of its own).
+func textLen(s string) int { return utf8.RuneCountInString(s) }
+
+// writeWrapped prints label and text, the text broken at spaces so that no
+// line is wider than width, continuation lines indented under the text
+// (by two spaces when there is no label). A word wider than the room left
+// stays whole.
+func writeWrapped(w io.Writer, label, text string, width int) {
+	indent := strings.Repeat(" ", textLen(label))
+	if label == "" {
+		indent = "  "
+	}
+	line, n := label, textLen(label)
+	empty := true
+	words := wrapWords(text)
+	for _, word := range words {
+		if !empty && n+1+textLen(word) > width {
+			fmt.Fprintln(w, line)
+			line, n, empty = indent, textLen(indent), true
+		}
+		if !empty {
+			line += " "
+			n++
+		}
+		line += word
+		n += textLen(word)
+		empty = false
+	}
+	fmt.Fprintln(w, line)
 }
 
 func fmtRs(s *simulation, target float64) string {
@@ -290,7 +404,7 @@ func fmtRsGoal(s *simulation, m *methodfile.Method, met bool) string {
 	}
 	rs := format.RsNumber(s.Result.MinResolution, m.Goal.MinResolution)
 	if _, k, ok := checks.FirstTargetK(s.System, &s.Result); ok && k < m.Goal.MinFirstK {
-		return fmt.Sprintf("%s, first k %.2f < %g not met", rs, k, m.Goal.MinFirstK)
+		return fmt.Sprintf("%s, first k(Te) %.2f < %g not met", rs, k, m.Goal.MinFirstK)
 	}
 	if !met {
 		return rs + ", target not met (see below)"
@@ -306,35 +420,61 @@ func critName(s *simulation) string {
 	return format.CriticalPair(textsafe.Inert(s.System.Compounds[cp.First].Name), textsafe.Inert(s.System.Compounds[cp.Second].Name))
 }
 
-// progressPrinter reports progress on stderr: a bar redrawn in place on a
-// terminal, plain lines at most once a second otherwise.
-func progressPrinter(stderr io.Writer) func(optimizer.Progress) {
-	tty := isTerminal(stderr)
-	var last time.Time
-	return func(p optimizer.Progress) {
-		state := "searching for a program that meets the target"
-		if p.Feasible {
-			state = fmt.Sprintf("best %.2f min", p.Objective/60)
-		}
-		if tty {
-			n := int(p.Elapsed / (100 * time.Millisecond) % 20)
-			bar := strings.Repeat("█", n) + strings.Repeat("░", 20-n)
-			fmt.Fprintf(stderr, "\r%s %7d evaluations · %s · Rs %.2f   ", bar, p.Evaluations, state, p.MinResolution)
-			return
-		}
-		if time.Since(last) >= time.Second {
-			last = time.Now()
-			fmt.Fprintf(stderr, "optimize: %d evaluations, %s, Rs %.2f\n", p.Evaluations, state, p.MinResolution)
-		}
+// progressLineEvery is how often, in search time, a plain progress line
+// is printed when stderr is not a terminal.
+const progressLineEvery = 5 * time.Second
+
+// progress reports the search on stderr. On a terminal it is one bar
+// redrawn in place with a carriage return and erased at the end. Anywhere
+// else (a file, a pipe) a carriage return would leave a stale line, so it
+// prints complete lines only: none for a search shorter than
+// progressLineEvery, then one every progressLineEvery of search time, and
+// at the end a line saying the search is over (so the last line is never
+// a stale "best" of an unfinished search).
+type progress struct {
+	w       io.Writer
+	tty     bool
+	next    time.Duration // search time of the next plain line
+	drawn   bool          // a bar is on the terminal line
+	printed bool          // a plain line was printed
+}
+
+func newProgress(stderr io.Writer) *progress {
+	return &progress{w: stderr, tty: isTerminal(stderr), next: progressLineEvery}
+}
+
+func (pp *progress) update(p optimizer.Progress) {
+	state := "searching for a program that meets the target"
+	if p.Feasible {
+		state = fmt.Sprintf("best so far %.2f min", p.Objective/60)
+	}
+	if pp.tty {
+		n := int(p.Elapsed / (100 * time.Millisecond) % 20)
+		bar := strings.Repeat("█", n) + strings.Repeat("░", 20-n)
+		fmt.Fprintf(pp.w, "\r%s %7d evaluations · %s · Rs %.2f   ", bar, p.Evaluations, state, p.MinResolution)
+		pp.drawn = true
+		return
+	}
+	if p.Elapsed >= pp.next {
+		pp.next = p.Elapsed + progressLineEvery
+		pp.printed = true
+		fmt.Fprintf(pp.w, "optimize: %d evaluations, %s, Rs %.2f\n", p.Evaluations, state, p.MinResolution)
 	}
 }
 
-func endProgress(stderr io.Writer) {
-	if isTerminal(stderr) {
-		fmt.Fprint(stderr, "\r\033[K")
+// end erases the bar, or closes the plain lines with the search's end.
+func (pp *progress) end() {
+	switch {
+	case pp.drawn:
+		fmt.Fprint(pp.w, "\r\033[K")
+	case pp.printed:
+		fmt.Fprintln(pp.w, "optimize: search over; the result follows on standard output")
 	}
+	pp.drawn, pp.printed = false, false
 }
 
+// isTerminal reports whether w is a terminal (a character device: a
+// console on Windows too). Only os.File is ever one.
 func isTerminal(w io.Writer) bool {
 	f, ok := w.(*os.File)
 	if !ok {

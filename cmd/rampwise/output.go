@@ -1,8 +1,12 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
 	"strings"
 	"unicode/utf8"
 
@@ -151,4 +155,56 @@ func textOutput(args []string, stdout io.Writer) (io.Writer, func()) {
 	}
 	iw := &inertWriter{w: stdout}
 	return iw, iw.Flush
+}
+
+// checkWritable checks, before any long work, that each non-empty path can
+// be saved: its folder exists and is a folder, the path is not a folder,
+// and a file can be created in the folder (a probe created and removed at
+// once; the path itself is never created early, so nothing is half-saved).
+// A failure is an *fsafe.Error naming the path, as the save itself would
+// give (exit 2).
+func checkWritable(paths ...string) error {
+	for _, p := range paths {
+		if p == "" {
+			continue
+		}
+		fail := func(format string, args ...any) error {
+			return &fsafe.Error{Path: p, Unchanged: true, Err: fmt.Errorf(format, args...)}
+		}
+		st, err := os.Stat(p)
+		switch {
+		case err == nil && st.IsDir():
+			return fail("is a folder")
+		case err == nil && !st.Mode().IsRegular():
+			continue // a device or FIFO is written in place
+		case err != nil && !errors.Is(err, fs.ErrNotExist):
+			return fail("%v", cleanPathErr(err))
+		}
+		dir := filepath.Dir(p)
+		dst, err := os.Stat(dir)
+		switch {
+		case errors.Is(err, fs.ErrNotExist):
+			return fail("the folder %s does not exist", dir)
+		case err != nil:
+			return fail("%v", cleanPathErr(err))
+		case !dst.IsDir():
+			return fail("%s is not a folder", dir)
+		}
+		probe, err := os.CreateTemp(dir, ".rampwise-check-*")
+		if err != nil {
+			return fail("the folder %s cannot be written: %v", dir, cleanPathErr(err))
+		}
+		probe.Close()
+		os.Remove(probe.Name())
+	}
+	return nil
+}
+
+// cleanPathErr is err without the path an *fs.PathError repeats.
+func cleanPathErr(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
 }

@@ -19,7 +19,7 @@ import (
 	"github.com/rampwise/rampwise/optimizer/plan"
 )
 
-const planHelp = `Usage: rampwise plan METHOD [RUNS] [--json] [--seed N]
+const planHelp = `Usage: rampwise plan METHOD [RUNS] [--json] [--seed N] [--injections N]
 
 Says what to inject next so that the next injection is the last:
 
@@ -33,6 +33,13 @@ Says what to inject next so that the next injection is the last:
            retention_sigma, at least 3; parameters and measurement) and holds
            at every corner of the [goal.robust] instrument tolerances;
   done     when RUNS already holds a run that meets the target as measured.
+
+The injection budget (--injections, default 3) counts the verification run:
+while two or more scouting runs are left in it, each is designed together
+with the next (two runs at different elution temperatures tell both
+parameters of every compound); once the runs so far are one short of it,
+any program that holds the margin is advised for verification, however
+much another scouting run might shorten it (the reason then says so).
 
 The method's values are the starting point (entered, from indices, or for a
 compound with only a formula a rough estimate, about ± 8 kJ/mol); RUNS, the
@@ -89,9 +96,13 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("plan", planHelp, stderr)
 	asJSON := fs.Bool("json", false, "print the advice as JSON")
 	seed := fs.Uint64("seed", 1, "seed of the optimizer's starting points: the same seed gives the same advice")
+	injections := fs.Int("injections", 3, "injection budget, the verification run included, 2 to 20")
 	files, err := parseArgsN(fs, args, 1, 2, "METHOD [RUNS]")
 	if err != nil {
 		return err
+	}
+	if *injections < 2 || *injections > 20 {
+		return badf("plan: --injections must be 2 to 20 (one scouting run and the verification at least), got %d", *injections)
 	}
 	m, name, err := loadMethod(files[0])
 	if err != nil {
@@ -109,7 +120,7 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	p, err := plan.Next(ctx, m, runs, plan.Settings{Optimizer: optimizer.Settings{Seed: *seed}})
+	p, err := plan.Next(ctx, m, runs, plan.Settings{Optimizer: optimizer.Settings{Seed: *seed}, Injections: *injections})
 	if err != nil {
 		where := name
 		if runs != nil {
@@ -122,7 +133,7 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	}
 	runName := ""
 	if p.Action != plan.Done {
-		runName = nextRunName(p.Action, runs)
+		runName = p.RunName
 	}
 	if *asJSON {
 		j := planJSON{
@@ -148,28 +159,6 @@ func runPlan(args []string, stdout, stderr io.Writer) error {
 	}
 	writePlan(stdout, m, p, runName)
 	return nil
-}
-
-// nextRunName is a name for the planned run that the runs file does not
-// use yet: scout-N or verify-N.
-func nextRunName(a plan.Action, runs *methodfile.Runs) string {
-	base := "scout"
-	if a == plan.Verify {
-		base = "verify"
-	}
-	used := map[string]bool{}
-	n := 0
-	if runs != nil {
-		n = len(runs.Runs)
-		for _, r := range runs.Runs {
-			used[r.Name] = true
-		}
-	}
-	for i := n + 1; ; i++ {
-		if s := fmt.Sprintf("%s-%d", base, i); !used[s] {
-			return s
-		}
-	}
 }
 
 func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) {
@@ -207,7 +196,7 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 	}
 	if p.Action != plan.Done {
 		fmt.Fprintln(w, "\nonce the run is made, add it to the runs file with the measured times:")
-		fmt.Fprint(w, plan.RunBlock(runName, p.Oven, m.Limits, p.Compounds))
+		fmt.Fprint(w, plan.RunBlock(runName, p.Oven, &p.Carrier, m.Limits, p.Compounds))
 		fmt.Fprintln(w, "\nThe oven and inlet are hot; never program above the column's maximum temperature.")
 	}
 	for _, c := range checks.Safety(p.Method) {

@@ -31,7 +31,8 @@ A program beyond an instrument limit (max_rate_c_min, rate bands, the inlet
 pressure limits, max_temp_c, max_isothermal_c, ambient or coolant_c) is
 refused with file, line and key (exit 2); one that only breaks a search bound
 (oven_min_c, max_hold_min, keypad steps, min_first_k) is simulated as it is,
-with a warning.
+with a warning. With --csv, standard output is the CSV alone and the
+warnings and safety cautions go to standard error.
 
 Flags:
 `
@@ -273,6 +274,10 @@ func runSimulate(args []string, stdout, stderr io.Writer) error {
 		enc.SetIndent("", "  ")
 		return enc.Encode(s.json(m.ModelProgram()))
 	case *asCSV:
+		// stdout stays pure CSV: the cautions go to stderr
+		for _, warn := range s.warnings(m.ModelProgram()) {
+			fmt.Fprintf(stderr, "warning: %s\n", textsafe.Inert(warn))
+		}
 		return s.writeCSV(stdout)
 	}
 	s.writeTable(stdout, name)

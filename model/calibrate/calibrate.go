@@ -178,6 +178,9 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		}
 		out.Column.ParticleUM = dp
 		rep.ParticleUM, rep.ParticleFitted = dp, true
+		if w := dimensionWarning("particle size", "µm", dp, m.Column.ParticleUM); w != "" {
+			rep.Warnings = append(rep.Warnings, w)
+		}
 	} else if len(withHoldup) > 0 {
 		d, err := fitDiameter(out, runs, withHoldup)
 		if err != nil {
@@ -185,6 +188,9 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		}
 		out.Column.DiameterMM = d
 		rep.DiameterMM, rep.DiameterFitted = d, true
+		if w := dimensionWarning("column diameter", "mm", d, m.Column.DiameterMM); w != "" {
+			rep.Warnings = append(rep.Warnings, w)
+		}
 	}
 	rep.PhaseRatio = out.ModelColumn().PhaseRatio()
 	st, err := setups(out, runs)
@@ -331,6 +337,11 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 		out.Column.PlateHeight = phi
 		rep.PlateHeightFactor, rep.PlateFitted = phi, true
 		if w := plateHeightWarning(phi); w != "" {
+			if far(phi, m.Column.PlateHeight) {
+				w += "; " + otherSetupHint
+			}
+			rep.Warnings = append(rep.Warnings, w)
+		} else if w := dimensionWarning("plate-height factor", "", phi, m.Column.PlateHeight); w != "" {
 			rep.Warnings = append(rep.Warnings, w)
 		}
 	}
@@ -860,6 +871,36 @@ const (
 	PlateHeightLow  = 0.8
 	PlateHeightHigh = 1.3
 )
+
+// DimensionTolerance is how far (a fraction) a fitted column value (the
+// diameter from holdup times, a packed column's particle size, the
+// plate-height factor from widths) may lie from the method's before the
+// fit warns: a column is made to within a few per cent of its nominal
+// diameter (common practice, from memory), so 15 % more says the runs do
+// not match the method as given.
+const DimensionTolerance = 0.15
+
+// otherSetupHint is what a fitted value far from the method's may mean.
+const otherSetupHint = "the runs may have been made under another carrier (gas, flow or pressure) or on another column than the method's: a run made with a carrier setting that differed should carry its own [run.carrier] (the method's [carrier] keys that differ), and the method's [column] should be the column the runs were made on"
+
+// far: fitted lies more than DimensionTolerance from nominal.
+func far(fitted, nominal float64) bool {
+	return nominal > 0 && math.Abs(fitted/nominal-1) > DimensionTolerance
+}
+
+// dimensionWarning warns a fitted column value (what, in unit) more than
+// DimensionTolerance from the method's nominal value, or is "".
+func dimensionWarning(what, unit string, fitted, nominal float64) string {
+	if !far(fitted, nominal) {
+		return ""
+	}
+	u := ""
+	if unit != "" {
+		u = " " + unit
+	}
+	return fmt.Sprintf("%s %.4g%s fitted from the runs is %.0f %% from the method's %g%s (more than %.0f %%): %s; the fitted value is written as fitted",
+		what, fitted, u, 100*math.Abs(fitted/nominal-1), nominal, u, 100*DimensionTolerance, otherSetupHint)
+}
 
 // plateHeightWarning warns a fitted plate-height factor far from 1.
 func plateHeightWarning(phi float64) string {

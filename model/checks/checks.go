@@ -130,6 +130,11 @@ func FirstTargetK(sys *model.System, res *model.Result) (name string, k float64,
 	return sys.Compounds[pk.Compound].Name, pk.RetentionFactor, true
 }
 
+// KAtElution says which k goal.min_first_k and the tables' k(Te) are, so
+// that it is not read as the apparent (tR − tM)/tM of a programmed run,
+// which the ramp makes larger.
+const KAtElution = "k(Te) is k at its elution temperature, not (tR − tM)/tM of the run"
+
 // Warnings are the cautions for method m whose program simulated to res.
 func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []string {
 	var w []string
@@ -150,8 +155,8 @@ func Warnings(m *methodfile.Method, sys *model.System, res *model.Result) []stri
 	// the first target must be retained enough to stand clear of the
 	// unretained peak and the solvent (goal.min_first_k, a search bound)
 	if name, k, ok := FirstTargetK(sys, res); ok && k < m.Goal.MinFirstK {
-		w = append(w, fmt.Sprintf("goal.min_first_k: the first target, %s, elutes with k = %.2f, below %g: it may not stand clear of the unretained peak and the solvent (start cooler or slower)",
-			name, k, m.Goal.MinFirstK))
+		w = append(w, fmt.Sprintf("goal.min_first_k: the first target, %s, elutes with k(Te) = %.2f, below %g (%s): it may not stand clear of the unretained peak and the solvent (start cooler or slower)",
+			name, k, m.Goal.MinFirstK, KAtElution))
 	}
 	// search bounds and rules of thumb the program breaks (never refused)
 	for _, n := range m.Advice() {

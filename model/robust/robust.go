@@ -73,6 +73,14 @@ type Tolerances struct {
 	Z             float64
 	// Retention holds one entry per compound (zero entries and nil: Prior).
 	Retention []SE
+	// MeasureSD (s) and WidthScatter (relative), when set, add the scatter
+	// of one measured run to σ_Rs: the SD of a resolution measured from
+	// one run's retention times (each with SD MeasureSD) and half-height
+	// widths (each with relative SD WidthScatter), Rs = Δt / (2 (σa + σb)),
+	// so that Rs − Z·σ_Rs is the bound a verification run's measured
+	// resolution should clear (the planner's criterion). First order:
+	// σ² += (Rs·WidthScatter)² (σa² + σb²)/(σa + σb)² + 2 MeasureSD² / (2 (σa + σb))².
+	MeasureSD, WidthScatter float64
 	// Prior is used for compounds without standard errors (zero: ±2 kJ/mol
 	// and ±4 J/(mol·K), uncorrelated; from memory, a typical estimate from
 	// retention indices or an older column).
@@ -440,6 +448,10 @@ func (rg *Set) sigmaCheck(q model.Program, nom *model.Result, sc *Scratch, end, 
 			gS := (sgn*(s.RetentionTime-pk.RetentionTime)/(2*w) - rs*(s.Sigma-pk.Sigma)/w) / perturbS
 			e := rg.Tol.se(pk.Compound)
 			v += gH*gH*e.DH*e.DH + gS*gS*e.DS*e.DS + 2*e.Corr*gH*gS*e.DH*e.DS
+		}
+		if ms, ws := rg.Tol.MeasureSD, rg.Tol.WidthScatter; ms > 0 || ws > 0 {
+			r := rs * ws / w
+			v += r*r*(a.Sigma*a.Sigma+b.Sigma*b.Sigma) + 2*ms*ms/(4*w*w)
 		}
 		sd := math.Sqrt(math.Max(v, 0))
 		if i == crit {

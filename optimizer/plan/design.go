@@ -10,7 +10,7 @@ import (
 
 // maxScoutMin is the longest scouting run considered, min: an injection
 // is meant to cost 30–60 minutes of instrument time, not hours.
-const maxScoutMin = 90
+const maxScoutMin = 60
 
 // designChoice is the chosen scouting run.
 type designChoice struct {
@@ -18,6 +18,10 @@ type designChoice struct {
 	score   float64 // summed squared shortfall of the margin
 	sdAfter float64 // SD of the critical pair's Rs after the run
 	pairs   int
+	// next (when the design looks ahead) is the run planned after this
+	// one, and nextSDAfter the critical pair's SD after both
+	next        methodfile.Oven
+	nextSDAfter float64
 }
 
 // pairSens is one pair's resolution gradients at the optimized program.
@@ -25,6 +29,7 @@ type pairSens struct {
 	a, b     int
 	ga, gb   [2]float64
 	rs       float64
+	sm2      float64 // variance of a measured Rs (one run's scatter)
 	critical bool
 }
 
@@ -76,10 +81,20 @@ func (sl scoutLimits) rateTo(finalC float64) float64 {
 // which the summed squared shortfall of the margin,
 // Σ max(0, target − Rs + z·SD_after)², over the pairs that are or could
 // become critical at the optimized programs is least.
-func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoice, error) {
+//
+// ahead > 0 looks that many further scouting runs ahead (the injection
+// budget leaves room for them before the verification): the run chosen is
+// then the more informative one of the best pair of runs (the score after
+// both, Σ over the same pairs), since one run of a compound tells only one
+// combination of ΔH and ΔS (its retention near one temperature), and a
+// myopic choice pins the combination the current optimum needs and leaves
+// the one the next optimum needs open. Pairs are searched exhaustively
+// over the candidates (a few dozen): one look ahead is enough, as two runs
+// at different elution temperatures determine both parameters.
+func (st *state) design(progs []methodfile.Oven, target, z, widthScatter float64, made, ahead int) (*designChoice, error) {
 	var pairs []pairSens
 	for pi, o := range progs {
-		ps, err := st.criticalPairs(o, target, pi == 0)
+		ps, err := st.criticalPairs(o, target, widthScatter, pi == 0)
 		if err != nil {
 			return nil, err
 		}
@@ -96,21 +111,32 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 	}
 	s := st.sens
 	s2 := st.sigmaT * st.sigmaT
-	type scored struct {
-		designChoice
-		dur float64
-	}
-	var all []scored
-	post := make([]cov2, s.n)
 	var starts []float64
 	for _, o := range progs {
 		starts = append(starts, o.InitialC)
 	}
 	cands := st.candidates(starts)
 	sl := st.scoutLimits()
-	for _, o := range progs {
-		cands = append(cands, st.continued(o, sl)...)
+	// the optimized programs continued to the top measure where the
+	// optimum is; for the first two scouting runs linear ramps only (common
+	// practice for scouting): a step program's elution temperatures move
+	// with the parameters, so its predicted information is the less
+	// reliable the rougher they are, and two linear ramps already tell ΔH
+	// from ΔS
+	if made >= 2 && ahead <= 0 {
+		for _, o := range progs {
+			cands = append(cands, st.continued(o, sl)...)
+		}
 	}
+	// each candidate's retention-time sensitivities (zero for a compound
+	// that does not elute), simulated once
+	type candidate struct {
+		oven methodfile.Oven
+		dur  float64
+		dt   [][2]float64
+		low  bool // starts at the lowest oven start
+	}
+	var cs []candidate
 	for _, cand := range cands {
 		prog := methodfile.ProgramToModel(cand)
 		if prog.RunTime() > maxScoutMin*60 {
@@ -119,48 +145,111 @@ func (st *state) design(progs []methodfile.Oven, target, z float64) (*designChoi
 		if err := s.eval(prog); err != nil {
 			continue
 		}
+		dt := make([][2]float64, s.n)
 		for i := 0; i < s.n; i++ {
-			post[i] = st.cov[i]
 			if s.eluted[i] {
-				post[i] = st.cov[i].update(s.dt[i], s2)
+				dt[i] = s.dt[i]
 			}
 		}
-		score, critSD := 0.0, 0.0
+		cs = append(cs, candidate{oven: cand, dur: prog.RunTime(), dt: dt, low: cand.InitialC <= sl.lowC})
+	}
+	if len(cs) == 0 {
+		return nil, nil
+	}
+	post := make([]cov2, s.n)
+	// score is the shortfall after the runs whose sensitivities are given,
+	// and the critical pair's SD then
+	score := func(runs ...[][2]float64) (float64, float64) {
+		for i := 0; i < s.n; i++ {
+			post[i] = st.cov[i]
+			for _, dt := range runs {
+				if dt[i] != ([2]float64{}) {
+					post[i] = post[i].update(dt[i], s2)
+				}
+			}
+		}
+		sc, critSD := 0.0, 0.0
 		for _, p := range pairs {
 			v := post[p.a].quad(p.ga) + post[p.b].quad(p.gb)
-			// the shortfall of the margin this pair would still leave
-			if short := target - p.rs + z*math.Sqrt(math.Max(v, 0)); short > 0 {
-				score += short * short
+			// the shortfall of the margin this pair would still leave,
+			// the verification's own scatter included (at the program that
+			// would hold the margin were the parameters known, that
+			// scatter alone uses the margin up: every parameter SD left
+			// there is a shortfall)
+			if short := target - p.rs + z*math.Sqrt(math.Max(v, 0)+p.sm2); short > 0 {
+				sc += short * short
 			}
 			if p.critical {
 				critSD = math.Sqrt(math.Max(v, 0))
 			}
 		}
-		all = append(all, scored{designChoice{oven: cand, score: score, sdAfter: critSD, pairs: len(distinct)}, prog.RunTime()})
+		return sc, critSD
 	}
-	if len(all) == 0 {
-		return nil, nil
+	single := make([]float64, len(cs))
+	singleSD := make([]float64, len(cs))
+	for i := range cs {
+		single[i], singleSD[i] = score(cs[i].dt)
 	}
-	least := math.Inf(1)
-	for _, c := range all {
-		least = math.Min(least, c.score)
+	// choose is the shortest among those within 2 % of the least score
+	choose := func(scores []float64, dur func(int) float64) int {
+		least := math.Inf(1)
+		for _, v := range scores {
+			least = math.Min(least, v)
+		}
+		best, bestTime := -1, math.Inf(1)
+		for i, v := range scores {
+			if v <= 1.02*least+1e-12 && dur(i) < bestTime {
+				best, bestTime = i, dur(i)
+			}
+		}
+		return best
 	}
-	// the shortest run among those within 2 % of the least variance
-	var bestC *designChoice
-	bestTime := math.Inf(1)
-	for i := range all {
-		if all[i].score <= 1.02*least && all[i].dur < bestTime {
-			bestC, bestTime = &all[i].designChoice, all[i].dur
+	if ahead <= 0 || len(cs) < 2 {
+		i := choose(single, func(i int) float64 { return cs[i].dur })
+		return &designChoice{oven: cs[i].oven, score: single[i], sdAfter: singleSD[i], pairs: len(distinct)}, nil
+	}
+	type pairRuns struct{ a, b int }
+	var prs []pairRuns
+	var pairScore, pairSD []float64
+	// the first run of all starts at the lowest oven start (common
+	// practice: nothing is lost in the solvent front, and the early
+	// compounds are measured at the low temperatures a method may hold)
+	first := made == 0
+	for a := range cs {
+		for b := a + 1; b < len(cs); b++ {
+			if first && !cs[a].low && !cs[b].low {
+				continue
+			}
+			v, sd := score(cs[a].dt, cs[b].dt)
+			prs = append(prs, pairRuns{a, b})
+			pairScore = append(pairScore, v)
+			pairSD = append(pairSD, sd)
 		}
 	}
-	return bestC, nil
+	if len(prs) == 0 {
+		i := choose(single, func(i int) float64 { return cs[i].dur })
+		return &designChoice{oven: cs[i].oven, score: single[i], sdAfter: singleSD[i], pairs: len(distinct)}, nil
+	}
+	k := choose(pairScore, func(i int) float64 { return cs[prs[i].a].dur + cs[prs[i].b].dur })
+	a, b := prs[k].a, prs[k].b
+	// the run of the pair that is the more informative alone goes first
+	// (the one from the lowest start, for the first run of all)
+	if first {
+		if !cs[a].low || (cs[b].low && single[b] < single[a]) {
+			a, b = b, a
+		}
+	} else if single[b] < single[a] || (single[b] == single[a] && cs[b].dur < cs[a].dur) {
+		a, b = b, a
+	}
+	return &designChoice{oven: cs[a].oven, score: single[a], sdAfter: singleSD[a], pairs: len(distinct),
+		next: cs[b].oven, nextSDAfter: pairSD[k]}, nil
 }
 
 // criticalPairs are the pairs with a target that are, or within three
 // standard deviations could become, critical at program o (Rs − 3 SD
 // below twice the target), with their gradients; the least
 // adjacent one is marked critical when mark is set.
-func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]pairSens, error) {
+func (st *state) criticalPairs(o methodfile.Oven, target, widthScatter float64, mark bool) ([]pairSens, error) {
 	if err := st.sens.eval(methodfile.ProgramToModel(o)); err != nil {
 		return nil, err
 	}
@@ -186,7 +275,8 @@ func (st *state) criticalPairs(o methodfile.Oven, target float64, mark bool) ([]
 			if rs-3*sd > 2*target {
 				continue
 			}
-			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb, rs: rs})
+			sm := st.measurementSD(rs, a, b, widthScatter)
+			pairs = append(pairs, pairSens{a: a, b: b, ga: ga, gb: gb, rs: rs, sm2: sm * sm})
 			if y == x+1 && rs < critRs {
 				critRs, crit = rs, len(pairs)-1
 			}

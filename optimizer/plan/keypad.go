@@ -3,11 +3,11 @@ package plan
 import (
 	"fmt"
 	"math"
-	"sort"
 	"strconv"
 	"strings"
 	"unicode"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 )
 
@@ -78,22 +78,55 @@ func KeypadLines(o methodfile.Oven, l methodfile.Limits) []string {
 
 // RunBlock is a runs-file [[run]] entry for the program, to paste into the
 // runs file once the run is made: the measured retention times and widths
-// go in as the commented compound lines show.
-func RunBlock(name string, o methodfile.Oven, l methodfile.Limits, compounds []string) string {
+// go in as the commented compound lines show, in the order given (the
+// planner gives them in predicted elution order). With a carrier, the
+// block records it as [run.carrier] (gas, mode and the flow or inlet
+// pressure), so that a later change of the method's carrier does not
+// silently reinterpret the run.
+func RunBlock(name string, o methodfile.Oven, c *methodfile.Carrier, l methodfile.Limits, compounds []string) string {
 	ts, rs, hs := stepOr(l.TempStepC, 0.1), stepOr(l.RateStepCMin, 0.1), stepOr(l.HoldStepMin, 0.01)
 	var b strings.Builder
 	fmt.Fprintf(&b, "[[run]]\nname = %s\n[run.oven]\ninitial_c = %s\ninitial_hold_min = %s\n", tomlQuote(name), Format(o.InitialC, ts), Format(o.InitialHoldMin, hs))
 	for _, r := range o.Ramps {
 		fmt.Fprintf(&b, "[[run.oven.ramp]]\nrate_c_min = %s\nfinal_c = %s\nhold_min = %s\n", Format(r.RateCMin, rs), Format(r.FinalC, ts), Format(r.HoldMin, hs))
 	}
+	if c != nil {
+		fmt.Fprintf(&b, "[run.carrier]         # the carrier of this run\ngas = %s\nmode = %s\n", tomlQuote(c.Gas.String()), tomlQuote(c.Mode.String()))
+		if c.Mode == model.ConstantPressure {
+			fmt.Fprintf(&b, "inlet_kpa = %s\n", strconv.FormatFloat(c.InletKPa, 'f', -1, 64))
+		} else {
+			fmt.Fprintf(&b, "flow_ml_min = %s\n", strconv.FormatFloat(c.FlowMLMin, 'f', -1, 64))
+		}
+	}
 	b.WriteString("[run.retention_min]   # measured retention time (min) of each peak\n")
-	names := append([]string(nil), compounds...)
-	sort.Strings(names)
-	for _, n := range names {
+	for _, n := range compounds {
 		fmt.Fprintf(&b, "# %s = \n", tomlQuote(n))
 	}
 	b.WriteString("[run.width_min]       # optional: measured half-height widths (min)\n")
 	return b.String()
+}
+
+// NextRunName names the planned run after the runs so far: scout-N or
+// verify-N, N one more than the runs, or the next N whose name is not
+// taken.
+func NextRunName(a Action, runs *methodfile.Runs) string {
+	base := "scout"
+	if a == Verify {
+		base = "verify"
+	}
+	used := map[string]bool{}
+	n := 0
+	if runs != nil {
+		n = len(runs.Runs)
+		for _, r := range runs.Runs {
+			used[r.Name] = true
+		}
+	}
+	for i := n + 1; ; i++ {
+		if s := fmt.Sprintf("%s-%d", base, i); !used[s] {
+			return s
+		}
+	}
 }
 
 // tomlQuote is s as a TOML basic string: quotes and backslashes escaped,
@@ -119,4 +152,18 @@ func tomlQuote(s string) string {
 	}
 	b.WriteByte('"')
 	return b.String()
+}
+
+// rampText is a program in one line for a message: "40 °C for 1 min,
+// 5 °C/min to 300 °C, hold 10 min" (values as the keypad shows them).
+func rampText(o methodfile.Oven) string {
+	parts := []string{fmt.Sprintf("%s °C for %s min", strconv.FormatFloat(o.InitialC, 'f', -1, 64), strconv.FormatFloat(o.InitialHoldMin, 'f', -1, 64))}
+	for _, r := range o.Ramps {
+		p := fmt.Sprintf("%s °C/min to %s °C", strconv.FormatFloat(r.RateCMin, 'f', -1, 64), strconv.FormatFloat(r.FinalC, 'f', -1, 64))
+		if r.HoldMin > 0 {
+			p += fmt.Sprintf(", hold %s min", strconv.FormatFloat(r.HoldMin, 'f', -1, 64))
+		}
+		parts = append(parts, p)
+	}
+	return strings.Join(parts, ", ")
 }

@@ -61,7 +61,7 @@ func (l *lab) inject(name string, o methodfile.Oven) (measured, error) {
 		out.t[nm] = math.Round((pk.RetentionTime/60+l.rng.NormFloat64()*labRetentionSD)*1e4) / 1e4
 		out.w[nm] = math.Round(pk.HalfWidth()/60*(1+l.rng.NormFloat64()*labWidthScatter)*1e5) / 1e5
 	}
-	block := RunBlock(name, o, l.truth.Limits, nil)
+	block := RunBlock(name, o, &l.truth.Carrier, l.truth.Limits, nil)
 	head := block[:strings.Index(block, "[run.retention_min]")]
 	l.runs.WriteString(head)
 	l.runs.WriteString("[run.retention_min]\n")

@@ -70,28 +70,34 @@ type Settings struct {
 	// above the goal to make room for the margin, as a fraction of the
 	// target. Default 1 (a robust program up to twice the target).
 	MaxMargin float64
-	// Slower: a robust program is also advised for verification when it
-	// is at most (1 + Slower) times as long as the program optimized at
-	// the bare target (then a scouting run would save little). Default 0.25.
+	// Slower: before the budget's last injection, a robust program is
+	// advised for verification when it is at most (1 + Slower) times as
+	// long as the program that would hold the margin were the parameters
+	// known (the measurement's scatter and the instrument tolerances
+	// alone); otherwise a scouting run is expected to buy a faster method.
+	// Default 0.25.
 	Slower float64
-	// MarginGain: a robust program is advised for verification when
-	// knowing the parameters exactly would lower the resolution its margin
-	// needs by at most this fraction of the target. Default 0.3: the margin
-	// still covers the parameters' uncertainty in full, so a larger value
-	// trades a slower verified program for fewer injections, never a
-	// likelier failed verification.
-	MarginGain float64
 	// Draws is how many draws of the parameters from their uncertainty
 	// are optimized to find the pairs that could become critical near the
 	// optimum, for the design of a scouting run. Default 3.
 	Draws int
 	// Tolerance: a measured run that meets the target counts as the
 	// verification of the optimized program when its run (or cycle) time
-	// is at most (1 + Tolerance) times that of the program now predicted
-	// to hold the margin. Default 1: after a passing verification a
-	// program predicted faster is mentioned, not demanded; a slow scouting
-	// ramp that happens to meet the target is not taken for the method.
+	// is at most (1 + Tolerance) times that of the program now optimized
+	// (at the target, or holding the margin when one does; at most 1.25
+	// times while two or more injections are left in the budget). Default
+	// 1: after a passing verification a program predicted faster is
+	// mentioned, not demanded; a slow scouting ramp that happens to meet
+	// the target is not taken for the method.
 	Tolerance float64
+	// Injections is the injection budget, the verification run included:
+	// with the runs made so far one short of it, a program that holds the
+	// margin is advised for verification however much knowing the
+	// parameters better would shorten it, and while two or more scouting
+	// runs remain, each is designed together with the next. Default 3
+	// (two scouting runs at different elution temperatures determine both
+	// parameters of every compound; the third injection verifies).
+	Injections int
 }
 
 func (s Settings) withDefaults() Settings {
@@ -104,9 +110,6 @@ func (s Settings) withDefaults() Settings {
 	if s.MaxMargin <= 0 {
 		s.MaxMargin = 1
 	}
-	if s.MarginGain <= 0 {
-		s.MarginGain = 0.3
-	}
 	if s.Slower <= 0 {
 		s.Slower = 0.25
 	}
@@ -115,6 +118,9 @@ func (s Settings) withDefaults() Settings {
 	}
 	if s.Tolerance <= 0 {
 		s.Tolerance = 1
+	}
+	if s.Injections <= 0 {
+		s.Injections = 3
 	}
 	return s
 }
@@ -151,9 +157,13 @@ type Plan struct {
 	MeasuredMinResolution float64
 	// RetentionSDMin is the retention-time SD used (min).
 	RetentionSDMin float64
-	// Compounds are the method's compound names, in method order (for a
-	// runs-file block to paste).
+	// Compounds are the method's compound names in the order the program
+	// is predicted to elute them (those not predicted to elute last, in
+	// method order), for a runs-file block to paste.
 	Compounds []string
+	// RunName names the planned run (inject, verify): scout-N or
+	// verify-N, not taken by a run so far.
+	RunName string
 }
 
 // Next plans the next injection for method m and its runs (nil or empty
@@ -167,9 +177,14 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	z := math.Max(s.MinZ, m.Goal.Robust.RetentionSigma)
 	target := m.Goal.MinResolution
 
-	// the optimized program at the bare target, then with the target
-	// raised until the margin fits: the robust program
-	nomOven, feasible, err := st.optimize(ctx, target, s.Optimizer)
+	// the optimized program at the bare target (the file's own margin),
+	// then the optimizer with the planner's margin as its constraint (the
+	// posterior SD of every pair's Rs and one run's measurement scatter, z
+	// raised for the pairs near the target at the bare optimum), then, if
+	// the program found still falls short (the count of pairs near the
+	// target changed, or first order was not enough), the target raised
+	// until the margin fits: the robust program
+	nomOven, feasible, err := st.optimize(ctx, target, s.Optimizer, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -181,13 +196,14 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	var robust *evaluation
 	var robustOven methodfile.Oven
 	tried := []methodfile.Oven{nomOven} // programs the search went to
+	vm := &verifyMargin{z: nominal.z, widthScatter: s.WidthScatter}
 	if nominal.ok {
 		robust, robustOven = nominal, nomOven
 	} else if feasible {
 		// raise by the shortfall; when the raised target cannot be met
 		// within the limits, halve the raise
-		lo, step := 0.0, nominal.deficit+0.01
-		for iter := 0; iter < 12 && ctx.Err() == nil && step >= 0.01; iter++ {
+		lo, step := 0.0, 0.0
+		for iter := 0; iter < 12 && ctx.Err() == nil && (iter == 0 || step >= 0.01); iter++ {
 			extra := lo + step
 			if extra > s.MaxMargin*target {
 				step = s.MaxMargin*target - lo
@@ -196,11 +212,14 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				}
 				continue
 			}
-			oven, ok, err := st.optimize(ctx, target+extra, s.Optimizer)
+			oven, ok, err := st.optimize(ctx, target+extra, s.Optimizer, vm)
 			if err != nil {
 				return nil, err
 			}
 			if !ok {
+				if iter == 0 {
+					break // the margin itself cannot be met: raising will not help
+				}
 				step /= 2
 				continue
 			}
@@ -216,7 +235,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				hi := extra
 				for b := 0; b < 3 && hi-lo > 0.02 && ctx.Err() == nil; b++ {
 					mid := (lo + hi) / 2
-					mo, ok, err := st.optimize(ctx, target+mid, s.Optimizer)
+					mo, ok, err := st.optimize(ctx, target+mid, s.Optimizer, vm)
 					if err != nil {
 						return nil, err
 					}
@@ -240,9 +259,16 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 				}
 				break
 			}
+			if ev.z > vm.z {
+				vm.z = ev.z // more pairs near the target here
+			}
 			// a raised target may lead where the parameters are less
 			// known: never raise by more than the last step
-			lo, step = extra, math.Min(ev.deficit+0.01, step)
+			if iter == 0 {
+				step = ev.deficit + 0.01
+			} else {
+				lo, step = extra, math.Min(ev.deficit+0.01, step)
+			}
 		}
 	}
 	// A raised target can lead where the parameters are less known. The
@@ -310,7 +336,20 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			if err != nil || !(ev.ok || ev.lowestParam >= target) {
 				continue
 			}
-			if dr := st.duration(r.Oven); dr <= (1+s.Tolerance)*ref {
+			// the run's program is the method when it is at most f times
+			// as long as the program now optimized (at the target, or
+			// holding the margin when one does): f = 1 + Tolerance at the
+			// budget's last injection, 1.25 while more are left (a
+			// verified program much slower than the one now predicted is
+			// then worth one more injection); a slow scouting ramp that
+			// happens to separate everything is not taken for a method run
+			// for months
+			f := 1 + s.Tolerance
+			if len(st.runs.Runs) < s.Injections-1 {
+				f = math.Min(f, 1.25)
+			}
+			limit := f * math.Max(ref, st.duration(nomOven))
+			if dr := st.duration(r.Oven); dr <= limit {
 				p.Action, p.Oven = Done, r.Oven
 				p.VerifiedBy, p.MeasuredMinResolution = r.Name, j.minRs
 				p.Reason = fmt.Sprintf("run %q meets the target as measured (min Rs %.2f ≥ %.2f, %s): its program is verified; no further injection is needed",
@@ -319,16 +358,31 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 					p.Reason += fmt.Sprintf(" (a program predicted to hold the margin in %.2f min instead of %.2f exists; verify it too if the time matters)", ref/60, dr/60)
 				}
 				p.Method = st.withOven(r.Oven)
-				return p, nil
+				return st.complete(p, runs), nil
 			}
 		}
 	}
 
-	// what knowing the parameters exactly would take off the margin
-	gain := func(e *evaluation) float64 {
-		return e.z * (e.sd - math.Sqrt(math.Max(0, e.sd*e.sd-e.sp*e.sp)))
+	made := 0
+	if st.runs != nil {
+		made = len(st.runs.Runs)
 	}
-	if robust != nil && (gain(robust) <= s.MarginGain*target || st.duration(robustOven) <= (1+s.Slower)*st.duration(nomOven)) {
+	last := made+1 >= s.Injections // the verification is the budget's last injection
+	// the program that would hold the margin were the parameters known
+	// (the measurement's scatter and the instrument tolerances alone):
+	// what scouting could at best bring the robust program down to, and
+	// where the verified program will be once the parameters are known
+	// (often slower or colder than the bare optimum), so that a scouting
+	// run pins them there too
+	var knownOven methodfile.Oven
+	knownOK := false
+	if !last || robust == nil {
+		knownOven, knownOK, err = st.optimize(ctx, target, s.Optimizer, vm.known())
+		if err != nil {
+			return nil, err
+		}
+	}
+	if robust != nil && (last || !knownOK || st.duration(robustOven) <= (1+s.Slower)*st.duration(knownOven)) {
 		p.Action, p.Oven = Verify, robustOven
 		zText := fmt.Sprintf("z = %.1f", z)
 		if robust.near > 1 {
@@ -340,12 +394,12 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			p.Reason += marginPrice(st.duration(robustOven), st.duration(nomOven))
 		}
 		p.Method = st.withOven(robustOven)
-		return p, nil
+		return st.complete(p, runs), nil
 	}
 	robustNote := ""
 	if robust != nil {
-		robustNote = fmt.Sprintf("; a program that holds the margin exists (%.2f min against %.2f min, min Rs %.2f ± %.2f, the parameters ± %.2f), and knowing the parameters better would shorten it",
-			st.duration(robustOven)/60, st.duration(nomOven)/60, robust.minRs, robust.sd, robust.sp)
+		robustNote = fmt.Sprintf("; a program that holds the margin exists (%.2f min, min Rs %.2f ± %.2f, the parameters ± %.2f), but with the parameters known one would take %.2f min: a scouting run is expected to buy the faster method",
+			st.duration(robustOven)/60, robust.minRs, robust.sd, robust.sp, st.duration(knownOven)/60)
 	}
 	bestOven, best = nomOven, nominal
 
@@ -354,7 +408,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	// the parameters from their uncertainty, so that the pairs critical
 	// there are weighed too
 	for k := 0; k < s.Draws && ctx.Err() == nil; k++ {
-		o, ok, err := st.optimizeDraw(ctx, target, s.Optimizer, uint64(k+1))
+		o, ok, err := st.optimizeDraw(ctx, target, s.Optimizer, uint64(k+1), vm.known())
 		if err != nil {
 			return nil, err
 		}
@@ -362,7 +416,13 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			tried = append(tried, o)
 		}
 	}
-	d, err := st.design(tried, target, z)
+	if knownOK {
+		tried = append(tried, knownOven)
+	}
+	// scouting runs left in the budget after this one, before the
+	// verification
+	ahead := s.Injections - 2 - made
+	d, err := st.design(tried, target, z, s.WidthScatter, made, ahead)
 	if err != nil {
 		return nil, err
 	}
@@ -371,7 +431,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		p.Reason = fmt.Sprintf("no program within the limits meets the target %.2f (best min Rs %.2f ± %.2f, %s), and further scouting runs would not change that: change the column, the carrier or the goal",
 			target, best.minRs, best.sd, strings.Join(best.pair[:], " / "))
 		p.Method = st.withOven(bestOven)
-		return p, nil
+		return st.complete(p, runs), nil
 	}
 	p.Action, p.Oven, p.SDAfter = Inject, d.oven, d.sdAfter
 	why := fmt.Sprintf("the predicted min Rs %.2f of the optimized program is uncertain by %s (%s): it must clear the target %.2f by %.1f standard deviations",
@@ -384,11 +444,37 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	}
 	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%s that %s or could become critical weighed)",
 		why, robustNote, d.sdAfter, pairsText(d.pairs), isAre(d.pairs))
+	if ahead > 0 && len(d.next.Ramps) > 0 {
+		p.Reason += fmt.Sprintf(", and with the scouting run planned after it (%s) to ± %.2f", rampText(d.next), d.nextSDAfter)
+	}
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
 	}
 	p.Method = st.withOven(d.oven)
-	return p, nil
+	return st.complete(p, runs), nil
+}
+
+// complete names the planned run and orders the compounds as the program
+// is predicted to elute them.
+func (st *state) complete(p *Plan, runs *methodfile.Runs) *Plan {
+	if p.Action != Done {
+		p.RunName = NextRunName(p.Action, runs)
+	}
+	if err := st.sens.eval(methodfile.ProgramToModel(p.Oven)); err == nil {
+		s := st.sens
+		idx := map[string]int{}
+		for i := 0; i < s.n; i++ {
+			idx[st.sys.Compounds[i].Name] = i
+		}
+		at := func(name string) float64 {
+			if i, ok := idx[name]; ok && s.eluted[i] {
+				return s.t[i]
+			}
+			return math.Inf(1)
+		}
+		sort.SliceStable(p.Compounds, func(a, b int) bool { return at(p.Compounds[a]) < at(p.Compounds[b]) })
+	}
+	return p
 }
 
 // state is the current knowledge: the method with updated parameters, each
@@ -684,12 +770,30 @@ func (st *state) withOven(o methodfile.Oven) *methodfile.Method {
 	return m
 }
 
-// optimize runs the optimizer on the current parameters for target rs and
-// returns its program on the keypad steps.
-func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings) (methodfile.Oven, bool, error) {
+// verifyMargin is the planner's margin given to the optimizer as its
+// robust constraint: every pair's Rs − z·SD ≥ the target, the SD the
+// posterior SD of the parameters' part and one measured run's scatter.
+type verifyMargin struct {
+	z, widthScatter float64
+	// exact: the parameters taken as known (the measurement's scatter
+	// alone)
+	exact bool
+}
+
+// known is the margin with the parameters taken as known.
+func (vm *verifyMargin) known() *verifyMargin {
+	k := *vm
+	k.exact = true
+	return &k
+}
+
+// optimize runs the optimizer on the current parameters for target rs
+// (with the planner's margin vm when not nil) and returns its program on
+// the keypad steps.
+func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings, vm *verifyMargin) (methodfile.Oven, bool, error) {
 	m := st.m.Clone()
 	m.Goal.MinResolution = rs
-	res, err := optimizer.Optimize(ctx, st.problem(m, st.sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, st.sys, vm), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
@@ -705,14 +809,24 @@ func (st *state) optimize(ctx context.Context, rs float64, s optimizer.Settings)
 // compound (the runs and the prior combined) instead of the file's
 // standard errors. The planner then judges the margin once more with its
 // own z and the measurement's scatter (evaluate).
-func (st *state) problem(m *methodfile.Method, sys *model.System) optimizer.Problem {
+func (st *state) problem(m *methodfile.Method, sys *model.System, vm *verifyMargin) optimizer.Problem {
 	prob := methodsearch.Problem(m, sys)
+	if vm != nil {
+		prob.Robust.Z = vm.z
+		prob.Robust.MeasureSD = st.sigmaT
+		prob.Robust.WidthScatter = vm.widthScatter
+	}
 	kind := model.CarrierFlow
 	if m.Carrier.Mode == model.ConstantPressure {
 		kind = model.InletPressure
 	}
 	prob.Lock = append(prob.Lock, model.ProgramValue{Kind: kind})
-	if prob.Robust.Z > 0 && len(st.cov) == len(sys.Compounds) {
+	if vm != nil && vm.exact {
+		prob.Robust.Retention = make([]optimizer.RetentionSE, len(sys.Compounds))
+		for i := range prob.Robust.Retention {
+			prob.Robust.Retention[i] = optimizer.RetentionSE{DH: 1e-3, DS: 1e-6}
+		}
+	} else if prob.Robust.Z > 0 && len(st.cov) == len(sys.Compounds) {
 		prob.Robust.Retention = make([]optimizer.RetentionSE, len(st.cov))
 		for i, c := range st.cov {
 			h, sd := math.Sqrt(math.Max(c.hh, 0)), math.Sqrt(math.Max(c.ss, 0))
@@ -735,7 +849,7 @@ func (st *state) optimizeMethod(ctx context.Context, m *methodfile.Method, rs fl
 	if err != nil {
 		return methodfile.Oven{}, false, nil // an implausible shift: no program
 	}
-	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys, nil), s)
 	if err != nil {
 		return methodfile.Oven{}, false, err
 	}
@@ -806,7 +920,7 @@ func (st *state) pessimistic(o methodfile.Oven, z, widthScatter float64) (*metho
 // optimizeDraw optimizes, at the target, the method with every compound's
 // parameters drawn from their uncertainty (Gaussian, seeded by the
 // optimizer's seed and draw, so that a plan repeats exactly).
-func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.Settings, draw uint64) (methodfile.Oven, bool, error) {
+func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.Settings, draw uint64, vm *verifyMargin) (methodfile.Oven, bool, error) {
 	seed := s.Seed
 	if seed == 0 {
 		seed = 1
@@ -838,7 +952,7 @@ func (st *state) optimizeDraw(ctx context.Context, target float64, s optimizer.S
 	if err != nil {
 		return methodfile.Oven{}, false, nil // an implausible draw: skip it
 	}
-	res, err := optimizer.Optimize(ctx, st.problem(m, sys), s)
+	res, err := optimizer.Optimize(ctx, st.problem(m, sys, vm), s)
 	if err != nil {
 		return methodfile.Oven{}, false, nil
 	}

@@ -5,6 +5,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -14,7 +15,7 @@ import (
 func TestRunBlockInertAndParses(t *testing.T) {
 	name := "evil\x1b[31m\u202Ename\"q\\"
 	o := methodfile.Oven{InitialC: 40, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: 10, FinalC: 250, HoldMin: 2}}}
-	block := RunBlock(name, o, methodfile.Limits{}, []string{name})
+	block := RunBlock(name, o, nil, methodfile.Limits{}, []string{name})
 	if strings.ContainsAny(block, "\x1b\u202E") {
 		t.Fatalf("raw escape in the block: %q", block)
 	}
@@ -87,5 +88,46 @@ func TestCandidatesWithinLimits(t *testing.T) {
 				t.Errorf("%+v: ramp %+v ignores the rate band", o, r)
 			}
 		}
+	}
+}
+
+// The block records the run's carrier: parsed against the method switched
+// to hydrogen afterwards, the run still has the helium it was made with.
+func TestRunBlockKeepsTheCarrier(t *testing.T) {
+	m, err := methodfile.Parse("m.toml", []byte(sampleText(1, []sampleCompound{{"a", -40, -80}, {"b", -55, -100}})))
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := methodfile.Oven{InitialC: 40, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: 10, FinalC: 250}}}
+	block := RunBlock("scout-1", o, &m.Carrier, m.Limits, []string{"b", "a"})
+	if !strings.Contains(block, "[run.carrier]") || !strings.Contains(block, `gas = "helium"`) || !strings.Contains(block, "flow_ml_min = 1.2") {
+		t.Fatalf("no carrier in the block:\n%s", block)
+	}
+	if strings.Index(block, `# "b"`) > strings.Index(block, `# "a"`) {
+		t.Errorf("compounds not in the order given:\n%s", block)
+	}
+	h := m.Clone()
+	h.Carrier.Gas = model.Hydrogen
+	text := strings.Replace(block, "[run.width_min]", `"a" = 5.0`+"\n"+`"b" = 7.0`+"\n[run.width_min]", 1)
+	runs, err := methodfile.ParseRuns("r.toml", []byte(text), h)
+	if err != nil {
+		t.Fatalf("%v\n%s", err, text)
+	}
+	if g := h.RunMethod(&runs.Runs[0]).Carrier.Gas; g != model.Helium {
+		t.Errorf("run carrier %v, want helium", g)
+	}
+}
+
+// The planned run's name is not one the runs file has.
+func TestNextRunNameUnused(t *testing.T) {
+	runs := &methodfile.Runs{Runs: []methodfile.Run{{Name: "scout-4"}, {Name: "b"}, {Name: "scout-3"}}}
+	if got := NextRunName(Inject, runs); got != "scout-5" {
+		t.Errorf("got %q, want scout-5", got)
+	}
+	if got := NextRunName(Verify, runs); got != "verify-4" {
+		t.Errorf("got %q, want verify-4", got)
+	}
+	if got := NextRunName(Inject, nil); got != "scout-1" {
+		t.Errorf("got %q, want scout-1", got)
 	}
 }

@@ -1,0 +1,75 @@
+package plan
+
+import (
+	"context"
+	"math/rand/v2"
+	"strings"
+	"testing"
+
+	"github.com/rampwise/rampwise/model/methodfile"
+)
+
+// With no runs yet and a budget of 3, the first scouting run is a linear
+// ramp from the lowest oven start, designed with the one planned after it.
+func TestFirstRunPlannedWithTheNext(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the optimizer several times")
+	}
+	_, rough := newSample(t, 6016)
+	p, err := Next(context.Background(), rough, nil, Settings{Optimizer: testOptimizer})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Action != Inject {
+		t.Fatalf("action %s, want inject: %s", p.Action, p.Reason)
+	}
+	if p.Oven.InitialC != rough.Limits.OvenMinC || len(p.Oven.Ramps) != 1 {
+		t.Errorf("first run %+v: want one linear ramp from the lowest start %.1f °C", p.Oven, rough.Limits.OvenMinC)
+	}
+	if !strings.Contains(p.Reason, "planned after it") {
+		t.Errorf("the reason does not name the run planned after it: %s", p.Reason)
+	}
+	if err := p.Method.Validate(); err != nil {
+		t.Error(err)
+	}
+}
+
+// Two scouting runs made and a budget of 3: a program that holds the
+// margin is verified, however much faster one would be with the parameters
+// known; with a larger budget and no slack for slower programs, the same
+// knowledge asks for another scouting run instead.
+func TestBudgetDecidesVerifyOrScout(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the optimizer several times")
+	}
+	truth, rough := newSample(t, 6002)
+	l := &lab{truth: truth, rng: rand.New(rand.NewPCG(6002, 99))}
+	for i, r := range []float64{5, 20} {
+		o := methodfile.Oven{InitialC: 35, InitialHoldMin: 1, Ramps: []methodfile.Ramp{{RateCMin: r, FinalC: 300, HoldMin: 5}}}
+		if _, err := l.inject(string(rune('a'+i)), o); err != nil {
+			t.Fatal(err)
+		}
+	}
+	runs, err := l.runsFile(rough)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Next(context.Background(), rough, runs, Settings{Optimizer: testOptimizer, Injections: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Action != Verify {
+		t.Fatalf("budget 3 after 2 runs: action %s, want verify: %s", p.Action, p.Reason)
+	}
+	t.Logf("budget 3: verify %.2f min: %s", methodfile.ProgramToModel(p.Oven).RunTime()/60, p.Reason)
+	q, err := Next(context.Background(), rough, runs, Settings{Optimizer: testOptimizer, Injections: 6, Slower: 1e-9})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if q.Action != Inject {
+		t.Fatalf("budget 6, no slack: action %s, want inject: %s", q.Action, q.Reason)
+	}
+	if !strings.Contains(q.Reason, "with the parameters known") {
+		t.Errorf("the reason does not give the faster program's duration: %s", q.Reason)
+	}
+}
