@@ -146,11 +146,11 @@ func (d *verifyDialog) FullHelp() [][]key.Binding {
 }
 func (d *verifyDialog) View() string     { return strings.Join(d.lines, "\n") }
 func (d *verifyDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
-func (d *verifyDialog) rows() int        { return max(1, d.h-1-len(d.title())) }
+func (d *verifyDialog) rows() int        { return max(1, d.h-1-len(d.title(""))) }
 
 // wantRows: the title, the table head and every row; the chart gives
 // rows for them down to minDialogChartRows (App.heights).
-func (d *verifyDialog) wantRows() int   { return len(d.title()) + 1 + len(d.body()) }
+func (d *verifyDialog) wantRows() int   { return len(d.title("")) + 1 + len(d.body()) }
 func (d *verifyDialog) chartFloor() int { return minDialogChartRows }
 
 func (d *verifyDialog) Update(msg tea.Msg) (component, tea.Cmd) {
@@ -263,17 +263,21 @@ func (d *verifyDialog) nameWidth() int {
 
 func (d *verifyDialog) render() {
 	st := d.sh.st
-	title := d.title()
 	nw := d.nameWidth()
 	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-*s %s %8s %8s %7s  %-15s  %-9s", "#", nw, "compound", "t", "pred min", "meas min", "Δt min", " Rs pred   meas", "assigned"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
+	title := d.title("")
 	if len(body) > rows {
-		// where the rows are, on the first line it fits whole
-		pos := st.Dim.Render(fmt.Sprintf(" · rows %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body)))
+		// where the rows are, on the first line it fits whole (before
+		// the legend)
+		plain := fmt.Sprintf(" · rows %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))
+		pos := st.Dim.Render(plain)
 		if ansi.StringWidth(strings.TrimRight(head, " ")+pos) <= d.w {
 			head = strings.TrimRight(head, " ") + pos
+		} else if t := d.title(plain); strings.Contains(ansi.Strip(strings.Join(t, "\n")), plain) {
+			title = t
 		} else {
 			for i := range title {
 				if ansi.StringWidth(title[i]+pos) <= d.w {
@@ -288,11 +292,12 @@ func (d *verifyDialog) render() {
 	d.lines = fill(lines, d.h)
 }
 
-// title is the verdict with what fails it (the pair under the target or
+// title (with pos, the rows shown, before the legend) is the verdict
+// with what fails it (the pair under the target or
 // the targets not found), the measured critical pair, and a warning when
 // the measured times are far from the prediction (a run of another
 // program?), each wrapped whole; the legend follows when it fits whole.
-func (d *verifyDialog) title() []string {
+func (d *verifyDialog) title(pos string) []string {
 	st, ck := d.sh.st, d.v.ck
 	verdict := st.Good.Render("target met as measured")
 	if !ck.Met {
@@ -304,10 +309,14 @@ func (d *verifyDialog) title() []string {
 	}
 	rs += ", target " + format.Target(ck.Target)
 	head := st.Focused.Render("▸verification "+inert(ck.Run.Name)+": ") + verdict
-	legend := " · Δt = measured − predicted · * widths predicted · assigned: the confidence of an unnamed peak's match"
+	legend := pos + " · Δt = measured − predicted · * widths predicted · assigned: the confidence of an unnamed peak's match"
 	var lines []string
 	if one := head + st.Dim.Render(" · "+rs); ansi.StringWidth(one) <= d.w {
 		lines = []string{fitTitle(one, st.Dim, legend, d.w)}
+	} else if !math.IsNaN(ck.MinResolution) && ck.MinResolution < ck.Target {
+		// the verdict names the pair and its Rs already: no second line
+		lines = wrapStyled(head, d.w)
+		lines[len(lines)-1] = fitTitle(lines[len(lines)-1], st.Dim, legend, d.w)
 	} else {
 		lines = wrapStyled(head, d.w)
 		if second := wrapStyled(st.Dim.Render(" "+rs), d.w); len(second) > 1 {
