@@ -376,6 +376,5 @@ func (d *verifyDialog) offProgram() string {
 	if measured < 2 || 2*far <= measured {
 		return ""
 	}
-	return fmt.Sprintf("measured times differ from the prediction by up to %.1f min (%d of %d peaks by more than %g × the retention-time SD of %s min and their width): is this run of this program?",
-		worst, far, measured, float64(farFactor), format.Clean(sd))
+	return fmt.Sprintf("measured times differ from the prediction by up to %.1f min (%d of %d peaks): is this run of this program?", worst, far, measured)
 }
