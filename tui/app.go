@@ -13,6 +13,7 @@ import (
 
 	"github.com/rampwise/rampwise/model"
 	"github.com/rampwise/rampwise/model/checks"
+	"github.com/rampwise/rampwise/model/fsafe"
 	"github.com/rampwise/rampwise/model/methodfile"
 	"github.com/rampwise/rampwise/optimizer"
 )
@@ -48,8 +49,12 @@ const (
 
 // Options configure a new App.
 type Options struct {
-	Path    string // the method's file; "" for the built-in demo
-	Name    string // how to name it on screen
+	Path string // the method's file; "" for the built-in demo
+	Name string // how to name it on screen
+	// Text is the method's text as read (the demo's embedded text for the
+	// built-in demo); nil reads Path. A save to another file (W) changes
+	// only what changed in this text, as ctrl+s does in the file itself.
+	Text    []byte
 	Styles  *Styles
 	Guard   *Guard
 	NoColor bool
@@ -78,6 +83,11 @@ type App struct {
 	guard      *Guard
 	wrote      map[string]bool // files this session wrote or opened: replaced without asking
 	files      fileWatch       // the file on disk and the recovery file (filesafety.go)
+	// text is the method's text as loaded or last written (of the file
+	// textOf; "" for the demo's own text): the base a save to another
+	// file changes in place
+	text   []byte
+	textOf string
 
 	width, height int
 	ready         bool
@@ -131,6 +141,12 @@ func New(m *methodfile.Method, opt Options) (*App, error) {
 	}
 	if opt.Path != "" {
 		a.wrote[opt.Path] = true
+	}
+	a.text, a.textOf = opt.Text, opt.Path
+	if a.text == nil && opt.Path != "" {
+		if data, err := fsafe.ReadRegular(opt.Path, methodfile.MaxFileSize); err == nil {
+			a.text = data
+		}
 	}
 	if a.guard == nil {
 		a.guard = NewGuard(opt.Path)

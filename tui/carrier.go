@@ -129,7 +129,14 @@ func keepHoldup(m *methodfile.Method, tm float64) (string, error) {
 	exact := math.Sqrt(lo * hi)
 	// the keypad steps on either side (never zero), at the file's precision
 	best, bestT := 0.0, math.Inf(1)
-	for _, v := range []float64{math.Floor(exact/step) * step, math.Ceil(exact/step) * step} {
+	// (methodfile.OnStep, the one keypad rounding: the nearest step and
+	// the one beyond it on the exact value's other side)
+	near := methodfile.OnStep(exact, step)
+	other := methodfile.OnStep(near+step, step)
+	if near > exact {
+		other = methodfile.OnStep(near-step, step)
+	}
+	for _, v := range []float64{near, other} {
 		v = round(v, digits)
 		if !(v > 0) {
 			v = round(step, digits)

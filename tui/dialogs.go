@@ -107,13 +107,16 @@ func (d *confirmDialog) render() {
 // --- prompt: one line of text ---
 
 type promptDialog struct {
-	sh    *shared
-	note  string // how to type the value, shown whole under the title
-	ti    textinput.Model
-	done  func(text string) tea.Msg
-	keys  struct{ Enter, Cancel key.Binding }
-	w, h  int
-	lines []string
+	sh   *shared
+	note string // how to type the value, shown whole under the title
+	ti   textinput.Model
+	// the text it opened with is selected: the first key typed replaces
+	// it (backspace clears it), an arrow key starts editing it
+	selected bool
+	done     func(text string) tea.Msg
+	keys     struct{ Enter, Cancel key.Binding }
+	w, h     int
+	lines    []string
 }
 
 // maxPrompt is the longest text a prompt takes (a path can be long).
@@ -128,6 +131,7 @@ func newPrompt(sh *shared, prompt, value string, done func(text string) tea.Msg)
 	d.ti.SetValue(value)
 	d.ti.CursorEnd()
 	d.ti.Focus()
+	d.selected = value != ""
 	d.keys.Enter = bind([]string{"enter"}, "enter", "set")
 	d.keys.Cancel = bind([]string{"esc"}, "esc", "leave it")
 	return d
@@ -154,6 +158,10 @@ func (d *promptDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 			d.sh.send(closeMsg{}, sayMsg{msgInfo, "not changed"})
 			return d, nil
 		}
+		if d.selected && !d.unselect(msg) {
+			d.render()
+			return d, nil
+		}
 		d.ti, cmd = d.ti.Update(msg)
 	case refreshMsg:
 	default:
@@ -161,6 +169,23 @@ func (d *promptDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	}
 	d.render()
 	return d, cmd
+}
+
+// unselect ends the selection of the text the prompt opened with, as a
+// text field does: typed text (or a paste) replaces it, a key that deletes
+// clears it, any other key (an arrow, home, end) starts editing it. It
+// reports whether msg is still to be given to the input.
+func (d *promptDialog) unselect(msg tea.KeyMsg) bool {
+	d.selected = false
+	switch msg.Type {
+	case tea.KeyRunes, tea.KeySpace:
+		d.ti.SetValue("")
+		return true
+	case tea.KeyBackspace, tea.KeyDelete, tea.KeyCtrlU, tea.KeyCtrlK, tea.KeyCtrlW, tea.KeyCtrlH:
+		d.ti.SetValue("")
+		return false
+	}
+	return true
 }
 
 // render shows the input line and, when the text is wider than the line,
@@ -174,7 +199,14 @@ func (d *promptDialog) render() {
 			lines = append(lines, st.Dim.Render(l))
 		}
 	}
-	lines = append(lines, ansi.Truncate(d.ti.View(), d.w, "…"))
+	if d.selected {
+		// the text it opened with, marked as selected (brackets, so that
+		// it shows without colour too), and what a key does to it
+		lines = append(lines, ansi.Truncate(d.ti.PromptStyle.Render(d.ti.Prompt)+selected(st, inert(d.ti.Value())), d.w, "…"))
+		lines = append(lines, st.Dim.Render(ansi.Truncate(" typing replaces it · ←/→ edit it · backspace clears it", d.w, "…")))
+	} else {
+		lines = append(lines, ansi.Truncate(d.ti.View(), d.w, "…"))
+	}
 	v := inert(d.ti.Value())
 	if lipgloss.Width(v) > d.ti.Width {
 		lines = append(lines, st.Dim.Render(" in full:"))

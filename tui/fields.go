@@ -168,8 +168,21 @@ func (f field) stepped(m *methodfile.Method, n float64, big bool) *methodfile.Me
 	if f.integer {
 		v = float64(int(v))
 	}
+	if ks := f.keypad(c); ks > 0 {
+		v = methodfile.OnStep(v, ks) // what the oven takes
+	}
 	f.setValue(c, round(v, f.saved()))
 	return c
+}
+
+// keypad is the oven's keypad step of a program value ([limits]
+// temp_step_c, rate_step_c_min, hold_step_min, with their defaults), 0 for
+// any other field.
+func (f field) keypad(m *methodfile.Method) float64 {
+	if !strings.HasPrefix(f.key, "oven.") {
+		return 0
+	}
+	return m.Limits.Step(f.pv.Kind)
 }
 
 func sign(x float64) float64 {
@@ -179,33 +192,54 @@ func sign(x float64) float64 {
 	return 1
 }
 
-// typed returns a copy of m with the field set from text.
-func (f field) typed(m *methodfile.Method, text string) (*methodfile.Method, error) {
+// typed returns a copy of m with the field set from text. A program value
+// is put on the oven's keypad step (methodfile.OnStep: decimal rounding,
+// half-way values away from zero), so that what is shown and saved is
+// what the oven takes; note then says so for the status line ("12.345 →
+// 12.3 °C/min (the oven's step is 0.1)").
+func (f field) typed(m *methodfile.Method, text string) (c *methodfile.Method, note string, err error) {
+	c, v, err := f.typedValue(m, text)
+	if err != nil || c == nil || f.str != nil {
+		return c, "", err
+	}
+	if ks := f.keypad(c); ks > 0 && !(f.absent != nil && f.absent(c)) {
+		on := methodfile.OnStep(v, ks)
+		if on != v {
+			note = fmt.Sprintf("%s → %s %s (the oven's step is %s)", format.Clean(v), format.OnStep(on, ks), f.unit, trimNum(ks))
+		}
+		f.setValue(c, round(on, f.saved()))
+	}
+	return c, note, nil
+}
+
+// typedValue sets the field from text as typed, at the decimals it keeps,
+// and returns the number read.
+func (f field) typedValue(m *methodfile.Method, text string) (*methodfile.Method, float64, error) {
 	c := m.Clone()
 	text = strings.TrimSpace(text)
 	if f.str != nil {
 		for _, ch := range f.choices {
 			if strings.EqualFold(ch, text) {
 				f.setStr(c, ch)
-				return c, nil
+				return c, 0, nil
 			}
 		}
-		return nil, fmt.Errorf("%s: %q is not one of %s", f.key, text, strings.Join(f.choices, ", "))
+		return nil, 0, fmt.Errorf("%s: %q is not one of %s", f.key, text, strings.Join(f.choices, ", "))
 	}
 	if f.clear != nil && (text == "" || strings.EqualFold(text, noneWord)) {
 		f.clear(c)
-		return c, nil
+		return c, 0, nil
 	}
 	v, err := strconv.ParseFloat(text, 64)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %q is not a number", f.key, text)
+		return nil, 0, fmt.Errorf("%s: %q is not a number", f.key, text)
 	}
 	if f.integer && v != float64(int(v)) {
-		return nil, fmt.Errorf("%s: %q is not a whole number", f.key, text)
+		return nil, 0, fmt.Errorf("%s: %q is not a whole number", f.key, text)
 	}
 	// keep (and so show) only the decimals the file and the oven take
 	f.setValue(c, round(v, f.saved()))
-	return c, nil
+	return c, v, nil
 }
 
 // programFields lists the program's values: initial temperature and hold,
@@ -228,6 +262,11 @@ func programFields(m *methodfile.Method) []field {
 			field{key: base + ".hold_min", label: "hold", unit: "min", digits: 2, save: 3, step: 0.1, big: 1, ramp: i + 1, pv: model.ProgramValue{Kind: model.RampHold, Ramp: i + 1},
 				num: func(m *methodfile.Method) *float64 { return &m.Oven.Ramps[i].HoldMin }},
 		)
+	}
+	// a keypad step finer than the decimals shown widens them: what is
+	// shown is what is saved
+	for i := range fs {
+		fs[i].save = max(fs[i].save, format.StepDecimals(m.Limits.Step(fs[i].pv.Kind)))
 	}
 	return fs
 }

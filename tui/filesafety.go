@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"fmt"
 	"path/filepath"
 	"time"
 
@@ -92,11 +93,22 @@ func (m overwriteMsg) apply(a *App) tea.Cmd {
 type reloadMsg struct{ path string }
 
 func (m reloadMsg) apply(a *App) tea.Cmd {
-	fresh, err := methodfile.ReadFile(m.path)
+	data, err := fsafe.ReadRegular(m.path, methodfile.MaxFileSize)
+	var fresh *methodfile.Method
+	if err == nil {
+		fresh, err = methodfile.Parse(m.path, data)
+	}
+	if err != nil && data == nil {
+		_, err = methodfile.ReadFile(m.path) // its message names the file
+		if err == nil {
+			err = fmt.Errorf("%s changed while it was read; try again", m.path)
+		}
+	}
 	if err != nil {
 		a.say(msgError, "cannot reload: %s", inertErr(err))
 		return nil
 	}
+	a.text, a.textOf = data, m.path
 	a.undo = append(a.undo, a.sh.method)
 	a.saved = fresh
 	a.restore(fresh)

@@ -72,11 +72,15 @@ func (l *fieldList) key(msg tea.KeyMsg) bool {
 		f := fs[l.sel]
 		sh := l.sh
 		l.sh.send(openMsg{newPrompt(sh, fieldPrompt(f), f.text(sh.method), func(text string) tea.Msg {
-			m, err := f.typed(sh.method, text)
+			m, note, err := f.typed(sh.method, text)
 			if err != nil {
 				return sayMsg{msgError, err.Error() + " (kept the last valid value)"}
 			}
-			return fieldEdit(sh, f, m)
+			e := fieldEdit(sh, f, m)
+			if note != "" {
+				e.what += " · " + note
+			}
+			return e
 		})})
 	default:
 		return false
@@ -216,6 +220,7 @@ func (p *programPane) removeRamp() {
 	}
 	m := sh.method.Clone()
 	m.Oven.Ramps = append(m.Oven.Ramps[:r-1], m.Oven.Ramps[r:]...)
+	m.ElementRemoved("oven.ramp", r) // messages name the later ramps' own lines
 	if len(m.Oven.Ramps) == 0 && m.Oven.InitialHoldMin == 0 {
 		m.Oven.InitialHoldMin = 10
 	}

@@ -59,7 +59,8 @@ type (
 		m     *methodfile.Method
 		err   error
 		quit  bool
-		fresh bool // an existing method's text could not be kept: written anew
+		fresh bool   // an existing method's text could not be kept: written anew
+		data  []byte // the text written
 	}
 	exportOutcome struct {
 		base    string
@@ -187,12 +188,21 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 
 // --- save ---
 
+// demoFileName is the name the save-as prompt offers for the built-in demo.
+const demoFileName = "demo.toml"
+
 func (a *App) saveAsPrompt(quit bool) component {
 	prompt := "save as: "
 	if quit {
 		prompt = "save as (then quit): "
 	}
-	return newPrompt(&a.sh, prompt, a.path, func(text string) tea.Msg { return saveAsMsg{path: strings.TrimSpace(text), quit: quit} })
+	// The current file's name (the demo's own for the built-in demo),
+	// selected: typing a path replaces it, an arrow key edits it.
+	name := a.path
+	if name == "" {
+		name = demoFileName
+	}
+	return newPrompt(&a.sh, prompt, name, func(text string) tea.Msg { return saveAsMsg{path: strings.TrimSpace(text), quit: quit} })
 }
 
 // saveAs saves to a typed path, asking first when that is an existing file
@@ -230,13 +240,24 @@ func (a *App) startSave(path string, quit bool) tea.Cmd {
 		return nil
 	}
 	m := a.sh.method
+	// The base text: the file's own when saving to the file the text came
+	// from (as it is on disk now, so that what another program added there
+	// stays); else (save as, the demo) the text loaded or last written, so
+	// that the new file is the user's text with only the changes placed,
+	// never a freshly written one.
+	text, same := a.text, a.textOf != "" && samePath(path, a.textOf)
 	j, cmd := a.startJob("saving "+inert(path), func(ctx context.Context) any {
-		existed := false
-		if fp, err := fsafe.Take(path); err == nil && fp.Exists {
-			existed = true
+		base := text
+		if same {
+			if cur, err := fsafe.ReadRegular(path, methodfile.MaxFileSize); err == nil {
+				base = cur
+			}
 		}
-		kept, err := methodfile.Save(path, nil, m)
-		return saveOutcome{path: path, m: m, err: err, quit: quit, fresh: existed && !kept}
+		if base == nil {
+			base = []byte{} // never the target's text (nil would read it)
+		}
+		data, kept, err := methodfile.SaveText(path, base, m)
+		return saveOutcome{path: path, m: m, data: data, err: err, quit: quit, fresh: len(base) > 0 && !kept}
 	})
 	j.save = true
 	return cmd
@@ -248,6 +269,12 @@ func (a *App) saveDone(v saveOutcome) tea.Cmd {
 		return nil
 	}
 	a.path, a.name, a.saved = v.path, v.path, v.m
+	a.text, a.textOf = v.data, v.path
+	if a.sh.method == v.m && v.data != nil {
+		// messages name the file as it now is: its name and its lines
+		a.sh.method = v.m.Located(v.path, v.data)
+		a.saved = a.sh.method
+	}
 	a.wrote[v.path] = true
 	a.savedFile(v.path)
 	a.guard.update(a.path, a.sh.method, a.Dirty())

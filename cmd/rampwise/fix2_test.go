@@ -184,7 +184,7 @@ func TestOptimizeTableAgreesWithVerdict(t *testing.T) {
 // (robust.CornerName, "plate height +10 %", the minus sign −), and the
 // margin's price as durations, never "-53 % longer".
 func TestPlanWording(t *testing.T) {
-	re := regexp.MustCompile(`\((\d+) pairs? that (is|are) or could become critical weighed\)`)
+	re := regexp.MustCompile(`\((\d+) pairs? of compounds weighed that (is|are) or could become critical`)
 	for _, f := range []string{"../../testdata/demo-porous-layer.toml", "../../testdata/demo-packed.toml"} {
 		m, err := methodfile.ReadFile(f)
 		if err != nil {

@@ -53,6 +53,7 @@ Flags:
 `
 
 type carrierJSON struct {
+	Gas       string   `json:"gas"`
 	Mode      string   `json:"mode"`
 	FlowMLMin *float64 `json:"flow_ml_min,omitempty"`
 	InletKPa  *float64 `json:"inlet_kpa,omitempty"`
@@ -83,7 +84,7 @@ type planJSON struct {
 }
 
 func carrierToJSON(c methodfile.Carrier) carrierJSON {
-	j := carrierJSON{Mode: c.Mode.String()}
+	j := carrierJSON{Gas: c.Gas.String(), Mode: c.Mode.String()}
 	if c.Mode == model.ConstantPressure {
 		j.InletKPa = &c.InletKPa
 	} else {
@@ -181,8 +182,19 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 	}
 	fmt.Fprintf(w, "carrier: %s\n", describeCarrier(p.Carrier))
 	if !math.IsInf(p.ExpectedMinResolution, 0) && !math.IsNaN(p.ExpectedMinResolution) {
-		fmt.Fprintf(w, "optimized program: predicted min Rs %.2f ± %.2f (target %.2f, %s)\n", p.ExpectedMinResolution, p.ExpectedSD, m.Goal.MinResolution,
+		sd := fmt.Sprintf("± %.2f", p.ExpectedSD)
+		if p.ExpectedSD > 10 {
+			sd = "± more than 10 (the parameters are only rough)"
+		}
+		fmt.Fprintf(w, "optimized program: predicted min Rs %.2f %s (target %.2f, %s)\n", p.ExpectedMinResolution, sd, m.Goal.MinResolution,
 			textsafe.Inert(strings.Join(p.CriticalPair[:], " / ")))
+	}
+	if p.Action == plan.Done && len(p.Optimized.Ramps) > 0 && !sameOven(p.Optimized, p.Oven) &&
+		methodfile.ProgramToModel(p.Optimized).RunTime() < 0.98*methodfile.ProgramToModel(p.Oven).RunTime() {
+		fmt.Fprintln(w, "a faster program now optimized (verify it too if the time matters):")
+		for _, l := range plan.KeypadLines(p.Optimized, m.Limits) {
+			fmt.Fprintf(w, "  %s\n", l)
+		}
 	}
 	if len(p.Estimated) > 0 {
 		var names []string
@@ -209,7 +221,15 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 func planWarnings(p *plan.Plan) []string {
 	out := []string{}
 	if p.Fit != nil {
-		out = append(out, p.Fit.Warnings...)
+		for _, w := range p.Fit.Warnings {
+			// the fit leaves such a compound as it was; the planner
+			// does not: it updates it from that one run, the method's
+			// value as the prior
+			if strings.HasSuffix(w, ": seen in one run only; parameters not fitted") {
+				w += " (plan updates them from that run, with the method's values as the prior)"
+			}
+			out = append(out, w)
+		}
 	}
 	return out
 }
@@ -219,4 +239,17 @@ func describeCarrier(c methodfile.Carrier) string {
 		return fmt.Sprintf("%s, constant pressure %.1f kPa", c.Gas, c.InletKPa)
 	}
 	return fmt.Sprintf("%s, constant flow %.2f mL/min", c.Gas, c.FlowMLMin)
+}
+
+// sameOven reports whether two programs are the same step for step.
+func sameOven(a, b methodfile.Oven) bool {
+	if a.InitialC != b.InitialC || a.InitialHoldMin != b.InitialHoldMin || len(a.Ramps) != len(b.Ramps) {
+		return false
+	}
+	for i := range a.Ramps {
+		if a.Ramps[i] != b.Ramps[i] {
+			return false
+		}
+	}
+	return true
 }

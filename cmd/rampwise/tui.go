@@ -33,8 +33,10 @@ the recovery file is kept until the method is saved. The ctrl+c key is like
 q: with unsaved changes it asks (s save and quit, d discard and quit, esc
 stay).
 
-A save changes only what changed, in the file's own text (comments and
-layout kept), and writes through a symlink to its target. If the file was
+A save changes only what changed, in the file's own text (comments,
+layout and quotes kept), and writes through a symlink to its target; W
+(save as) writes that text, so changed, to the new name (the demo's own
+text for the demo). If the file was
 changed on disk since it was loaded, a save asks: overwrite, save as, or
 reload.
 `
@@ -60,7 +62,11 @@ func runTUI(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	guard := tui.NewGuard(file)
-	app, err := tui.New(m, tui.Options{Path: file, Name: name, Guard: guard, NoColor: *noColor})
+	var text []byte // the file's text is read by the UI; the demo's is built in
+	if file == "" {
+		text = demoMethod
+	}
+	app, err := tui.New(m, tui.Options{Path: file, Name: name, Text: text, Guard: guard, NoColor: *noColor})
 	if err != nil {
 		return bad(fmt.Errorf("%s: %v", name, err))
 	}

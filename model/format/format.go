@@ -6,7 +6,9 @@ package format
 
 import (
 	"math"
+	"math/big"
 	"strconv"
+	"strings"
 )
 
 // Unit labels.
@@ -166,12 +168,35 @@ func StepDecimals(step float64) int {
 
 // OnStep is x rounded to the nearest multiple of step and written at the
 // step's precision: OnStep(82.25, 0.1) is "82.3", never 82.30000000000001.
-// With no step (0) it is Clean(x).
+// The rounding is decimal, on the number as written (its shortest
+// decimal form), half-way values away from zero, as a person rounds:
+// 12.35 is 12.4 and 1.005 is 1.01 on steps of 0.1 and 0.01, although in
+// binary 12.35 is 12.3499999… and a binary rounding gives 12.3. With no
+// step (0) it is Clean(x).
 func OnStep(x, step float64) string {
-	if !(step > 0) || math.IsNaN(x) || math.IsInf(x, 0) {
+	if !(step > 0) || math.IsNaN(x) || math.IsInf(x, 0) || math.IsInf(step, 0) {
 		return Clean(x)
 	}
-	return strconv.FormatFloat(math.Round(x/step)*step, 'f', StepDecimals(step), 64)
+	d := StepDecimals(step)
+	xr, ok1 := new(big.Rat).SetString(strconv.FormatFloat(x, 'g', -1, 64))
+	sr, ok2 := new(big.Rat).SetString(strconv.FormatFloat(step, 'g', -1, 64))
+	if !ok1 || !ok2 {
+		return strconv.FormatFloat(math.Round(x/step)*step, 'f', d, 64)
+	}
+	q := new(big.Rat).Quo(xr, sr)
+	// n = round(|q|) half up = floor((2·num + den) / (2·den)), signed
+	num := new(big.Int).Abs(q.Num())
+	den := new(big.Int).Lsh(q.Denom(), 1)
+	n := new(big.Int).Quo(num.Add(num.Lsh(num, 1), q.Denom()), den)
+	if q.Sign() < 0 {
+		n.Neg(n)
+	}
+	v := new(big.Rat).Mul(new(big.Rat).SetInt(n), sr)
+	out := v.FloatString(d)
+	if strings.Trim(out, "-0.") == "" {
+		out = strings.TrimPrefix(out, "-") // no "-0.0"
+	}
+	return out
 }
 
 // Clean is a computed number for a message: at most 12 significant digits,

@@ -58,7 +58,13 @@ func TestOnStepAndClean(t *testing.T) {
 	for _, c := range []struct {
 		x, step float64
 		want    string
-	}{{82.25, 0.1, "82.3"}, {308.95, 0.1, "308.9"}, {82.30000000000001, 0.1, "82.3"}, {6.942, 0.01, "6.94"}, {12, 0.25, "12.00"}, {37, 5, "35"}} {
+	}{{82.25, 0.1, "82.3"}, {82.30000000000001, 0.1, "82.3"}, {6.942, 0.01, "6.94"}, {12, 0.25, "12.00"}, {37, 5, "35"},
+		// half-way values round in decimal, away from zero, as written
+		// (in binary 308.95 and 12.35 lie just below the half-way point
+		// and 1.005 too; a float rounding gives 308.9, 12.3 and 1.00)
+		{308.95, 0.1, "309.0"}, {12.35, 0.1, "12.4"}, {-12.35, 0.1, "-12.4"}, {1.005, 0.01, "1.01"},
+		{12.345, 0.1, "12.3"}, {50.04, 0.1, "50.0"}, {240.06, 0.1, "240.1"}, {0.375, 0.25, "0.50"},
+		{-0.04, 0.1, "0.0"}, {1e-7, 0.1, "0.0"}, {0.035, 0.01, "0.04"}} {
 		if got := OnStep(c.x, c.step); got != c.want {
 			t.Errorf("OnStep(%v, %v) = %q, want %q", c.x, c.step, got, c.want)
 		}

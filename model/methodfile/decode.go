@@ -94,11 +94,16 @@ func readLimited(path string) ([]byte, error) {
 type Locations map[string]int
 
 // Line is the line of path, or of the nearest enclosing table written in the
-// file, or 0.
+// file, or 0. An element of an array of tables that the file does not have
+// (a ramp added in the UI: oven.ramp[5] of a file with 4) has no line: the
+// array's other elements are no place of its keys.
 func (l Locations) Line(path string) int {
 	for path != "" {
 		if n, ok := l[path]; ok {
 			return n
+		}
+		if strings.HasSuffix(path, "]") {
+			return 0 // an element not in the file
 		}
 		i := strings.LastIndexAny(path, ".[")
 		if i < 0 {
@@ -107,6 +112,51 @@ func (l Locations) Line(path string) int {
 		path = path[:i]
 	}
 	return 0
+}
+
+// Located is a copy of m whose messages name the file name and the lines
+// of its keys in data, the text m was just saved as (the lines of a file
+// written anew are not those of the file it was read from).
+func (m *Method) Located(name string, data []byte) *Method {
+	c := m.Clone()
+	c.file, c.loc = name, locate(data)
+	return c
+}
+
+// ElementRemoved tells m that element n (from 1) of the array of tables
+// array ("oven.ramp", "compound") was removed from it, so that messages
+// name the lines of the elements that follow as the file has them (the
+// element n+1 of the file is now element n).
+func (m *Method) ElementRemoved(array string, n int) {
+	if m.loc == nil {
+		return
+	}
+	loc := make(Locations, len(m.loc)) // a clone shares the map: never edit it
+	pre := array + "["
+	for k, v := range m.loc {
+		if !strings.HasPrefix(k, pre) {
+			loc[k] = v
+			continue
+		}
+		var j int
+		end := strings.IndexByte(k[len(pre):], ']')
+		if end < 0 {
+			loc[k] = v
+			continue
+		}
+		if _, err := fmt.Sscanf(k[len(pre):len(pre)+end], "%d", &j); err != nil {
+			loc[k] = v
+			continue
+		}
+		rest := k[len(pre)+end+1:]
+		switch {
+		case j < n:
+			loc[k] = v
+		case j > n:
+			loc[fmt.Sprintf("%s%d]%s", pre, j-1, rest)] = v
+		}
+	}
+	m.loc = loc
 }
 
 // locate records the line of every table header and key in a TOML document.

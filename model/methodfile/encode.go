@@ -231,6 +231,14 @@ func WriteFile(path string, m *Method) error {
 // current content of path, if it is a regular file. It reports whether the
 // base's text was kept (false: written fresh, comments not kept).
 func Save(path string, base []byte, m *Method) (kept bool, err error) {
+	_, kept, err = SaveText(path, base, m)
+	return kept, err
+}
+
+// SaveText is Save that also returns the text written (nil when nothing
+// was): the base of the next save of the same method (the UI's save as
+// keeps the text it loaded or last wrote).
+func SaveText(path string, base []byte, m *Method) (written []byte, kept bool, err error) {
 	if base == nil {
 		if cur, err := fsafe.ReadRegular(path, MaxFileSize); err == nil {
 			base = cur
@@ -238,16 +246,19 @@ func Save(path string, base []byte, m *Method) (kept bool, err error) {
 	}
 	data, kept, err := Update(path, base, m)
 	if err != nil {
-		return false, fmt.Errorf("%s: %v", path, err)
+		return nil, false, fmt.Errorf("%s: %v", path, err)
 	}
 	// Check what we write reads back before it replaces anything (Update
 	// has already checked a text it kept).
 	if !kept {
 		if _, err := Parse(path, data); err != nil {
-			return false, fmt.Errorf("refusing to save an invalid method: %v", err)
+			return nil, false, fmt.Errorf("refusing to save an invalid method: %v", err)
 		}
 	}
-	return kept, WriteAtomic(path, data)
+	if err := WriteAtomic(path, data); err != nil {
+		return nil, kept, err
+	}
+	return data, kept, nil
 }
 
 // WriteAtomic writes data to path without ever leaving a half-written

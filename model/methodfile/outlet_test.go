@@ -59,14 +59,15 @@ func TestOutletRoundTrip(t *testing.T) {
 		if err != nil || back.Carrier.Outlet != o {
 			t.Errorf("%s: Marshal → Parse gives %v (%v)", word, back.Carrier.Outlet, err)
 		}
-		// an edit of the outlet alone changes that one line of the file
+		// an edit of the outlet alone changes that one line of the file,
+		// in the file's own quotes
 		d := demo.Clone()
 		d.Carrier.Outlet = o
 		saved, inPlace, err := Update(demoPath, []byte(text), d)
 		if err != nil || !inPlace {
 			t.Fatalf("%s: Update in place %v: %v", word, inPlace, err)
 		}
-		if want := strings.Replace(text, atm, "outlet = '"+word+"'", 1); word != "atmospheric" && string(saved) != want {
+		if want := strings.Replace(text, atm, `outlet = "`+word+`"`, 1); word != "atmospheric" && string(saved) != want {
 			t.Errorf("%s: the saved file is not the demo with its outlet line changed:\n%s", word, saved)
 		} else if word == "atmospheric" && string(saved) != text {
 			t.Errorf("%s: saving the demo unchanged changed it:\n%s", word, saved)

@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 
+	"github.com/pelletier/go-toml/v2"
 	"github.com/pelletier/go-toml/v2/unstable"
 )
 
@@ -379,7 +380,7 @@ func (p *patcher) table(at, bt, ot *ttable, where *ttable) bool {
 			}
 		}
 		if okv := p.okv(ot, tpath, bk.rel); okv != nil {
-			p.add(okv.valStart, okv.valEnd, keepSpelling(string(p.o.data[okv.valStart:okv.valEnd]), bv))
+			p.add(okv.valStart, okv.valEnd, keepSpelling(string(p.o.data[okv.valStart:okv.valEnd]), bv, p.eol != "\n"))
 			continue
 		}
 		if ot != nil && ot.hasFolded(bk.rel) {
@@ -699,9 +700,138 @@ func (p *patcher) apply(orig []byte) []byte {
 // keepSpelling writes a new number the way the file wrote the old one where
 // that means the same: a whole number stays without ".0" if the file wrote
 // it so (30, not 30.0).
-func keepSpelling(old, new string) string {
+func keepSpelling(old, new string, crlf bool) string {
 	if strings.HasSuffix(new, ".0") && old != "" && strings.Trim(old, "+-0123456789_") == "" {
 		return strings.TrimSuffix(new, ".0")
 	}
-	return new
+	return keepQuotes(old, new, crlf)
+}
+
+// keepQuotes writes a new string value (or an array of strings) in the
+// quote style of the value it replaces, wherever the new text can be
+// written so: gas = "helium" becomes gas = "hydrogen", not 'hydrogen'. The
+// styles are basic ("..."), literal ('...') and their multi-line forms
+// (three quotes of either kind). A value the old style cannot hold keeps the new
+// text as it is. In a file with CRLF line ends a multi-line string gets
+// no raw newline (the file's line end would become part of the value).
+func keepQuotes(old, new string, crlf bool) string {
+	style := quoteStyle(old)
+	if style == "" || !strings.ContainsAny(new, `"'`) {
+		return new
+	}
+	if !strings.HasPrefix(new, "[") {
+		s, ok := decodeString(new)
+		if !ok {
+			return new
+		}
+		if out, ok := quoteAs(s, style, strings.HasPrefix(old, style+"\n") || strings.HasPrefix(old, style+"\r\n"), crlf); ok {
+			return out
+		}
+		return new
+	}
+	if len(style) == 3 {
+		return new // an array of multi-line strings: left as written
+	}
+	// An array: each string element in the old style.
+	var b strings.Builder
+	for i := 0; i < len(new); {
+		c := new[i]
+		if c != '"' && c != '\'' {
+			b.WriteByte(c)
+			i++
+			continue
+		}
+		end := stringEnd(new, i)
+		if end < 0 {
+			return new
+		}
+		tok := new[i:end]
+		if s, ok := decodeString(tok); ok {
+			if out, ok := quoteAs(s, style, false, crlf); ok {
+				tok = out
+			}
+		}
+		b.WriteString(tok)
+		i = end
+	}
+	return b.String()
+}
+
+// quoteStyle is the opening quote of the first string in a value ("" when
+// it has none before anything else).
+func quoteStyle(v string) string {
+	v = strings.TrimLeft(v, "[ \t")
+	for _, q := range []string{`"""`, "'''", `"`, "'"} {
+		if strings.HasPrefix(v, q) {
+			return q
+		}
+	}
+	return ""
+}
+
+// stringEnd is the end of the single-line string starting at s[i], or -1.
+func stringEnd(s string, i int) int {
+	q := s[i]
+	for j := i + 1; j < len(s); j++ {
+		switch {
+		case q == '"' && s[j] == '\\':
+			j++
+		case s[j] == q:
+			return j + 1
+		}
+	}
+	return -1
+}
+
+// decodeString reads one TOML string value.
+func decodeString(v string) (string, bool) {
+	var x struct{ V string }
+	if err := toml.Unmarshal([]byte("V = "+v), &x); err != nil {
+		return "", false
+	}
+	return x.V, true
+}
+
+// quoteAs writes s in the quote style q when it can hold s exactly; lead
+// puts a newline after a multi-line string's opening quotes (as the file
+// did; it is not part of the value).
+func quoteAs(s, q string, lead, crlf bool) (string, bool) {
+	var body string
+	switch q {
+	case `"`, `"""`:
+		var b strings.Builder
+		for _, r := range s {
+			switch {
+			case r == '"' || r == '\\':
+				b.WriteByte('\\')
+				b.WriteRune(r)
+			case r == '\n' && q == `"""` && !crlf:
+				b.WriteRune(r)
+			case r == '\n':
+				b.WriteString(`\n`)
+			case r == '\t':
+				b.WriteString(`\t`)
+			case r < 0x20 || r == 0x7f:
+				fmt.Fprintf(&b, `\u%04X`, r)
+			default:
+				b.WriteRune(r)
+			}
+		}
+		body = b.String()
+	default:
+		for _, r := range s {
+			if r == '\'' || (r < 0x20 && r != '\t' && !(r == '\n' && len(q) == 3 && !crlf)) || r == 0x7f {
+				return "", false
+			}
+		}
+		body = s
+	}
+	if len(q) == 3 && (lead || strings.HasPrefix(s, "\n")) {
+		body = "\n" + body
+	}
+	out := q + body + q
+	if got, ok := decodeString(out); !ok || got != s {
+		return "", false
+	}
+	return out, true
 }

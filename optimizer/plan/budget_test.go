@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/rampwise/rampwise/model/methodfile"
+	"github.com/rampwise/rampwise/optimizer"
 )
 
 // With no runs yet and a budget of 3, the first scouting run is a linear
@@ -71,5 +72,36 @@ func TestBudgetDecidesVerifyOrScout(t *testing.T) {
 	}
 	if !strings.Contains(q.Reason, "with the parameters known") {
 		t.Errorf("the reason does not give the faster program's duration: %s", q.Reason)
+	}
+}
+
+// The advice does not depend on the program the method happens to hold:
+// with the demo's oven set to the program plan advised for verification,
+// plan still advises a verification, of a program no slower.
+func TestAdviceIndependentOfTheMethodsProgram(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the optimizer several times")
+	}
+	m, err := methodfile.ReadFile("../../testdata/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := Settings{Optimizer: optimizer.Settings{Workers: 1}} // the command's effort
+	p, err := Next(context.Background(), m, nil, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Action != Verify {
+		t.Fatalf("demo: action %s, want verify: %s", p.Action, p.Reason)
+	}
+	m2 := m.Clone()
+	m2.Oven = p.Oven
+	q, err := Next(context.Background(), m2, nil, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d1, d2 := methodfile.ProgramToModel(p.Oven).RunTime(), methodfile.ProgramToModel(q.Oven).RunTime()
+	if q.Action != Verify || d2 > d1*1.001 {
+		t.Errorf("with the advised program as the method's: %s of %.2f min (first advice %.2f min): %s", q.Action, d2/60, d1/60, q.Reason)
 	}
 }

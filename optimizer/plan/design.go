@@ -330,7 +330,8 @@ func (st *state) continued(opt methodfile.Oven, sl scoutLimits) []methodfile.Ove
 		if n := len(o.Ramps); n > 0 {
 			last, rate = o.Ramps[n-1].FinalC, o.Ramps[n-1].RateCMin
 		}
-		if last < sl.highC {
+		// a last step of a few degrees only is no ramp: end there
+		if last < sl.highC-5 {
 			o.Ramps = append(o.Ramps, methodfile.Ramp{RateCMin: math.Min(rate, sl.rateTo(sl.highC)), FinalC: sl.highC})
 		}
 		out = append(out, st.finish(o, sl))

@@ -196,7 +196,11 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	var robust *evaluation
 	var robustOven methodfile.Oven
 	tried := []methodfile.Oven{nomOven} // programs the search went to
-	vm := &verifyMargin{z: nominal.z, widthScatter: s.WidthScatter}
+	// the optimizer's margin starts at the planner's z; it is raised to a
+	// program's own count of pairs near the target once one is found (the
+	// count at the bare optimum, where many pairs only just meet the
+	// target, would make it depend on where the search began)
+	vm := &verifyMargin{z: z, widthScatter: s.WidthScatter}
 	if nominal.ok {
 		robust, robustOven = nominal, nomOven
 	} else if feasible {
@@ -302,6 +306,15 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			o = po
 		}
 	}
+	// the method's own program, when it keeps every limit and holds the
+	// margin, is a robust program too: the advice never asks for a slower
+	// one than the program the user already has
+	if own := onSteps(st.m.Oven, st.m.Limits); len(own.Ramps) > 0 && st.withOven(own).Validate() == nil {
+		if ev, err := st.evaluate(own, z, s.WidthScatter); err == nil && ev.ok && (robust == nil || st.duration(own) < st.duration(robustOven)) {
+			robust, robustOven = ev, own
+			tried = append(tried, own)
+		}
+	}
 	best, bestOven := nominal, nomOven
 	if robust != nil {
 		best, bestOven = robust, robustOven
@@ -402,6 +415,8 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			st.duration(robustOven)/60, robust.minRs, robust.sd, robust.sp, st.duration(knownOven)/60)
 	}
 	bestOven, best = nomOven, nominal
+	// the figures reported are those of the program the reason speaks of
+	p.Optimized, p.ExpectedMinResolution, p.ExpectedSD, p.CriticalPair = nomOven, nominal.minRs, nominal.sd, nominal.pair
 
 	// inject: the scouting run that shrinks the Rs variance the most
 	// where the optimum could be: the optimized programs of a few draws of
@@ -437,13 +452,16 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	why := fmt.Sprintf("the predicted min Rs %.2f of the optimized program is uncertain by %s (%s): it must clear the target %.2f by %.1f standard deviations",
 		best.minRs, pm(best.sd), strings.Join(best.pair[:], " / "), target, z)
 	if !best.feasible {
-		why = fmt.Sprintf("with the current parameters no program reaches the target %.2f (best min Rs %.2f %s, %s), but they are uncertain",
+		why = fmt.Sprintf("with the current parameters no program within the limits meets the target %.2f with the method's margin ([goal.robust]; best min Rs %.2f %s, %s), but they are uncertain",
 			target, best.minRs, pm(best.sd), strings.Join(best.pair[:], " / "))
 	} else if best.sdOK && best.cornerText != "" {
 		why = fmt.Sprintf("the optimized program's predicted min Rs %.2f ± %.2f does not hold at every instrument tolerance%s", best.minRs, best.sd, best.cornerText)
 	}
-	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%s that %s or could become critical weighed)",
+	p.Reason = fmt.Sprintf("%s%s; this scouting run is expected to shrink the parameters' part of that to ± %.2f (%s of compounds weighed that %s or could become critical, those whose order may swap included)",
 		why, robustNote, d.sdAfter, pairsText(d.pairs), isAre(d.pairs))
+	if made+1 > s.Injections {
+		p.Reason += fmt.Sprintf("; this run goes beyond the budget of %d injections (--injections), since no program holds the margin yet", s.Injections)
+	}
 	if ahead > 0 && len(d.next.Ramps) > 0 {
 		p.Reason += fmt.Sprintf(", and with the scouting run planned after it (%s) to ± %.2f", rampText(d.next), d.nextSDAfter)
 	}
