@@ -117,6 +117,7 @@ type App struct {
 	rows       rowCount           // of the root's own lines, as last drawn
 	cautionsOf *methodfile.Method // the method sh.cautions belong to
 	quitQ      component          // the last quit question
+	laid       [2]int             // the chart's and lower pane's heights as last laid out
 }
 
 type cachedView struct {
@@ -666,6 +667,9 @@ func (a *App) open(d component) {
 	}
 	was := a.overlay
 	a.overlay = d
+	if a.ready && wantsRows(d) {
+		d.SetSize(a.width, a.height) // its width, for the rows it wants
+	}
 	a.resizeFor(was)
 }
 
@@ -757,22 +761,54 @@ const minLowerRows = 3
 
 // heights are the chart's and the lower pane's (dialog's) rows.
 // A dialog that needs more rows than the lower pane has (the optimizer's
-// result on 80×24) takes them from the chart, which keeps minChartRows.
+// result, the fit review, the plan, the verification run on 80×24) takes
+// them from the chart, which keeps its floor (rowsFloor, at least
+// minChartRows); so do the settings when their safety text would leave
+// too few setting rows.
 func (a *App) heights() (chartH, lowerH int) {
 	base := a.height - a.rows.fixed()
 	chartH = chartRows(base)
 	lowerH = max(minLowerRows, base-chartH-a.rows.message)
-	if w, ok := a.overlay.(interface{ wantRows() int }); ok {
-		if give := min(w.wantRows()-lowerH, chartH-minChartRows); give > 0 {
-			chartH, lowerH = chartH-give, lowerH+give
-		}
+	want, floor := a.wanted()
+	if give := min(want-lowerH, chartH-floor); want > 0 && give > 0 {
+		chartH, lowerH = chartH-give, lowerH+give
 	}
 	return chartH, lowerH
+}
+
+// wanted is the rows the open dialog (or, with none, the settings) would
+// like below the chart, and the least the chart keeps for them; 0 rows
+// when they want none beyond their share.
+func (a *App) wanted() (want, floor int) {
+	if a.overlay != nil {
+		w, ok := a.overlay.(interface{ wantRows() int })
+		if !ok {
+			return 0, minChartRows
+		}
+		floor = minChartRows
+		if f, ok := a.overlay.(interface{ chartFloor() int }); ok {
+			floor = f.chartFloor()
+		}
+		return w.wantRows(), floor
+	}
+	if a.lower == paneSettings {
+		return a.settings.wantRows(a.width), minPaneChartRows
+	}
+	return 0, minChartRows
 }
 
 // minChartRows is the least the chart keeps when a dialog needs its rows:
 // its heading, three rows of plot and the time axis.
 const minChartRows = 5
+
+// minDialogChartRows is the least the chart keeps for a dialog that
+// lists many rows (the plan, the verification run): its heading, two rows
+// of plot and the time axis.
+const minDialogChartRows = 4
+
+// minPaneChartRows is the least the chart keeps for the settings when
+// their safety text needs the rows.
+const minPaneChartRows = 4
 
 // wantsRows reports whether d takes rows from the chart when it needs them.
 func wantsRows(d component) bool {
@@ -790,6 +826,14 @@ func chartRows(base int) int {
 	return max(3, min(max(7, h), base-minLowerRows))
 }
 
+// layoutKey is what the children's sizes depend on beyond the root's
+// rows: the chart's and the lower pane's heights (the settings' safety
+// text, a pane switch and an open dialog change them).
+func (a *App) layoutKey() [2]int {
+	c, l := a.heights()
+	return [2]int{c, l}
+}
+
 // layout gives every child its size (the resize fan-out).
 func (a *App) layout() {
 	a.help.Width = a.width
@@ -798,6 +842,7 @@ func (a *App) layout() {
 	}
 	a.measure()
 	chartH, lowerH := a.heights()
+	a.laid = a.layoutKey()
 	a.program.SetSize(a.width, a.rows.program)
 	a.chart.SetSize(a.width, chartH)
 	a.peaks.SetSize(a.width, lowerH)
@@ -836,6 +881,12 @@ func (a *App) measure() bool {
 	base := a.height - a.rows.fixed()
 	chartH := chartRows(base)
 	n := max(0, min(maxMessageRows, base-chartH-minLowerRows))
+	if want, floor := a.wanted(); want > 0 {
+		// what needs the rows below the chart (the settings' safety text
+		// and setting rows, a dialog's list) comes before the message's
+		// later lines; the first stays (! shows it all)
+		n = min(n, max(1, base-floor-want))
+	}
 	if _, ok := a.overlay.(*cautionsDialog); ok {
 		n = 0 // the list shows the message whole
 	}
@@ -856,7 +907,7 @@ func (a *App) refresh() {
 	if !a.ready || a.width < MinWidth || a.height < MinHeight {
 		return
 	}
-	if a.measure() {
+	if a.measure() || a.laid != a.layoutKey() {
 		a.layout()
 	}
 	for p := 0; p < paneCount; p++ {

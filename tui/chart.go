@@ -224,6 +224,9 @@ func (c *chart) render(in chartInput, w, h int, st *Styles) []string {
 func (c *chart) measured(in chartInput, base, dw, dh int, t0, span, ymax float64) {
 	top := base + 8 // a text row apart, for the joins
 	if top >= dh-1 {
+		top = base + 1 // a short chart (a dialog took its rows): right below
+	}
+	if top >= dh-1 {
 		return
 	}
 	// on the prediction's scale: its trace at 1 for the tallest point shown

@@ -320,6 +320,10 @@ func (d *fitDialog) SetSize(w, h int)          { d.w, d.h = w, h; d.render() }
 
 func (d *fitDialog) rows() int { return max(1, d.h-2-len(d.rsLines())) }
 
+// tall: the review draws over the chart too (it shows the current run
+// only), so that 80×24 lists a dozen compounds at once.
+func (d *fitDialog) tall() bool { return true }
+
 // rsLines are the minimum Rs now and with the fitted values, wrapped
 // whole (one line at 80 columns for the demo).
 func (d *fitDialog) rsLines() []string {
@@ -346,7 +350,10 @@ func (d *fitDialog) body() []string {
 		out = append(out, ansi.Truncate(line, d.w, "…"))
 	}
 	for _, wr := range d.fit.rep.Warnings {
-		out = append(out, st.Warn.Render(ansi.Truncate(" ⚠ "+inert(wr), d.w, "…")))
+		// a warning is a sentence: it wraps, whole
+		for _, l := range wrap(" ⚠ "+inert(wr), d.w) {
+			out = append(out, st.Warn.Render(l))
+		}
 	}
 	return out
 }
@@ -399,11 +406,14 @@ func rsShort(r *model.Result) string {
 	return fmt.Sprintf("%.2f", r.MinResolution)
 }
 
+// errText is a standard error as the fit saves it (calibrate.RoundSE:
+// three significant digits), so that what the review shows is what the
+// method file gets.
 func errText(x float64) string {
 	if x != x {
 		return "-"
 	}
-	return fmtNum(x, 2, 2)
+	return calibrate.SEText(x)
 }
 
 // --- the column ranking ---

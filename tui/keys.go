@@ -17,7 +17,7 @@ func DefaultGlobalKeys() GlobalKeys {
 		Help:      bind([]string{"?"}, "?", "all keys"),
 		Cautions:  bind([]string{"!"}, "!", "all cautions, last message"),
 		Quit:      bind([]string{"q"}, "q", "quit"),
-		Interrupt: bind([]string{"ctrl+c"}, "ctrl+c", "quit (asks when unsaved)"),
+		Interrupt: bind([]string{"ctrl+c"}, "ctrl+c", "stop work, quit (asks too)"),
 		Save:      bind([]string{"ctrl+s"}, "ctrl+s", "save"),
 		SaveAs:    bind([]string{"W"}, "W", "save as"),
 		Undo:      bind([]string{"u", "ctrl+z"}, "u", "undo"),
@@ -41,7 +41,8 @@ func (k GlobalKeys) ShortHelp() []key.Binding {
 // FullHelp groups the global keys for the key list.
 func (k GlobalKeys) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
-		{k.Help, k.Cautions, k.Focus, k.FocusBack, k.Quit, k.Interrupt},
+		// q and ctrl+c both ask when changes are unsaved (App.askQuit)
+		{k.Help, k.Cautions, k.Focus, k.FocusBack, withHelp(k.Quit, "quit (asks when unsaved)"), k.Interrupt},
 		{k.Optimize, k.Plan, k.Fit, k.Verify, k.Compare, k.Export},
 		{k.Save, k.SaveAs, k.Undo, k.Redo},
 	}
@@ -180,4 +181,11 @@ func scrollKeys(k ListKeys) ListKeys {
 	k.PageUp = bind([]string{"pgup"}, "pgup", "page up")
 	k.PageDown = bind([]string{"pgdown", " "}, "pgdn/pgup", "page")
 	return k
+}
+
+// withHelp is b with another description (the key list says more than the
+// footer has room for).
+func withHelp(b key.Binding, desc string) key.Binding {
+	b.SetHelp(b.Help().Key, desc)
+	return b
 }

@@ -275,7 +275,7 @@ func TestVerificationAndWindowDiagramUncut(t *testing.T) {
 		}
 		s := screen(a)
 		noCut(t, fmt.Sprintf("verification %dx%d", size[0], size[1]), s)
-		if !strings.Contains(s, "assigned") || !strings.Contains(s, "rows 1–") {
+		if !strings.Contains(s, "assigned") || (d.rows() < len(d.body()) && !strings.Contains(s, "rows 1–")) {
 			t.Errorf("%dx%d: no assigned column or no row position:\n%s", size[0], size[1], s)
 		}
 		// every assigned row shows its confidence

@@ -721,6 +721,79 @@ func coolantShort(m *methodfile.Method) string {
 	return "coolant in use: " + cryogenShort
 }
 
+// minSettingRows is how many setting rows the settings always show (the
+// selected one and those around it), fewer only on a pane that has fewer
+// rows than that.
+const minSettingRows = 3
+
+// hydrogenShort is the whole sentence the settings show for the hydrogen
+// caution when the pane has no room for it whole beside minSettingRows
+// setting rows (the chart has then already given its rows).
+const hydrogenShort = "Hydrogen carrier gas is flammable: ! shows its safety caution in full"
+
+// safetyShort is the last resort: one line pointing to the cautions.
+const safetyShort = "safety cautions (hydrogen, coolant): ! shows them in full"
+
+// safety is the settings' safety text (the coolant note and cryogen
+// caution, the hydrogen caution) for a pane of width w with free rows
+// below its heading: the whole text when it leaves minSettingRows setting
+// rows, else whole shorter sentences that name the hazards and where the
+// text stands in full. Safety text is never cut, and never hides the
+// selected setting.
+func (p *settingsPane) safety(w, free int) []string {
+	m := p.list.sh.method
+	var coolWhole, coolShort, h2, h2Short []string
+	if note := checks.CoolantNote(m); note != "" {
+		// the cautions in full are one key away (!), and open by
+		// themselves when a coolant is added
+		coolWhole = append(wrap(" ⚠ "+note, w), wrap(" ⚠ "+model.CryogenCaution, w)...)
+		coolShort = wrap(" ⚠ "+coolantShort(m), w)
+	}
+	if m.Carrier.Gas.Flammable() {
+		h2, h2Short = wrap(" ⚠ "+model.HydrogenCaution, w), wrap(" ⚠ "+hydrogenShort, w)
+	}
+	if coolWhole == nil && h2 == nil {
+		return nil
+	}
+	for _, c := range []struct {
+		lines [][]string
+		rows  int // the setting rows it must leave
+	}{
+		{[][]string{coolWhole, h2}, minSettingRows + 1}, // the derived inlet pressure too
+		{[][]string{coolShort, h2}, minSettingRows},
+		{[][]string{coolShort, h2Short}, minSettingRows},
+		{[][]string{wrap(" ⚠ "+safetyShort, w)}, minSettingRows},
+	} {
+		var out []string
+		for _, l := range c.lines {
+			out = append(out, l...)
+		}
+		if len(out)+c.rows <= free {
+			return out
+		}
+	}
+	return nil // the method line above says ⚠ H₂ flammable; ! lists the cautions
+}
+
+// wantRows is the rows the settings need at width w to show their safety
+// text whole (the coolant's in its short sentence) and a few setting rows
+// around the selection: the chart gives them up (App.heights). 0 when
+// there is no safety text.
+func (p *settingsPane) wantRows(w int) int {
+	m := p.list.sh.method
+	n := 0
+	if checks.CoolantNote(m) != "" {
+		n += len(wrap(" ⚠ "+coolantShort(m), w))
+	}
+	if m.Carrier.Gas.Flammable() {
+		n += len(wrap(" ⚠ "+model.HydrogenCaution, w))
+	}
+	if n == 0 {
+		return 0
+	}
+	return 1 + n + minSettingRows + 1 // heading, the text, setting rows
+}
+
 func (p *settingsPane) render() {
 	p.list.clamp()
 	sh, st := p.list.sh, p.list.sh.st
@@ -728,27 +801,8 @@ func (p *settingsPane) render() {
 	fs := settingsFields(m)
 	focused := sh.focus == paneSettings
 	lines := []string{heading(st, focused, "settings", p.w, "  ↑/↓ choose · +/- change · enter types · s sweeps the flow or pressure")}
-	if note := checks.CoolantNote(m); note != "" {
-		// the cautions in full are one key away (!), and open by
-		// themselves when a coolant is added
-		whole := append(wrap(" ⚠ "+note, p.w), wrap(" ⚠ "+model.CryogenCaution, p.w)...)
-		if p.h-len(lines)-len(whole) >= 4 { // room for them whole and three settings
-			for _, l := range whole {
-				lines = append(lines, st.Warn.Render(l))
-			}
-		} else {
-			// safety text is never cut: without room for it whole, one
-			// whole sentence naming the hazards and where the text is
-			for _, l := range wrap(" ⚠ "+coolantShort(m), p.w) {
-				lines = append(lines, st.Warn.Render(l))
-			}
-		}
-	}
-	if m.Carrier.Gas.Flammable() {
-		// safety text is never cut: it wraps
-		for _, l := range wrap(" ⚠ "+model.HydrogenCaution, p.w) {
-			lines = append(lines, st.Warn.Render(l))
-		}
+	for _, l := range p.safety(p.w, p.h-len(lines)) {
+		lines = append(lines, st.Warn.Render(l))
 	}
 	// the derived inlet pressure gives way when fewer than three settings
 	// would show

@@ -8,6 +8,7 @@ import (
 
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/rampwise/rampwise/model"
@@ -154,6 +155,11 @@ func (d *planDialog) View() string     { return strings.Join(d.lines, "\n") }
 func (d *planDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
 func (d *planDialog) rows() int        { return max(1, d.h-1) }
 
+// wantRows: the title and the whole body; the chart (the planned run)
+// gives rows for them down to minDialogChartRows (App.heights).
+func (d *planDialog) wantRows() int   { return 1 + len(d.body()) }
+func (d *planDialog) chartFloor() int { return minDialogChartRows }
+
 // taken is the method with the planned program (and its carrier).
 func (d *planDialog) taken() *methodfile.Method {
 	m := d.sh.method.Clone()
@@ -204,15 +210,20 @@ func (d *planDialog) body() []string {
 	var out []string
 	head := map[plan.Action]string{plan.Inject: " program to inject, as the oven keypad takes it:",
 		plan.Verify: " program to verify with one injection, as the oven keypad takes it:", plan.Done: " verified program:"}[p.Action]
-	out = append(out, st.TableHead.Render(ansi.Truncate(head, w, "…")))
+	put := func(style lipgloss.Style, s string) {
+		for _, l := range wrap(s, w) {
+			out = append(out, style.Render(l))
+		}
+	}
+	put(st.TableHead, head)
 	for _, l := range plan.KeypadLines(p.Oven, d.v.limit) {
-		out = append(out, st.Value.Render(ansi.Truncate("   "+l, w, "…")))
+		put(st.Value, "   "+l)
 	}
 	car := fmt.Sprintf("   carrier %s, constant flow %s mL/min", p.Carrier.Gas, fmtNum(p.Carrier.FlowMLMin, 2, 2))
 	if p.Carrier.Mode == model.ConstantPressure {
 		car = fmt.Sprintf("   carrier %s, constant pressure %s kPa", p.Carrier.Gas, fmtNum(p.Carrier.InletKPa, 1, 1))
 	}
-	out = append(out, st.Value.Render(ansi.Truncate(car, w, "…")))
+	put(st.Value, car)
 	for _, l := range wrap(" why: "+inert(p.Reason), w) {
 		out = append(out, st.Info.Render(l))
 	}
@@ -227,7 +238,7 @@ func (d *planDialog) body() []string {
 		}
 	}
 	if p.Action == plan.Done && p.VerifiedBy != "" {
-		out = append(out, st.Good.Render(ansi.Truncate(fmt.Sprintf(" verified by run %s: measured min Rs %.2f", inert(p.VerifiedBy), p.MeasuredMinResolution), w, "…")))
+		put(st.Good, fmt.Sprintf(" verified by run %s: measured min Rs %.2f", inert(p.VerifiedBy), p.MeasuredMinResolution))
 	}
 	if len(p.Estimated) > 0 {
 		var names []string
@@ -239,9 +250,11 @@ func (d *planDialog) body() []string {
 		}
 	}
 	if p.Action != plan.Done {
-		out = append(out, st.TableHead.Render(ansi.Truncate(" once the run is made, add it to the runs file (then F fits it and the plan updates):", w, "…")))
+		put(st.TableHead, " once the run is made, add it to the runs file (then F fits it and the plan updates):")
 		for _, l := range strings.Split(strings.TrimRight(plan.RunBlock(d.runName(), p.Oven, &p.Carrier, d.v.limit, p.Compounds), "\n"), "\n") {
-			out = append(out, st.Dim.Render(ansi.Truncate("   "+inert(l), w, "…")))
+			for _, l := range wrapTOML("   "+inert(l), w) {
+				out = append(out, st.Dim.Render(l))
+			}
 		}
 	}
 	return out
@@ -256,15 +269,49 @@ func (d *planDialog) render() {
 	action := map[plan.Action]string{plan.Inject: "INJECT this scouting run", plan.Verify: "VERIFY the optimized program", plan.Done: "DONE, no further injection"}[p.Action]
 	from := " · from the method's values"
 	if d.v.path != "" {
-		from = fmt.Sprintf(" · from %d runs in %s", d.v.runs, inert(d.v.path))
+		from = fmt.Sprintf(" · from %d runs · in %s", d.v.runs, inert(d.v.path))
 	}
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
-	more := ""
-	if len(body) > rows {
-		more = fmt.Sprintf(" · ↑/↓ %d more", len(body)-rows)
-	}
-	title := ansi.Truncate(st.Focused.Render("▸next run: ")+st.Good.Render(action)+st.Dim.Render(more+from), d.w, "…")
+	// items that do not fit are left out whole, the counter first
+	title := fitTitle(st.Focused.Render("▸next run: ")+st.Good.Render(action), st.Dim, scrollCounter(d.off, rows, len(body))+from, d.w)
 	d.lines = fill(append([]string{title}, body[d.off:min(len(body), d.off+rows)]...), d.h)
+}
+
+// scrollCounter says how many of n lines, shown rows at a time from off,
+// lie above and below the view (" · ↑ 3 above · ↓ 12 below"); "" when all
+// show.
+func scrollCounter(off, rows, n int) string {
+	above, below := off, max(0, n-off-rows)
+	s := ""
+	if above > 0 {
+		s += fmt.Sprintf(" · ↑ %d above", above)
+	}
+	if below > 0 {
+		s += fmt.Sprintf(" · ↓ %d below", below)
+	}
+	return s
+}
+
+// wrapTOML wraps a line of TOML to w columns without changing what it
+// means when pasted: a comment that does not fit goes on the lines below,
+// each a comment; a line too wide without one wraps at spaces.
+func wrapTOML(l string, w int) []string {
+	if ansi.StringWidth(l) <= w {
+		return []string{l}
+	}
+	if i := strings.Index(l, "#"); i > 0 && !strings.Contains(l[:i], "\"") {
+		code, comment := strings.TrimRight(l[:i], " "), strings.TrimSpace(strings.TrimPrefix(l[i:], "#"))
+		indent := l[:len(l)-len(strings.TrimLeft(l, " "))]
+		var out []string
+		if strings.TrimSpace(code) != "" {
+			out = wrap(code, w)
+		}
+		for _, c := range wrap(comment, w-len(indent)-2) {
+			out = append(out, indent+"# "+strings.TrimLeft(c, " "))
+		}
+		return out
+	}
+	return wrap(l, w)
 }

@@ -224,6 +224,7 @@ func (a *App) messageLines(w, n int) []string {
 
 // wrap breaks plain text into lines of at most w columns at spaces.
 func wrap(s string, w int) []string {
+	w = max(w, 3) // narrower never ends (" " and a wide rune need 3)
 	var lines []string
 	for ansi.StringWidth(s) > w {
 		rs := []rune(s)

@@ -117,6 +117,9 @@ func (a *App) verifyDone(v verifyOutcome) {
 	} else {
 		a.say(msgWarn, "%s does NOT meet the target as measured · esc closes", inert(v.ck.Run.Name))
 	}
+	if d.offProgram() != "" {
+		a.say(a.kind, "%s · ⚠ its times are far from the prediction: is it a run of this program?", a.message)
+	}
 }
 
 // --- the verification dialog ---
@@ -143,7 +146,12 @@ func (d *verifyDialog) FullHelp() [][]key.Binding {
 }
 func (d *verifyDialog) View() string     { return strings.Join(d.lines, "\n") }
 func (d *verifyDialog) SetSize(w, h int) { d.w, d.h = w, h; d.render() }
-func (d *verifyDialog) rows() int        { return max(1, d.h-1-len(d.title())) }
+func (d *verifyDialog) rows() int        { return max(1, d.h-1-len(d.title(""))) }
+
+// wantRows: the title, the table head and every row; the chart gives
+// rows for them down to minDialogChartRows (App.heights).
+func (d *verifyDialog) wantRows() int   { return len(d.title("")) + 1 + len(d.body()) }
+func (d *verifyDialog) chartFloor() int { return minDialogChartRows }
 
 func (d *verifyDialog) Update(msg tea.Msg) (component, tea.Cmd) {
 	switch msg := msg.(type) {
@@ -255,22 +263,28 @@ func (d *verifyDialog) nameWidth() int {
 
 func (d *verifyDialog) render() {
 	st := d.sh.st
-	title := d.title()
 	nw := d.nameWidth()
 	head := st.TableHead.Render(ansi.Truncate(fmt.Sprintf(" %2s %-*s %s %8s %8s %7s  %-15s  %-9s", "#", nw, "compound", "t", "pred min", "meas min", "Δt min", " Rs pred   meas", "assigned"), d.w, "…"))
 	body := d.body()
 	rows := d.rows()
 	d.off = max(0, min(d.off, len(body)-rows))
+	title := d.title("")
 	if len(body) > rows {
-		// where the rows are, on the first line it fits whole
-		pos := st.Dim.Render(fmt.Sprintf(" · rows %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body)))
-		switch {
-		case ansi.StringWidth(strings.TrimRight(head, " ")+pos) <= d.w:
+		// where the rows are, on the first line it fits whole (before
+		// the legend)
+		plain := fmt.Sprintf(" · rows %d–%d of %d", d.off+1, min(len(body), d.off+rows), len(body))
+		pos := st.Dim.Render(plain)
+		if ansi.StringWidth(strings.TrimRight(head, " ")+pos) <= d.w {
 			head = strings.TrimRight(head, " ") + pos
-		case ansi.StringWidth(title[0]+pos) <= d.w:
-			title[0] += pos
-		case ansi.StringWidth(title[len(title)-1]+pos) <= d.w:
-			title[len(title)-1] += pos
+		} else if t := d.title(plain); strings.Contains(ansi.Strip(strings.Join(t, "\n")), plain) {
+			title = t
+		} else {
+			for i := range title {
+				if ansi.StringWidth(title[i]+pos) <= d.w {
+					title[i] += pos
+					break
+				}
+			}
 		}
 	}
 	lines := append(title, head)
@@ -278,13 +292,16 @@ func (d *verifyDialog) render() {
 	d.lines = fill(lines, d.h)
 }
 
-// title is the verdict and the measured critical pair, wrapped whole (at
-// most two lines); the legend follows when it fits whole.
-func (d *verifyDialog) title() []string {
+// title (with pos, the rows shown, before the legend) is the verdict
+// with what fails it (the pair under the target or
+// the targets not found), the measured critical pair, and a warning when
+// the measured times are far from the prediction (a run of another
+// program?), each wrapped whole; the legend follows when it fits whole.
+func (d *verifyDialog) title(pos string) []string {
 	st, ck := d.sh.st, d.v.ck
 	verdict := st.Good.Render("target met as measured")
 	if !ck.Met {
-		verdict = st.Bad.Render("target NOT met as measured")
+		verdict = st.Bad.Render("target NOT met as measured" + d.failing())
 	}
 	rs := "no counted pair measured"
 	if !math.IsNaN(ck.MinResolution) {
@@ -292,13 +309,72 @@ func (d *verifyDialog) title() []string {
 	}
 	rs += ", target " + format.Target(ck.Target)
 	head := st.Focused.Render("▸verification "+inert(ck.Run.Name)+": ") + verdict
-	legend := " · Δt = measured − predicted · * widths predicted · assigned: the confidence of an unnamed peak's match"
+	legend := pos + " · Δt = measured − predicted · * widths predicted · assigned: the confidence of an unnamed peak's match"
+	var lines []string
 	if one := head + st.Dim.Render(" · "+rs); ansi.StringWidth(one) <= d.w {
-		return []string{fitTitle(one, st.Dim, legend, d.w)}
+		lines = []string{fitTitle(one, st.Dim, legend, d.w)}
+	} else if !math.IsNaN(ck.MinResolution) && ck.MinResolution < ck.Target {
+		// the verdict names the pair and its Rs already: no second line
+		lines = wrapStyled(head, d.w)
+		lines[len(lines)-1] = fitTitle(lines[len(lines)-1], st.Dim, legend, d.w)
+	} else {
+		lines = wrapStyled(head, d.w)
+		if second := wrapStyled(st.Dim.Render(" "+rs), d.w); len(second) > 1 {
+			lines = append(lines, second...)
+		} else {
+			lines = append(lines, fitTitle(second[0], st.Dim, legend, d.w))
+		}
 	}
-	second := wrapStyled(" "+rs, d.w)
-	if len(second) > 1 {
-		return []string{ansi.Truncate(head, d.w, "…"), ansi.Truncate(" "+rs, d.w, "…")}
+	if off := d.offProgram(); off != "" {
+		lines = append(lines, wrapStyled(st.Warn.Render(" ⚠ "+off), d.w)...)
 	}
-	return []string{ansi.Truncate(head, d.w, "…"), fitTitle(st.Dim.Render(second[0]), st.Dim, legend, d.w)}
+	return lines
+}
+
+// failing says what fails the target: the counted pair below it, or the
+// targets the run lacks.
+func (d *verifyDialog) failing() string {
+	ck := d.v.ck
+	var why []string
+	if n := len(ck.MissingTargets); n > 0 {
+		why = append(why, fmt.Sprintf("%d %s not found", n, plural(n, "target", "targets")))
+	}
+	if !math.IsNaN(ck.MinResolution) && ck.MinResolution < ck.Target {
+		why = append(why, fmt.Sprintf("%s / %s at Rs %s < %s", inert(ck.Critical[0]), inert(ck.Critical[1]),
+			format.RsNumber(ck.MinResolution, ck.Target), format.Target(ck.Target)))
+	}
+	if len(why) == 0 {
+		return ""
+	}
+	return ": " + strings.Join(why, ", ")
+}
+
+// farFactor: a measured time more than this many retention-time SDs
+// (goal.robust.retention_time_sd_min) from the prediction, and more than
+// the predicted half-height width, is far from it.
+const farFactor = 25
+
+// offProgram is a warning when most measured peaks are far from the
+// prediction: the run was most likely made with another program (or
+// column, or carrier setting) than the one it is checked against.
+func (d *verifyDialog) offProgram() string {
+	sd := d.sh.method.Goal.Robust.RetentionTimeSDMin
+	if !(sd > 0) {
+		sd = methodfile.DefaultRetentionTimeSDMin
+	}
+	measured, far, worst := 0, 0, 0.0
+	for _, c := range d.v.ck.Compounds {
+		if math.IsNaN(c.DeltaMin) {
+			continue
+		}
+		measured++
+		if x := math.Abs(c.DeltaMin); x > farFactor*sd && x > c.PredictedWidthMin {
+			far++
+		}
+		worst = max(worst, math.Abs(c.DeltaMin))
+	}
+	if measured < 2 || 2*far <= measured {
+		return ""
+	}
+	return fmt.Sprintf("measured times differ from the prediction by up to %.1f min (%d of %d peaks): is this run of this program?", worst, far, measured)
 }

@@ -63,8 +63,9 @@ type (
 		data  []byte // the text written
 	}
 	exportOutcome struct {
-		base string
-		err  error
+		base    string
+		unsaved bool // the program on screen differs from the file's
+		err     error
 	}
 	fitOutcome struct {
 		path string
@@ -151,7 +152,12 @@ func (a *App) onDone(msg doneMsg) tea.Cmd {
 			return nil
 		}
 		a.wrote[v.base+".png"], a.wrote[v.base+".md"] = true, true
-		a.say(msgGood, "exported %s.png (figure) and %s.md (method sheet)", inert(v.base), inert(v.base))
+		if v.unsaved {
+			// the export is of what the screen shows, which the file does not hold yet
+			a.say(msgWarn, "exported %s.png (figure) and %s.md (method sheet) of the method on screen, UNSAVED: the method file still holds the last saved program", inert(v.base), inert(v.base))
+		} else {
+			a.say(msgGood, "exported %s.png (figure) and %s.md (method sheet)", inert(v.base), inert(v.base))
+		}
 	case fitOutcome:
 		if v.err != nil {
 			a.say(msgError, "%v", inertErr(v.err))
@@ -302,7 +308,7 @@ func (a *App) askExport() tea.Cmd {
 		}
 	}
 	if len(there) > 0 {
-		a.open(newConfirm(&a.sh, "replace "+strings.Join(there, " and ")+"?", "the export writes the figure and the method sheet there", []choice{
+		a.open(newConfirm(&a.sh, "replace "+strings.Join(there, " and ")+"?", exportNote(a.Dirty()), []choice{
 			{keys: []string{"y"}, label: "replace", msgs: []tea.Msg{exportMsg{base: base}}},
 			{keys: []string{"n", "esc"}, label: "keep them (not exported)", msgs: []tea.Msg{sayMsg{msgInfo, "not exported"}}},
 		}))
@@ -311,10 +317,23 @@ func (a *App) askExport() tea.Cmd {
 	return a.startExport(base)
 }
 
+// exportNote is the replace question's text: what the export writes, and
+// that it is the method on screen when that is unsaved.
+func exportNote(unsaved bool) string {
+	if unsaved {
+		return "the export writes the figure and the method sheet of the method on screen, unsaved (not the file's), there"
+	}
+	return "the export writes the figure and the method sheet there"
+}
+
 func (a *App) startExport(base string) tea.Cmd {
-	m := a.sh.method
-	_, cmd := a.startJob("exporting "+inert(base)+".png and .md", func(ctx context.Context) any {
-		return exportOutcome{base: base, err: export(m, base)}
+	m, unsaved := a.sh.method, a.Dirty()
+	what := "exporting " + inert(base) + ".png and .md"
+	if unsaved {
+		what += " of the method on screen (unsaved)"
+	}
+	_, cmd := a.startJob(what, func(ctx context.Context) any {
+		return exportOutcome{base: base, unsaved: unsaved, err: export(m, base)}
 	})
 	return cmd
 }

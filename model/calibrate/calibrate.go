@@ -11,6 +11,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -273,7 +274,7 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 				given := cf.StdErrDS
 				sS := math.Hypot(given, f.ridgeSlope*sH)
 				cf.StdErrDH, cf.StdErrDS, cf.CorrDHDS, cf.HeldDH = sH, sS, f.ridgeSlope*sH/sS, true
-				w += fmt.Sprintf("; its errors: ΔH ± %.2f kJ/mol (the held value's uncertainty, goal.robust.prior_dH_kJ_mol), ΔS ± %.2f J/(mol·K) (± %.2f with ΔH fixed, widened along the ΔH–ΔS ridge that keeps the measured times), correlation %.3f: written with --out", sH, sS, given, cf.CorrDHDS)
+				w += fmt.Sprintf("; its errors: ΔH ± %s kJ/mol (the held value's uncertainty, goal.robust.prior_dH_kJ_mol), ΔS ± %s J/(mol·K) (± %.2f with ΔH fixed, widened along the ΔH–ΔS ridge that keeps the measured times), correlation %.3f: written with --out", SEText(sH), SEText(sS), given, cf.CorrDHDS)
 			}
 			rep.Warnings = append(rep.Warnings, w)
 		}
@@ -316,9 +317,9 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 			rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: standard errors ±%.3g kJ/mol, ±%.3g J/(mol·K): the runs hardly determine it; errors not written to the method", cf.Name, cf.StdErrDH, cf.StdErrDS))
 		} else if finite(cf.StdErrDH) && finite(cf.StdErrDS) {
 			if cf.LargeError() && !cf.HeldDH {
-				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: large standard errors ±%.2f kJ/mol on ΔH, ±%.2f J/(mol·K) on ΔS (large: over %g kJ/mol or %g J/(mol·K)): the runs determine it poorly; predictions away from the scouted programs are uncertain; add a run with a clearly different ramp or starting temperature", cf.Name, cf.StdErrDH, cf.StdErrDS, LargeSEDHkJ, LargeSEDS))
+				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%s: large standard errors ±%s kJ/mol on ΔH, ±%s J/(mol·K) on ΔS (large: over %g kJ/mol or %g J/(mol·K)): the runs determine it poorly; predictions away from the scouted programs are uncertain; add a run with a clearly different ramp or starting temperature", cf.Name, SEText(cf.StdErrDH), SEText(cf.StdErrDS), LargeSEDHkJ, LargeSEDS))
 			}
-			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = roundSig(cf.StdErrDH, 3), roundSig(cf.StdErrDS, 3), math.Round(cf.CorrDHDS*1e6)/1e6, true
+			c.DHSE, c.DSSE, c.DHDSCorr, c.HasSE = RoundSE(cf.StdErrDH), RoundSE(cf.StdErrDS), math.Round(cf.CorrDHDS*1e6)/1e6, true
 		}
 		rep.Compounds = append(rep.Compounds, cf)
 	}
@@ -351,6 +352,24 @@ func Fit(m *methodfile.Method, runsIn *methodfile.Runs, opt Options) (*Report, e
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // roundSig rounds to d significant digits (the file keeps what matters).
+// SESigDigits is how many significant digits a standard error is saved
+// with (dH_se_kJ_mol, dS_se_J_mol_K).
+const SESigDigits = 3
+
+// RoundSE is a standard error as the method file saves it.
+func RoundSE(x float64) float64 { return roundSig(x, SESigDigits) }
+
+// SEText is a standard error as it is saved, written out ("25.2",
+// "0.317", "2.00"), for what is shown to say what is saved.
+func SEText(x float64) string {
+	v := RoundSE(x)
+	if v == 0 || !finite(v) {
+		return strconv.FormatFloat(v, 'f', -1, 64)
+	}
+	d := SESigDigits - 1 - int(math.Floor(math.Log10(math.Abs(v))))
+	return strconv.FormatFloat(v, 'f', max(0, d), 64)
+}
+
 func roundSig(x float64, d int) float64 {
 	if x == 0 || !finite(x) {
 		return x
