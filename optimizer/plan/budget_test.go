@@ -55,7 +55,7 @@ func TestBudgetDecidesVerifyOrScout(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	p, err := Next(context.Background(), rough, runs, Settings{Optimizer: testOptimizer, Injections: 3})
+	p, err := Next(context.Background(), rough, runs, Settings{Optimizer: testOptimizer, Injections: 3, Slower: 1e-9})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -63,6 +63,9 @@ func TestBudgetDecidesVerifyOrScout(t *testing.T) {
 		t.Fatalf("budget 3 after 2 runs: action %s, want verify: %s", p.Action, p.Reason)
 	}
 	t.Logf("budget 3: verify %.2f min: %s", methodfile.ProgramToModel(p.Oven).RunTime()/60, p.Reason)
+	if !strings.Contains(p.Reason, "leaves no scouting run") {
+		t.Errorf("the budget's end is not named in the reason: %s", p.Reason)
+	}
 	q, err := Next(context.Background(), rough, runs, Settings{Optimizer: testOptimizer, Injections: 6, Slower: 1e-9})
 	if err != nil {
 		t.Fatal(err)

@@ -389,11 +389,9 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 	// run pins them there too
 	var knownOven methodfile.Oven
 	knownOK := false
-	if !last || robust == nil {
-		knownOven, knownOK, err = st.optimize(ctx, target, s.Optimizer, vm.known())
-		if err != nil {
-			return nil, err
-		}
+	knownOven, knownOK, err = st.optimize(ctx, target, s.Optimizer, vm.known())
+	if err != nil {
+		return nil, err
 	}
 	if robust != nil && (last || !knownOK || st.duration(robustOven) <= (1+s.Slower)*st.duration(knownOven)) {
 		p.Action, p.Oven = Verify, robustOven
@@ -405,6 +403,9 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 			robust.minRs, strings.Join(robust.pair[:], " / "), target, robust.z, robust.sd, robust.sp, zText, robust.cornerText)
 		if robust != nominal {
 			p.Reason += marginPrice(st.duration(robustOven), st.duration(nomOven))
+		}
+		if knownOK && st.duration(robustOven) > (1+s.Slower)*st.duration(knownOven) {
+			p.Reason += fmt.Sprintf("; with the parameters known a program of %.2f min would hold the margin, but the budget of %d injections (--injections) leaves no scouting run for it", st.duration(knownOven)/60, s.Injections)
 		}
 		p.Method = st.withOven(robustOven)
 		return st.complete(p, runs), nil
