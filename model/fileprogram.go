@@ -27,6 +27,19 @@ func (o FileProgram) Clone() FileProgram {
 	return c
 }
 
+// Equal reports whether two programs are the same step for step.
+func (o FileProgram) Equal(q FileProgram) bool {
+	if o.InitialC != q.InitialC || o.InitialHoldMin != q.InitialHoldMin || len(o.Ramps) != len(q.Ramps) {
+		return false
+	}
+	for i := range o.Ramps {
+		if o.Ramps[i] != q.Ramps[i] {
+			return false
+		}
+	}
+	return true
+}
+
 // Program is o in SI units: °C + 273.15, min × 60, °C/min ÷ 60, not
 // rounded (the values in the file are the ones the oven runs).
 func (o FileProgram) Program() Program {

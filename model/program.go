@@ -89,10 +89,20 @@ func (p Program) TempAt(t float64) float64 {
 // the run ends and a hold shortened; steps after end are dropped. A program
 // shorter than end gets its last hold extended.
 func (p Program) TrimTo(end float64) Program {
-	q := Program{Initial: p.Initial, InitialHold: p.InitialHold}
+	var q Program
+	p.TrimInto(end, &q)
+	return q
+}
+
+// TrimInto is TrimTo writing into q, reusing its ramps (no allocation once
+// q holds as many ramps as p: the optimizer's search calls it for every
+// evaluation). q must not share p's ramps.
+func (p Program) TrimInto(end float64, q *Program) {
+	q.Initial, q.InitialHold = p.Initial, p.InitialHold
+	q.Ramps = q.Ramps[:0]
 	if end <= p.InitialHold || len(p.Ramps) == 0 {
 		q.InitialHold = math.Max(0, end)
-		return q
+		return
 	}
 	t := p.InitialHold
 	prev := p.Initial
@@ -103,19 +113,18 @@ func (p Program) TrimTo(end float64) Program {
 			if f > prev {
 				q.Ramps = append(q.Ramps, Ramp{Rate: r.Rate, Final: f})
 			}
-			return q
+			return
 		}
 		t += d
 		if t+r.Hold >= end {
 			q.Ramps = append(q.Ramps, Ramp{Rate: r.Rate, Final: r.Final, Hold: end - t})
-			return q
+			return
 		}
 		t += r.Hold
 		q.Ramps = append(q.Ramps, r)
 		prev = r.Final
 	}
 	q.Ramps[len(q.Ramps)-1].Hold += end - t
-	return q
 }
 
 // Simplify merges consecutive ramps of the same rate with no hold between

@@ -87,11 +87,11 @@ func (e *evaluator) ending(prog model.Program) (en runEnd) {
 	lockEnd := e.lk.lockedEnd(prog, p.Steps.TempC)
 	end := math.Max(lastAll+p.Tail, lockEnd)
 	ok := !(end > prog.RunTime() && e.lk.lastLocked(prog))
-	cutModel(prog, end, &e.q)
+	prog.TrimInto(end, &e.q)
 	if p.Bakeout.On && !math.IsInf(lastTarget, -1) && lastAll > lastTarget+p.Tail {
 		endT := math.Max(lastTarget+p.Tail, lockEnd)
 		if endT <= prog.RunTime() || !e.lk.lastLocked(prog) {
-			cutModel(prog, endT, &e.qb)
+			prog.TrimInto(endT, &e.qb)
 			p.appendBakeout(&e.qb)
 			if err := e.rg.sys.Simulate(e.qb, &e.alt); err == nil {
 				endB := e.qb.RunTime()

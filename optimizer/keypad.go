@@ -119,36 +119,3 @@ func cutOven(o Oven, end float64, st Steps, l *locks) (Oven, bool) {
 	q.Ramps[n-1].HoldMin = ceilGrid(q.Ramps[n-1].HoldMin+endMin-t, st.HoldMin)
 	return q, true
 }
-
-// cutModel is the continuous form of cutOven used inside the search: prog
-// cut at end (s) without rounding, a run past the program stretching the
-// last hold. It writes into q.
-func cutModel(prog model.Program, end float64, q *model.Program) {
-	q.Initial, q.InitialHold = prog.Initial, prog.InitialHold
-	q.Ramps = q.Ramps[:0]
-	if end <= prog.InitialHold || len(prog.Ramps) == 0 {
-		q.InitialHold = math.Max(0, end)
-		return
-	}
-	t := prog.InitialHold
-	prev := prog.Initial
-	for _, r := range prog.Ramps {
-		d := (r.Final - prev) / r.Rate
-		if t+d >= end {
-			f := prev + r.Rate*(end-t)
-			if f > prev {
-				q.Ramps = append(q.Ramps, model.Ramp{Rate: r.Rate, Final: f})
-			}
-			return
-		}
-		t += d
-		if t+r.Hold >= end {
-			q.Ramps = append(q.Ramps, model.Ramp{Rate: r.Rate, Final: r.Final, Hold: end - t})
-			return
-		}
-		t += r.Hold
-		q.Ramps = append(q.Ramps, r)
-		prev = r.Final
-	}
-	q.Ramps[len(q.Ramps)-1].Hold += end - t
-}

@@ -189,7 +189,7 @@ func writePlan(w io.Writer, m *methodfile.Method, p *plan.Plan, runName string) 
 		fmt.Fprintf(w, "optimized program: predicted min Rs %.2f %s (target %.2f, %s)\n", p.ExpectedMinResolution, sd, m.Goal.MinResolution,
 			textsafe.Inert(strings.Join(p.CriticalPair[:], " / ")))
 	}
-	if p.Action == plan.Done && len(p.Optimized.Ramps) > 0 && !sameOven(p.Optimized, p.Oven) &&
+	if p.Action == plan.Done && len(p.Optimized.Ramps) > 0 && !model.FileProgram(p.Optimized).Equal(model.FileProgram(p.Oven)) &&
 		methodfile.ProgramToModel(p.Optimized).RunTime() < 0.98*methodfile.ProgramToModel(p.Oven).RunTime() {
 		fmt.Fprintln(w, "a faster program now optimized (verify it too if the time matters):")
 		for _, l := range plan.KeypadLines(p.Optimized, m.Limits) {
@@ -239,17 +239,4 @@ func describeCarrier(c methodfile.Carrier) string {
 		return fmt.Sprintf("%s, constant pressure %.1f kPa", c.Gas, c.InletKPa)
 	}
 	return fmt.Sprintf("%s, constant flow %.2f mL/min", c.Gas, c.FlowMLMin)
-}
-
-// sameOven reports whether two programs are the same step for step.
-func sameOven(a, b methodfile.Oven) bool {
-	if a.InitialC != b.InitialC || a.InitialHoldMin != b.InitialHoldMin || len(a.Ramps) != len(b.Ramps) {
-		return false
-	}
-	for i := range a.Ramps {
-		if a.Ramps[i] != b.Ramps[i] {
-			return false
-		}
-	}
-	return true
 }

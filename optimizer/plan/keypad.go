@@ -153,17 +153,3 @@ func tomlQuote(s string) string {
 	b.WriteByte('"')
 	return b.String()
 }
-
-// rampText is a program in one line for a message: "40 °C for 1 min,
-// 5 °C/min to 300 °C, hold 10 min" (values as the keypad shows them).
-func rampText(o methodfile.Oven) string {
-	parts := []string{fmt.Sprintf("%s °C for %s min", strconv.FormatFloat(o.InitialC, 'f', -1, 64), strconv.FormatFloat(o.InitialHoldMin, 'f', -1, 64))}
-	for _, r := range o.Ramps {
-		p := fmt.Sprintf("%s °C/min to %s °C", strconv.FormatFloat(r.RateCMin, 'f', -1, 64), strconv.FormatFloat(r.FinalC, 'f', -1, 64))
-		if r.HoldMin > 0 {
-			p += fmt.Sprintf(", hold %s min", strconv.FormatFloat(r.HoldMin, 'f', -1, 64))
-		}
-		parts = append(parts, p)
-	}
-	return strings.Join(parts, ", ")
-}

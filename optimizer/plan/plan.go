@@ -464,7 +464,7 @@ func Next(ctx context.Context, m *methodfile.Method, runs *methodfile.Runs, s Se
 		p.Reason += fmt.Sprintf("; this run goes beyond the budget of %d injections (--injections), since no program holds the margin yet", s.Injections)
 	}
 	if ahead > 0 && len(d.next.Ramps) > 0 {
-		p.Reason += fmt.Sprintf(", and with the scouting run planned after it (%s) to ± %.2f", rampText(d.next), d.nextSDAfter)
+		p.Reason += fmt.Sprintf(", and with the scouting run planned after it (%s) to ± %.2f", d.next.Describe(), d.nextSDAfter)
 	}
 	if len(st.estimated) > 0 {
 		p.Reason += fmt.Sprintf("; %s: parameters only estimated from the formula (± %.0f kJ/mol)", strings.Join(st.estimated, ", "), formulaSDkJ)
